@@ -1,0 +1,99 @@
+/** Located tree: every key and value knows where it sits in the source text. */
+
+export type SourceFormat = 'yaml' | 'json' | 'jsonc';
+
+/** Half-open range of UTF-16 code-unit offsets into the document text. */
+export interface Span {
+  start: number;
+  end: number;
+}
+
+export type ScalarValue = string | number | boolean | null;
+
+export interface LocatedScalar {
+  kind: 'scalar';
+  /** Parsed value (YAML 1.2 core schema / JSON). Big integers become numbers (maybe Infinity). */
+  value: ScalarValue;
+  /** Exact source text of the value, including quotes. */
+  raw: string;
+  /** How the value is written: used to keep quoting style when a fix rewrites it. */
+  style: 'plain' | 'single' | 'double' | 'block';
+  span: Span;
+}
+
+export interface LocatedEntry {
+  key: string;
+  keySpan: Span;
+  /** null for `key:` with no value. */
+  value: LocatedNode | null;
+  /** From the start of the key to the end of the value (no trailing comment or newline). */
+  span: Span;
+}
+
+export interface LocatedMap {
+  kind: 'map';
+  entries: LocatedEntry[];
+  style: 'block' | 'flow';
+  span: Span;
+}
+
+export interface LocatedList {
+  kind: 'list';
+  items: LocatedNode[];
+  style: 'block' | 'flow';
+  span: Span;
+}
+
+export type LocatedNode = LocatedScalar | LocatedMap | LocatedList;
+
+export interface ParsedDocument {
+  /** 0-based index of the document in a multi-document YAML file; 0 for JSON. */
+  index: number;
+  root: LocatedNode | null;
+  span: Span;
+}
+
+export interface ParseProblem {
+  message: string;
+  span: Span;
+  severity: 'error' | 'warning';
+  /** Short machine-readable code, e.g. 'yaml-syntax', 'json-syntax', 'too-deep', 'too-large'. */
+  code: string;
+}
+
+/** A `noiselint: allow ...` comment. */
+export interface Suppression {
+  /** 'next-line' suppresses findings that start on `line + 1`; 'file' suppresses everywhere. */
+  scope: 'next-line' | 'file';
+  /** 0-based line of the comment. */
+  line: number;
+  /** Rule ids, or ['*'] for all rules. */
+  rules: string[];
+}
+
+export interface ParsedFile {
+  format: SourceFormat;
+  text: string;
+  documents: ParsedDocument[];
+  problems: ParseProblem[];
+  lineEnding: '\n' | '\r\n';
+  /** True when the text starts with U+FEFF. Offsets still count it. */
+  bom: boolean;
+  suppressions: Suppression[];
+}
+
+/** Limits that keep parsing bounded; documented user settings. */
+export interface ParseLimits {
+  maxFileBytes: number;
+  maxNesting: number;
+  maxListLength: number;
+  /** Upper bound on YAML alias expansion (alias-bomb guard). */
+  maxAliasCount: number;
+}
+
+export const DEFAULT_PARSE_LIMITS: ParseLimits = {
+  maxFileBytes: 5 * 1024 * 1024,
+  maxNesting: 256,
+  maxListLength: 200_000,
+  maxAliasCount: 1_000,
+};

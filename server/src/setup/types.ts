@@ -1,0 +1,77 @@
+import type { Concept, ConceptValues } from '../fields/concepts';
+import type { LocatedEntry, LocatedMap, Span } from '../parse/types';
+
+/** Where a concept was found in the located tree. */
+export interface FieldSource {
+  /** The key as written, e.g. `num_train_timesteps`. */
+  key: string;
+  /** Dotted path from the document root, e.g. `model.params.timesteps`. List items as `[i]`. */
+  path: string;
+  entry: LocatedEntry;
+  /** The map that holds the entry (used to insert siblings). */
+  parent: LocatedMap;
+  keySpan: Span;
+  /** Span of the value node; for `key:` with no value, the end of the key. */
+  valueSpan: Span;
+}
+
+export interface ResolvedField<C extends Concept = Concept> {
+  concept: C;
+  value: ConceptValues[C];
+  /** True when the file does not set it and the setup assumed a default. */
+  assumed: boolean;
+  source: FieldSource | null;
+}
+
+export type ValueProblemKind =
+  | 'not-a-number'
+  | 'not-finite'
+  | 'not-an-integer'
+  | 'wrong-type'
+  | 'unknown-value'
+  | 'duplicate';
+
+/** A value the setup could not use. Rules turn these into findings (unknown-value, schedule-invalid). */
+export interface ValueProblem {
+  concept: Concept;
+  kind: ValueProblemKind;
+  source: FieldSource;
+  /** One line, e.g. `beta_schedule: "scaled-linaer" is not a known beta schedule`. */
+  message: string;
+  /** For unknown-value: the closest known spelling in the file's own style, if any. */
+  suggestion?: string;
+}
+
+/** What kind of file this document describes, from the concepts it sets. */
+export type ConfigRole = 'training' | 'sampling' | 'both';
+
+export type SetupFields = { [C in Concept]?: ResolvedField<C> };
+
+/** One document's resolved diffusion setup. */
+export interface Setup {
+  documentIndex: number;
+  /** True when the field map recognises the document as a diffusion config. */
+  isDiffusionConfig: boolean;
+  role: ConfigRole;
+  fields: SetupFields;
+  /** Concepts whose value was assumed (also marked on each field). */
+  assumed: Concept[];
+  problems: ValueProblem[];
+  /** Span of the whole document, and of the root map when there is one. */
+  documentSpan: Span;
+  rootMap: LocatedMap | null;
+  /**
+   * The spelling family the file uses for keys, so that inserted keys match:
+   * 'snake' (num_train_timesteps), 'camel' (numTrainTimesteps), 'short' (timesteps, linear_start).
+   */
+  keyStyle: 'snake' | 'camel' | 'short';
+}
+
+/** Typed accessor; returns undefined when the concept is neither set nor assumed. */
+export function fieldOf<C extends Concept>(setup: Setup, concept: C): ResolvedField<C> | undefined {
+  return setup.fields[concept] as ResolvedField<C> | undefined;
+}
+
+export function valueOf<C extends Concept>(setup: Setup, concept: C): ConceptValues[C] | undefined {
+  return (setup.fields[concept] as ResolvedField<C> | undefined)?.value;
+}
