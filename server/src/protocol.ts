@@ -1,0 +1,81 @@
+/**
+ * noiselint's own protocol extensions, shared by the language server (server/src/lsp) and the
+ * VS Code client. Plain data only: no LSP library types here.
+ */
+
+/** Request: plot data for one document. Params: PlotDataParams. Result: PlotData | null. */
+export const PLOT_DATA_REQUEST = 'noiselint/plotData';
+/** Request: the `explain` text for one document. Params: { uri }. Result: { text: string }. */
+export const EXPLAIN_REQUEST = 'noiselint/explain';
+/** Request: a one-line summary for the status item. Params: { uri }. Result: DocumentSummary. */
+export const SUMMARY_REQUEST = 'noiselint/summary';
+/** Notification server -> client: plot data of a document changed (so an open plot can refresh). */
+export const PLOT_CHANGED_NOTIFICATION = 'noiselint/plotChanged';
+/** Client command run by the "Show noise schedule" code lens; argument: the document uri string. */
+export const SHOW_SCHEDULE_COMMAND = 'noiselint.showSchedule';
+/** Code action kind that applies every safe fix. */
+export const FIX_ALL_KIND = 'source.fixAll.noiselint';
+
+export interface UriParams {
+  uri: string;
+}
+
+export type PlotDataParams = UriParams;
+
+export interface PlotCurve {
+  /** log-SNR at each x; null where it is -Infinity (zero SNR) or +Infinity. */
+  logSnr: (number | null)[];
+  /** Signal amplitude sqrt(abar) at each x. */
+  signal: number[];
+}
+
+export interface PlotSampledStep {
+  /** Timestep (0-based code index for discrete schedules). */
+  t: number;
+  /** Position in the sampling order, 0 = first (noisiest). */
+  order: number;
+  logSnr: number | null;
+  snr: number;
+  signal: number;
+  /** True when the step lies outside [0, T - 1]. */
+  outOfRange: boolean;
+}
+
+export interface PlotDocument {
+  /** Document index inside the file (multi-document YAML). */
+  index: number;
+  /** Short label, e.g. "scaled_linear, T = 1000, epsilon". */
+  label: string;
+  family: 'discrete' | 'flow' | 'karras';
+  trainSteps: number;
+  /** x positions: timesteps 0..T-1 (downsampled to at most ~1000 points for long schedules). */
+  t: number[];
+  current: PlotCurve;
+  /** The same schedule after the zero-terminal-SNR rescale (Lin et al. 2023); null when not applicable. */
+  rescaled: PlotCurve | null;
+  sampled: PlotSampledStep[];
+  terminalSnr: number;
+  terminalSignal: number;
+  /** Problems that stopped part of the computation (one line each). */
+  problems: string[];
+}
+
+export interface PlotData {
+  uri: string;
+  /** Document version the data was computed from. */
+  version: number | null;
+  documents: PlotDocument[];
+}
+
+export interface DocumentSummary {
+  uri: string;
+  isDiffusionConfig: boolean;
+  /** Terminal SNR of the first diffusion document, when it could be computed. */
+  terminalSnr: number | null;
+  terminalSignal: number | null;
+  errors: number;
+  warnings: number;
+  infos: number;
+  /** 'clean' | 'warnings' | 'errors' | 'not-a-config' */
+  state: 'clean' | 'warnings' | 'errors' | 'not-a-config';
+}
