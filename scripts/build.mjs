@@ -3,7 +3,7 @@ import { build } from 'esbuild';
 import { existsSync } from 'node:fs';
 
 const common = { bundle: true, platform: 'node', target: 'node20', format: 'cjs', sourcemap: 'linked', logLevel: 'warning' };
-await build({ ...common, entryPoints: ['server/src/cli/main.ts'], outfile: 'server/dist/noiselint.js' });
+await build({ ...common, entryPoints: ['server/src/cli/entry.ts'], outfile: 'server/dist/noiselint.js' });
 if (existsSync('client/src/extension.ts') && existsSync('client/build.mjs')) {
   await import('../client/build.mjs');
 }

@@ -1,1 +1,53 @@
-process.stdout.write("noiselint\n");
+/** `noiselint <command>`: dispatches to the commands; every failure is one line, exit code 2. */
+import { UsageError, type CliIO, type Command } from './io';
+import { runExplain } from './commands/explain';
+import { runCheck } from './commands/check';
+import { runFix } from './commands/fix';
+import { runRulesCommand } from './commands/rules';
+import { runLsp } from './commands/lsp';
+
+const VERSION = '0.1.0';
+
+const USAGE = `noiselint ${VERSION}: finds noise-schedule mistakes in diffusion configs
+
+Usage:
+  noiselint check [paths|globs...] [--format text|json|sarif] [--max-warnings N] [--quiet]
+  noiselint fix [paths...] [--unsafe] [--dry-run]
+  noiselint explain <file...> [--format text|json]
+  noiselint rules [id]
+  noiselint lsp --stdio
+`;
+
+const COMMANDS: Record<string, Command> = {
+  check: runCheck,
+  fix: runFix,
+  explain: runExplain,
+  rules: runRulesCommand,
+  lsp: runLsp,
+};
+
+export async function main(argv: string[], io: CliIO): Promise<number> {
+  const [name, ...rest] = argv;
+  if (!name || name === '--help' || name === '-h' || name === 'help') {
+    io.stdout(USAGE);
+    return name ? 0 : 2;
+  }
+  if (name === '--version' || name === '-v') {
+    io.stdout(`${VERSION}\n`);
+    return 0;
+  }
+  const command = COMMANDS[name];
+  if (!command) {
+    io.stderr(`noiselint: unknown command "${name}" (try: check, fix, explain, rules, lsp)\n`);
+    return 2;
+  }
+  try {
+    return await command(rest, io);
+  } catch (err) {
+    const message = err instanceof Error ? err.message : String(err);
+    io.stderr(`noiselint ${name}: ${message.split('\n')[0]}\n`);
+    return 2;
+  }
+}
+
+export { UsageError };

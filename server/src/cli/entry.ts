@@ -1,0 +1,22 @@
+/** Process entry of the bundled CLI (server/dist/noiselint.js). */
+import { main } from './main';
+import type { CliIO } from './io';
+
+const io: CliIO = {
+  cwd: process.cwd(),
+  stdout: (t) => void process.stdout.write(t),
+  stderr: (t) => void process.stderr.write(t),
+  isTTY: !!process.stdout.isTTY,
+  env: process.env,
+};
+
+main(process.argv.slice(2), io).then(
+  (code) => {
+    // The language server keeps the process alive; every other command ends with its exit code.
+    if (process.argv[2] !== 'lsp') process.exitCode = code;
+  },
+  (err: unknown) => {
+    process.stderr.write(`noiselint: ${err instanceof Error ? err.message : String(err)}\n`);
+    process.exitCode = 2;
+  },
+);

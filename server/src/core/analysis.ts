@@ -1,0 +1,364 @@
+/**
+ * setup -> analysis: the numbers every rule, hover and output reads. All arithmetic is delegated
+ * to shared-math (which caches per parameter set); this module only decides which numbers a
+ * document's setup implies.
+ */
+import {
+  computeSchedule,
+  flowSnr,
+  flowTimestepShift,
+  karrasSigmas,
+  logSnrFromAlphaBar,
+  samplingTimesteps,
+  sigmaFromAlphaBar,
+  snrFromAlphaBar,
+  snrFromSigma,
+  type ScheduleParams,
+} from '@noiselint/shared-math';
+import type { BetaScheduleKind, TimestepSpacing } from '../fields/concepts';
+import { valueOf, type Setup } from '../setup/types';
+
+export type ScheduleFamily = 'discrete' | 'flow' | 'karras';
+
+/** sigma_data of Karras et al. 2022 (0.5 for images); SNR = sigma_data^2 / sigma^2. */
+export const KARRAS_SIGMA_DATA = 0.5;
+/** Sampling steps assumed when a file sets a spacing but no step count (common practice). */
+export const ASSUMED_SAMPLE_STEPS = 50;
+/** Points of the continuous curves (flow, Karras) drawn over t. */
+const CONTINUOUS_POINTS = 1000;
+
+export interface ScheduleCurve {
+  /** Variance-preserving abar at each x (for flow: (1 - t)^2 / ((1 - t)^2 + t^2)). */
+  alphaBar: Float64Array;
+  logSnr: Float64Array;
+  /** Signal amplitude: sqrt(abar) for discrete and Karras, (1 - t) for flow. */
+  signal: Float64Array;
+}
+
+export interface ScheduleAnalysis {
+  family: ScheduleFamily;
+  kind: BetaScheduleKind | 'explicit' | 'flow' | 'karras';
+  /** T for discrete and flow schedules; the curve length for Karras. */
+  trainSteps: number;
+  /** The file already asks for the zero-terminal-SNR rescale. */
+  rescaleApplied: boolean;
+  curve: ScheduleCurve;
+  betas: Float64Array | null;
+  terminalSignal: number;
+  terminalNoise: number;
+  terminalSnr: number;
+  logSnrMax: number;
+  logSnrMin: number;
+  /** Exactly zero SNR at the last training step. */
+  reachesZeroSnr: boolean;
+}
+
+export interface RescaleAnalysis {
+  terminalSnr: number;
+  terminalSignal: number;
+  logSnrMax: number;
+  curve: ScheduleCurve;
+  betas: Float64Array;
+}
+
+export interface SamplingAnalysis {
+  spacing: TimestepSpacing | 'flow' | 'karras';
+  steps: number;
+  /** The step count is an assumption (the file sets a spacing but no step count). */
+  stepsAssumed: boolean;
+  stepsOffset: number;
+  /** Noisiest first, raw (may fall outside [0, T - 1]). */
+  timesteps: number[];
+  firstTimestep: number;
+  snrAtFirst: number;
+  signalAtFirst: number;
+  /** Timesteps outside [0, T - 1]. */
+  outOfRange: number[];
+  startsAtLastStep: boolean;
+}
+
+/** Sigma-space view of a discrete schedule (Euler, Heun, DPM-Solver, LMS, Karras sigmas). */
+export interface SigmaAnalysis {
+  /** sigma at the last training step; Infinity on a zero-SNR schedule. */
+  sigmaMax: number;
+  sigmaMin: number;
+  /** Karras et al. 2022 sigmas when the file asks for them and they are defined. */
+  karras: number[] | null;
+}
+
+export interface Analysis {
+  schedule: ScheduleAnalysis | null;
+  /** One line each: why (part of) the schedule could not be computed. */
+  scheduleProblems: string[];
+  rescaled: RescaleAnalysis | null;
+  sampling: SamplingAnalysis | null;
+  samplingProblems: string[];
+  sigmas: SigmaAnalysis | null;
+}
+
+const SIGMA_SPACE_SAMPLERS = new Set(['euler', 'euler-ancestral', 'heun', 'dpm-solver', 'dpm-solver-multistep', 'dpm-solver-singlestep', 'lms']);
+
+export function scheduleFamilyOf(setup: Setup): ScheduleFamily {
+  const target = valueOf(setup, 'predictionTarget');
+  if (target === 'flow' || valueOf(setup, 'sampler') === 'flow-euler' || setup.fields.flowShift?.source) return 'flow';
+  const hasBetas = !!(setup.fields.betas || setup.fields.betaSchedule?.source || setup.fields.betaStart?.source || setup.fields.betaEnd?.source);
+  if (!hasBetas && (setup.fields.sigmaMax?.source || setup.fields.sigmaMin?.source || setup.fields.rho?.source)) return 'karras';
+  return 'discrete';
+}
+
+export function isSigmaSpaceSampler(setup: Setup): boolean {
+  const sampler = valueOf(setup, 'sampler');
+  return valueOf(setup, 'karrasSigmas') === true || (sampler !== undefined && SIGMA_SPACE_SAMPLERS.has(sampler));
+}
+
+export function analyzeSetup(setup: Setup): Analysis {
+  const out: Analysis = { schedule: null, scheduleProblems: [], rescaled: null, sampling: null, samplingProblems: [], sigmas: null };
+  if (!setup.isDiffusionConfig) return out;
+  const family = scheduleFamilyOf(setup);
+  if (family === 'flow') analyzeFlow(setup, out);
+  else if (family === 'karras') analyzeKarras(setup, out);
+  else analyzeDiscrete(setup, out);
+  return out;
+}
+
+function curveFromAlphaBar(alphaBar: Float64Array, logSnr?: Float64Array): ScheduleCurve {
+  const n = alphaBar.length;
+  const signal = new Float64Array(n);
+  const ls = logSnr ?? new Float64Array(n);
+  for (let i = 0; i < n; i++) {
+    signal[i] = Math.sqrt(alphaBar[i]);
+    if (!logSnr) ls[i] = logSnrFromAlphaBar(alphaBar[i]);
+  }
+  return { alphaBar, logSnr: ls, signal };
+}
+
+function discreteParams(setup: Setup, problems: string[]): ScheduleParams | null {
+  const trainSteps = valueOf(setup, 'trainSteps');
+  if (trainSteps === undefined) {
+    problems.push('the number of training steps is not usable');
+    return null;
+  }
+  const betas = valueOf(setup, 'betas');
+  if (betas) return { kind: 'explicit', trainSteps, betas };
+  const kind = valueOf(setup, 'betaSchedule');
+  if (kind === undefined) {
+    problems.push('the beta schedule is not usable');
+    return null;
+  }
+  return { kind, trainSteps, betaStart: valueOf(setup, 'betaStart'), betaEnd: valueOf(setup, 'betaEnd') };
+}
+
+function analyzeDiscrete(setup: Setup, out: Analysis): void {
+  const params = discreteParams(setup, out.scheduleProblems);
+  if (!params) return;
+  const rescaleApplied = valueOf(setup, 'zeroTerminalSnr') === true;
+  const current = computeSchedule({ ...params, rescaleZeroSnr: rescaleApplied });
+  if (!current.ok) {
+    out.scheduleProblems.push(current.problem);
+    return;
+  }
+  const n = current.value;
+  out.schedule = {
+    family: 'discrete',
+    kind: params.kind,
+    trainSteps: params.trainSteps,
+    rescaleApplied,
+    curve: curveFromAlphaBar(n.alphaBar, n.logSnr),
+    betas: n.betas,
+    terminalSignal: n.terminalSignal,
+    terminalNoise: n.terminalNoise,
+    terminalSnr: n.terminalSnr,
+    logSnrMax: n.logSnrMax,
+    logSnrMin: n.logSnrMin,
+    reachesZeroSnr: n.terminalSnr === 0,
+  };
+  const rescaled = rescaleApplied ? current : computeSchedule({ ...params, rescaleZeroSnr: true });
+  if (rescaled.ok) {
+    const r = rescaled.value;
+    out.rescaled = {
+      terminalSnr: r.terminalSnr,
+      terminalSignal: r.terminalSignal,
+      logSnrMax: r.logSnrMax,
+      curve: curveFromAlphaBar(r.alphaBar, r.logSnr),
+      betas: r.betas,
+    };
+  }
+  analyzeDiscreteSampling(setup, out);
+  const sigmaMax = sigmaFromAlphaBar(n.alphaBar[n.alphaBar.length - 1]);
+  const sigmaMin = sigmaFromAlphaBar(n.alphaBar[0]);
+  if (isSigmaSpaceSampler(setup)) {
+    let karras: number[] | null = null;
+    if (valueOf(setup, 'karrasSigmas') === true && out.sampling && Number.isFinite(sigmaMax)) {
+      const k = karrasSigmas(out.sampling.steps, sigmaMin, sigmaMax, valueOf(setup, 'rho') ?? 7);
+      if (k.ok) karras = Array.from(k.value);
+    }
+    out.sigmas = { sigmaMax, sigmaMin, karras };
+  }
+}
+
+function analyzeDiscreteSampling(setup: Setup, out: Analysis): void {
+  const schedule = out.schedule;
+  if (!schedule) return;
+  const stepsField = setup.fields.sampleSteps;
+  const spacingField = setup.fields.timestepSpacing;
+  const spacingExplicit = !!spacingField?.source;
+  if (!stepsField && !spacingExplicit) return;
+  const steps = stepsField ? stepsField.value : ASSUMED_SAMPLE_STEPS;
+  const spacing = spacingField?.value ?? 'leading';
+  const stepsOffset = valueOf(setup, 'stepsOffset') ?? 0;
+  const T = schedule.trainSteps;
+  const ts = samplingTimesteps(spacing, T, steps, stepsOffset);
+  if (!ts.ok) {
+    out.samplingProblems.push(ts.problem);
+    return;
+  }
+  const timesteps = ts.value;
+  const first = timesteps[0];
+  const inRange = (t: number) => Number.isInteger(t) && t >= 0 && t <= T - 1;
+  const abarFirst = inRange(first) ? schedule.curve.alphaBar[first] : NaN;
+  out.sampling = {
+    spacing,
+    steps,
+    stepsAssumed: !stepsField,
+    stepsOffset,
+    timesteps,
+    firstTimestep: first,
+    snrAtFirst: inRange(first) ? snrFromAlphaBar(abarFirst) : NaN,
+    signalAtFirst: inRange(first) ? Math.sqrt(abarFirst) : NaN,
+    outOfRange: timesteps.filter((t) => !inRange(t)),
+    startsAtLastStep: first === T - 1,
+  };
+}
+
+function analyzeFlow(setup: Setup, out: Analysis): void {
+  const T = valueOf(setup, 'trainSteps') ?? 1000;
+  const shift = valueOf(setup, 'flowShift') ?? 1;
+  if (!(shift > 0) || !Number.isFinite(shift)) {
+    out.scheduleProblems.push(`flow shift ${shift} must be a positive number`);
+    return;
+  }
+  const points = Math.min(T, CONTINUOUS_POINTS);
+  const alphaBar = new Float64Array(points);
+  const logSnr = new Float64Array(points);
+  const signal = new Float64Array(points);
+  for (let i = 0; i < points; i++) {
+    const t = flowTimestepShift((i + 1) / points, shift);
+    const snr = flowSnr(t);
+    alphaBar[i] = snr / (1 + snr);
+    logSnr[i] = Math.log(snr);
+    signal[i] = 1 - t;
+  }
+  const last = points - 1;
+  out.schedule = {
+    family: 'flow',
+    kind: 'flow',
+    trainSteps: T,
+    rescaleApplied: false,
+    curve: { alphaBar, logSnr, signal },
+    betas: null,
+    terminalSignal: signal[last],
+    terminalNoise: 1,
+    terminalSnr: flowSnr(1),
+    logSnrMax: logSnr[0],
+    logSnrMin: logSnr[last],
+    reachesZeroSnr: true,
+  };
+  const stepsField = setup.fields.sampleSteps;
+  if (!stepsField) return;
+  const N = stepsField.value;
+  if (!Number.isInteger(N) || N < 1 || N > 100_000) {
+    out.samplingProblems.push(`${N} sampling steps is outside [1, 100000]`);
+    return;
+  }
+  // Flow samplers integrate from t = 1 (pure noise) down; shifted, as index round(t' T) - 1.
+  const timesteps: number[] = [];
+  for (let k = 0; k < N; k++) {
+    const t = flowTimestepShift(1 - k / N, shift);
+    timesteps.push(Math.max(0, Math.round(t * T) - 1));
+  }
+  out.sampling = {
+    spacing: 'flow',
+    steps: N,
+    stepsAssumed: false,
+    stepsOffset: 0,
+    timesteps,
+    firstTimestep: timesteps[0],
+    snrAtFirst: 0,
+    signalAtFirst: 0,
+    outOfRange: [],
+    startsAtLastStep: timesteps[0] === T - 1,
+  };
+}
+
+function analyzeKarras(setup: Setup, out: Analysis): void {
+  const sigmaMin = valueOf(setup, 'sigmaMin') ?? 0.002;
+  const sigmaMax = valueOf(setup, 'sigmaMax') ?? 80;
+  const rho = valueOf(setup, 'rho') ?? 7;
+  const dense = karrasSigmas(CONTINUOUS_POINTS, sigmaMin, sigmaMax, rho);
+  if (!dense.ok) {
+    out.scheduleProblems.push(dense.problem);
+    return;
+  }
+  // Drawn from clean (x = 0) to noisy like the discrete schedules.
+  const sig = Array.from(dense.value).reverse();
+  const n = sig.length;
+  const alphaBar = new Float64Array(n);
+  const logSnr = new Float64Array(n);
+  const signal = new Float64Array(n);
+  for (let i = 0; i < n; i++) {
+    const snr = snrFromSigma(sig[i], KARRAS_SIGMA_DATA);
+    alphaBar[i] = snr / (1 + snr);
+    logSnr[i] = Math.log(snr);
+    signal[i] = Math.sqrt(alphaBar[i]);
+  }
+  out.schedule = {
+    family: 'karras',
+    kind: 'karras',
+    trainSteps: n,
+    rescaleApplied: false,
+    curve: { alphaBar, logSnr, signal },
+    betas: null,
+    terminalSignal: signal[n - 1],
+    terminalNoise: Math.sqrt(1 - alphaBar[n - 1]),
+    terminalSnr: snrFromSigma(sigmaMax, KARRAS_SIGMA_DATA),
+    logSnrMax: logSnr[0],
+    logSnrMin: logSnr[n - 1],
+    reachesZeroSnr: false,
+  };
+  const N = valueOf(setup, 'sampleSteps');
+  if (N === undefined) return;
+  const k = karrasSigmas(N, sigmaMin, sigmaMax, rho);
+  if (!k.ok) {
+    out.samplingProblems.push(k.problem);
+    return;
+  }
+  const sigmas = Array.from(k.value);
+  // Index of each sampled sigma on the dense curve (x axis of the plot).
+  const timesteps = sigmas.map((s) => nearestIndex(sig, s));
+  const snrFirst = snrFromSigma(sigmas[0], KARRAS_SIGMA_DATA);
+  out.sampling = {
+    spacing: 'karras',
+    steps: N,
+    stepsAssumed: false,
+    stepsOffset: 0,
+    timesteps,
+    firstTimestep: timesteps[0],
+    snrAtFirst: snrFirst,
+    signalAtFirst: Math.sqrt(snrFirst / (1 + snrFirst)),
+    outOfRange: [],
+    startsAtLastStep: timesteps[0] === n - 1,
+  };
+  out.sigmas = { sigmaMax, sigmaMin, karras: sigmas };
+}
+
+function nearestIndex(ascending: number[], value: number): number {
+  let lo = 0;
+  let hi = ascending.length - 1;
+  while (lo < hi) {
+    const mid = (lo + hi) >> 1;
+    if (ascending[mid] < value) lo = mid + 1;
+    else hi = mid;
+  }
+  if (lo > 0 && Math.abs(ascending[lo - 1] - value) < Math.abs(ascending[lo] - value)) return lo - 1;
+  return lo;
+}

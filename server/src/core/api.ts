@@ -1,0 +1,67 @@
+/**
+ * The analysis core's front door, shared by the CLI and the language server:
+ * text -> located tree -> setup -> analysis -> findings. Never throws.
+ */
+import { parseText, formatFromPath } from '../parse';
+import type { ParsedFile, ParseLimits, SourceFormat } from '../parse/types';
+import { buildSetup } from '../setup';
+import type { Setup } from '../setup/types';
+import type { PartnerDocument } from '../rules/types';
+import type { ResolvedProject } from '../workspace/project';
+import { analyzeSetup, type Analysis } from './analysis';
+import type { Finding } from './findings';
+import { runRules } from './engine';
+
+export interface AnalyzeOptions {
+  /** Path or URI, for format detection and messages. */
+  path: string;
+  format?: SourceFormat;
+  /** Project file settings (rule severities and options, aliases, limits). */
+  project?: ResolvedProject;
+  /** Documents of the paired training or sampling file (train-sample-mismatch). */
+  partners?: PartnerDocument[];
+  pairRole?: 'training' | 'sampling';
+  limits?: Partial<ParseLimits>;
+}
+
+export interface DocumentResult {
+  index: number;
+  setup: Setup;
+  analysis: Analysis;
+}
+
+export interface FileResult {
+  path: string;
+  parsed: ParsedFile;
+  documents: DocumentResult[];
+  /** Sorted by position. */
+  findings: Finding[];
+  /** At least one document is a diffusion config. */
+  isDiffusionConfig: boolean;
+}
+
+/** Parse, resolve and analyse without running rules (explain, hover, plot). */
+export function readFile(text: string, options: AnalyzeOptions): Omit<FileResult, 'findings'> {
+  const format = options.format ?? formatFromPath(options.path) ?? 'yaml';
+  const parsed = parseText(text, format, { ...options.project?.limits, ...options.limits });
+  const documents: DocumentResult[] = parsed.documents.map((doc) => {
+    const setup = buildSetup(doc, {
+      extraAliases: options.project?.aliases,
+      latentSpaceDefault: options.project?.latentSpace,
+    });
+    return { index: doc.index, setup, analysis: analyzeSetup(setup) };
+  });
+  return {
+    path: options.path,
+    parsed,
+    documents,
+    isDiffusionConfig: documents.some((d) => d.setup.isDiffusionConfig),
+  };
+}
+
+/** The whole pipeline, rules included. */
+export function analyzeText(text: string, options: AnalyzeOptions): FileResult {
+  const file = readFile(text, options);
+  const findings = runRules(file, options);
+  return { ...file, findings };
+}

@@ -1,0 +1,71 @@
+import type { Analysis } from '../core/analysis';
+import type { Severity, FixSafety } from '../core/findings';
+import type { Concept, ConceptValues } from '../fields/concepts';
+import type { FieldSource, Setup } from '../setup/types';
+
+/** A change stated in concepts; fix/ renders it as minimal text edits. */
+export type ConceptEdit =
+  | { kind: 'set'; concept: Concept; value: ConceptValues[Concept] }
+  | { kind: 'remove'; concept: Concept };
+
+export interface ConceptFix {
+  title: string;
+  safety: FixSafety;
+  preferred?: boolean;
+  edits: ConceptEdit[];
+}
+
+/** What a rule reports; the engine turns it into a located Finding with rendered fixes. */
+export interface RuleFinding {
+  message: string;
+  /** Concept whose field causes the finding; when absent from the file the engine falls back. */
+  at?: Concept;
+  /** Or an explicit field (e.g. a value problem's source). */
+  source?: FieldSource;
+  /** Overrides the rule's default severity for this finding (e.g. warning vs info tiers). */
+  severity?: Severity;
+  related?: { concept?: Concept; source?: FieldSource; path?: string; message: string }[];
+  fixes?: ConceptFix[];
+}
+
+export interface PartnerDocument {
+  path: string;
+  setup: Setup;
+  analysis: Analysis;
+}
+
+export interface RuleContext {
+  setup: Setup;
+  analysis: Analysis;
+  /** Rule options merged over the rule's defaults (project file / settings). */
+  options: Record<string, number | string | boolean>;
+  /** For train-sample-mismatch: the paired file's documents, when pairing found one. */
+  partners: PartnerDocument[];
+  /** Role of this file in a pair, if any. */
+  pairRole?: 'training' | 'sampling';
+}
+
+export interface RuleOption {
+  default: number | string | boolean;
+  description: string;
+}
+
+export interface RuleMeta {
+  /** Exactly as in DESIGN section 5. */
+  id: string;
+  /** One line for `noiselint rules`. */
+  summary: string;
+  defaultSeverity: Severity;
+  fixable: 'always' | 'sometimes' | 'never';
+  options: Record<string, RuleOption>;
+  /**
+   * Markdown under the fixed headings: What it finds / Why it matters / Example / Use instead /
+   * Fix safety / Options / References. The Example and Use instead blocks are run as tests.
+   */
+  docs: string;
+}
+
+export interface Rule {
+  meta: RuleMeta;
+  check(ctx: RuleContext): RuleFinding[];
+}

@@ -1,0 +1,1 @@
+export type { ResolvedProject, RuleSetting, FilePair } from './types';
