@@ -1,6 +1,38 @@
-import type { CliIO } from '../io';
+/** `noiselint explain <file...> [--format text|json]` */
+import { parseArgs } from 'node:util';
+import { resolve, relative } from 'node:path';
+import { readFile } from '../../core/api';
+import { explainJson, formatExplainText } from '../explainFormat';
+import { readConfigFile } from '../readInput';
+import { UsageError, type CliIO } from '../io';
+import { loadProject } from '../../workspace/projectFile';
 
-export async function runExplain(_args: string[], io: CliIO): Promise<number> {
-  io.stderr('noiselint explain: not available yet\n');
-  return 2;
+export async function runExplain(args: string[], io: CliIO): Promise<number> {
+  let parsed;
+  try {
+    parsed = parseArgs({ args, allowPositionals: true, options: { format: { type: 'string', default: 'text' } } });
+  } catch (err) {
+    throw new UsageError(err instanceof Error ? err.message : String(err));
+  }
+  const format = parsed.values.format;
+  if (format !== 'text' && format !== 'json') throw new UsageError(`--format must be text or json, not "${format}"`);
+  if (parsed.positionals.length === 0) throw new UsageError('name at least one file: noiselint explain <file...>');
+  let failed = false;
+  const results = [];
+  for (const input of parsed.positionals) {
+    const abs = resolve(io.cwd, input);
+    const shown = relative(io.cwd, abs) || input;
+    const read = readConfigFile(abs);
+    if (!read.ok) {
+      io.stderr(`noiselint explain: ${read.problem}\n`);
+      failed = true;
+      continue;
+    }
+    const project = loadProject(abs);
+    const file = readFile(read.text, { path: shown, project });
+    results.push(file);
+    if (format === 'text') io.stdout(formatExplainText(file));
+  }
+  if (format === 'json') io.stdout(`${JSON.stringify(explainJson(results), null, 2)}\n`);
+  return failed ? 2 : 0;
 }
