@@ -1,0 +1,21 @@
+// The server's protocol extensions (plain data and method names), re-exported for the client.
+export {
+  EXPLAIN_REQUEST,
+  FIX_ALL_KIND,
+  PLOT_CHANGED_NOTIFICATION,
+  PLOT_DATA_REQUEST,
+  SHOW_SCHEDULE_COMMAND,
+  SUMMARY_REQUEST,
+} from '@noiselint/server/src/protocol';
+export type {
+  DocumentSummary,
+  PlotCurve,
+  PlotData,
+  PlotDataParams,
+  PlotDocument,
+  PlotSampledStep,
+  UriParams,
+} from '@noiselint/server/src/protocol';
+
+/** Languages the extension checks. */
+export const LANGUAGES = ['yaml', 'json', 'jsonc'] as const;
