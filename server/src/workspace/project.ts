@@ -1,1 +1,12 @@
 export type { ResolvedProject, RuleSetting, FilePair } from './types';
+export {
+  DEFAULT_PROJECT,
+  PROJECT_FILE_NAMES,
+  ProjectFileError,
+  clearProjectCache,
+  findProjectFile,
+  loadProject,
+  parseProjectFile,
+  resolveProjectData,
+  setProjectRuleCatalog,
+} from './projectFile';

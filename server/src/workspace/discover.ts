@@ -1,0 +1,230 @@
+/**
+ * Which files a run checks. Inputs are files, folders or globs (none: the current folder).
+ *
+ * - A file named on the command line is always checked, whatever its extension.
+ * - A folder is walked for *.yaml, *.yml, *.json and *.jsonc files.
+ * - A glob is matched against paths relative to the current folder; it picks the extensions itself.
+ * - Walks honour .gitignore files (nested ones too, and those of parent folders up to the folder
+ *   that holds `.git`) and the project file's include / exclude. node_modules and .git folders are
+ *   always skipped; symlinked folders are not followed. Project files are never checked.
+ * - The result is sorted and free of duplicates.
+ */
+import { dirname, join, relative, resolve, sep } from 'node:path';
+import ignore, { type Ignore } from 'ignore';
+import picomatch from 'picomatch';
+import { describeFsError, nodeFs, type WorkspaceFs } from './fs';
+import { PROJECT_FILE_NAMES, loadProject } from './projectFile';
+import type { ResolvedProject } from './types';
+
+export const CONFIG_EXTENSIONS = ['.yaml', '.yml', '.json', '.jsonc'] as const;
+
+const ALWAYS_SKIPPED = new Set(['node_modules', '.git']);
+/** Bounds on one run: beyond these the walk stops with an error instead of growing without end. */
+const DEFAULT_MAX_FILES = 100_000;
+const DEFAULT_MAX_ENTRIES = 1_000_000;
+const MAX_GITIGNORE_BYTES = 1024 * 1024;
+
+export interface DiscoverOptions {
+  fs?: WorkspaceFs;
+  maxFiles?: number;
+  /** Folder entries looked at, all walks together. */
+  maxEntries?: number;
+}
+
+export interface DiscoverResult {
+  /** Absolute paths, sorted. */
+  files: string[];
+  /** One line each: inputs that do not exist, globs that match nothing, unreadable folders. */
+  errors: string[];
+}
+
+interface IgnoreLayer {
+  base: string;
+  rules: Ignore;
+}
+
+export function isConfigFileName(name: string): boolean {
+  const lower = name.toLowerCase();
+  return CONFIG_EXTENSIONS.some((ext) => lower.endsWith(ext));
+}
+
+export function isProjectFileName(name: string): boolean {
+  return (PROJECT_FILE_NAMES as readonly string[]).includes(name);
+}
+
+const toPosix = (p: string) => (sep === '/' ? p : p.split(sep).join('/'));
+
+const matcherCache = new WeakMap<ResolvedProject, { include: ((p: string) => boolean) | null; exclude: ((p: string) => boolean) | null }>();
+
+/** True when the project's include / exclude globs let `file` through (paths relative to its root). */
+export function projectSelects(project: ResolvedProject, file: string): boolean {
+  let m = matcherCache.get(project);
+  if (!m) {
+    m = {
+      include: project.include.length ? picomatch(project.include, { dot: true }) : null,
+      exclude: project.exclude.length ? picomatch(project.exclude, { dot: true }) : null,
+    };
+    matcherCache.set(project, m);
+  }
+  const rel = toPosix(relative(project.root, file));
+  if (m.exclude && m.exclude(rel)) return false;
+  if (m.include && !m.include(rel)) return false;
+  return true;
+}
+
+export function discoverFiles(inputs: string[], cwd: string, project?: ResolvedProject, options: DiscoverOptions = {}): DiscoverResult {
+  const fs = options.fs ?? nodeFs;
+  const state = {
+    fs,
+    project,
+    files: new Set<string>(),
+    errors: [] as string[],
+    entries: 0,
+    maxFiles: options.maxFiles ?? DEFAULT_MAX_FILES,
+    maxEntries: options.maxEntries ?? DEFAULT_MAX_ENTRIES,
+    stopped: false,
+  };
+  const list = inputs.length ? inputs : ['.'];
+  for (const input of list) {
+    if (state.stopped) break;
+    const abs = resolve(cwd, input);
+    const st = fs.stat(abs);
+    if (st?.kind === 'file') {
+      state.files.add(abs);
+    } else if (st?.kind === 'dir') {
+      walk(abs, state, null);
+    } else if (st) {
+      state.errors.push(`${input}: not a regular file or folder`);
+    } else if (picomatch.scan(input).isGlob) {
+      const before = state.files.size;
+      const scan = picomatch.scan(input);
+      const base = resolve(cwd, scan.base || '.');
+      if (fs.stat(base)?.kind === 'dir') {
+        const pattern = toPosix(relative(cwd, resolve(cwd, input.replace(/\\/g, '/')))) || '.';
+        const matches = picomatch(pattern, { dot: false });
+        walk(base, state, (file) => matches(toPosix(relative(cwd, file))));
+      }
+      if (state.files.size === before) state.errors.push(`${input}: no files match`);
+    } else {
+      state.errors.push(`${input}: no such file or folder`);
+    }
+  }
+  return { files: [...state.files].sort(comparePaths), errors: state.errors };
+}
+
+interface WalkState {
+  fs: WorkspaceFs;
+  project?: ResolvedProject;
+  files: Set<string>;
+  errors: string[];
+  entries: number;
+  maxFiles: number;
+  maxEntries: number;
+  stopped: boolean;
+}
+
+/** Walks `root` depth-first in name order. `select` replaces the extension filter (globs). */
+function walk(root: string, state: WalkState, select: ((file: string) => boolean) | null): void {
+  const layers = ancestorIgnoreLayers(root, state.fs);
+  const stack: { dir: string; layers: IgnoreLayer[] }[] = [{ dir: root, layers }];
+  while (stack.length) {
+    const { dir, layers: inherited } = stack.pop()!;
+    let entries;
+    try {
+      entries = state.fs.readDir(dir);
+    } catch (err) {
+      state.errors.push(`${dir}: cannot read folder: ${describeFsError(err)}`);
+      continue;
+    }
+    entries.sort((a, b) => (a.name < b.name ? -1 : a.name > b.name ? 1 : 0));
+    const own = entries.some((e) => e.name === '.gitignore' && e.kind === 'file') ? loadIgnoreLayer(dir, state.fs) : null;
+    const layers = own ? [...inherited, own] : inherited;
+    const project = state.project ?? safeProject(dir, state.fs);
+    const subdirs: string[] = [];
+    for (const entry of entries) {
+      if (++state.entries > state.maxEntries) {
+        state.errors.push(`stopped after looking at ${state.maxEntries} folder entries; name fewer or smaller folders`);
+        state.stopped = true;
+        return;
+      }
+      if (ALWAYS_SKIPPED.has(entry.name)) continue;
+      const path = join(dir, entry.name);
+      if (entry.kind === 'dir') {
+        if (entry.isSymlink || isIgnored(layers, path, true)) continue;
+        subdirs.push(path);
+      } else if (entry.kind === 'file') {
+        if (isProjectFileName(entry.name)) continue;
+        if (select ? !select(path) : !isConfigFileName(entry.name)) continue;
+        if (isIgnored(layers, path, false)) continue;
+        if (project && !projectSelects(project, path)) continue;
+        state.files.add(path);
+        if (state.files.size >= state.maxFiles) {
+          state.errors.push(`stopped after ${state.maxFiles} files; name fewer or smaller folders`);
+          state.stopped = true;
+          return;
+        }
+      }
+    }
+    // Reverse so that popping visits sub-folders in name order.
+    for (let i = subdirs.length - 1; i >= 0; i--) stack.push({ dir: subdirs[i], layers });
+  }
+}
+
+/** Discovery must not fail on a bad project file: check reports it when it loads the project. */
+function safeProject(dir: string, fs: WorkspaceFs): ResolvedProject | undefined {
+  try {
+    return loadProject(join(dir, '.'), fs);
+  } catch {
+    return undefined;
+  }
+}
+
+function loadIgnoreLayer(dir: string, fs: WorkspaceFs): IgnoreLayer | null {
+  const path = join(dir, '.gitignore');
+  const st = fs.stat(path);
+  if (!st || st.kind !== 'file' || st.size > MAX_GITIGNORE_BYTES) return null;
+  try {
+    const text = new TextDecoder('utf-8').decode(fs.readBytes(path));
+    return { base: dir, rules: ignore().add(text) };
+  } catch {
+    return null;
+  }
+}
+
+/** .gitignore files of the folders above `root`, up to the one that holds `.git` (if any). */
+function ancestorIgnoreLayers(root: string, fs: WorkspaceFs): IgnoreLayer[] {
+  const chain: string[] = [];
+  let dir = dirname(root);
+  let gitRoot: string | null = fs.stat(join(root, '.git')) ? root : null;
+  while (!gitRoot) {
+    chain.push(dir);
+    if (fs.stat(join(dir, '.git'))) gitRoot = dir;
+    const up = dirname(dir);
+    if (up === dir) break;
+    dir = up;
+  }
+  if (!gitRoot) return [];
+  const layers: IgnoreLayer[] = [];
+  for (const d of chain.reverse()) {
+    const layer = loadIgnoreLayer(d, fs);
+    if (layer) layers.push(layer);
+  }
+  return layers;
+}
+
+/** Git's order: deeper .gitignore files speak last; a `!pattern` can take a path back. */
+function isIgnored(layers: IgnoreLayer[], path: string, isDir: boolean): boolean {
+  let ignored = false;
+  for (const layer of layers) {
+    const rel = toPosix(relative(layer.base, path));
+    if (!rel || rel === '..' || rel.startsWith('../')) continue;
+    const verdict = layer.rules.test(isDir ? `${rel}/` : rel);
+    if (verdict.ignored) ignored = true;
+    else if (verdict.unignored) ignored = false;
+  }
+  return ignored;
+}
+
+function comparePaths(a: string, b: string): number {
+  return a < b ? -1 : a > b ? 1 : 0;
+}

@@ -1,0 +1,134 @@
+/**
+ * The file-system view the workspace code reads through. The CLI uses the real disk; the language
+ * server passes its own view so that open, unsaved documents win over the disk copy.
+ */
+import { readdirSync, readFileSync, realpathSync, statSync } from 'node:fs';
+import { DEFAULT_PARSE_LIMITS } from '../parse/types';
+
+export type EntryKind = 'file' | 'dir' | 'other';
+
+export interface DirEntry {
+  name: string;
+  /** Kind of the entry itself (a symlink is followed to find it). */
+  kind: EntryKind;
+  isSymlink: boolean;
+}
+
+export interface WorkspaceFs {
+  /** Kind and size of a path (symlinks followed), or undefined when it does not exist. */
+  stat(path: string): { kind: EntryKind; size: number } | undefined;
+  /** Entries of a folder. Throws (with a Node error code) when the folder cannot be read. */
+  readDir(path: string): DirEntry[];
+  /** Raw bytes of a file. Throws (with a Node error code) when it cannot be read. */
+  readBytes(path: string): Uint8Array;
+  /** Canonical path with symlinks resolved, or undefined when the path does not exist. */
+  realpath(path: string): string | undefined;
+}
+
+function kindOf(st: { isFile(): boolean; isDirectory(): boolean }): EntryKind {
+  if (st.isFile()) return 'file';
+  if (st.isDirectory()) return 'dir';
+  return 'other';
+}
+
+export const nodeFs: WorkspaceFs = {
+  stat(path) {
+    try {
+      const st = statSync(path);
+      return { kind: kindOf(st), size: st.size };
+    } catch {
+      return undefined;
+    }
+  },
+  readDir(path) {
+    const out: DirEntry[] = [];
+    for (const d of readdirSync(path, { withFileTypes: true })) {
+      if (d.isSymbolicLink()) {
+        let kind: EntryKind = 'other';
+        try {
+          kind = kindOf(statSync(`${path}/${d.name}`));
+        } catch {
+          // A dangling link: neither file nor folder.
+        }
+        out.push({ name: d.name, kind, isSymlink: true });
+      } else {
+        out.push({ name: d.name, kind: kindOf(d), isSymlink: false });
+      }
+    }
+    return out;
+  },
+  readBytes(path) {
+    return readFileSync(path);
+  },
+  realpath(path) {
+    try {
+      return realpathSync(path);
+    } catch {
+      return undefined;
+    }
+  },
+};
+
+export type TextReadResult =
+  | { ok: true; text: string }
+  /**
+   * 'io': the file could not be read (missing, permission); callers treat it as an error.
+   * 'skipped': the file was read but is not text we analyse (binary, not UTF-8, too large).
+   */
+  | { ok: false; kind: 'io' | 'skipped'; problem: string };
+
+const UTF8 = new TextDecoder('utf-8', { fatal: true, ignoreBOM: true });
+
+/**
+ * Reads a config file as text, bounded by `maxBytes`. Never throws. A BOM is kept in the text
+ * (offsets count it, and a fix must write it back).
+ */
+export function readTextFile(fs: WorkspaceFs, path: string, maxBytes: number = DEFAULT_PARSE_LIMITS.maxFileBytes): TextReadResult {
+  const st = fs.stat(path);
+  if (!st) return { ok: false, kind: 'io', problem: 'cannot read: no such file' };
+  if (st.kind === 'dir') return { ok: false, kind: 'io', problem: 'is a folder, not a file' };
+  if (st.size > maxBytes) {
+    return { ok: false, kind: 'skipped', problem: `skipped: ${formatBytes(st.size)} is above the ${formatBytes(maxBytes)} limit (limits.maxFileBytes)` };
+  }
+  let bytes: Uint8Array;
+  try {
+    bytes = fs.readBytes(path);
+  } catch (err) {
+    return { ok: false, kind: 'io', problem: `cannot read: ${describeFsError(err)}` };
+  }
+  // The size can change between stat and read (a growing file): keep the bound.
+  if (bytes.length > maxBytes) {
+    return { ok: false, kind: 'skipped', problem: `skipped: ${formatBytes(bytes.length)} is above the ${formatBytes(maxBytes)} limit (limits.maxFileBytes)` };
+  }
+  if (bytes.includes(0)) return { ok: false, kind: 'skipped', problem: 'skipped: looks binary (contains NUL bytes)' };
+  try {
+    return { ok: true, text: UTF8.decode(bytes) };
+  } catch {
+    return { ok: false, kind: 'skipped', problem: 'skipped: not valid UTF-8' };
+  }
+}
+
+export function describeFsError(err: unknown): string {
+  const code = (err as NodeJS.ErrnoException | undefined)?.code;
+  switch (code) {
+    case 'ENOENT':
+      return 'no such file';
+    case 'EACCES':
+    case 'EPERM':
+      return 'permission denied';
+    case 'EISDIR':
+      return 'is a folder';
+    case 'ENOTDIR':
+      return 'not a folder';
+    case 'ELOOP':
+      return 'too many symbolic links';
+    default:
+      return code ?? (err instanceof Error ? err.message.split('\n')[0] : String(err));
+  }
+}
+
+function formatBytes(n: number): string {
+  if (n >= 1024 * 1024) return `${(n / (1024 * 1024)).toFixed(1)} MB`;
+  if (n >= 1024) return `${(n / 1024).toFixed(1)} KB`;
+  return `${n} bytes`;
+}
