@@ -96,15 +96,15 @@ export function discoverFiles(inputs: string[], cwd: string, project?: ResolvedP
     } else if (st) {
       state.errors.push(`${input}: not a regular file or folder`);
     } else if (picomatch.scan(input).isGlob) {
-      const before = state.files.size;
       const scan = picomatch.scan(input);
+      let matched = 0;
       const base = resolve(cwd, scan.base || '.');
       if (fs.stat(base)?.kind === 'dir') {
         const pattern = toPosix(relative(cwd, resolve(cwd, input.replace(/\\/g, '/')))) || '.';
         const matches = picomatch(pattern, { dot: false });
-        walk(base, state, (file) => matches(toPosix(relative(cwd, file))));
+        matched = walk(base, state, (file) => matches(toPosix(relative(cwd, file))));
       }
-      if (state.files.size === before) state.errors.push(`${input}: no files match`);
+      if (matched === 0) state.errors.push(`${input}: no files match`);
     } else {
       state.errors.push(`${input}: no such file or folder`);
     }
@@ -123,8 +123,12 @@ interface WalkState {
   stopped: boolean;
 }
 
-/** Walks `root` depth-first in name order. `select` replaces the extension filter (globs). */
-function walk(root: string, state: WalkState, select: ((file: string) => boolean) | null): void {
+/**
+ * Walks `root` depth-first in name order; returns how many files it accepted (duplicates
+ * included). `select` replaces the extension filter (globs).
+ */
+function walk(root: string, state: WalkState, select: ((file: string) => boolean) | null): number {
+  let accepted = 0;
   const layers = ancestorIgnoreLayers(root, state.fs);
   const stack: { dir: string; layers: IgnoreLayer[] }[] = [{ dir: root, layers }];
   while (stack.length) {
@@ -145,7 +149,7 @@ function walk(root: string, state: WalkState, select: ((file: string) => boolean
       if (++state.entries > state.maxEntries) {
         state.errors.push(`stopped after looking at ${state.maxEntries} folder entries; name fewer or smaller folders`);
         state.stopped = true;
-        return;
+        return accepted;
       }
       if (ALWAYS_SKIPPED.has(entry.name)) continue;
       const path = join(dir, entry.name);
@@ -157,17 +161,19 @@ function walk(root: string, state: WalkState, select: ((file: string) => boolean
         if (select ? !select(path) : !isConfigFileName(entry.name)) continue;
         if (isIgnored(layers, path, false)) continue;
         if (project && !projectSelects(project, path)) continue;
-        state.files.add(path);
-        if (state.files.size >= state.maxFiles) {
+        if (!state.files.has(path) && state.files.size >= state.maxFiles) {
           state.errors.push(`stopped after ${state.maxFiles} files; name fewer or smaller folders`);
           state.stopped = true;
-          return;
+          return accepted;
         }
+        state.files.add(path);
+        accepted++;
       }
     }
     // Reverse so that popping visits sub-folders in name order.
     for (let i = subdirs.length - 1; i >= 0; i--) stack.push({ dir: subdirs[i], layers });
   }
+  return accepted;
 }
 
 /** Discovery must not fail on a bad project file: check reports it when it loads the project. */

@@ -17,11 +17,8 @@
  * A folder with more than MAX_AUTO_CANDIDATES config files is not auto-paired.
  */
 import { dirname, isAbsolute, join, relative, resolve, sep } from 'node:path';
-import { readFile } from '../core/api';
-import type { Setup } from '../setup/types';
 import { isConfigFileName, isProjectFileName, projectSelects } from './discover';
-import { nodeFs, readTextFile, type WorkspaceFs } from './fs';
-import { loadProject } from './projectFile';
+import { nodeFs, type WorkspaceFs } from './fs';
 import type { ResolvedProject } from './types';
 
 export type PairRole = 'training' | 'sampling';
@@ -39,7 +36,8 @@ export interface PairMatch {
 
 export interface PairingDeps {
   fs?: WorkspaceFs;
-  roleOf?: RoleProbe;
+  /** Role of a sibling file, for automatic pairing (see roles.ts: diskRoleProbe). */
+  roleOf: RoleProbe;
 }
 
 export const MAX_AUTO_CANDIDATES = 64;
@@ -104,34 +102,6 @@ function samePath(a: string, b: string, fs: WorkspaceFs): boolean {
   return ra !== undefined && ra === fs.realpath(b);
 }
 
-/** File role from its analysed documents (only diffusion documents count). */
-export function roleOfSetups(setups: readonly Setup[]): FileRole {
-  const roles = new Set(setups.filter((s) => s.isDiffusionConfig).map((s) => s.role));
-  if (roles.size === 0) return 'none';
-  if (roles.size === 1 && roles.has('training')) return 'training';
-  if (roles.size === 1 && roles.has('sampling')) return 'sampling';
-  return 'mixed';
-}
-
-/** Reads and analyses a file from disk to find its role (memoised per probe). */
-export function diskRoleProbe(fs: WorkspaceFs = nodeFs): RoleProbe {
-  const memo = new Map<string, FileRole>();
-  return (path) => {
-    let role = memo.get(path);
-    if (role) return role;
-    role = 'none';
-    try {
-      const project = loadProject(path, fs);
-      const read = readTextFile(fs, path, project.limits.maxFileBytes);
-      if (read.ok) role = roleOfSetups(readFile(read.text, { path, project }).documents.map((d) => d.setup));
-    } catch {
-      // An unreadable or unanalysable file simply has no role.
-    }
-    memo.set(path, role);
-    return role;
-  };
-}
-
 /** The name words left after dropping role words, joined: `train-night_v2.yaml` -> `night-v2`. */
 export function pairNameKey(fileName: string): string {
   const stem = fileName.replace(/\.[^.]*$/, '').toLowerCase();
@@ -142,7 +112,7 @@ export function pairNameKey(fileName: string): string {
 }
 
 /** The partner(s) of `file`, or null. Never throws; a broken pair is simply not used. */
-export function findPartners(file: string, project: ResolvedProject, deps: PairingDeps = {}): PairMatch | null {
+export function findPartners(file: string, project: ResolvedProject, deps: PairingDeps): PairMatch | null {
   const fs = deps.fs ?? nodeFs;
   const abs = resolve(file);
   const { pairs } = validatePairs(project, fs);
@@ -150,7 +120,7 @@ export function findPartners(file: string, project: ResolvedProject, deps: Pairi
   if (explicit) return explicit;
   if (!project.autoPair) return null;
   try {
-    return autoMatch(abs, project, pairs, fs, deps.roleOf ?? diskRoleProbe(fs));
+    return autoMatch(abs, project, pairs, fs, deps.roleOf);
   } catch {
     return null;
   }
