@@ -5,7 +5,7 @@
 import { checkPositive, checkSampleSteps, describeValue, fail, ok, type MathResult } from './guards';
 import { linspace } from './numeric';
 
-/** Karras et al. 2022 defaults (section 5 / Table 1, recalled from memory). */
+/** Karras et al. 2022 defaults (Table 1; recalled from memory). */
 export const KARRAS_SIGMA_MIN = 0.002,
   KARRAS_SIGMA_MAX = 80,
   KARRAS_RHO = 7;
@@ -74,8 +74,8 @@ export function flowSnr(t: number): number {
 }
 
 /**
- * Timestep shift of Esser et al. 2024 (rectified-flow transformers, section 5.3.2, recalled from
- * memory): t' = s t / (1 + (s - 1) t). s > 1 moves steps toward noise. NaN for t outside [0, 1]
+ * Timestep shift of Esser et al. 2024 (rectified-flow transformers): t' = s t / (1 + (s - 1) t).
+ * s > 1 moves steps toward noise; in SNR terms it divides SNR by s^2. NaN for t outside [0, 1]
  * or s not a positive finite number.
  */
 export function flowTimestepShift(t: number, shift: number): number {

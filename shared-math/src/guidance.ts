@@ -1,6 +1,6 @@
 /**
- * Classifier-free guidance (Ho & Salimans 2022) and its rescale (Lin et al. 2023, section 3.4,
- * eqs. 13-16).
+ * Classifier-free guidance (Ho & Salimans 2022) and its rescale (Lin et al. 2023,
+ * eqs. 13-16; section numbers recalled from memory).
  */
 
 /** Guidance scale and rescale factor commonly paired on zero-SNR schedules (common practice). */

@@ -26,7 +26,7 @@ function finish(betas: Float64Array): MathResult<Float64Array> {
 }
 
 /**
- * Linear schedule (Ho et al. 2020, section 4): beta_i = b0 + (b1 - b0) * i / (T - 1).
+ * Linear schedule (Ho et al. 2020, experiments section; recalled from memory): beta_i = b0 + (b1 - b0) * i / (T - 1).
  * Computed as linspace(b0, b1, T), so beta_0 = b0 and beta_{T-1} = b1 exactly.
  */
 export function linearBetas(T: number, b0: number, b1: number): MathResult<Float64Array> {
@@ -49,7 +49,7 @@ export function scaledLinearBetas(T: number, b0: number, b1: number): MathResult
 }
 
 /**
- * Cosine schedule (Nichol & Dhariwal 2021, eq. 17):
+ * Cosine schedule (Nichol & Dhariwal 2021, eq. 17, recalled from memory):
  * abar(t) = f(t) / f(0), f(t) = cos^2(((t / T + s) / (1 + s)) * pi / 2),
  * beta_i = min(1 - abar(i + 1) / abar(i), maxBeta). Defaults s = 0.008, maxBeta = 0.999.
  * maxBeta = 1 leaves the last beta at 1 - f(T)/f(T-1), which rounds to exactly 1.

@@ -1,6 +1,7 @@
 /**
  * Prediction-target conversions for x_t = sqrt(abar) x0 + sqrt(1 - abar) eps
- * (Ho et al. 2020; v target of Salimans & Ho 2022, "Progressive Distillation", section 4).
+ * (Ho et al. 2020; v target of Salimans & Ho 2022, "Progressive Distillation";
+ * section numbers recalled from memory).
  * Scalar versions: apply element-wise. abar outside [0, 1] gives NaN through Math.sqrt.
  */
 
@@ -27,7 +28,7 @@ export function x0FromV(abar: number, xt: number, v: number): number {
  * x0 recovered from an epsilon prediction: (x_t - sqrt(1 - abar) eps) / sqrt(abar).
  * Undefined at abar = 0 (zero SNR): the result is then +Infinity or -Infinity (x_t != eps) or
  * NaN (x_t == eps). This division is what makes an epsilon target unusable on a zero-terminal-SNR
- * schedule (Lin et al. 2023, section 3.2); rules report it rather than relying on the value.
+ * schedule (Lin et al. 2023); rules report it rather than relying on the value.
  */
 export function x0FromEps(abar: number, xt: number, eps: number): number {
   return (xt - Math.sqrt(1 - abar) * eps) / Math.sqrt(abar);

@@ -1,6 +1,6 @@
 /**
  * Min-SNR-gamma loss weighting (Hang et al. 2023, "Efficient Diffusion Training via Min-SNR
- * Weighting Strategy", section 3.4, formulas recalled from memory and restated in DESIGN 4).
+ * Weighting Strategy"; formulas as restated in DESIGN section 4).
  */
 import type { TargetKind } from './targets';
 
