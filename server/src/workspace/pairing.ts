@@ -17,6 +17,7 @@
  * A folder with more than MAX_AUTO_CANDIDATES config files is not auto-paired.
  */
 import { dirname, isAbsolute, join, relative, resolve, sep } from 'node:path';
+import type { Setup } from '../setup/types';
 import { isConfigFileName, isProjectFileName, projectSelects } from './discover';
 import { nodeFs, type WorkspaceFs } from './fs';
 import type { ResolvedProject } from './types';
@@ -100,6 +101,15 @@ function samePath(a: string, b: string, fs: WorkspaceFs): boolean {
   if (resolve(a) === resolve(b)) return true;
   const ra = fs.realpath(a);
   return ra !== undefined && ra === fs.realpath(b);
+}
+
+/** File role from its documents' setups (only diffusion documents count). */
+export function roleOfSetups(setups: readonly Setup[]): FileRole {
+  const roles = new Set(setups.filter((s) => s.isDiffusionConfig).map((s) => s.role));
+  if (roles.size === 0) return 'none';
+  if (roles.size === 1 && roles.has('training')) return 'training';
+  if (roles.size === 1 && roles.has('sampling')) return 'sampling';
+  return 'mixed';
 }
 
 /** The name words left after dropping role words, joined: `train-night_v2.yaml` -> `night-v2`. */

@@ -9,6 +9,7 @@ import { LineCounter, parseDocument } from 'yaml';
 import { SEVERITIES, type Severity } from '../core/findings';
 import { CONCEPTS, type Concept } from '../fields/concepts';
 import type { ParseLimits } from '../parse/types';
+import { ALL_RULE_METAS } from '../rules';
 import type { RuleMeta } from '../rules/types';
 import { nodeFs, readTextFile, type WorkspaceFs } from './fs';
 import type { FilePair, ResolvedProject, RuleSetting } from './types';
@@ -56,18 +57,11 @@ const TOP_LEVEL_FIELDS = ['include', 'exclude', 'rules', 'aliases', 'latentSpace
 
 type Catalog = ReadonlyMap<string, RuleMeta>;
 
-let ruleCatalog: Catalog | null = null;
-
-/**
- * Rule metadata used to check rule ids and option names. The registry sets it at start-up (see
- * setProjectRuleCatalog); without it, any rule id is accepted.
- */
-export function setProjectRuleCatalog(rules: readonly RuleMeta[] | null): void {
-  ruleCatalog = rules ? new Map(rules.map((r) => [r.id, r])) : null;
-}
+/** Rule ids, option names and option types a project file may use. */
+const RULE_CATALOG: Catalog = new Map(ALL_RULE_METAS.map((m) => [m.id, m]));
 
 /** Validates the parsed content of a project file and resolves it against its folder. */
-export function resolveProjectData(data: unknown, file: string, catalog: Catalog | null = ruleCatalog): ResolvedProject {
+export function resolveProjectData(data: unknown, file: string, catalog: Catalog | null = RULE_CATALOG): ResolvedProject {
   const fail = (field: string, detail: string): never => {
     throw new ProjectFileError(file, field, detail);
   };
@@ -239,7 +233,7 @@ function limitTable(value: unknown, fail: Fail): Partial<ParseLimits> {
 }
 
 /** Parses project file text (YAML or JSON by file name) and validates it. Throws ProjectFileError. */
-export function parseProjectFile(text: string, file: string, catalog: Catalog | null = ruleCatalog): ResolvedProject {
+export function parseProjectFile(text: string, file: string, catalog: Catalog | null = RULE_CATALOG): ResolvedProject {
   let data: unknown;
   if (file.endsWith('.json')) {
     try {

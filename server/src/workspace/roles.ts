@@ -1,18 +1,8 @@
-/** The role of a config file (training, sampling, mixed), read from its analysed documents. */
+/** The role of a config file on disk (training, sampling, mixed), read from its analysed documents. */
 import { readFile } from '../core/api';
-import type { Setup } from '../setup/types';
 import { nodeFs, readTextFile, type WorkspaceFs } from './fs';
-import type { FileRole, RoleProbe } from './pairing';
+import { roleOfSetups, type FileRole, type RoleProbe } from './pairing';
 import { loadProject } from './projectFile';
-
-/** File role from its documents' setups (only diffusion documents count). */
-export function roleOfSetups(setups: readonly Setup[]): FileRole {
-  const roles = new Set(setups.filter((s) => s.isDiffusionConfig).map((s) => s.role));
-  if (roles.size === 0) return 'none';
-  if (roles.size === 1 && roles.has('training')) return 'training';
-  if (roles.size === 1 && roles.has('sampling')) return 'sampling';
-  return 'mixed';
-}
 
 /** Reads and analyses a file from disk to find its role (memoised per probe). */
 export function diskRoleProbe(fs: WorkspaceFs = nodeFs): RoleProbe {
@@ -33,3 +23,5 @@ export function diskRoleProbe(fs: WorkspaceFs = nodeFs): RoleProbe {
   };
 }
 
+
+export { roleOfSetups };

@@ -1,0 +1,74 @@
+/**
+ * `check --format json`: the documented contract (docs/project-file.md, "JSON output").
+ * Lines and characters are 0-based; characters count UTF-16 code units (as LSP does).
+ */
+import { displayPath, Locator, summarize, type CheckReport, type Range } from './report';
+
+export interface JsonEdit {
+  range: Range;
+  newText: string;
+}
+
+export interface JsonFix {
+  title: string;
+  safety: 'safe' | 'unsafe';
+  preferred: boolean;
+  edits: JsonEdit[];
+}
+
+export interface JsonRelated {
+  path: string;
+  range: Range;
+  message: string;
+}
+
+export interface JsonFinding {
+  rule: string;
+  severity: 'error' | 'warning' | 'info' | 'hint';
+  message: string;
+  range: Range;
+  /** Index of the YAML document inside the file (0 for JSON). */
+  document: number;
+  fixes: JsonFix[];
+  related: JsonRelated[];
+}
+
+export interface JsonOutput {
+  files: { path: string; findings: JsonFinding[] }[];
+  /** Files that were found but not analysed (binary, not UTF-8, too large). */
+  skipped: { path: string; reason: string }[];
+  summary: { errors: number; warnings: number; infos: number; hints: number; files: number };
+}
+
+export function toJson(report: CheckReport): JsonOutput {
+  const locate = new Locator(report);
+  const files = report.files.map((file) => ({
+    path: displayPath(report.cwd, file.path),
+    findings: file.findings.map((f): JsonFinding => ({
+      rule: f.rule,
+      severity: f.severity,
+      message: f.message,
+      range: locate.range(file.path, f.span),
+      document: f.documentIndex,
+      fixes: f.fixes.map((fix) => ({
+        title: fix.title,
+        safety: fix.safety,
+        preferred: fix.preferred,
+        edits: fix.edits.map((e) => ({ range: locate.range(file.path, e.span), newText: e.newText })),
+      })),
+      related: f.related.map((r) => {
+        const path = locate.resolvePath(file.path, r.path);
+        return { path: displayPath(report.cwd, path), range: locate.range(path, r.span), message: r.message };
+      }),
+    })),
+  }));
+  return {
+    files,
+    skipped: report.skipped.map((s) => ({ path: displayPath(report.cwd, s.path), reason: s.reason })),
+    summary: { ...summarize(report.files), files: report.files.length },
+  };
+}
+
+export function formatJson(report: CheckReport): string {
+  return `${JSON.stringify(toJson(report), null, 2)}\n`;
+}

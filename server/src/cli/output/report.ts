@@ -1,0 +1,83 @@
+/**
+ * What a `check` run produced, in the form every output format reads: findings per file, plus the
+ * text of every file a location can point into (so offsets become lines and columns).
+ */
+import { isAbsolute, relative, resolve, sep } from 'node:path';
+import type { Finding, Severity } from '../../core/findings';
+import { LineIndex, type Position } from '../../parse/lineIndex';
+import type { Span } from '../../parse/types';
+
+export interface CheckedFile {
+  /** Absolute path. */
+  path: string;
+  text: string;
+  findings: Finding[];
+  isDiffusionConfig: boolean;
+}
+
+export interface SkippedFile {
+  path: string;
+  /** One line, e.g. 'skipped: looks binary (contains NUL bytes)'. */
+  reason: string;
+}
+
+export interface CheckReport {
+  cwd: string;
+  files: CheckedFile[];
+  skipped: SkippedFile[];
+  /** Text of other files related locations point into (paired files), by absolute path. */
+  otherTexts: Map<string, string>;
+  /** One-line I/O errors and warnings of the run (also written to stderr). */
+  notices: { level: 'error' | 'warning'; message: string }[];
+}
+
+export interface Summary {
+  errors: number;
+  warnings: number;
+  infos: number;
+  hints: number;
+}
+
+export function summarize(files: readonly CheckedFile[]): Summary {
+  const s: Summary = { errors: 0, warnings: 0, infos: 0, hints: 0 };
+  const key: Record<Severity, keyof Summary> = { error: 'errors', warning: 'warnings', info: 'infos', hint: 'hints' };
+  for (const f of files) for (const finding of f.findings) s[key[finding.severity]]++;
+  return s;
+}
+
+/** Path relative to the run's folder, with forward slashes (absolute when it is on another drive). */
+export function displayPath(cwd: string, path: string): string {
+  const rel = relative(cwd, path);
+  const shown = rel === '' ? '.' : isAbsolute(rel) ? path : rel;
+  return sep === '/' ? shown : shown.split(sep).join('/');
+}
+
+export interface Range {
+  start: Position;
+  end: Position;
+}
+
+/** Offsets -> 0-based positions, with one line index per file text. */
+export class Locator {
+  private readonly indexes = new Map<string, LineIndex>();
+  constructor(private readonly report: CheckReport) {}
+
+  /** The absolute path of a related location (absent path: the finding's own file). */
+  resolvePath(filePath: string, relatedPath: string | undefined): string {
+    if (!relatedPath) return filePath;
+    return isAbsolute(relatedPath) ? relatedPath : resolve(this.report.cwd, relatedPath);
+  }
+
+  textOf(path: string): string | undefined {
+    return this.report.files.find((f) => f.path === path)?.text ?? this.report.otherTexts.get(path);
+  }
+
+  range(path: string, span: Span): Range {
+    let index = this.indexes.get(path);
+    if (!index) {
+      index = new LineIndex(this.textOf(path) ?? '');
+      this.indexes.set(path, index);
+    }
+    return { start: index.positionAt(span.start), end: index.positionAt(span.end) };
+  }
+}

@@ -1,0 +1,160 @@
+/**
+ * `check --format sarif`: SARIF 2.1.0 (OASIS). One run; the driver lists every rule with its
+ * documentation; lines and columns are 1-based, columns count UTF-16 code units.
+ */
+import { existsSync } from 'node:fs';
+import { dirname, join } from 'node:path';
+import { pathToFileURL } from 'node:url';
+import type { Severity } from '../../core/findings';
+import type { RuleMeta } from '../../rules/types';
+import { displayPath, Locator, type CheckReport, type Range } from './report';
+
+export const SARIF_SCHEMA_URI = 'https://docs.oasis-open.org/sarif/sarif/v2.1.0/os/schemas/sarif-schema-2.1.0.json';
+const SRCROOT = '%SRCROOT%';
+
+export interface SarifToolInfo {
+  version: string;
+  rules: readonly RuleMeta[];
+  /** Folder that holds `<rule id>.md`; found next to the installed tool when absent. */
+  docsFolder?: string | null;
+}
+
+type SarifLevel = 'error' | 'warning' | 'note';
+const LEVEL: Record<Severity, SarifLevel> = { error: 'error', warning: 'warning', info: 'note', hint: 'note' };
+
+interface Region {
+  startLine: number;
+  startColumn: number;
+  endLine: number;
+  endColumn: number;
+}
+
+function region(r: Range): Region {
+  return { startLine: r.start.line + 1, startColumn: r.start.character + 1, endLine: r.end.line + 1, endColumn: r.end.character + 1 };
+}
+
+/** A relative path as a URI reference: each segment percent-encoded. */
+function uriOf(displayed: string): string {
+  return displayed.split('/').map(encodeURIComponent).join('/');
+}
+
+/** The docs/rules folder of this installation, looked up from this module's own location. */
+export function findDocsFolder(): string | null {
+  let dir = typeof __filename === 'string' ? dirname(__filename) : null;
+  while (dir) {
+    if (existsSync(join(dir, 'docs', 'rules'))) return join(dir, 'docs', 'rules');
+    if (existsSync(join(dir, 'server')) && existsSync(join(dir, 'package.json'))) return join(dir, 'docs', 'rules');
+    const up = dirname(dir);
+    if (up === dir) return null;
+    dir = up;
+  }
+  return null;
+}
+
+/** What a rule finds: the first paragraph under "What it finds", as plain text. */
+function fullDescription(meta: RuleMeta): string {
+  const match = /##\s*What it finds\s*\n+([\s\S]*?)(\n\s*\n|\n##|$)/.exec(meta.docs);
+  const text = (match ? match[1] : meta.summary).replace(/\s*\n\s*/g, ' ').trim();
+  return text || meta.summary;
+}
+
+function plainHelp(meta: RuleMeta): string {
+  return `${meta.summary}\n\n${meta.docs.replace(/^#+\s*/gm, '').trim()}`;
+}
+
+export function toSarif(report: CheckReport, tool: SarifToolInfo): Record<string, unknown> {
+  const locate = new Locator(report);
+  const docs = tool.docsFolder === undefined ? findDocsFolder() : tool.docsFolder;
+  const descriptors: Record<string, unknown>[] = [];
+  const ruleIndex = new Map<string, number>();
+  for (const meta of tool.rules) {
+    ruleIndex.set(meta.id, descriptors.length);
+    descriptors.push({
+      id: meta.id,
+      shortDescription: { text: meta.summary },
+      fullDescription: { text: fullDescription(meta) },
+      help: { text: plainHelp(meta), markdown: meta.docs.trim() || meta.summary },
+      helpUri: docs ? pathToFileURL(join(docs, `${meta.id}.md`)).href : `docs/rules/${meta.id}.md`,
+      defaultConfiguration: { level: LEVEL[meta.defaultSeverity] },
+      properties: { fixable: meta.fixable, defaultSeverity: meta.defaultSeverity },
+    });
+  }
+  const location = (path: string, range: Range) => ({
+    physicalLocation: {
+      artifactLocation: { uri: uriOf(displayPath(report.cwd, path)), uriBaseId: SRCROOT },
+      region: region(range),
+    },
+  });
+  const results: Record<string, unknown>[] = [];
+  for (const file of report.files) {
+    for (const f of file.findings) {
+      if (!ruleIndex.has(f.rule)) {
+        // A finding from outside the rule list (a parse problem): describe it minimally.
+        ruleIndex.set(f.rule, descriptors.length);
+        descriptors.push({ id: f.rule, shortDescription: { text: f.rule } });
+      }
+      const result: Record<string, unknown> = {
+        ruleId: f.rule,
+        ruleIndex: ruleIndex.get(f.rule),
+        level: LEVEL[f.severity],
+        message: { text: f.message },
+        locations: [location(file.path, locate.range(file.path, f.span))],
+      };
+      if (f.related.length) {
+        result.relatedLocations = f.related.map((r, i) => {
+          const path = locate.resolvePath(file.path, r.path);
+          return { id: i + 1, ...location(path, locate.range(path, r.span)), message: { text: r.message } };
+        });
+      }
+      if (f.fixes.length) {
+        result.fixes = f.fixes.map((fix) => ({
+          description: { text: fix.title },
+          artifactChanges: [
+            {
+              artifactLocation: { uri: uriOf(displayPath(report.cwd, file.path)), uriBaseId: SRCROOT },
+              replacements: fix.edits.map((e) => ({
+                deletedRegion: region(locate.range(file.path, e.span)),
+                insertedContent: { text: e.newText },
+              })),
+            },
+          ],
+          properties: { safety: fix.safety, preferred: fix.preferred },
+        }));
+      }
+      results.push(result);
+    }
+  }
+  const notifications = [
+    ...report.notices.map((n) => ({ level: n.level, message: { text: n.message } })),
+    ...report.skipped.map((s) => ({ level: 'note', message: { text: `${displayPath(report.cwd, s.path)}: ${s.reason}` } })),
+  ];
+  return {
+    $schema: SARIF_SCHEMA_URI,
+    version: '2.1.0',
+    runs: [
+      {
+        tool: {
+          driver: {
+            name: 'noiselint',
+            version: tool.version,
+            semanticVersion: tool.version,
+            rules: descriptors,
+          },
+        },
+        originalUriBaseIds: { [SRCROOT]: { uri: pathToFileURL(report.cwd.endsWith('/') ? report.cwd : `${report.cwd}/`).href } },
+        columnKind: 'utf16CodeUnits',
+        invocations: [
+          {
+            executionSuccessful: !report.notices.some((n) => n.level === 'error'),
+            ...(notifications.length ? { toolExecutionNotifications: notifications } : {}),
+          },
+        ],
+        results,
+      },
+    ],
+  };
+}
+
+export function formatSarif(report: CheckReport, tool: SarifToolInfo): string {
+  return `${JSON.stringify(toSarif(report, tool), null, 2)}\n`;
+}
