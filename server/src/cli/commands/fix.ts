@@ -1,7 +1,261 @@
-import type { CliIO } from '../io';
+/**
+ * `noiselint fix [paths...] [--unsafe] [--dry-run]`
+ *
+ * Applies safe fixes (unsafe ones with --unsafe) to the files `check` would look at, repeating
+ * until nothing changes. --dry-run prints a unified diff and writes nothing. A file is written
+ * atomically (temporary file in the same folder, fsync, original mode, rename) and only when it
+ * parsed cleanly, is writable, and did not change on disk meanwhile.
+ *
+ * Exit codes: 0 done; 1 some file could not be fixed or written; 2 bad usage or unreadable input.
+ */
+import { parseArgs } from 'node:util';
+import { randomBytes } from 'node:crypto';
+import {
+  accessSync,
+  chmodSync,
+  chownSync,
+  closeSync,
+  constants as fsConstants,
+  fsyncSync,
+  openSync,
+  readFileSync,
+  realpathSync,
+  renameSync,
+  statSync,
+  unlinkSync,
+  writeSync,
+} from 'node:fs';
+import { basename, dirname, join, relative } from 'node:path';
+import { createTwoFilesPatch } from 'diff';
+import { analyzeText, readFile, type FileResult } from '../../core/api';
+import type { PartnerDocument } from '../../rules/types';
+import { fixText, type FixLoopResult } from '../../fix/loop';
+import { LineIndex } from '../../parse/lineIndex';
+import { discoverFiles } from '../../workspace/discover';
+import { describeFsError, nodeFs, readTextFile } from '../../workspace/fs';
+import { findPartners } from '../../workspace/pairing';
+import { loadProject, ProjectFileError, type ResolvedProject } from '../../workspace/project';
+import { diskRoleProbe } from '../../workspace/roles';
+import { UsageError, type CliIO } from '../io';
 
-/** (Being written.) */
-export async function runFix(_args: string[], io: CliIO): Promise<number> {
-  io.stderr('noiselint fix: not available yet\n');
-  return 2;
+interface FixArgs {
+  inputs: string[];
+  unsafe: boolean;
+  dryRun: boolean;
+}
+
+function parseFixArgs(args: string[]): FixArgs {
+  let parsed;
+  try {
+    parsed = parseArgs({
+      args,
+      allowPositionals: true,
+      strict: true,
+      options: { unsafe: { type: 'boolean', default: false }, 'dry-run': { type: 'boolean', default: false } },
+    });
+  } catch (err) {
+    throw new UsageError(err instanceof Error ? err.message : String(err));
+  }
+  return { inputs: parsed.positionals, unsafe: !!parsed.values.unsafe, dryRun: !!parsed.values['dry-run'] };
+}
+
+export async function runFix(args: string[], io: CliIO): Promise<number> {
+  const options = parseFixArgs(args);
+  let cwdProject: ResolvedProject;
+  try {
+    cwdProject = loadProject(io.cwd);
+  } catch (err) {
+    io.stderr(`noiselint fix: ${projectProblem(err)}\n`);
+    return 2;
+  }
+  const found = discoverFiles(options.inputs, io.cwd, cwdProject);
+  let ioError = found.errors.length > 0;
+  for (const e of found.errors) io.stderr(`noiselint fix: ${e}\n`);
+  // A dry run keeps stdout for the patch; its summary goes to stderr.
+  const report = options.dryRun ? io.stderr : io.stdout;
+  let notWritten = false;
+  let filesChanged = 0;
+  let fixesApplied = 0;
+  let unsafeOnly = 0;
+  const roleOf = diskRoleProbe();
+  for (const file of found.files) {
+    const shown = relative(io.cwd, file) || file;
+    let project: ResolvedProject;
+    try {
+      project = loadProject(file);
+    } catch (err) {
+      io.stderr(`${shown}: ${projectProblem(err)}\n`);
+      ioError = true;
+      continue;
+    }
+    const read = readTextFile(nodeFs, file, project.limits.maxFileBytes);
+    if (!read.ok) {
+      io.stderr(`${shown}: ${read.problem}\n`);
+      if (read.kind === 'io') ioError = true;
+      continue;
+    }
+    const original = read.text;
+    const partners = partnersOf(file, project, roleOf);
+    const analyze = (text: string): FileResult =>
+      analyzeText(text, { path: shown, project, partners: partners.documents, pairRole: partners.role });
+    let result: FixLoopResult;
+    try {
+      result = fixText(original, analyze, { unsafe: options.unsafe });
+    } catch (err) {
+      io.stderr(`${shown}: not fixed: ${err instanceof Error ? err.message.split('\n')[0] : String(err)}\n`);
+      notWritten = true;
+      continue;
+    }
+    unsafeOnly += result.unsafeOnly;
+    if (result.parseError) {
+      const at = new LineIndex(original).positionAt(result.parseError.span.start);
+      io.stderr(`${shown}:${at.line + 1}:${at.character + 1}: not fixed: the file does not parse (${result.parseError.message})\n`);
+      notWritten = true;
+      continue;
+    }
+    if (result.brokeText) io.stderr(`${shown}: some fixes were dropped: they would have broken the file (please report this)\n`);
+    if (result.text === original) continue;
+    const count = result.applied.length;
+    const what = `${count} ${count === 1 ? 'fix' : 'fixes'} (${summariseRules(result)})`;
+    if (options.dryRun) {
+      io.stdout(createTwoFilesPatch(`a/${toPosix(shown)}`, `b/${toPosix(shown)}`, original, result.text));
+      report(`${shown}: would apply ${what}\n`);
+      filesChanged++;
+      fixesApplied += count;
+      continue;
+    }
+    const written = writeAtomically(file, original, result.text);
+    if (!written.ok) {
+      io.stderr(`${shown}: not written: ${written.problem} (${what} not applied)\n`);
+      notWritten = true;
+      continue;
+    }
+    report(`${shown}: applied ${what}\n`);
+    filesChanged++;
+    fixesApplied += count;
+  }
+  const verb = options.dryRun ? 'Would apply' : 'Applied';
+  const files = `${filesChanged} ${filesChanged === 1 ? 'file' : 'files'}`;
+  report(`${verb} ${fixesApplied} ${fixesApplied === 1 ? 'fix' : 'fixes'} in ${files}.\n`);
+  if (unsafeOnly > 0) {
+    report(
+      `${unsafeOnly} more ${unsafeOnly === 1 ? 'finding has' : 'findings have'} only unsafe fixes (they change what the model learns, ` +
+        'so fine-tuning or retraining is needed, or they touch a comment); run with --unsafe to apply them.\n',
+    );
+  }
+  if (ioError) return 2;
+  return notWritten ? 1 : 0;
+}
+
+function projectProblem(err: unknown): string {
+  if (err instanceof ProjectFileError) return err.message.split('\n')[0];
+  return `cannot load the project file: ${err instanceof Error ? err.message.split('\n')[0] : String(err)}`;
+}
+
+function summariseRules(result: FixLoopResult): string {
+  const counts = new Map<string, number>();
+  for (const a of result.applied) counts.set(a.rule, (counts.get(a.rule) ?? 0) + 1);
+  return [...counts].map(([rule, n]) => (n > 1 ? `${rule} x${n}` : rule)).join(', ');
+}
+
+const toPosix = (p: string) => p.split('\\').join('/');
+
+/** Documents of the paired file(s), read from disk, for train-sample-mismatch. */
+function partnersOf(
+  file: string,
+  project: ResolvedProject,
+  roleOf: ReturnType<typeof diskRoleProbe>,
+): { documents: PartnerDocument[]; role?: 'training' | 'sampling' } {
+  const match = findPartners(file, project, { roleOf });
+  if (!match) return { documents: [] };
+  const documents: PartnerDocument[] = [];
+  for (const path of match.partners) {
+    const read = readTextFile(nodeFs, path, project.limits.maxFileBytes);
+    if (!read.ok) continue;
+    const partner = readFile(read.text, { path, project });
+    for (const doc of partner.documents) documents.push({ path, setup: doc.setup, analysis: doc.analysis });
+  }
+  return { documents, role: match.role };
+}
+
+type WriteResult = { ok: true } | { ok: false; problem: string };
+
+/**
+ * Replaces the file's content in one step: a temporary file in the same folder gets the new text,
+ * is flushed to disk, takes the original's mode (and owner, where allowed) and is renamed over the
+ * original. A read-only file, or one that changed since it was read, is left alone.
+ */
+export function writeAtomically(path: string, expected: string, text: string): WriteResult {
+  let target: string;
+  let mode: number;
+  let uid: number;
+  let gid: number;
+  try {
+    target = realpathSync(path);
+    const st = statSync(target);
+    if (!st.isFile()) return { ok: false, problem: 'not a regular file' };
+    mode = st.mode & 0o7777;
+    uid = st.uid;
+    gid = st.gid;
+  } catch (err) {
+    return { ok: false, problem: describeFsError(err) };
+  }
+  // Mode bits first: the superuser passes access() even for a file marked read-only.
+  if ((mode & 0o222) === 0) return { ok: false, problem: 'the file is read-only' };
+  try {
+    accessSync(target, fsConstants.W_OK);
+  } catch {
+    return { ok: false, problem: 'the file is read-only' };
+  }
+  try {
+    if (!readFileSync(target).equals(Buffer.from(expected, 'utf8'))) return { ok: false, problem: 'the file changed on disk while it was being fixed' };
+  } catch (err) {
+    return { ok: false, problem: describeFsError(err) };
+  }
+  const temp = join(dirname(target), `.${basename(target)}.${randomBytes(6).toString('hex')}.noiselint-tmp`);
+  let fd: number | null = null;
+  try {
+    fd = openSync(temp, 'wx', mode);
+    const bytes = Buffer.from(text, 'utf8');
+    let off = 0;
+    while (off < bytes.length) off += writeSync(fd, bytes, off, bytes.length - off);
+    fsyncSync(fd);
+    closeSync(fd);
+    fd = null;
+    chmodSync(temp, mode);
+    if (typeof process.getuid === 'function' && process.getuid() === 0) {
+      try {
+        chownSync(temp, uid, gid);
+      } catch {
+        // Keeping the owner is best effort.
+      }
+    }
+    renameSync(temp, target);
+  } catch (err) {
+    if (fd !== null) {
+      try {
+        closeSync(fd);
+      } catch {
+        // already closed
+      }
+    }
+    try {
+      unlinkSync(temp);
+    } catch {
+      // never created, or already renamed
+    }
+    return { ok: false, problem: `cannot write: ${describeFsError(err)}` };
+  }
+  try {
+    // Make the rename itself durable (best effort: not every platform can fsync a folder).
+    const dirFd = openSync(dirname(target), 'r');
+    try {
+      fsyncSync(dirFd);
+    } finally {
+      closeSync(dirFd);
+    }
+  } catch {
+    // ignored
+  }
+  return { ok: true };
 }
