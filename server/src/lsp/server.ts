@@ -1,0 +1,897 @@
+/**
+ * The language server: a thin adapter from LSP requests to core calls. It keeps the open
+ * documents, their settings and a role index of the workspace's config files; every analysis goes
+ * through `analyzeText` / `readFile` and every number through the core helpers.
+ *
+ * Diagnostics are pushed (debounced) unless the client pulls them. Never stale: a result is only
+ * published when it was computed from the document's current version, and never after a newer one.
+ */
+import { dirname } from 'node:path';
+import { fileURLToPath, pathToFileURL } from 'node:url';
+import {
+  CodeActionKind,
+  DidChangeConfigurationNotification,
+  DidChangeWatchedFilesNotification,
+  ErrorCodes,
+  FileChangeType,
+  LSPErrorCodes,
+  ResponseError,
+  TextDocumentSyncKind,
+  type CancellationToken,
+  type ClientCapabilities,
+  type CodeAction,
+  type CodeActionParams,
+  type CodeLens,
+  type CodeLensParams,
+  type Connection,
+  type Diagnostic,
+  type DidChangeTextDocumentParams,
+  type DidChangeWatchedFilesParams,
+  type DidCloseTextDocumentParams,
+  type DidOpenTextDocumentParams,
+  type DocumentDiagnosticParams,
+  type DocumentDiagnosticReport,
+  type Hover,
+  type HoverParams,
+  type InitializeParams,
+  type InitializeResult,
+  type InlayHint,
+  type InlayHintParams,
+  type WorkspaceFolder,
+} from 'vscode-languageserver/node';
+import { TextDocument } from 'vscode-languageserver-textdocument';
+import { analyzeText, readFile, type AnalyzeOptions, type FileResult } from '../core/api';
+import type { Finding } from '../core/findings';
+import { plotDataFor } from '../core/plotData';
+import { hoverAt } from '../core/hover';
+import { inlineHintsFor } from '../core/inlayHints';
+import { firstFieldOf } from '../core/fieldAt';
+import { summaryFor } from '../core/documentSummary';
+import { formatExplainText } from '../cli/explainFormat';
+import type { Concept } from '../fields/concepts';
+import type { SourceFormat } from '../parse/types';
+import { LineIndex } from '../parse/lineIndex';
+import type { PartnerDocument } from '../rules/types';
+import {
+  EXPLAIN_REQUEST,
+  FIX_ALL_KIND,
+  PLOT_CHANGED_NOTIFICATION,
+  PLOT_DATA_REQUEST,
+  SHOW_SCHEDULE_COMMAND,
+  SUMMARY_REQUEST,
+  type UriParams,
+} from '../protocol';
+import type { ResolvedProject } from '../workspace/types';
+import { DEFAULT_PROJECT, clearProjectCache, loadProject } from '../workspace/projectFile';
+import { discoverFiles, isConfigFileName, isProjectFileName, projectSelects } from '../workspace/discover';
+import { nodeFs, readTextFile, type WorkspaceFs } from '../workspace/fs';
+import { findPartners, roleOfSetups, type FileRole, type PairRole } from '../workspace/pairing';
+import picomatch from 'picomatch';
+import { findingToDiagnostic, spanToRange, type PositionMapper, type OtherFile } from './convert';
+import { fixAllAction, kindRequested, quickFixes, type CurrentFindings } from './codeActions';
+import { ruleDocsUrl } from './docsLink';
+import { DEFAULT_DEBOUNCE_MS, defaultSettings, mergeSettingsIntoProject, normalizeSettings, type EditorSettings } from './settings';
+
+const SERVER_VERSION = '0.1.0';
+const SETTINGS_SECTION = 'noiselint';
+const WATCH_GLOBS = ['**/*.{yaml,yml,json,jsonc}', '**/noiselint.project.{yaml,json}'];
+/** Files indexed per workspace folder at start-up; beyond this, pairing reads files on demand. */
+const MAX_INDEXED_FILES = 20_000;
+const INDEX_BATCH = 64;
+/** Schedule fields, in the order the "Show noise schedule" lens looks for them. */
+const SCHEDULE_FIELDS: readonly Concept[] = ['betaSchedule', 'betas', 'trainSteps', 'betaStart', 'betaEnd', 'zeroTerminalSnr', 'sigmaMax', 'sigmaMin', 'flowShift'];
+
+interface Capabilities {
+  pullDiagnostics: boolean;
+  diagnosticRefresh: boolean;
+  configuration: boolean;
+  configurationDynamic: boolean;
+  watchedFilesDynamic: boolean;
+  workspaceFolders: boolean;
+  hoverMarkdown: boolean;
+  versionedEdits: boolean;
+  inlayHintRefresh: boolean;
+  codeLensRefresh: boolean;
+}
+
+/** One analysis of an open document, tied to the version and settings generation it used. */
+interface Analyzed {
+  version: number;
+  generation: number;
+  text: string;
+  file: FileResult | null;
+  /** What the user sees: rule findings plus parse and project problems, or nothing. */
+  shown: Finding[];
+  diagnostics: Diagnostic[];
+  /** Paths of paired files this analysis read. */
+  partners: string[];
+}
+
+interface OpenDocument {
+  uri: string;
+  /** File-system path for file: URIs. */
+  path: string | null;
+  format: SourceFormat;
+  doc: TextDocument;
+  timer: NodeJS.Timeout | undefined;
+  debounceMs: number;
+  lastPublishedVersion: number;
+  cache: Analyzed | undefined;
+  /** The document was a diffusion config at some point: parse problems keep showing while it is broken. */
+  wasConfig: boolean;
+}
+
+function uriToPath(uri: string): string | null {
+  if (!uri.startsWith('file:')) return null;
+  try {
+    return fileURLToPath(uri);
+  } catch {
+    return null;
+  }
+}
+
+function formatOf(languageId: string | undefined, uri: string): SourceFormat {
+  if (languageId === 'json' || languageId === 'jsonc' || languageId === 'yaml') return languageId;
+  const lower = uri.toLowerCase();
+  if (lower.endsWith('.jsonc')) return 'jsonc';
+  if (lower.endsWith('.json')) return 'json';
+  return 'yaml';
+}
+
+function errorMessage(err: unknown): string {
+  return (err instanceof Error ? err.message : String(err)).split('\n')[0];
+}
+
+function requireUri(params: unknown, nested: boolean): string {
+  const p = params as { textDocument?: { uri?: unknown }; uri?: unknown } | null | undefined;
+  const uri = nested ? p?.textDocument?.uri : p?.uri;
+  if (typeof uri !== 'string' || uri.length === 0) {
+    throw new ResponseError(ErrorCodes.InvalidParams, nested ? 'params.textDocument.uri must be a string' : 'params.uri must be a string');
+  }
+  return uri;
+}
+
+function samePosition(p: unknown): p is { line: number; character: number } {
+  const q = p as { line?: unknown; character?: unknown } | null | undefined;
+  return typeof q?.line === 'number' && typeof q?.character === 'number';
+}
+
+export class NoiselintServer {
+  private caps: Capabilities = {
+    pullDiagnostics: false,
+    diagnosticRefresh: false,
+    configuration: false,
+    configurationDynamic: false,
+    watchedFilesDynamic: false,
+    workspaceFolders: false,
+    hoverMarkdown: false,
+    versionedEdits: false,
+    inlayHintRefresh: false,
+    codeLensRefresh: false,
+  };
+  private readonly docs = new Map<string, OpenDocument>();
+  private readonly openByPath = new Map<string, string>();
+  private readonly settingsCache = new Map<string, Promise<EditorSettings>>();
+  private globalSettings: EditorSettings = defaultSettings();
+  /** Bumped when settings or project files change: every cached analysis is then stale. */
+  private generation = 0;
+  private folders: { uri: string; path: string | null }[] = [];
+  /** Role of every config file seen (the workspace index). */
+  private readonly roles = new Map<string, FileRole>();
+  /** Partner documents read from a given text, reused while the text does not change. */
+  private readonly partnerCache = new Map<string, { text: string; project: ResolvedProject; docs: PartnerDocument[] }>();
+  private readonly fs: WorkspaceFs;
+  private shutDown = false;
+
+  constructor(private readonly connection: Connection) {
+    this.fs = this.overlayFs();
+  }
+
+  listen(): void {
+    const c = this.connection;
+    c.onInitialize((params) => this.initialize(params));
+    c.onInitialized(() => this.notifyGuard('initialized', () => this.initialized()));
+    c.onShutdown(() => {
+      this.shutDown = true;
+      for (const od of this.docs.values()) if (od.timer) clearTimeout(od.timer);
+    });
+    c.onDidOpenTextDocument((p) => this.notifyGuard('didOpen', () => this.didOpen(p)));
+    c.onDidChangeTextDocument((p) => this.notifyGuard('didChange', () => this.didChange(p)));
+    c.onDidCloseTextDocument((p) => this.notifyGuard('didClose', () => this.didClose(p)));
+    c.onDidChangeConfiguration((p) => this.notifyGuard('didChangeConfiguration', () => this.configurationChanged(p?.settings)));
+    c.onDidChangeWatchedFiles((p) => this.notifyGuard('didChangeWatchedFiles', () => this.watchedFilesChanged(p)));
+    c.onHover(this.guard('hover', (p: HoverParams) => this.hover(p)));
+    c.onCodeAction(this.guard('codeAction', (p: CodeActionParams) => this.codeActions(p)));
+    c.onCodeLens(this.guard('codeLens', (p: CodeLensParams) => this.codeLenses(p)));
+    c.languages.inlayHint.on(this.guard('inlayHint', (p: InlayHintParams) => this.inlayHints(p)));
+    c.languages.diagnostics.on(this.guard('diagnostic', (p: DocumentDiagnosticParams, token: CancellationToken) => this.pullDiagnostics(p, token)));
+    c.onRequest(PLOT_DATA_REQUEST, this.guard(PLOT_DATA_REQUEST, (p: UriParams) => this.plotData(p)));
+    c.onRequest(EXPLAIN_REQUEST, this.guard(EXPLAIN_REQUEST, (p: UriParams) => this.explain(p)));
+    c.onRequest(SUMMARY_REQUEST, this.guard(SUMMARY_REQUEST, (p: UriParams) => this.summary(p)));
+    c.listen();
+  }
+
+  // ---------------------------------------------------------------- robustness
+
+  /** Every request handler: an exception becomes a ResponseError for that request only. */
+  private guard<P, R>(name: string, handler: (params: P, token: CancellationToken) => R | Promise<R>) {
+    return async (params: P, token: CancellationToken): Promise<R> => {
+      try {
+        return await handler(params, token);
+      } catch (err) {
+        if (err instanceof ResponseError) throw err;
+        this.logError(name, err);
+        throw new ResponseError(ErrorCodes.InternalError, `noiselint: ${name} failed: ${errorMessage(err)}`);
+      }
+    };
+  }
+
+  private notifyGuard(name: string, handler: () => unknown): void {
+    try {
+      const result = handler();
+      if (result instanceof Promise) result.catch((err: unknown) => this.logError(name, err));
+    } catch (err) {
+      this.logError(name, err);
+    }
+  }
+
+  private logError(name: string, err: unknown): void {
+    this.connection.console.error(`noiselint: ${name} failed: ${err instanceof Error ? (err.stack ?? err.message) : String(err)}`);
+  }
+
+  // ---------------------------------------------------------------- life cycle
+
+  private initialize(params: InitializeParams): InitializeResult {
+    const cc: ClientCapabilities = params?.capabilities ?? {};
+    const hoverFormats = cc.textDocument?.hover?.contentFormat ?? [];
+    this.caps = {
+      pullDiagnostics: !!cc.textDocument?.diagnostic,
+      diagnosticRefresh: !!cc.workspace?.diagnostics?.refreshSupport,
+      configuration: !!cc.workspace?.configuration,
+      configurationDynamic: !!cc.workspace?.didChangeConfiguration?.dynamicRegistration,
+      watchedFilesDynamic: !!cc.workspace?.didChangeWatchedFiles?.dynamicRegistration,
+      workspaceFolders: !!cc.workspace?.workspaceFolders,
+      hoverMarkdown: hoverFormats.includes('markdown'),
+      versionedEdits: !!cc.workspace?.workspaceEdit?.documentChanges,
+      inlayHintRefresh: !!cc.workspace?.inlayHint?.refreshSupport,
+      codeLensRefresh: !!cc.workspace?.codeLens?.refreshSupport,
+    };
+    const folders: WorkspaceFolder[] = params?.workspaceFolders ?? (params?.rootUri ? [{ uri: params.rootUri, name: 'root' }] : []);
+    this.folders = folders.filter((f) => typeof f?.uri === 'string').map((f) => ({ uri: f.uri, path: uriToPath(f.uri) }));
+    const result: InitializeResult = {
+      capabilities: {
+        textDocumentSync: { openClose: true, change: TextDocumentSyncKind.Incremental },
+        hoverProvider: true,
+        codeActionProvider: { codeActionKinds: [CodeActionKind.QuickFix, FIX_ALL_KIND] },
+        codeLensProvider: { resolveProvider: false },
+        inlayHintProvider: { resolveProvider: false },
+        workspace: { workspaceFolders: { supported: true, changeNotifications: true } },
+      },
+      serverInfo: { name: 'noiselint', version: SERVER_VERSION },
+    };
+    if (this.caps.pullDiagnostics) {
+      result.capabilities.diagnosticProvider = { identifier: 'noiselint', interFileDependencies: true, workspaceDiagnostics: false };
+    }
+    return result;
+  }
+
+  private async initialized(): Promise<void> {
+    const c = this.connection;
+    if (this.caps.configurationDynamic) {
+      await c.client.register(DidChangeConfigurationNotification.type, { section: SETTINGS_SECTION }).catch((e: unknown) => this.logError('register', e));
+    }
+    if (this.caps.watchedFilesDynamic) {
+      await c.client
+        .register(DidChangeWatchedFilesNotification.type, { watchers: WATCH_GLOBS.map((globPattern) => ({ globPattern })) })
+        .catch((e: unknown) => this.logError('register', e));
+    }
+    if (this.caps.workspaceFolders) {
+      c.workspace.onDidChangeWorkspaceFolders((event) =>
+        this.notifyGuard('didChangeWorkspaceFolders', async () => {
+          const removed = new Set(event.removed.map((f) => f.uri));
+          this.folders = this.folders.filter((f) => !removed.has(f.uri));
+          const added = event.added.map((f) => ({ uri: f.uri, path: uriToPath(f.uri) }));
+          this.folders.push(...added);
+          await this.indexFolders(added);
+        }),
+      );
+    }
+    await this.indexFolders(this.folders);
+  }
+
+  /** Scans folders for config files and records each file's role (the pairing index). */
+  private async indexFolders(folders: { uri: string; path: string | null }[]): Promise<void> {
+    const paths = folders.map((f) => f.path).filter((p): p is string => !!p);
+    if (paths.length === 0) return;
+    const progress = await this.connection.window.createWorkDoneProgress();
+    progress.begin('noiselint: indexing configs', 0, 'finding files', false);
+    try {
+      const files: string[] = [];
+      for (const folder of paths) {
+        const found = discoverFiles([folder], folder, undefined, { fs: this.fs, maxFiles: MAX_INDEXED_FILES });
+        files.push(...found.files);
+        for (const e of found.errors) this.connection.console.warn(`noiselint: ${e}`);
+      }
+      for (let i = 0; i < files.length; i++) {
+        if (this.shutDown) return;
+        if (!this.openByPath.has(files[i])) this.roles.set(files[i], this.roleFromDisk(files[i]));
+        if (i % INDEX_BATCH === INDEX_BATCH - 1) {
+          progress.report(Math.round(((i + 1) / files.length) * 100), `${i + 1} of ${files.length} files`);
+          await new Promise((resolve) => setImmediate(resolve));
+        }
+      }
+      this.connection.console.info(`noiselint: indexed ${files.length} config files`);
+    } finally {
+      progress.done();
+    }
+    // Pairs may have appeared: re-check the open documents.
+    this.invalidateAll(false);
+  }
+
+  // ---------------------------------------------------------------- documents
+
+  private didOpen(params: DidOpenTextDocumentParams): void {
+    const item = params?.textDocument;
+    if (!item || typeof item.uri !== 'string' || typeof item.text !== 'string') throw new Error('didOpen: malformed textDocument');
+    const previous = this.docs.get(item.uri);
+    if (previous?.timer) clearTimeout(previous.timer);
+    const path = uriToPath(item.uri);
+    const od: OpenDocument = {
+      uri: item.uri,
+      path,
+      format: formatOf(item.languageId, item.uri),
+      doc: TextDocument.create(item.uri, item.languageId ?? 'yaml', typeof item.version === 'number' ? item.version : 0, item.text),
+      timer: undefined,
+      debounceMs: DEFAULT_DEBOUNCE_MS,
+      lastPublishedVersion: -Infinity,
+      cache: undefined,
+      wasConfig: false,
+    };
+    this.docs.set(item.uri, od);
+    if (path) this.openByPath.set(path, item.uri);
+    this.contentChanged(od, 0);
+  }
+
+  private didChange(params: DidChangeTextDocumentParams): void {
+    const uri = requireUri(params, true);
+    const od = this.docs.get(uri);
+    if (!od) return;
+    const changes = Array.isArray(params.contentChanges) ? params.contentChanges : [];
+    const version = typeof params.textDocument.version === 'number' ? params.textDocument.version : od.doc.version + 1;
+    od.doc = TextDocument.update(od.doc, changes, version);
+    this.contentChanged(od, od.debounceMs);
+  }
+
+  private didClose(params: DidCloseTextDocumentParams): void {
+    const uri = requireUri(params, true);
+    const od = this.docs.get(uri);
+    if (!od) return;
+    if (od.timer) clearTimeout(od.timer);
+    this.docs.delete(uri);
+    this.settingsCache.delete(uri);
+    if (od.path) {
+      this.openByPath.delete(od.path);
+      // The disk copy speaks again for pairing.
+      this.roles.set(od.path, this.roleFromDisk(od.path));
+      this.partnerCache.delete(od.path);
+      this.dependentsChanged(od.path, true);
+    }
+    if (!this.caps.pullDiagnostics) void this.connection.sendDiagnostics({ uri, diagnostics: [] });
+  }
+
+  /** A document's text changed: re-check it (debounced) and the files paired with it. */
+  private contentChanged(od: OpenDocument, delay: number): void {
+    if (od.path && isProjectFileName(baseName(od.path))) {
+      clearProjectCache(this.fs);
+      this.invalidateAll(true);
+    }
+    this.schedule(od, delay);
+    if (od.path) this.dependentsChanged(od.path, false);
+  }
+
+  private schedule(od: OpenDocument, delay: number): void {
+    if (od.timer) clearTimeout(od.timer);
+    od.timer = setTimeout(() => {
+      od.timer = undefined;
+      this.notifyGuard('validate', () => this.validate(od));
+    }, delay);
+  }
+
+  /** Analyses the current version; publishes it unless a newer version arrived meanwhile. */
+  private async validate(od: OpenDocument): Promise<void> {
+    if (this.docs.get(od.uri) !== od || this.shutDown) return;
+    const analyzed = await this.analyze(od);
+    if (!analyzed || this.docs.get(od.uri) !== od || analyzed.version !== od.doc.version) return;
+    if (!this.caps.pullDiagnostics) this.publish(od, analyzed);
+    if (analyzed.file?.isDiffusionConfig || od.wasConfig) {
+      void this.connection.sendNotification(PLOT_CHANGED_NOTIFICATION, { uri: od.uri });
+    }
+  }
+
+  private publish(od: OpenDocument, analyzed: Analyzed): void {
+    // Diagnostics for version n are never sent after those for a newer version.
+    if (analyzed.version < od.lastPublishedVersion) return;
+    od.lastPublishedVersion = analyzed.version;
+    void this.connection.sendDiagnostics({ uri: od.uri, version: analyzed.version, diagnostics: analyzed.diagnostics });
+  }
+
+  // ---------------------------------------------------------------- settings and projects
+
+  private settingsFor(uri: string): Promise<EditorSettings> {
+    if (!this.caps.configuration) return Promise.resolve(this.globalSettings);
+    let pending = this.settingsCache.get(uri);
+    if (!pending) {
+      pending = this.connection.workspace.getConfiguration({ scopeUri: uri, section: SETTINGS_SECTION }).then(
+        (raw: unknown) => normalizeSettings(raw),
+        (err: unknown) => {
+          this.logError('workspace/configuration', err);
+          return defaultSettings();
+        },
+      );
+      this.settingsCache.set(uri, pending);
+    }
+    return pending;
+  }
+
+  private configurationChanged(settings: unknown): void {
+    if (!this.caps.configuration) {
+      const section = (settings as Record<string, unknown> | null | undefined)?.[SETTINGS_SECTION];
+      this.globalSettings = normalizeSettings(section ?? {});
+    }
+    this.settingsCache.clear();
+    this.invalidateAll(true);
+  }
+
+  /** Project file for a path (editor settings are merged later); an invalid file falls back to defaults. */
+  private projectFor(path: string | null): { project: ResolvedProject; problem: string | null } {
+    if (!path) return { project: { ...DEFAULT_PROJECT, rules: {}, aliases: {}, limits: {} }, problem: null };
+    try {
+      return { project: loadProject(path, this.fs), problem: null };
+    } catch (err) {
+      return { project: { ...DEFAULT_PROJECT, root: dirname(path), rules: {}, aliases: {}, limits: {} }, problem: errorMessage(err) };
+    }
+  }
+
+  private folderOf(path: string): string | null {
+    let best: string | null = null;
+    for (const f of this.folders) {
+      if (!f.path) continue;
+      const root = f.path.endsWith('/') ? f.path : `${f.path}/`;
+      if ((path.startsWith(root) || path === f.path) && (!best || f.path.length > best.length)) best = f.path;
+    }
+    return best;
+  }
+
+  /** The project's include / exclude, then the editor's (the project file's include takes precedence). */
+  private selected(path: string | null, project: ResolvedProject, settings: EditorSettings): boolean {
+    if (!path) return true;
+    if (project.file && !projectSelects(project, path)) return false;
+    const base = this.folderOf(path) ?? project.root;
+    const rel = relativePosix(base, path);
+    if (settings.files.exclude.length && picomatch(settings.files.exclude, { dot: true })(rel)) return false;
+    const projectIncludes = !!project.file && project.include.length > 0;
+    if (!projectIncludes && settings.files.include.length && !picomatch(settings.files.include, { dot: true })(rel)) return false;
+    return true;
+  }
+
+  /** Bumps the generation and re-checks every open document (refreshing pulled diagnostics). */
+  private invalidateAll(settingsChanged: boolean): void {
+    this.generation++;
+    if (settingsChanged) this.partnerCache.clear();
+    for (const od of this.docs.values()) {
+      od.cache = undefined;
+      this.schedule(od, 0);
+    }
+    this.refreshClient();
+  }
+
+  private refreshClient(): void {
+    if (this.caps.pullDiagnostics && this.caps.diagnosticRefresh) {
+      this.connection.languages.diagnostics.refresh().catch((e: unknown) => this.logError('diagnostic refresh', e));
+    }
+    if (this.caps.inlayHintRefresh) this.connection.languages.inlayHint.refresh().catch(() => undefined);
+    if (this.caps.codeLensRefresh) void this.connection.sendRequest('workspace/codeLens/refresh').catch(() => undefined);
+  }
+
+  // ---------------------------------------------------------------- pairing
+
+  private overlayFs(): WorkspaceFs {
+    const openText = (path: string): string | undefined => {
+      const uri = this.openByPath.get(path);
+      return uri ? this.docs.get(uri)?.doc.getText() : undefined;
+    };
+    return {
+      stat: (path) => {
+        const text = openText(path);
+        if (text !== undefined) return { kind: 'file', size: Buffer.byteLength(text, 'utf8') };
+        return nodeFs.stat(path);
+      },
+      readDir: (path) => {
+        let entries: ReturnType<WorkspaceFs['readDir']> = [];
+        let failure: unknown = null;
+        try {
+          entries = nodeFs.readDir(path);
+        } catch (err) {
+          failure = err;
+        }
+        const names = new Set(entries.map((e) => e.name));
+        let added = false;
+        for (const open of this.openByPath.keys()) {
+          if (dirname(open) !== path) continue;
+          const name = baseName(open);
+          if (!names.has(name)) {
+            entries.push({ name, kind: 'file', isSymlink: false });
+            added = true;
+          }
+        }
+        if (failure && !added) throw failure;
+        return entries;
+      },
+      readBytes: (path) => {
+        const text = openText(path);
+        return text !== undefined ? Buffer.from(text, 'utf8') : nodeFs.readBytes(path);
+      },
+      realpath: (path) => nodeFs.realpath(path) ?? (openText(path) !== undefined ? path : undefined),
+    };
+  }
+
+  private roleFromDisk(path: string): FileRole {
+    try {
+      const { project } = this.projectFor(path);
+      const read = readTextFile(this.fs, path, project.limits.maxFileBytes);
+      if (!read.ok) return 'none';
+      return roleOfSetups(readFile(read.text, { path, project }).documents.map((d) => d.setup));
+    } catch {
+      return 'none';
+    }
+  }
+
+  private roleOf = (path: string): FileRole => {
+    const uri = this.openByPath.get(path);
+    const od = uri ? this.docs.get(uri) : undefined;
+    if (od?.cache?.file && od.cache.version === od.doc.version) return roleOfSetups(od.cache.file.documents.map((d) => d.setup));
+    let role = od ? undefined : this.roles.get(path);
+    if (role === undefined) {
+      role = this.roleFromDisk(path);
+      if (!od) this.roles.set(path, role);
+    }
+    return role;
+  };
+
+  /** The diffusion documents of a partner file (open text wins over disk). */
+  private partnerDocuments(path: string): PartnerDocument[] {
+    const { project } = this.projectFor(path);
+    const read = readTextFile(this.fs, path, project.limits.maxFileBytes);
+    if (!read.ok) return [];
+    const cached = this.partnerCache.get(path);
+    if (cached && cached.text === read.text && cached.project === project) return cached.docs;
+    const file = readFile(read.text, { path, project });
+    const docs = file.documents.filter((d) => d.setup.isDiffusionConfig).map((d) => ({ path, setup: d.setup, analysis: d.analysis }));
+    this.partnerCache.set(path, { text: read.text, project, docs });
+    return docs;
+  }
+
+  private pairingFor(path: string, project: ResolvedProject): { partners: PartnerDocument[]; role?: PairRole; paths: string[] } {
+    try {
+      const match = findPartners(path, project, { fs: this.fs, roleOf: this.roleOf });
+      if (!match) return { partners: [], paths: [] };
+      return { partners: match.partners.flatMap((p) => this.partnerDocuments(p)), role: match.role, paths: match.partners };
+    } catch (err) {
+      this.logError('pairing', err);
+      return { partners: [], paths: [] };
+    }
+  }
+
+  /**
+   * `path` changed (edited, saved, created or deleted): re-check the open documents paired with
+   * it, and, when files came or went, the open documents of its folder (auto-pairing may change).
+   */
+  private dependentsChanged(path: string, folderToo: boolean): void {
+    const folder = dirname(path);
+    let any = false;
+    for (const od of this.docs.values()) {
+      if (od.path === null || od.path === path) continue;
+      const paired = od.cache?.partners.includes(path) ?? false;
+      if (paired || (folderToo && dirname(od.path) === folder)) {
+        od.cache = undefined;
+        this.schedule(od, od.debounceMs);
+        any = true;
+      }
+    }
+    if (any && this.caps.pullDiagnostics) this.refreshClient();
+  }
+
+  private watchedFilesChanged(params: DidChangeWatchedFilesParams): void {
+    const changes = Array.isArray(params?.changes) ? params.changes : [];
+    let projectChanged = false;
+    for (const change of changes) {
+      const path = typeof change?.uri === 'string' ? uriToPath(change.uri) : null;
+      if (!path) continue;
+      const name = baseName(path);
+      if (isProjectFileName(name)) {
+        projectChanged = true;
+        continue;
+      }
+      if (!isConfigFileName(name) || this.openByPath.has(path)) continue;
+      this.partnerCache.delete(path);
+      if (change.type === FileChangeType.Deleted) this.roles.delete(path);
+      else this.roles.set(path, this.roleFromDisk(path));
+      this.dependentsChanged(path, change.type !== FileChangeType.Changed);
+    }
+    if (projectChanged) {
+      clearProjectCache(this.fs);
+      this.invalidateAll(true);
+    }
+  }
+
+  // ---------------------------------------------------------------- analysis
+
+  private async analyze(od: OpenDocument): Promise<Analyzed | null> {
+    const settings = await this.settingsFor(od.uri);
+    if (this.docs.get(od.uri) !== od) return null;
+    od.debounceMs = settings.debounceMs;
+    const version = od.doc.version;
+    if (od.cache && od.cache.version === version && od.cache.generation === this.generation) return od.cache;
+    const analyzed = this.compute(od, settings);
+    od.cache = analyzed;
+    if (od.path && analyzed.file) {
+      const role = roleOfSetups(analyzed.file.documents.map((d) => d.setup));
+      const before = this.roles.get(od.path);
+      this.roles.set(od.path, role);
+      // A file that became (or stopped being) a training or sampling file may change the folder's pairs.
+      if (before !== undefined && before !== role) this.dependentsChanged(od.path, true);
+    }
+    return analyzed;
+  }
+
+  private compute(od: OpenDocument, settings: EditorSettings): Analyzed {
+    const text = od.doc.getText();
+    const base = { version: od.doc.version, generation: this.generation, text };
+    const mapper: PositionMapper = od.doc;
+    const empty: Analyzed = { ...base, file: null, shown: [], diagnostics: [], partners: [] };
+    if (!settings.enable) return empty;
+    if (od.path && isProjectFileName(baseName(od.path))) return this.projectFileAnalysis(od, base);
+    const { project: fileProject, problem } = this.projectFor(od.path);
+    const project = mergeSettingsIntoProject(fileProject, settings);
+    if (!this.selected(od.path, project, settings)) return empty;
+    const pairing = od.path ? this.pairingFor(od.path, project) : { partners: [], paths: [] as string[] };
+    const options: AnalyzeOptions = {
+      path: od.path ?? od.uri,
+      format: od.format,
+      project,
+      partners: pairing.partners,
+      pairRole: pairing.role,
+      limits: settings.limits,
+    };
+    let file: FileResult;
+    try {
+      file = analyzeText(text, options);
+    } catch (err) {
+      this.logError('analysis', err);
+      const finding: Finding = {
+        rule: 'internal-error',
+        severity: 'error',
+        message: `noiselint could not check this file: ${errorMessage(err)}`,
+        span: { start: 0, end: 0 },
+        documentIndex: 0,
+        related: [],
+        fixes: [],
+      };
+      return { ...base, file: null, shown: [finding], diagnostics: [this.toDiagnostic(od, finding, settings, base.version)], partners: [] };
+    }
+    if (file.isDiffusionConfig) od.wasConfig = true;
+    const shown = file.isDiffusionConfig || od.wasConfig ? this.visibleFindings(file, problem) : [];
+    return {
+      ...base,
+      file,
+      shown,
+      diagnostics: shown.map((f) => this.toDiagnostic(od, f, settings, base.version, mapper)),
+      partners: pairing.paths,
+    };
+  }
+
+  /** Rule findings plus parse problems the rules did not already report, plus a project-file problem. */
+  private visibleFindings(file: FileResult, projectProblem: string | null): Finding[] {
+    const out = [...file.findings];
+    const covered = new Set(out.map((f) => `${f.rule}@${f.span.start}:${f.span.end}`));
+    for (const p of file.parsed.problems) {
+      const key = `${p.code}@${p.span.start}:${p.span.end}`;
+      if (covered.has(key) || out.some((f) => f.span.start === p.span.start && f.message === p.message)) continue;
+      out.push({ rule: p.code, severity: p.severity, message: p.message, span: p.span, documentIndex: 0, related: [], fixes: [] });
+    }
+    if (projectProblem) {
+      out.push({
+        rule: 'project-file',
+        severity: 'warning',
+        message: `${projectProblem}; checking with the built-in defaults`,
+        span: { start: 0, end: 0 },
+        documentIndex: 0,
+        related: [],
+        fixes: [],
+      });
+    }
+    return out.sort((a, b) => a.span.start - b.span.start || a.span.end - b.span.end);
+  }
+
+  /** A project file shows its own validation problem (if any) and nothing else. */
+  private projectFileAnalysis(od: OpenDocument, base: { version: number; generation: number; text: string }): Analyzed {
+    const { problem } = this.projectFor(od.path);
+    if (!problem) return { ...base, file: null, shown: [], diagnostics: [], partners: [] };
+    const finding: Finding = { rule: 'project-file', severity: 'error', message: problem, span: { start: 0, end: 0 }, documentIndex: 0, related: [], fixes: [] };
+    return { ...base, file: null, shown: [finding], diagnostics: [this.toDiagnostic(od, finding, defaultSettings(), base.version)], partners: [] };
+  }
+
+  private toDiagnostic(od: OpenDocument, finding: Finding, settings: EditorSettings, version: number, mapper: PositionMapper = od.doc): Diagnostic {
+    return findingToDiagnostic(
+      finding,
+      {
+        mapper,
+        version,
+        docsUrl: (rule) => (isRuleId(rule) ? ruleDocsUrl(rule, settings.docsBaseUrl) : null),
+        otherFile: (path) => this.otherFile(path),
+      },
+      od.uri,
+    );
+  }
+
+  private otherFile(path: string): OtherFile | null {
+    const uri = this.openByPath.get(path);
+    const od = uri ? this.docs.get(uri) : undefined;
+    if (od) return { uri: od.uri, mapper: od.doc };
+    const read = readTextFile(this.fs, path);
+    if (!read.ok) return null;
+    let fileUri: string;
+    try {
+      fileUri = pathToFileURL(path).href;
+    } catch {
+      return null;
+    }
+    return { uri: fileUri, mapper: new LineIndex(read.text) };
+  }
+
+  /** The analysis of an open document's current version. */
+  private async current(uri: string): Promise<{ od: OpenDocument; analyzed: Analyzed } | null> {
+    const od = this.docs.get(uri);
+    if (!od) return null;
+    const analyzed = await this.analyze(od);
+    if (!analyzed || this.docs.get(uri) !== od) return null;
+    return { od, analyzed };
+  }
+
+  /** An open document's analysis, or a file on disk read (not kept) for the custom requests. */
+  private async fileFor(uri: string): Promise<{ file: FileResult | null; shown: Finding[]; version: number | null } | null> {
+    const cur = await this.current(uri);
+    if (cur) return { file: cur.analyzed.file, shown: cur.analyzed.shown, version: cur.analyzed.version };
+    const path = uriToPath(uri);
+    if (!path) return null;
+    const settings = await this.settingsFor(uri);
+    const { project: fileProject } = this.projectFor(path);
+    const project = mergeSettingsIntoProject(fileProject, settings);
+    const read = readTextFile(this.fs, path, project.limits.maxFileBytes);
+    if (!read.ok) return null;
+    const pairing = this.pairingFor(path, project);
+    const file = analyzeText(read.text, { path, project, partners: pairing.partners, pairRole: pairing.role, limits: settings.limits });
+    return { file, shown: file.isDiffusionConfig ? this.visibleFindings(file, null) : [], version: null };
+  }
+
+  // ---------------------------------------------------------------- requests
+
+  private async pullDiagnostics(params: DocumentDiagnosticParams, token: CancellationToken): Promise<DocumentDiagnosticReport> {
+    const uri = requireUri(params, true);
+    const od = this.docs.get(uri);
+    if (!od) return { kind: 'full', items: [] };
+    const analyzed = await this.analyze(od);
+    if (token?.isCancellationRequested) {
+      throw new ResponseError(LSPErrorCodes.ServerCancelled, 'cancelled: the document changed', { retriggerRequest: true });
+    }
+    if (!analyzed) return { kind: 'full', items: [] };
+    const resultId = `${analyzed.version}:${analyzed.generation}`;
+    if (params.previousResultId === resultId) return { kind: 'unchanged', resultId };
+    return { kind: 'full', resultId, items: analyzed.diagnostics };
+  }
+
+  private async hover(params: HoverParams): Promise<Hover | null> {
+    const uri = requireUri(params, true);
+    if (!samePosition(params.position)) throw new ResponseError(ErrorCodes.InvalidParams, 'params.position must be a position');
+    const cur = await this.current(uri);
+    if (!cur?.analyzed.file) return null;
+    const offset = cur.od.doc.offsetAt(params.position);
+    const format = this.caps.hoverMarkdown ? 'markdown' : 'plaintext';
+    const hover = hoverAt(cur.analyzed.file, offset, format);
+    if (!hover) return null;
+    return { contents: { kind: format, value: hover.text }, range: spanToRange(cur.od.doc, hover.span) };
+  }
+
+  private async codeActions(params: CodeActionParams): Promise<CodeAction[]> {
+    const uri = requireUri(params, true);
+    const cur = await this.current(uri);
+    if (!cur) return [];
+    const current: CurrentFindings = {
+      uri,
+      version: cur.analyzed.version,
+      text: cur.analyzed.text,
+      mapper: cur.od.doc,
+      findings: cur.analyzed.shown,
+    };
+    const only = Array.isArray(params.context?.only) ? params.context.only : undefined;
+    const actions: CodeAction[] = [];
+    if (kindRequested(only, CodeActionKind.QuickFix)) actions.push(...quickFixes(params, current, this.caps.versionedEdits));
+    if (kindRequested(only, FIX_ALL_KIND)) {
+      const all = fixAllAction(current, this.caps.versionedEdits);
+      if (all) actions.push(all);
+    }
+    return actions;
+  }
+
+  private async inlayHints(params: InlayHintParams): Promise<InlayHint[]> {
+    const uri = requireUri(params, true);
+    const cur = await this.current(uri);
+    if (!cur?.analyzed.file || cur.analyzed.shown === undefined) return [];
+    const doc = cur.od.doc;
+    const range = params.range;
+    const from = range ? doc.offsetAt(range.start) : 0;
+    const to = range ? doc.offsetAt(range.end) : Infinity;
+    return inlineHintsFor(cur.analyzed.file)
+      .filter((h) => h.offset >= from && h.offset <= to)
+      .map((h) => ({ position: doc.positionAt(h.offset), label: h.label, tooltip: h.tooltip, paddingLeft: true }));
+  }
+
+  private async codeLenses(params: CodeLensParams): Promise<CodeLens[]> {
+    const uri = requireUri(params, true);
+    const cur = await this.current(uri);
+    const file = cur?.analyzed.file;
+    if (!cur || !file?.isDiffusionConfig) return [];
+    const first = firstFieldOf(file, SCHEDULE_FIELDS);
+    if (!first) return [];
+    return [
+      {
+        range: spanToRange(cur.od.doc, first.span),
+        command: { title: 'Show noise schedule', command: SHOW_SCHEDULE_COMMAND, arguments: [uri] },
+      },
+    ];
+  }
+
+  private async plotData(params: UriParams) {
+    const uri = requireUri(params, false);
+    const found = await this.fileFor(uri);
+    if (!found?.file) return null;
+    return plotDataFor(found.file, uri, found.version);
+  }
+
+  private async explain(params: UriParams): Promise<{ text: string }> {
+    const uri = requireUri(params, false);
+    const found = await this.fileFor(uri);
+    if (!found) throw new ResponseError(ErrorCodes.InvalidParams, `${uri}: not an open document or a readable file`);
+    if (!found.file) return { text: 'noiselint is turned off for this file (setting noiselint.enable or files.include / files.exclude).\n' };
+    return { text: formatExplainText(found.file) };
+  }
+
+  private async summary(params: UriParams) {
+    const uri = requireUri(params, false);
+    const found = await this.fileFor(uri);
+    return summaryFor(found?.file ? { ...found.file, findings: found.shown } : null, uri);
+  }
+}
+
+const NON_RULE_CODES = new Set(['internal-error', 'project-file']);
+
+/** Rule ids look like `terminal-snr-leak`; parse-problem codes are not rules and have no page. */
+function isRuleId(code: string): boolean {
+  return !NON_RULE_CODES.has(code) && !/^(yaml|json|jsonc)-/.test(code) && !/^too-/.test(code);
+}
+
+function baseName(path: string): string {
+  const i = Math.max(path.lastIndexOf('/'), path.lastIndexOf('\\'));
+  return i >= 0 ? path.slice(i + 1) : path;
+}
+
+function relativePosix(base: string, path: string): string {
+  const root = base.endsWith('/') ? base : `${base}/`;
+  return path.startsWith(root) ? path.slice(root.length) : path;
+}
+
+export function startServer(connection: Connection): NoiselintServer {
+  const server = new NoiselintServer(connection);
+  server.listen();
+  return server;
+}

@@ -1,0 +1,100 @@
+/**
+ * The `noiselint.*` editor settings: defaults, validation of what the client sends (anything
+ * malformed falls back to the default, field by field), and merging over a project file.
+ */
+import { SEVERITIES, type Severity } from '../core/findings';
+import type { ParseLimits } from '../parse/types';
+import type { ResolvedProject, RuleSetting } from '../workspace/types';
+
+export interface EditorSettings {
+  enable: boolean;
+  /** Severity per rule id ('off' disables the rule). Overrides the project file. */
+  rules: Record<string, Severity | 'off'>;
+  /** Rule options per rule id. Overrides the project file. */
+  thresholds: Record<string, Record<string, number | string | boolean>>;
+  files: { include: string[]; exclude: string[] };
+  limits: Partial<ParseLimits>;
+  /** Quiet time after the last edit before a document is checked. */
+  debounceMs: number;
+  /** Base URL of the rule pages (`<base><id>.md`); empty: the bundled docs or the repository. */
+  docsBaseUrl: string;
+}
+
+export const DEFAULT_DEBOUNCE_MS = 150;
+const MAX_DEBOUNCE_MS = 10_000;
+
+export function defaultSettings(): EditorSettings {
+  return { enable: true, rules: {}, thresholds: {}, files: { include: [], exclude: [] }, limits: {}, debounceMs: DEFAULT_DEBOUNCE_MS, docsBaseUrl: '' };
+}
+
+function isRecord(v: unknown): v is Record<string, unknown> {
+  return typeof v === 'object' && v !== null && !Array.isArray(v);
+}
+
+function stringList(v: unknown): string[] {
+  return Array.isArray(v) ? v.filter((x): x is string => typeof x === 'string' && x.length > 0) : [];
+}
+
+const LIMIT_KEYS: (keyof ParseLimits)[] = ['maxFileBytes', 'maxNesting', 'maxListLength', 'maxAliasCount'];
+
+/** Accepts the `noiselint` section as VS Code sends it (nested objects) or with dotted keys. */
+export function normalizeSettings(raw: unknown): EditorSettings {
+  const out = defaultSettings();
+  if (!isRecord(raw)) return out;
+  const get = (dotted: string): unknown => {
+    if (dotted in raw) return raw[dotted];
+    let cur: unknown = raw;
+    for (const part of dotted.split('.')) {
+      if (!isRecord(cur)) return undefined;
+      cur = cur[part];
+    }
+    return cur;
+  };
+  const enable = get('enable');
+  if (typeof enable === 'boolean') out.enable = enable;
+  const rules = get('rules');
+  if (isRecord(rules)) {
+    for (const [id, sev] of Object.entries(rules)) {
+      const value = isRecord(sev) ? sev.severity : sev;
+      if (typeof value === 'string' && (value === 'off' || (SEVERITIES as readonly string[]).includes(value))) {
+        out.rules[id] = value as Severity | 'off';
+      }
+    }
+  }
+  const thresholds = get('thresholds');
+  if (isRecord(thresholds)) {
+    for (const [id, opts] of Object.entries(thresholds)) {
+      if (!isRecord(opts)) continue;
+      const clean: Record<string, number | string | boolean> = {};
+      for (const [name, v] of Object.entries(opts)) {
+        if ((typeof v === 'number' && Number.isFinite(v)) || typeof v === 'string' || typeof v === 'boolean') clean[name] = v;
+      }
+      out.thresholds[id] = clean;
+    }
+  }
+  out.files.include = stringList(get('files.include'));
+  out.files.exclude = stringList(get('files.exclude'));
+  const limits = get('limits');
+  if (isRecord(limits)) {
+    for (const key of LIMIT_KEYS) {
+      const v = limits[key];
+      if (typeof v === 'number' && Number.isInteger(v) && v >= 0) out.limits[key] = v;
+    }
+  }
+  const debounce = get('debounceMs');
+  if (typeof debounce === 'number' && Number.isFinite(debounce) && debounce >= 0) out.debounceMs = Math.min(debounce, MAX_DEBOUNCE_MS);
+  const docs = get('docsBaseUrl');
+  if (typeof docs === 'string') out.docsBaseUrl = docs.trim();
+  return out;
+}
+
+/** The project file's settings with the editor's rule severities, options and limits on top. */
+export function mergeSettingsIntoProject(project: ResolvedProject, settings: EditorSettings): ResolvedProject {
+  const rules: Record<string, RuleSetting> = {};
+  for (const [id, setting] of Object.entries(project.rules)) rules[id] = { ...setting, options: setting.options ? { ...setting.options } : undefined };
+  for (const [id, severity] of Object.entries(settings.rules)) rules[id] = { ...rules[id], severity };
+  for (const [id, options] of Object.entries(settings.thresholds)) {
+    rules[id] = { ...rules[id], options: { ...rules[id]?.options, ...options } };
+  }
+  return { ...project, rules, limits: { ...project.limits, ...settings.limits } };
+}
