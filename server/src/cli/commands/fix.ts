@@ -25,18 +25,17 @@ import {
   unlinkSync,
   writeSync,
 } from 'node:fs';
-import { basename, dirname, join, relative } from 'node:path';
+import { basename, dirname, join } from 'node:path';
 import { createTwoFilesPatch } from 'diff';
-import { analyzeText, readFile, type FileResult } from '../../core/api';
-import type { PartnerDocument } from '../../rules/types';
+import { analyzeText, type FileResult } from '../../core/api';
 import { fixText, type FixLoopResult } from '../../fix/loop';
 import { LineIndex } from '../../parse/lineIndex';
 import { discoverFiles } from '../../workspace/discover';
 import { describeFsError, nodeFs, readTextFile } from '../../workspace/fs';
-import { findPartners } from '../../workspace/pairing';
 import { loadProject, ProjectFileError, type ResolvedProject } from '../../workspace/project';
-import { diskRoleProbe } from '../../workspace/roles';
 import { UsageError, type CliIO } from '../io';
+import { displayPath } from '../output/report';
+import { CheckSession } from './check';
 
 interface FixArgs {
   inputs: string[];
@@ -61,121 +60,95 @@ function parseFixArgs(args: string[]): FixArgs {
 
 export async function runFix(args: string[], io: CliIO): Promise<number> {
   const options = parseFixArgs(args);
-  let cwdProject: ResolvedProject;
-  try {
-    cwdProject = loadProject(io.cwd);
-  } catch (err) {
-    io.stderr(`noiselint fix: ${projectProblem(err)}\n`);
-    return 2;
-  }
-  const found = discoverFiles(options.inputs, io.cwd, cwdProject);
+  const shown = (p: string) => displayPath(io.cwd, p);
+  // The same files `check` looks at.
+  const found = discoverFiles(options.inputs, io.cwd);
   let ioError = found.errors.length > 0;
   for (const e of found.errors) io.stderr(`noiselint fix: ${e}\n`);
+  const projects = new Map<string, ResolvedProject>();
+  try {
+    for (const file of found.files) projects.set(file, loadProject(file));
+  } catch (err) {
+    if (err instanceof ProjectFileError) {
+      io.stderr(`noiselint fix: ${shown(err.file)}: ${err.field ? `${err.field}: ` : ''}${err.detail}\n`);
+      return 2;
+    }
+    throw err;
+  }
   // A dry run keeps stdout for the patch; its summary goes to stderr.
   const report = options.dryRun ? io.stderr : io.stdout;
   let notWritten = false;
   let filesChanged = 0;
   let fixesApplied = 0;
   let unsafeOnly = 0;
-  const roleOf = diskRoleProbe();
+  const session = new CheckSession();
   for (const file of found.files) {
-    const shown = relative(io.cwd, file) || file;
-    let project: ResolvedProject;
-    try {
-      project = loadProject(file);
-    } catch (err) {
-      io.stderr(`${shown}: ${projectProblem(err)}\n`);
-      ioError = true;
-      continue;
-    }
+    const name = shown(file);
+    const project = projects.get(file)!;
     const read = readTextFile(nodeFs, file, project.limits.maxFileBytes);
     if (!read.ok) {
-      io.stderr(`${shown}: ${read.problem}\n`);
+      io.stderr(`${name}: ${read.problem}\n`);
       if (read.kind === 'io') ioError = true;
       continue;
     }
     const original = read.text;
-    const partners = partnersOf(file, project, roleOf);
-    const analyze = (text: string): FileResult =>
-      analyzeText(text, { path: shown, project, partners: partners.documents, pairRole: partners.role });
     let result: FixLoopResult;
     try {
+      const pairing = session.partnersOf(file, project);
+      const analyze = (text: string): FileResult =>
+        analyzeText(text, { path: file, project, partners: pairing.partners, pairRole: pairing.pairRole });
       result = fixText(original, analyze, { unsafe: options.unsafe });
     } catch (err) {
-      io.stderr(`${shown}: not fixed: ${err instanceof Error ? err.message.split('\n')[0] : String(err)}\n`);
+      io.stderr(`${name}: not fixed: internal error: ${err instanceof Error ? err.message.split('\n')[0] : String(err)}\n`);
       notWritten = true;
       continue;
     }
     unsafeOnly += result.unsafeOnly;
     if (result.parseError) {
       const at = new LineIndex(original).positionAt(result.parseError.span.start);
-      io.stderr(`${shown}:${at.line + 1}:${at.character + 1}: not fixed: the file does not parse (${result.parseError.message})\n`);
+      io.stderr(`${name}:${at.line + 1}:${at.character + 1}: not fixed: the file does not parse (${result.parseError.message})\n`);
       notWritten = true;
       continue;
     }
-    if (result.brokeText) io.stderr(`${shown}: some fixes were dropped: they would have broken the file (please report this)\n`);
+    if (result.brokeText) io.stderr(`${name}: some fixes were left out: they would have broken the file\n`);
     if (result.text === original) continue;
     const count = result.applied.length;
     const what = `${count} ${count === 1 ? 'fix' : 'fixes'} (${summariseRules(result)})`;
     if (options.dryRun) {
-      io.stdout(createTwoFilesPatch(`a/${toPosix(shown)}`, `b/${toPosix(shown)}`, original, result.text));
-      report(`${shown}: would apply ${what}\n`);
+      io.stdout(createTwoFilesPatch(`a/${name}`, `b/${name}`, original, result.text));
+      report(`${name}: would apply ${what}\n`);
       filesChanged++;
       fixesApplied += count;
       continue;
     }
     const written = writeAtomically(file, original, result.text);
     if (!written.ok) {
-      io.stderr(`${shown}: not written: ${written.problem} (${what} not applied)\n`);
+      io.stderr(`${name}: not written: ${written.problem}; ${what} not applied\n`);
       notWritten = true;
       continue;
     }
-    report(`${shown}: applied ${what}\n`);
+    report(`${name}: applied ${what}\n`);
     filesChanged++;
     fixesApplied += count;
   }
+  for (const w of session.warnings) io.stderr(`noiselint fix: warning: ${w.split(`${io.cwd}/`).join('')}\n`);
   const verb = options.dryRun ? 'Would apply' : 'Applied';
   const files = `${filesChanged} ${filesChanged === 1 ? 'file' : 'files'}`;
   report(`${verb} ${fixesApplied} ${fixesApplied === 1 ? 'fix' : 'fixes'} in ${files}.\n`);
   if (unsafeOnly > 0) {
     report(
-      `${unsafeOnly} more ${unsafeOnly === 1 ? 'finding has' : 'findings have'} only unsafe fixes (they change what the model learns, ` +
-        'so fine-tuning or retraining is needed, or they touch a comment); run with --unsafe to apply them.\n',
+      `${unsafeOnly} more ${unsafeOnly === 1 ? 'finding has' : 'findings have'} only unsafe fixes (they change what the model ` +
+        'learns, so fine-tuning or retraining is needed, or they touch a comment); run with --unsafe to apply them.\n',
     );
   }
   if (ioError) return 2;
   return notWritten ? 1 : 0;
 }
 
-function projectProblem(err: unknown): string {
-  if (err instanceof ProjectFileError) return err.message.split('\n')[0];
-  return `cannot load the project file: ${err instanceof Error ? err.message.split('\n')[0] : String(err)}`;
-}
-
 function summariseRules(result: FixLoopResult): string {
   const counts = new Map<string, number>();
   for (const a of result.applied) counts.set(a.rule, (counts.get(a.rule) ?? 0) + 1);
   return [...counts].map(([rule, n]) => (n > 1 ? `${rule} x${n}` : rule)).join(', ');
-}
-
-const toPosix = (p: string) => p.split('\\').join('/');
-
-/** Documents of the paired file(s), read from disk, for train-sample-mismatch. */
-function partnersOf(
-  file: string,
-  project: ResolvedProject,
-  roleOf: ReturnType<typeof diskRoleProbe>,
-): { documents: PartnerDocument[]; role?: 'training' | 'sampling' } {
-  const match = findPartners(file, project, { roleOf });
-  if (!match) return { documents: [] };
-  const documents: PartnerDocument[] = [];
-  for (const path of match.partners) {
-    const read = readTextFile(nodeFs, path, project.limits.maxFileBytes);
-    if (!read.ok) continue;
-    const partner = readFile(read.text, { path, project });
-    for (const doc of partner.documents) documents.push({ path, setup: doc.setup, analysis: doc.analysis });
-  }
-  return { documents, role: match.role };
 }
 
 type WriteResult = { ok: true } | { ok: false; problem: string };
