@@ -13,6 +13,7 @@ import {
   sigmaFromAlphaBar,
   snrFromAlphaBar,
   snrFromSigma,
+  SIGMA_DATA_DEFAULT,
   type ScheduleParams,
 } from '@noiselint/shared-math';
 import type { BetaScheduleKind, TimestepSpacing } from '../fields/concepts';
@@ -21,7 +22,7 @@ import { valueOf, type Setup } from '../setup/types';
 export type ScheduleFamily = 'discrete' | 'flow' | 'karras';
 
 /** sigma_data of Karras et al. 2022 (0.5 for images); SNR = sigma_data^2 / sigma^2. */
-export const KARRAS_SIGMA_DATA = 0.5;
+export const KARRAS_SIGMA_DATA = SIGMA_DATA_DEFAULT;
 /** Sampling steps assumed when a file sets a spacing but no step count (common practice). */
 export const ASSUMED_SAMPLE_STEPS = 50;
 /** Points of the continuous curves (flow, Karras) drawn over t. */

@@ -3,7 +3,7 @@ import { parseArgs } from 'node:util';
 import { resolve, relative } from 'node:path';
 import { readFile } from '../../core/api';
 import { explainJson, formatExplainText } from '../explainFormat';
-import { readConfigFile } from '../readInput';
+import { nodeFs, readTextFile } from '../../workspace/fs';
 import { UsageError, type CliIO } from '../io';
 import { loadProject } from '../../workspace/projectFile';
 
@@ -22,13 +22,13 @@ export async function runExplain(args: string[], io: CliIO): Promise<number> {
   for (const input of parsed.positionals) {
     const abs = resolve(io.cwd, input);
     const shown = relative(io.cwd, abs) || input;
-    const read = readConfigFile(abs);
+    const project = loadProject(abs);
+    const read = readTextFile(nodeFs, abs, project.limits.maxFileBytes);
     if (!read.ok) {
-      io.stderr(`noiselint explain: ${read.problem}\n`);
+      io.stderr(`noiselint explain: ${shown}: ${read.problem}\n`);
       failed = true;
       continue;
     }
-    const project = loadProject(abs);
     const file = readFile(read.text, { path: shown, project });
     results.push(file);
     if (format === 'text') io.stdout(formatExplainText(file));
