@@ -1,7 +1,50 @@
+/** `noiselint rules [id]`: the rule list, or one rule's documentation. */
+import { ALL_RULE_METAS, getRuleMeta } from '../../rules';
+import type { RuleMeta } from '../../rules/types';
 import type { CliIO } from '../io';
 
-/** (Being written.) */
-export async function runRulesCommand(_args: string[], io: CliIO): Promise<number> {
-  io.stderr('noiselint rules: not available yet\n');
-  return 2;
+function table(metas: readonly RuleMeta[]): string {
+  const rows = metas.map((m) => [m.id, m.defaultSeverity, fixLabel(m.fixable), m.summary]);
+  const head = ['rule', 'default', 'fix', 'what it finds'];
+  const widths = [0, 1, 2].map((i) => Math.max(head[i].length, ...rows.map((r) => r[i].length)));
+  const line = (r: string[]) => `${r.slice(0, 3).map((c, i) => c.padEnd(widths[i])).join('  ')}  ${r[3]}`.trimEnd();
+  return [line(head), ...rows.map(line)].join('\n') + '\n';
+}
+
+function fixLabel(fixable: RuleMeta['fixable']): string {
+  return fixable === 'always' ? 'yes' : fixable === 'sometimes' ? 'some' : 'no';
+}
+
+/** One rule's page: a short header and its documentation. */
+export function ruleText(meta: RuleMeta): string {
+  const header = `${meta.id}: ${meta.summary}\ndefault severity: ${meta.defaultSeverity}; fix: ${fixLabel(meta.fixable)}\n`;
+  return `${header}${meta.docs.replace(/^\n+/, '\n').trimEnd()}\n`;
+}
+
+export async function runRulesCommand(args: string[], io: CliIO): Promise<number> {
+  const positional = args.filter((a) => !a.startsWith('-'));
+  const flags = args.filter((a) => a.startsWith('-'));
+  if (flags.some((f) => f === '--help' || f === '-h')) {
+    io.stdout('Usage: noiselint rules [id]\n');
+    return 0;
+  }
+  if (flags.length > 0) {
+    io.stderr(`noiselint rules: unknown option "${flags[0]}" (usage: noiselint rules [id])\n`);
+    return 2;
+  }
+  if (positional.length > 1) {
+    io.stderr('noiselint rules: give at most one rule id (usage: noiselint rules [id])\n');
+    return 2;
+  }
+  if (positional.length === 0) {
+    io.stdout(table(ALL_RULE_METAS));
+    return 0;
+  }
+  const meta = getRuleMeta(positional[0]);
+  if (!meta) {
+    io.stderr(`noiselint rules: unknown rule "${positional[0]}" (run \`noiselint rules\` for the list)\n`);
+    return 2;
+  }
+  io.stdout(ruleText(meta));
+  return 0;
 }

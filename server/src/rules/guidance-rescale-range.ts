@@ -1,0 +1,102 @@
+import { fmt } from './format';
+import type { ConceptFix, Rule, RuleMeta } from './types';
+import { numberOption } from './util';
+
+const docs = `
+## What it finds
+
+A guidance rescale factor phi outside [0, 1] (error), or exactly 1 (information).
+
+## Why it matters
+
+Guidance rescale blends two predictions: x_out = phi * x_rescaled + (1 - phi) * x_cfg. phi is a
+mixing weight: below 0 or above 1 the blend extrapolates past both predictions and the output's
+contrast is no longer controlled. At phi = 1 the output takes the standard deviation of the
+conditional prediction exactly; Lin et al. 2023 report that this fully rescaled output looks
+flat and plain, and use 0.7 instead.
+
+## Example
+
+\`\`\`yaml
+# Lanternfish Pictures: night storyboard sampler
+num_inference_steps: 30
+guidance_scale: 7.5
+guidance_rescale: 1.4
+\`\`\`
+
+## Use instead
+
+\`\`\`yaml
+num_inference_steps: 30
+guidance_scale: 7.5
+guidance_rescale: 0.7
+\`\`\`
+
+## Fix safety
+
+Safe. Both fixes (set \`suggestedRescale\`, preferred; or clamp into [0, 1]) only change
+inference.
+
+## Options
+
+- \`suggestedRescale\` (default 0.7): the value the preferred fix writes.
+
+## References
+
+- Lin, Liu, Li and Yang 2023, "Common Diffusion Noise Schedules and Sample Steps are Flawed"
+  (section 3.4, equations 13 to 16, and the choice phi = 0.7).
+`;
+
+const meta: RuleMeta = {
+  id: 'guidance-rescale-range',
+  summary: 'Guidance rescale outside [0, 1], or exactly 1.',
+  defaultSeverity: 'error',
+  fixable: 'always',
+  options: {
+    suggestedRescale: { default: 0.7, description: 'Guidance rescale the preferred fix writes.' },
+  },
+  docs,
+};
+
+export const guidanceRescaleRange: Rule = {
+  meta,
+  check(ctx) {
+    const field = ctx.setup.fields.guidanceRescale;
+    if (!field || field.assumed || !Number.isFinite(field.value)) return [];
+    const phi = field.value;
+    const suggested = numberOption(ctx, 'suggestedRescale', 0.7);
+    const setSuggested: ConceptFix = {
+      title: `Set guidance rescale to ${fmt(suggested)} (sampling only)`,
+      safety: 'safe',
+      preferred: true,
+      edits: [{ kind: 'set', concept: 'guidanceRescale', value: suggested }],
+    };
+    if (phi === 1) {
+      return [
+        {
+          message: `guidance rescale is 1: the output fully takes the conditional prediction's standard deviation and tends to look flat; ${fmt(suggested)} is the usual blend`,
+          at: 'guidanceRescale',
+          severity: 'info',
+          fixes: [setSuggested],
+        },
+      ];
+    }
+    if (phi >= 0 && phi <= 1) return [];
+    const clamped = phi < 0 ? 0 : 1;
+    return [
+      {
+        message: `guidance rescale ${fmt(phi)} is outside [0, 1]: it is a blend weight, so the output extrapolates past both the guided and the rescaled prediction`,
+        at: 'guidanceRescale',
+        severity: 'error',
+        fixes: [
+          setSuggested,
+          {
+            title: `Clamp guidance rescale to ${clamped} (sampling only)`,
+            safety: 'safe',
+            edits: [{ kind: 'set', concept: 'guidanceRescale', value: clamped }],
+          },
+        ],
+      },
+    ];
+  },
+};

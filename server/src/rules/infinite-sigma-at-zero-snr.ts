@@ -1,0 +1,101 @@
+import { ZERO_SNR_ALPHA_BAR_CLAMP, sigmaFromAlphaBar } from '@noiselint/shared-math';
+import { fmt } from './format';
+import type { Rule, RuleMeta } from './types';
+import { discreteSchedule, isSet } from './util';
+
+const docs = `
+## What it finds
+
+A sigma-space sampler (Euler, Euler ancestral, Heun, DPM-Solver, LMS) or Karras sigma spacing on
+a discrete schedule that reaches zero SNR: the first sigma is infinite.
+
+## Why it matters
+
+These samplers step in sigma = sqrt((1 - abar) / abar), the noise-to-signal ratio. At the last
+step of a zero-terminal-SNR schedule abar = 0, so sigma is infinite and the first step divides
+infinity by infinity. Common practice clamps abar there to 2^-24, which gives sigma about 4096,
+and computes that first step in float32 (in half precision such a sigma and its square
+overflow). Karras et al. 2022 spacing interpolates between sigma_min and sigma_max, which is
+undefined when sigma_max is infinite. Check that the sampling code does the clamp; without it the
+first step produces NaN or a black image.
+
+## Example
+
+\`\`\`yaml
+# Lanternfish Pictures: zero-SNR model with an Euler sampler
+scheduler:
+  num_train_timesteps: 1000
+  beta_schedule: scaled_linear
+  beta_start: 0.00085
+  beta_end: 0.012
+  rescale_betas_zero_snr: true
+  prediction_type: v_prediction
+  timestep_spacing: trailing
+sampler: euler
+num_inference_steps: 30
+\`\`\`
+
+## Use instead
+
+\`\`\`yaml
+scheduler:
+  num_train_timesteps: 1000
+  beta_schedule: scaled_linear
+  beta_start: 0.00085
+  beta_end: 0.012
+  rescale_betas_zero_snr: true
+  prediction_type: v_prediction
+  timestep_spacing: trailing
+sampler: ddim
+num_inference_steps: 30
+\`\`\`
+
+(or keep the sigma-space sampler in code that clamps abar at the last step and runs it in float32).
+
+## Fix safety
+
+No fix: whether the sampling code clamps is not visible in the configuration.
+
+## Options
+
+None.
+
+## References
+
+- Karras, Aittala, Aila and Laine 2022, "Elucidating the Design Space of Diffusion-Based
+  Generative Models" (sigma-space sampling and the sigma spacing).
+- Lin, Liu, Li and Yang 2023, "Common Diffusion Noise Schedules and Sample Steps are Flawed"
+  (zero terminal SNR).
+`;
+
+const meta: RuleMeta = {
+  id: 'infinite-sigma-at-zero-snr',
+  summary: 'A sigma-space sampler or Karras sigmas on a zero-SNR schedule: the first sigma is infinite.',
+  defaultSeverity: 'warning',
+  fixable: 'never',
+  options: {},
+  docs,
+};
+
+export const infiniteSigmaAtZeroSnr: Rule = {
+  meta,
+  check(ctx) {
+    const { setup, analysis } = ctx;
+    const schedule = discreteSchedule(analysis);
+    const sigmas = analysis.sigmas;
+    if (!schedule || !sigmas || !(schedule.reachesZeroSnr || sigmas.sigmaMax === Infinity)) return [];
+    const clampedSigma = sigmaFromAlphaBar(ZERO_SNR_ALPHA_BAR_CLAMP);
+    const karras = setup.fields.karrasSigmas?.value === true;
+    const sampler = setup.fields.sampler?.value;
+    const who = sampler ? `the ${sampler} sampler` : 'the sampler';
+    return [
+      {
+        message:
+          `${who}${karras ? ' with Karras sigmas' : ''} steps in sigma = sqrt((1 - abar) / abar), which is infinite at step ${schedule.trainSteps - 1} ` +
+          `of this zero-SNR schedule: the sampling code must clamp abar there to 2^-24 (sigma ${fmt(clampedSigma)}) and take that step in float32` +
+          (karras ? '; Karras spacing between sigma_min and an infinite sigma_max is undefined' : ''),
+        at: karras && isSet(setup, 'karrasSigmas') && !isSet(setup, 'sampler') ? 'karrasSigmas' : 'sampler',
+      },
+    ];
+  },
+};

@@ -1,0 +1,93 @@
+import type { Rule, RuleMeta } from './types';
+import { assumedNote } from './util';
+
+const docs = `
+## What it finds
+
+Sample clipping or dynamic thresholding turned on for a model that denoises latents rather than
+pixels. Whether a model is latent comes from the file (a latent-space setting or latent-model
+fields) or from the project file's \`latentSpace\` default; the message says when it is assumed.
+
+## Why it matters
+
+Clipping the predicted clean sample to [-1, 1], and dynamic thresholding (Saharia et al. 2022),
+assume pixel values in a known, bounded range. Latents are not bounded that way: their scale
+depends on the autoencoder and its scaling factor, and values beyond 1 carry real content.
+Clipping them flattens highlights and shadows, the very detail that dark night scenes and white
+product backgrounds need.
+
+## Example
+
+\`\`\`yaml
+# Lanternfish Pictures: latent storyboard model
+latent_space: true
+scheduler:
+  num_train_timesteps: 1000
+  beta_schedule: scaled_linear
+  beta_start: 0.00085
+  beta_end: 0.012
+  clip_sample: true
+\`\`\`
+
+## Use instead
+
+\`\`\`yaml
+latent_space: true
+scheduler:
+  num_train_timesteps: 1000
+  beta_schedule: scaled_linear
+  beta_start: 0.00085
+  beta_end: 0.012
+  clip_sample: false
+\`\`\`
+
+## Fix safety
+
+Safe. The fix turns clipping off; it changes only sampling.
+
+## Options
+
+None.
+
+## References
+
+- Saharia et al. 2022, "Photorealistic Text-to-Image Diffusion Models with Deep Language
+  Understanding" (dynamic thresholding, for pixel-space models).
+- Rombach, Blattmann, Lorenz, Esser and Ommer 2022, "High-Resolution Image Synthesis with Latent
+  Diffusion Models" (latents and their scaling).
+`;
+
+const meta: RuleMeta = {
+  id: 'latent-thresholding',
+  summary: 'Sample clipping or dynamic thresholding on a latent-space model.',
+  defaultSeverity: 'warning',
+  fixable: 'always',
+  options: {},
+  docs,
+};
+
+export const latentThresholding: Rule = {
+  meta,
+  check(ctx) {
+    const { setup } = ctx;
+    const thresholding = setup.fields.thresholding;
+    if (!thresholding || thresholding.assumed || thresholding.value !== true) return [];
+    if (setup.fields.latentSpace?.value !== true) return [];
+    return [
+      {
+        message:
+          'sample clipping / thresholding is on, but the model denoises latents: latents are not bounded to [-1, 1], ' +
+          'so clipping cuts off real content (deep shadows, bright highlights)' +
+          assumedNote(setup, ['latentSpace']),
+        at: 'thresholding',
+        fixes: [
+          {
+            title: 'Turn sample clipping / thresholding off (sampling only)',
+            safety: 'safe',
+            edits: [{ kind: 'set', concept: 'thresholding', value: false }],
+          },
+        ],
+      },
+    ];
+  },
+};

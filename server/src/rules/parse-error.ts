@@ -1,0 +1,59 @@
+import type { RuleMeta } from './types';
+
+export const PARSE_ERROR_ID = 'parse-error';
+
+const docs = `
+## What it finds
+
+Text that cannot be read as YAML, JSON or JSON with comments, in a file that looks like a
+diffusion config (a document is recognised as one, or the text names a key such as
+\`beta_schedule\` or \`num_train_timesteps\`). Syntax errors are errors; readable oddities
+(a comment in a \`.json\` file, a duplicated key, a custom tag) are warnings. Other YAML and
+JSON files in a workspace are never reported.
+
+## Why it matters
+
+A config that does not parse stops the run before it starts, or, worse, a lenient loader reads
+something other than what was written (the later of two duplicated keys wins without a word).
+Nothing else can be checked in text that cannot be read.
+
+## Example
+
+\`\`\`yaml
+# Lanternfish Pictures: half-edited training file
+noise_scheduler:
+  num_train_timesteps: 1000
+  beta_schedule: [scaled_linear
+  beta_start: 0.00085
+\`\`\`
+
+## Use instead
+
+\`\`\`yaml
+noise_scheduler:
+  num_train_timesteps: 1000
+  beta_schedule: scaled_linear
+  beta_start: 0.00085
+\`\`\`
+
+## Fix safety
+
+No fix.
+
+## Options
+
+None. Limits on file size, nesting and list length are project settings (\`limits\`).
+
+## References
+
+- YAML 1.2.2 specification; RFC 8259 (JSON).
+`;
+
+export const PARSE_ERROR_META: RuleMeta = {
+  id: PARSE_ERROR_ID,
+  summary: 'Text that cannot be read as YAML / JSON, in a file that looks like a diffusion config.',
+  defaultSeverity: 'error',
+  fixable: 'never',
+  options: {},
+  docs,
+};

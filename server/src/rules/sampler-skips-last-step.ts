@@ -1,0 +1,104 @@
+import { fmt, fmtList } from './format';
+import type { Rule, RuleMeta } from './types';
+import { assumedNote, discreteSchedule, isSet, trailingFix } from './util';
+
+const docs = `
+## What it finds
+
+A sampler whose first (noisiest) timestep is not the last training step T - 1. The message
+says which step it starts from and the SNR there. It is a warning, and an error when the
+schedule reaches zero SNR (then the skipped step is the only one that is pure noise).
+
+## Why it matters
+
+Sampling starts from pure Gaussian noise, so its first step should be the training step that
+is closest to pure noise: T - 1. The "leading" spacing with T = 1000 and 10 steps starts at
+step 901 (with offset 1), where the training data still held a visible amount of image. The
+model is asked to denoise an input it never saw at that step, which costs contrast and
+brightness range. The "trailing" spacing starts exactly at T - 1 and spreads the other steps
+evenly; "linspace" also starts there.
+
+## Example
+
+\`\`\`yaml
+# Lanternfish Pictures: storyboard preview sampler
+scheduler:
+  num_train_timesteps: 1000
+  beta_schedule: scaled_linear
+  beta_start: 0.00085
+  beta_end: 0.012
+  timestep_spacing: leading
+  steps_offset: 1
+num_inference_steps: 10
+\`\`\`
+
+## Use instead
+
+\`\`\`yaml
+scheduler:
+  num_train_timesteps: 1000
+  beta_schedule: scaled_linear
+  beta_start: 0.00085
+  beta_end: 0.012
+  timestep_spacing: trailing
+  steps_offset: 1
+num_inference_steps: 10
+\`\`\`
+
+## Fix safety
+
+Safe. The fix sets the spacing to trailing, which changes only how sampling picks its steps;
+nothing the model learned changes. If a steps offset would push a trailing timestep outside
+0..T - 1, the fix also sets the offset to 0.
+
+## Options
+
+None.
+
+## References
+
+- Lin, Liu, Li and Yang 2023, "Common Diffusion Noise Schedules and Sample Steps are Flawed"
+  (section 3.3 and Table 2: leading, linspace and trailing spacings).
+`;
+
+const meta: RuleMeta = {
+  id: 'sampler-skips-last-step',
+  summary: 'The first sampling timestep is not the last training step T - 1.',
+  defaultSeverity: 'warning',
+  fixable: 'always',
+  options: {},
+  docs,
+};
+
+export const samplerSkipsLastStep: Rule = {
+  meta,
+  check(ctx) {
+    const { setup, analysis } = ctx;
+    const schedule = discreteSchedule(analysis);
+    const sampling = analysis.sampling;
+    if (!schedule || !sampling || sampling.startsAtLastStep) return [];
+    const T = schedule.trainSteps;
+    const first = sampling.firstTimestep;
+    // Outside 0..T-1 is timestep-out-of-range's finding.
+    if (!Number.isInteger(first) || first < 0 || first > T - 1) return [];
+    const zeroSnr = schedule.reachesZeroSnr;
+    const stepsNote = sampling.stepsAssumed ? ` (assumed: sampleSteps = ${sampling.steps})` : '';
+    const snrThere = `SNR ${fmt(sampling.snrAtFirst)}, signal amplitude ${fmt(sampling.signalAtFirst)}`;
+    const consequence = zeroSnr
+      ? `the schedule reaches zero SNR only at ${T - 1}, so the sampler never takes the one step trained on pure noise`
+      : `sampling starts from pure noise at a step that still held signal in training`;
+    const fix = trailingFix(setup, schedule, sampling);
+    return [
+      {
+        message:
+          `first sampling step is ${first} of 0..${T - 1} (${snrThere}), not the last training step ${T - 1}: ` +
+          `${sampling.spacing} spacing with ${sampling.steps} steps visits ${fmtList(sampling.timesteps)}; ${consequence}` +
+          stepsNote +
+          assumedNote(setup, ['timestepSpacing', 'stepsOffset']),
+        at: isSet(setup, 'timestepSpacing') || !isSet(setup, 'sampleSteps') ? 'timestepSpacing' : 'sampleSteps',
+        severity: zeroSnr ? 'error' : 'warning',
+        fixes: fix ? [fix] : [],
+      },
+    ];
+  },
+};

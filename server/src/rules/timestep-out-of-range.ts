@@ -1,0 +1,108 @@
+import { samplingTimesteps } from '@noiselint/shared-math';
+import { fmt, fmtList } from './format';
+import type { ConceptFix, Rule, RuleMeta } from './types';
+import { assumedNote, discreteSchedule, isSet, trailingFix } from './util';
+
+const docs = `
+## What it finds
+
+A sampling timestep outside 0..T - 1. Typical causes: leading spacing with a steps offset of 1
+and N = T steps gives timestep T; trailing spacing with more steps than training steps gives -1.
+
+## Why it matters
+
+The sampler looks up abar at each timestep. Outside 0..T - 1 there is no such entry: depending on
+the code this crashes, wraps around to the other end of the schedule (index -1 is the last,
+noisiest step), or reads past the array. None of these samples what was intended.
+
+## Example
+
+\`\`\`yaml
+# Lanternfish Pictures: full-length reference render
+scheduler:
+  num_train_timesteps: 1000
+  beta_schedule: scaled_linear
+  beta_start: 0.00085
+  beta_end: 0.012
+  timestep_spacing: leading
+  steps_offset: 1
+num_inference_steps: 1000
+\`\`\`
+
+## Use instead
+
+\`\`\`yaml
+scheduler:
+  num_train_timesteps: 1000
+  beta_schedule: scaled_linear
+  beta_start: 0.00085
+  beta_end: 0.012
+  timestep_spacing: leading
+  steps_offset: 0
+num_inference_steps: 1000
+\`\`\`
+
+## Fix safety
+
+Safe. The fixes set the steps offset to 0, or the spacing to trailing, or (with more sampling
+steps than training steps) the step count to T; all of them change only sampling.
+
+## Options
+
+None.
+
+## References
+
+- Lin, Liu, Li and Yang 2023, "Common Diffusion Noise Schedules and Sample Steps are Flawed"
+  (Table 2: the three spacings in code).
+`;
+
+const meta: RuleMeta = {
+  id: 'timestep-out-of-range',
+  summary: 'A sampling timestep falls outside 0..T - 1.',
+  defaultSeverity: 'error',
+  fixable: 'sometimes',
+  options: {},
+  docs,
+};
+
+export const timestepOutOfRange: Rule = {
+  meta,
+  check(ctx) {
+    const { setup, analysis } = ctx;
+    const schedule = discreteSchedule(analysis);
+    const sampling = analysis.sampling;
+    if (!schedule || !sampling || sampling.outOfRange.length === 0) return [];
+    const T = schedule.trainSteps;
+    const N = sampling.steps;
+    const inRange = (ts: number[]) => ts.every((t) => t >= 0 && t <= T - 1);
+    const fixes: ConceptFix[] = [];
+    if (sampling.stepsOffset !== 0 && isSet(setup, 'stepsOffset')) {
+      const zero = samplingTimesteps(sampling.spacing as 'leading', T, N, 0);
+      if (zero.ok && inRange(zero.value)) {
+        fixes.push({ title: 'Set the steps offset to 0 (sampling only)', safety: 'safe', edits: [{ kind: 'set', concept: 'stepsOffset', value: 0 }] });
+      }
+    }
+    if (sampling.spacing !== 'trailing') {
+      const trailing = trailingFix(setup, schedule, sampling);
+      if (trailing) fixes.push(trailing);
+    }
+    if (fixes.length === 0 && N > T && isSet(setup, 'sampleSteps')) {
+      fixes.push({ title: `Set the number of sampling steps to ${T} (sampling only)`, safety: 'safe', edits: [{ kind: 'set', concept: 'sampleSteps', value: T }] });
+    }
+    const outside = Array.from(new Set(sampling.outOfRange));
+    const offsetText = sampling.stepsOffset !== 0 ? ` and steps offset ${sampling.stepsOffset}` : '';
+    const stepsNote = sampling.stepsAssumed ? ` (assumed: sampleSteps = ${N})` : '';
+    return [
+      {
+        message:
+          `${sampling.spacing} spacing with ${N} steps${offsetText} gives timestep${outside.length === 1 ? '' : 's'} ${fmtList(outside)}, ` +
+          `outside 0..${T - 1}: the sampler would index past the schedule (a crash, or a wrap to the wrong end)` +
+          stepsNote +
+          assumedNote(setup, ['timestepSpacing', 'trainSteps']),
+        at: sampling.stepsOffset !== 0 && isSet(setup, 'stepsOffset') ? 'stepsOffset' : isSet(setup, 'timestepSpacing') ? 'timestepSpacing' : 'sampleSteps',
+        fixes,
+      },
+    ];
+  },
+};

@@ -1,0 +1,161 @@
+import type { Concept, ConceptValues } from '../fields/concepts';
+import type { Setup } from '../setup/types';
+import type { ConceptEdit, PartnerDocument, Rule, RuleFinding, RuleMeta } from './types';
+import { isSet, setsGroup, showValue, sourceOf } from './util';
+
+const docs = `
+## What it finds
+
+A sampling file that disagrees with its paired training file on something the model was
+trained with: the beta schedule, the number of training steps T, beta start or end, an explicit
+beta list, the zero-terminal-SNR rescale, or the prediction target. Pairs come from the project
+file (\`pairs\`) or from automatic pairing of a training and a sampling file in one folder.
+The finding sits in the sampling file and points at the training file's field. A sampling file
+that sets no schedule field at all is taken to inherit the schedule and is not compared.
+
+## Why it matters
+
+A sampler reconstructs images with the schedule and target it is told, not the ones the model
+learned. A model trained with the zero-terminal-SNR rescale but sampled without it starts from a
+step it never saw as pure noise; a v-prediction model sampled as epsilon produces garbage. These
+mistakes produce no error, only worse images.
+
+## Example
+
+\`\`\`yaml partner
+# training file (paired)
+noise_scheduler:
+  num_train_timesteps: 1000
+  beta_schedule: scaled_linear
+  beta_start: 0.00085
+  beta_end: 0.012
+  rescale_betas_zero_snr: true
+  prediction_type: v_prediction
+\`\`\`
+
+\`\`\`yaml
+# Lanternfish Pictures: sampling file for the model above
+scheduler:
+  num_train_timesteps: 1000
+  beta_schedule: scaled_linear
+  beta_start: 0.00085
+  beta_end: 0.012
+  prediction_type: v_prediction
+  timestep_spacing: trailing
+num_inference_steps: 30
+\`\`\`
+
+## Use instead
+
+\`\`\`yaml
+scheduler:
+  num_train_timesteps: 1000
+  beta_schedule: scaled_linear
+  beta_start: 0.00085
+  beta_end: 0.012
+  rescale_betas_zero_snr: true
+  prediction_type: v_prediction
+  timestep_spacing: trailing
+num_inference_steps: 30
+\`\`\`
+
+## Fix safety
+
+Safe. The fix changes only the sampling file, setting its value to the training file's. The
+training file is never edited from here: what the model learned is the reference.
+
+## Options
+
+None.
+
+## References
+
+- Lin, Liu, Li and Yang 2023, "Common Diffusion Noise Schedules and Sample Steps are Flawed"
+  (sampling must use the rescaled schedule the model was trained with).
+- Salimans and Ho 2022, "Progressive Distillation for Fast Sampling of Diffusion Models"
+  (converting between epsilon and v needs the same abar on both sides).
+`;
+
+const meta: RuleMeta = {
+  id: 'train-sample-mismatch',
+  summary: 'Paired training and sampling files disagree on the schedule, T, betas, zero SNR or target.',
+  defaultSeverity: 'error',
+  fixable: 'always',
+  options: {},
+  docs,
+};
+
+const COMPARED: readonly Concept[] = ['betaSchedule', 'trainSteps', 'betaStart', 'betaEnd', 'betas', 'zeroTerminalSnr', 'predictionTarget'];
+
+const LABEL: Partial<Record<Concept, string>> = {
+  betaSchedule: 'beta schedule',
+  trainSteps: 'number of training steps',
+  betaStart: 'betaStart',
+  betaEnd: 'betaEnd',
+  betas: 'explicit beta list',
+  zeroTerminalSnr: 'zero-terminal-SNR rescale',
+  predictionTarget: 'prediction target',
+};
+
+function close(a: number, b: number): boolean {
+  return a === b || Math.abs(a - b) <= 1e-9 * Math.max(Math.abs(a), Math.abs(b));
+}
+
+function same(a: ConceptValues[Concept], b: ConceptValues[Concept]): boolean {
+  if (typeof a === 'number' && typeof b === 'number') return close(a, b);
+  if (Array.isArray(a) && Array.isArray(b)) return a.length === b.length && a.every((x, i) => close(x, b[i]));
+  return a === b;
+}
+
+function usesExplicitBetas(setup: Setup): boolean {
+  return isSet(setup, 'betas');
+}
+
+/** Concepts worth comparing between the two setups. */
+function comparable(concept: Concept, sampling: Setup, training: Setup): boolean {
+  const explicitS = usesExplicitBetas(sampling);
+  const explicitT = usesExplicitBetas(training);
+  if (concept === 'betas') return explicitS || explicitT;
+  if (concept === 'betaSchedule' || concept === 'betaStart' || concept === 'betaEnd') {
+    if (explicitS || explicitT) return false;
+    if (concept !== 'betaSchedule' && (sampling.fields.betaSchedule?.value === 'cosine' || training.fields.betaSchedule?.value === 'cosine')) return false;
+  }
+  return true;
+}
+
+function trainingPartner(partners: PartnerDocument[]): PartnerDocument | null {
+  return partners.find((p) => p.setup.isDiffusionConfig && p.setup.role !== 'sampling') ?? partners.find((p) => p.setup.isDiffusionConfig) ?? null;
+}
+
+export const trainSampleMismatch: Rule = {
+  meta,
+  check(ctx) {
+    const { setup } = ctx;
+    if (ctx.pairRole === 'training' || (ctx.pairRole === undefined && setup.role === 'training')) return [];
+    const partner = trainingPartner(ctx.partners);
+    // A sampling file with no schedule of its own inherits the training one.
+    if (!partner || !setsGroup(setup, 'schedule')) return [];
+    const training = partner.setup;
+    const out: RuleFinding[] = [];
+    for (const concept of COMPARED) {
+      if (!comparable(concept, setup, training)) continue;
+      const mine = setup.fields[concept];
+      const theirs = training.fields[concept];
+      if (!mine || !theirs) continue;
+      if (mine.assumed && theirs.assumed) continue;
+      if (same(mine.value, theirs.value)) continue;
+      const label = LABEL[concept] ?? concept;
+      const mineText = `${showValue(mine.value)}${mine.assumed ? ' (assumed: the sampling file sets none)' : ''}`;
+      const theirsText = `${showValue(theirs.value)}${theirs.assumed ? ' (assumed: the training file sets none)' : ''}`;
+      const theirSource = sourceOf(training, concept);
+      const edit: ConceptEdit = { kind: 'set', concept, value: theirs.value } as ConceptEdit;
+      out.push({
+        message: `the sampling file's ${label} is ${mineText} but the training file ${partner.path} uses ${theirsText}: the sampler must use what the model was trained with`,
+        at: concept,
+        related: theirSource ? [{ source: theirSource, path: partner.path, message: `the training file sets ${label} ${showValue(theirs.value)} here` }] : [],
+        fixes: [{ title: `Set the sampling file's ${label} to ${showValue(theirs.value)}, as in training (sampling only)`, safety: 'safe', edits: [edit] }],
+      });
+    }
+    return out;
+  },
+};
