@@ -12,7 +12,8 @@ import { runInNewContext } from 'node:vm';
 import type { FileResult } from '../../server/src/core/api';
 import type { LocatedNode } from '../../server/src/parse/types';
 
-export const REPO = fileURLToPath(new URL('../..', import.meta.url)).replace(/\/$/, '');
+/** The repository root (NOISELINT_REPO overrides it for bundled copies of these helpers). */
+export const REPO = process.env.NOISELINT_REPO ?? fileURLToPath(new URL('../..', import.meta.url)).replace(/\/$/, '');
 export const CLI = join(REPO, 'server/dist/noiselint.js');
 
 // ------------------------------------------------------------------ memory

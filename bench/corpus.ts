@@ -1,0 +1,152 @@
+/**
+ * A deterministic corpus of diffusion configs for the benchmarks (invented Lanternfish Pictures
+ * runs): training and sampling files in YAML (60%), JSON (30%) and JSONC (10%), 25 to 90 lines,
+ * nested the way real training configs are, in folders of 20 (so automatic pairing applies).
+ */
+import { mkdirSync, rmSync, writeFileSync } from 'node:fs';
+import { join } from 'node:path';
+
+const SCHEDULES = [
+  { beta_schedule: 'scaled_linear', beta_start: 0.00085, beta_end: 0.012 },
+  { beta_schedule: 'linear', beta_start: 0.0001, beta_end: 0.02 },
+  { beta_schedule: 'squaredcos_cap_v2' },
+  { beta_schedule: 'sigmoid', beta_start: 0.0001, beta_end: 0.02 },
+];
+const TARGETS = ['epsilon', 'v_prediction', 'sample'];
+const SPACINGS = ['leading', 'linspace', 'trailing'];
+const SAMPLERS = ['ddim', 'euler', 'dpm-solver-multistep', 'heun', 'unipc', 'ddpm'];
+const SUBJECTS = ['harbour-night', 'lantern-market', 'white-sneaker', 'glass-vase', 'moonlit-pier', 'studio-chair'];
+
+/** A small LCG so the corpus is the same on every machine. */
+function rng(seed: number): () => number {
+  let x = seed >>> 0;
+  return () => {
+    x = (Math.imul(x, 1664525) + 1013904223) >>> 0;
+    return x / 0x100000000;
+  };
+}
+
+type Json = string | number | boolean | null | Json[] | { [k: string]: Json };
+
+function pick<T>(r: () => number, xs: readonly T[]): T {
+  return xs[Math.floor(r() * xs.length)];
+}
+
+export function trainingConfig(i: number): Record<string, Json> {
+  const r = rng(i * 7919 + 1);
+  const schedule = pick(r, SCHEDULES);
+  const subject = pick(r, SUBJECTS);
+  const cfg: Record<string, Json> = {
+    run: `lanternfish-${subject}-${i}`,
+    model: {
+      base: `lanternfish-latent-${1 + (i % 3)}`,
+      resolution: pick(r, [512, 768, 1024, 2048]),
+      channels: pick(r, [4, 8, 16]),
+      attention_heads: pick(r, [8, 16]),
+      dropout: Math.round(r() * 10) / 100,
+    },
+    noise_scheduler: {
+      num_train_timesteps: 1000,
+      ...schedule,
+      prediction_type: pick(r, TARGETS),
+      rescale_betas_zero_snr: r() < 0.4,
+      clip_sample: r() < 0.2,
+    },
+    training: {
+      learning_rate: pick(r, [1e-5, 2e-5, 5e-6]),
+      batch_size: pick(r, [8, 16, 32, 64]),
+      max_steps: pick(r, [20000, 50000, 120000]),
+      mixed_precision: pick(r, ['fp16', 'bf16']),
+      gradient_checkpointing: r() < 0.5,
+      ema_decay: 0.9999,
+    },
+    data: {
+      root: `/data/lanternfish/${subject}`,
+      captions: `/data/lanternfish/${subject}/captions.jsonl`,
+      center_crop: r() < 0.5,
+      random_flip: r() < 0.5,
+      buckets: [512, 640, 768, 896, 1024].slice(0, 2 + Math.floor(r() * 4)),
+    },
+    logging: { every: 100, sample_every: 1000, project: 'lanternfish-storyboards' },
+  };
+  const training = cfg.training as Record<string, Json>;
+  if (r() < 0.3) training.noise_offset = pick(r, [0.05, 0.1]);
+  if (r() < 0.3) training.snr_gamma = 5.0;
+  return cfg;
+}
+
+export function samplingConfig(i: number): Record<string, Json> {
+  const r = rng(i * 104729 + 3);
+  const schedule = pick(r, SCHEDULES);
+  const guidance = pick(r, [1.0, 4.5, 7.5, 9.0, 12.0]);
+  const cfg: Record<string, Json> = {
+    run: `lanternfish-sample-${i}`,
+    scheduler: {
+      num_train_timesteps: 1000,
+      ...schedule,
+      prediction_type: pick(r, TARGETS),
+      rescale_betas_zero_snr: r() < 0.4,
+      timestep_spacing: pick(r, SPACINGS),
+      steps_offset: r() < 0.5 ? 1 : 0,
+    },
+    sampler: pick(r, SAMPLERS),
+    num_inference_steps: pick(r, [4, 8, 20, 30, 50]),
+    guidance_scale: guidance,
+    output: { folder: `/renders/lanternfish/${i}`, format: 'png', seed: Math.floor(r() * 100000), batch: pick(r, [1, 4]) },
+    prompts: [`storyboard frame ${i}, lantern light over black water`, `product still ${i}, pure white background`],
+  };
+  if (r() < 0.5) cfg.guidance_rescale = pick(r, [0.0, 0.5, 0.7, 1.0]);
+  if (r() < 0.2) cfg.use_karras_sigmas = true;
+  return cfg;
+}
+
+function toYaml(v: Json, indent = 0): string {
+  const pad = ' '.repeat(indent);
+  if (Array.isArray(v)) {
+    if (v.every((x) => typeof x !== 'object' || x === null)) return `[${v.map((x) => yamlScalar(x as Json)).join(', ')}]`;
+    return '\n' + v.map((x) => `${pad}- ${toYaml(x, indent + 2).trimStart()}`).join('\n');
+  }
+  if (v !== null && typeof v === 'object') {
+    return '\n' + Object.entries(v).map(([k, x]) => `${pad}${k}:${typeof x === 'object' && x !== null && !Array.isArray(x) ? '' : ' '}${toYaml(x, indent + 2)}`).join('\n');
+  }
+  return yamlScalar(v);
+}
+
+function yamlScalar(v: Json): string {
+  if (typeof v === 'string') return /^[\w./-]+$/.test(v) && !/^(true|false|null|\d)/.test(v) ? v : JSON.stringify(v);
+  return String(v);
+}
+
+export type CorpusFormat = 'yaml' | 'json' | 'jsonc';
+
+export function renderConfig(cfg: Record<string, Json>, format: CorpusFormat, i: number): string {
+  if (format === 'yaml') return `# Lanternfish Pictures run ${i} (invented demo data)${toYaml(cfg)}\n`;
+  const json = JSON.stringify(cfg, null, 2);
+  if (format === 'json') return `${json}\n`;
+  return `// Lanternfish Pictures run ${i} (invented demo data)\n${json.replace(/\n(\s+)"run"/, '\n$1// which run\n$1"run"')}\n`;
+}
+
+export interface CorpusFile {
+  path: string;
+  format: CorpusFormat;
+}
+
+/** Writes `count` configs under `dir` (replacing what was there) and returns their paths. */
+export function writeCorpus(dir: string, count: number): CorpusFile[] {
+  rmSync(dir, { recursive: true, force: true });
+  const files: CorpusFile[] = [];
+  const perFolder = 20;
+  for (let i = 0; i < count; i++) {
+    const folder = join(dir, `batch-${String(Math.floor(i / perFolder)).padStart(4, '0')}`);
+    if (i % perFolder === 0) mkdirSync(folder, { recursive: true });
+    const u = (i * 2654435761) % 10;
+    const format: CorpusFormat = u < 6 ? 'yaml' : u < 9 ? 'json' : 'jsonc';
+    const sampling = i % 2 === 1;
+    const cfg = sampling ? samplingConfig(i) : trainingConfig(i);
+    const name = `${sampling ? 'sample' : 'train'}-${SUBJECTS[Math.floor(i / 2) % SUBJECTS.length]}-${Math.floor(i / 2)}.${format}`;
+    const path = join(folder, name);
+    writeFileSync(path, renderConfig(cfg, format, i));
+    files.push({ path, format });
+  }
+  return files;
+}

@@ -1,0 +1,115 @@
+/**
+ * What bench/run.mjs measures, bundled with esbuild so that it runs on the same code the CLI
+ * bundle runs. Each pass walks the corpus from scratch (discovery included) so that the compared
+ * figures do the same I/O.
+ */
+import Ajv from 'ajv';
+import { parse as parseJsonc } from 'jsonc-parser';
+import { parse as parseYaml } from 'yaml';
+import { check } from '../server/src/cli/commands/check';
+import type { CliIO } from '../server/src/cli/io';
+import { analyzeText } from '../server/src/core/api';
+import { formatFromPath, parseText } from '../server/src/parse';
+import type { SourceFormat } from '../server/src/parse/types';
+import { discoverFiles } from '../server/src/workspace/discover';
+import { nodeFs, readTextFile } from '../server/src/workspace/fs';
+import { clearProjectCache, loadProject } from '../server/src/workspace/projectFile';
+
+export { writeCorpus } from './corpus';
+export { LspTestClient } from '../test/load/lspClient';
+export { configText } from '../test/load/texts';
+
+function discover(dir: string): string[] {
+  const found = discoverFiles([dir], dir);
+  if (found.errors.length) throw new Error(found.errors[0]);
+  return found.files;
+}
+
+const formatOf = (path: string): SourceFormat => formatFromPath(path) ?? 'yaml';
+
+/** Baseline 1: discover, read and parse every file into the located tree. */
+export function parseOnly(dir: string): { files: number; problems: number } {
+  let problems = 0;
+  const files = discover(dir);
+  for (const file of files) {
+    const read = readTextFile(nodeFs, file);
+    if (!read.ok) continue;
+    problems += parseText(read.text, formatOf(file)).problems.length;
+  }
+  return { files: files.length, problems };
+}
+
+/** The core `check` runs per file: discover, project file, read, analyzeText (no pairing, no output). */
+export function coreCheck(dir: string): { files: number; findings: number } {
+  clearProjectCache();
+  let findings = 0;
+  const files = discover(dir);
+  for (const file of files) {
+    const project = loadProject(file);
+    const read = readTextFile(nodeFs, file, project.limits.maxFileBytes);
+    if (!read.ok) continue;
+    findings += analyzeText(read.text, { path: file, project }).findings.length;
+  }
+  return { files: files.length, findings };
+}
+
+/** The whole `check` command in process (pairing, JSON report), output discarded. */
+export async function checkCommand(dir: string): Promise<{ code: number; outputBytes: number }> {
+  clearProjectCache();
+  let outputBytes = 0;
+  const io: CliIO = {
+    cwd: dir,
+    stdout: (t) => void (outputBytes += t.length),
+    stderr: (t) => void (outputBytes += t.length),
+    isTTY: false,
+    env: {},
+  };
+  const code = await check({ inputs: ['.'], format: 'json', maxWarnings: Infinity, quiet: false }, io);
+  return { code, outputBytes };
+}
+
+/** Baseline 2: discover, read, parse to plain data (yaml / JSON / jsonc-parser), validate with ajv. */
+export function schemaValidator(schema: object): (dir: string) => { files: number; invalid: number } {
+  const ajv = new Ajv({ allErrors: true, strict: false });
+  const validate = ajv.compile(schema);
+  return (dir) => {
+    let invalid = 0;
+    const files = discover(dir);
+    for (const file of files) {
+      const read = readTextFile(nodeFs, file);
+      if (!read.ok) continue;
+      const format = formatOf(file);
+      let data: unknown;
+      try {
+        data = format === 'yaml' ? parseYaml(read.text) : format === 'json' ? JSON.parse(read.text) : parseJsonc(read.text);
+      } catch {
+        invalid++;
+        continue;
+      }
+      if (!validate(data)) invalid++;
+    }
+    return { files: files.length, invalid };
+  };
+}
+
+/** Parse-only time of one text, repeated: milliseconds per run. */
+export function parseTimes(text: string, format: SourceFormat, runs: number): number[] {
+  const out: number[] = [];
+  for (let i = 0; i < runs; i++) {
+    const t0 = performance.now();
+    parseText(text, format);
+    out.push(performance.now() - t0);
+  }
+  return out;
+}
+
+/** analyzeText time of one text, repeated (the in-process part of a diagnostics round trip). */
+export function analyzeTimes(text: string, path: string, runs: number): number[] {
+  const out: number[] = [];
+  for (let i = 0; i < runs; i++) {
+    const t0 = performance.now();
+    analyzeText(text, { path });
+    out.push(performance.now() - t0);
+  }
+  return out;
+}

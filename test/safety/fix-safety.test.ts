@@ -1,0 +1,174 @@
+/**
+ * `noiselint fix` never loses data: killed with SIGKILL at random moments while it rewrites a
+ * large file, the file is either the original or the fully fixed text, never a truncated mix, and
+ * anything left behind is a clearly named temporary file. Permissions, CRLF endings, a BOM and
+ * symlinks are kept; read-only files are reported and not touched.
+ */
+import { spawn } from 'node:child_process';
+import { chmodSync, copyFileSync, lstatSync, readFileSync, readdirSync, readlinkSync, statSync, symlinkSync, writeFileSync } from 'node:fs';
+import { join } from 'node:path';
+import { beforeAll, describe, expect, it } from 'vitest';
+import { CLI, describeCrash, ensureCliBuilt, runCli, tempDir } from '../adversarial/helpers';
+
+/** 100,000 explicit linear betas (Ho et al. 2020 endpoints 1e-4 -> 0.02), stretched to T = 100,000. */
+function bigConfig(): string {
+  const n = 100_000;
+  const betas: string[] = [];
+  for (let i = 0; i < n; i++) betas.push((1e-4 + ((0.02 - 1e-4) * i) / (n - 1)).toPrecision(8));
+  return [
+    '# Lanternfish Pictures: long-schedule experiment (invented demo data)',
+    `num_train_timesteps: ${n}`,
+    'prediction_type: v_prediction',
+    'timestep_spacing: leading',
+    'num_inference_steps: 50',
+    'guidance_scale: 7.5',
+    `trained_betas: [${betas.join(', ')}]`,
+    '',
+  ].join('\n');
+}
+
+/** A small config with fixable findings (leading spacing skips the last step; guidance without rescale). */
+const SMALL = [
+  '# Lanternfish Pictures: product stills sampler (invented demo data)',
+  'num_train_timesteps: 1000',
+  'beta_schedule: scaled_linear',
+  'beta_start: 0.00085',
+  'beta_end: 0.012',
+  'rescale_betas_zero_snr: true',
+  'prediction_type: v_prediction',
+  'timestep_spacing: leading',
+  'num_inference_steps: 30',
+  'guidance_scale: 7.5',
+  '',
+].join('\n');
+
+/** Deterministic delays (a 32-bit LCG) so that a failing sequence can be re-run. */
+function* delays(seed: number, maxMs: number): Generator<number> {
+  let x = seed >>> 0;
+  for (;;) {
+    x = (Math.imul(x, 1664525) + 1013904223) >>> 0;
+    yield Math.floor((x / 0x100000000) * maxMs);
+  }
+}
+
+function runFixKilledAfter(cwd: string, file: string, ms: number): Promise<{ code: number | null; signal: NodeJS.Signals | null; stderr: string }> {
+  return new Promise((resolve) => {
+    const child = spawn(process.execPath, [CLI, 'fix', '--unsafe', file], { cwd, stdio: ['ignore', 'ignore', 'pipe'] });
+    let stderr = '';
+    child.stderr.setEncoding('utf8').on('data', (d: string) => (stderr += d));
+    const timer = setTimeout(() => child.kill('SIGKILL'), ms);
+    child.on('exit', (code, signal) => {
+      clearTimeout(timer);
+      resolve({ code, signal, stderr });
+    });
+  });
+}
+
+describe('fix safety', () => {
+  beforeAll(() => ensureCliBuilt());
+
+  it('SIGKILL during a large rewrite leaves the original or the fully fixed file, never a partial one', async () => {
+    const original = Buffer.from(bigConfig());
+    const refDir = tempDir('fix-ref');
+    writeFileSync(join(refDir, 'long.yaml'), original);
+    const started = performance.now();
+    const ref = runCli(['fix', '--unsafe', 'long.yaml'], { cwd: refDir, heapMb: 512 });
+    const fullMs = performance.now() - started;
+    expect(describeCrash(ref), ref.stderr).toBeNull();
+    const fixed = readFileSync(join(refDir, 'long.yaml'));
+    // The run really rewrites the file (otherwise the kill test would prove nothing).
+    expect(fixed.equals(original), `fix changed nothing:\n${ref.stdout}${ref.stderr}`).toBe(false);
+
+    const seed = Number(process.env.NOISELINT_KILL_SEED ?? 20240611);
+    const gen = delays(seed, Math.max(50, fullMs * 1.2));
+    const outcomes: string[] = [];
+    const runs = Number(process.env.NOISELINT_KILL_RUNS ?? 8);
+    for (let k = 0; k < runs; k++) {
+      const dir = tempDir('fix-kill');
+      const file = join(dir, 'long.yaml');
+      writeFileSync(file, original);
+      chmodSync(file, 0o640);
+      const ms = gen.next().value as number;
+      const r = await runFixKilledAfter(dir, 'long.yaml', ms);
+      const now = readFileSync(file);
+      const state = now.equals(original) ? 'original' : now.equals(fixed) ? 'fixed' : 'PARTIAL';
+      const leftovers = readdirSync(dir).filter((n) => n !== 'long.yaml');
+      outcomes.push(`kill after ${ms} ms (seed ${seed}): ${r.signal ?? `exit ${r.code}`}, file ${state}, leftovers [${leftovers.join(', ')}]`);
+      expect(state, outcomes.join('\n')).not.toBe('PARTIAL');
+      // Anything left behind is clearly named as ours (and hidden).
+      for (const name of leftovers) expect(name, outcomes.join('\n')).toMatch(/^\..*\.noiselint-tmp$/);
+      expect(statSync(file).mode & 0o777).toBe(0o640);
+    }
+    console.log(`fix kill test (full run ${fullMs.toFixed(0)} ms):\n  ${outcomes.join('\n  ')}`);
+  });
+
+  it('keeps the file mode (0640) and owner', () => {
+    const dir = tempDir('fix-mode');
+    const file = join(dir, 'stills.yaml');
+    writeFileSync(file, SMALL);
+    chmodSync(file, 0o640);
+    const before = statSync(file);
+    const r = runCli(['fix', '--unsafe', 'stills.yaml'], { cwd: dir });
+    expect(describeCrash(r)).toBeNull();
+    const after = statSync(file);
+    expect(readFileSync(file, 'utf8')).not.toBe(SMALL);
+    expect(readFileSync(file, 'utf8')).toContain('trailing');
+    expect(after.mode & 0o7777).toBe(0o640);
+    expect([after.uid, after.gid]).toEqual([before.uid, before.gid]);
+    expect(readdirSync(dir)).toEqual(['stills.yaml']);
+  });
+
+  it('keeps CRLF line endings and a BOM', () => {
+    const dir = tempDir('fix-crlf');
+    const file = join(dir, 'stills.yaml');
+    const text = '\ufeff' + SMALL.replace(/\n/g, '\r\n');
+    writeFileSync(file, text);
+    const r = runCli(['fix', '--unsafe', 'stills.yaml'], { cwd: dir });
+    expect(describeCrash(r)).toBeNull();
+    const out = readFileSync(file, 'utf8');
+    expect(out).not.toBe(text);
+    expect(out.startsWith('\ufeff')).toBe(true);
+    expect(out).not.toMatch(/(^|[^\r])\n/);
+    expect(out.split('\r\n').length).toBeGreaterThanOrEqual(text.split('\r\n').length);
+  });
+
+  it('a read-only file is reported and left alone (even for the superuser)', () => {
+    const dir = tempDir('fix-ro');
+    const file = join(dir, 'stills.yaml');
+    writeFileSync(file, SMALL);
+    chmodSync(file, 0o444);
+    const r = runCli(['fix', '--unsafe', 'stills.yaml'], { cwd: dir });
+    expect(describeCrash(r)).toBeNull();
+    expect(r.status).toBe(1);
+    expect(r.stderr).toMatch(/read-only/);
+    expect(readFileSync(file, 'utf8')).toBe(SMALL);
+    expect(statSync(file).mode & 0o777).toBe(0o444);
+    expect(readdirSync(dir)).toEqual(['stills.yaml']);
+  });
+
+  it('fixing through a symlink rewrites the target and keeps the link', () => {
+    const dir = tempDir('fix-link');
+    const target = join(dir, 'real.yaml');
+    writeFileSync(target, SMALL);
+    symlinkSync('real.yaml', join(dir, 'link.yaml'));
+    const r = runCli(['fix', '--unsafe', 'link.yaml'], { cwd: dir });
+    expect(describeCrash(r)).toBeNull();
+    expect(lstatSync(join(dir, 'link.yaml')).isSymbolicLink()).toBe(true);
+    expect(readlinkSync(join(dir, 'link.yaml'))).toBe('real.yaml');
+    expect(readFileSync(target, 'utf8')).toContain('trailing');
+  });
+
+  it('--dry-run writes nothing', () => {
+    const dir = tempDir('fix-dry');
+    const file = join(dir, 'stills.yaml');
+    writeFileSync(file, SMALL);
+    const copy = join(dir, 'copy.yaml.bak');
+    copyFileSync(file, copy);
+    const before = statSync(file).mtimeMs;
+    const r = runCli(['fix', '--unsafe', '--dry-run', 'stills.yaml'], { cwd: dir });
+    expect(describeCrash(r)).toBeNull();
+    expect(r.stdout).toMatch(/^\+.*trailing/m);
+    expect(readFileSync(file, 'utf8')).toBe(SMALL);
+    expect(statSync(file).mtimeMs).toBe(before);
+  });
+});
