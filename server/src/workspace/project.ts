@@ -8,4 +8,5 @@ export {
   loadProject,
   parseProjectFile,
   resolveProjectData,
+  setProjectRuleCatalog,
 } from './projectFile';

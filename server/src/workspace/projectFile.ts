@@ -58,9 +58,16 @@ const TOP_LEVEL_FIELDS = ['include', 'exclude', 'rules', 'aliases', 'latentSpace
 type Catalog = ReadonlyMap<string, RuleMeta>;
 
 /** Rule ids, option names and option types a project file may use. */
-const RULE_CATALOG: Catalog = new Map(ALL_RULE_METAS.map((m) => [m.id, m]));
+const DEFAULT_CATALOG: Catalog = new Map(ALL_RULE_METAS.map((m) => [m.id, m]));
+let RULE_CATALOG: Catalog = DEFAULT_CATALOG;
+
+/** Replace the rule metadata project files are checked against; null restores the registry. */
+export function setProjectRuleCatalog(rules: readonly RuleMeta[] | null): void {
+  RULE_CATALOG = rules ? new Map(rules.map((r) => [r.id, r])) : DEFAULT_CATALOG;
+}
 
 /** Validates the parsed content of a project file and resolves it against its folder. */
+/** `catalog`: rule metadata to check `rules` against (default: the registry; null: accept any id). */
 export function resolveProjectData(data: unknown, file: string, catalog: Catalog | null = RULE_CATALOG): ResolvedProject {
   const fail = (field: string, detail: string): never => {
     throw new ProjectFileError(file, field, detail);

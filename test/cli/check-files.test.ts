@@ -1,0 +1,143 @@
+import { afterEach, describe, expect, it } from 'vitest';
+import { chmodSync } from 'node:fs';
+import { join } from 'node:path';
+import { removeTree } from '../workspace/helpers';
+import { CLEAN, LEAKY_V, ZERO_SNR_EPSILON, runCli, tempTree } from './check-helpers';
+
+const roots: string[] = [];
+function tree(files: Record<string, string | Uint8Array>): string {
+  const root = tempTree(files);
+  roots.push(root);
+  return root;
+}
+afterEach(() => {
+  while (roots.length) {
+    const root = roots.pop()!;
+    try {
+      chmodSync(join(root, 'locked.yaml'), 0o644);
+    } catch {
+      // Not every tree has one.
+    }
+    removeTree(root);
+  }
+});
+
+const canLockFiles = typeof process.getuid === 'function' && process.getuid() !== 0;
+
+describe('check: files that are hard to read', () => {
+  it.skipIf(!canLockFiles)('an unreadable file is a one-line error (exit 2); the others are still checked', async () => {
+    const root = tree({ 'locked.yaml': LEAKY_V, 'eps.yaml': ZERO_SNR_EPSILON });
+    chmodSync(join(root, 'locked.yaml'), 0o000);
+    const r = await runCli(['check', '--format', 'json'], root);
+    expect(r.code).toBe(2);
+    expect(r.stderr).toBe('noiselint check: locked.yaml: cannot read: permission denied\n');
+    const out = JSON.parse(r.stdout);
+    expect(out.files.map((f: { path: string }) => f.path)).toEqual(['eps.yaml']);
+    expect(out.files[0].findings.length).toBeGreaterThan(0);
+  });
+
+  it('binary and non-UTF-8 files are skipped with a one-line message; empty files are fine', async () => {
+    const root = tree({
+      'binary.json': new Uint8Array([0x7b, 0x00, 0x01, 0x02, 0x7d]),
+      'latin1.yaml': new Uint8Array([...Buffer.from('name: caf'), 0xe9, 0x0a]),
+      'empty.yaml': '',
+      'leaky.yaml': LEAKY_V,
+    });
+    const r = await runCli(['check'], root);
+    expect(r.code).toBe(0);
+    expect(r.stderr.split('\n').filter(Boolean).sort()).toEqual([
+      'noiselint check: binary.json: skipped: looks binary (contains NUL bytes)',
+      'noiselint check: latin1.yaml: skipped: not valid UTF-8',
+    ]);
+    expect(r.stdout).toMatch(/leaky\.yaml:\d+:\d+ warning terminal-snr-leak/);
+    expect(r.stdout).toMatch(/in 2 files checked, 2 skipped/);
+
+    const json = JSON.parse((await runCli(['check', '--format', 'json'], root)).stdout);
+    expect(json.files.map((f: { path: string }) => f.path)).toEqual(['empty.yaml', 'leaky.yaml']);
+    expect(json.skipped.map((s: { path: string }) => s.path)).toEqual(['binary.json', 'latin1.yaml']);
+  });
+
+  it('a file above limits.maxFileBytes is skipped without reading it all', async () => {
+    const root = tree({ 'noiselint.project.yaml': 'limits: { maxFileBytes: 100 }\n', 'big.yaml': `# ${'x'.repeat(500)}\n${LEAKY_V}` });
+    const r = await runCli(['check'], root);
+    expect(r.code).toBe(0);
+    expect(r.stderr).toMatch(/^noiselint check: big\.yaml: skipped: 7\d\d bytes is above the 100 bytes limit \(limits\.maxFileBytes\)\n$/);
+  });
+
+  it('a missing path or an empty glob is an error (exit 2), the rest is checked', async () => {
+    const root = tree({ 'leaky.yaml': LEAKY_V });
+    const r = await runCli(['check', 'nope.yaml', 'runs/**/*.yaml', 'leaky.yaml'], root);
+    expect(r.code).toBe(2);
+    expect(r.stderr).toBe('noiselint check: nope.yaml: no such file or folder\nnoiselint check: runs/**/*.yaml: no files match\n');
+    expect(r.stdout).toMatch(/leaky\.yaml:\d+:\d+ warning terminal-snr-leak/);
+  });
+
+  it('an invalid project file stops the run with one line naming the field (exit 2)', async () => {
+    const root = tree({ 'noiselint.project.yaml': 'rules:\n  terminal-snr-leek: off\n', 'leaky.yaml': LEAKY_V });
+    const r = await runCli(['check'], root);
+    expect(r).toEqual({
+      code: 2,
+      stdout: '',
+      stderr: 'noiselint check: noiselint.project.yaml: rules.terminal-snr-leek: unknown rule (did you mean "terminal-snr-leak"?)\n',
+    });
+  });
+
+  it('project severities apply: a warning raised to error changes the exit code; off removes it', async () => {
+    const root = tree({ 'noiselint.project.yaml': 'rules:\n  terminal-snr-leak: error\n', 'leaky.yaml': LEAKY_V });
+    const raised = await runCli(['check'], root);
+    expect(raised.code).toBe(1);
+    expect(raised.stdout).toMatch(/leaky\.yaml:\d+:\d+ error terminal-snr-leak/);
+    const off = tree({ 'noiselint.project.yaml': 'rules:\n  terminal-snr-leak: off\n', 'leaky.yaml': LEAKY_V });
+    expect((await runCli(['check'], off)).stdout).toBe('No findings in 1 file checked.\n');
+  });
+});
+
+describe('check: pairing', () => {
+  const training = CLEAN;
+  // The sampling file was copied from an older, leaky run: it disagrees on the rescale flag.
+  const sampling = `scheduler:
+  num_train_timesteps: 1000
+  beta_schedule: scaled_linear
+  beta_start: 0.00085
+  beta_end: 0.012
+  prediction_type: v_prediction
+  timestep_spacing: trailing
+sampling:
+  num_inference_steps: 30
+`;
+
+  it('an explicit pair across folders reports the mismatch with a related location in the partner', async () => {
+    const root = tree({
+      'noiselint.project.yaml': 'pairs:\n  - training: train/run.yaml\n    sampling: serve/sample.yaml\n',
+      'train/run.yaml': training,
+      'serve/sample.yaml': sampling,
+    });
+    const r = await runCli(['check', '--format', 'json'], root);
+    const out = JSON.parse(r.stdout);
+    const sample = out.files.find((f: { path: string }) => f.path === 'serve/sample.yaml');
+    const mismatch = sample.findings.find((f: { rule: string }) => f.rule === 'train-sample-mismatch');
+    expect(mismatch?.severity).toBe('error');
+    expect(mismatch.related.some((x: { path: string }) => x.path === 'train/run.yaml')).toBe(true);
+    expect(r.code).toBe(1);
+  });
+
+  it('without the pair there is no mismatch finding', async () => {
+    const root = tree({ 'train/run.yaml': training, 'serve/sample.yaml': sampling });
+    const out = JSON.parse((await runCli(['check', '--format', 'json'], root)).stdout);
+    const rules = out.files.flatMap((f: { findings: { rule: string }[] }) => f.findings.map((x) => x.rule));
+    expect(rules).not.toContain('train-sample-mismatch');
+  });
+
+  it('a pair path that leaves the project is ignored with a one-line warning', async () => {
+    const root = tree({
+      'proj/noiselint.project.yaml': 'pairs:\n  - training: run.yaml\n    sampling: ../outside.yaml\n',
+      'proj/run.yaml': training,
+      'outside.yaml': sampling,
+    });
+    const r = await runCli(['check', 'proj'], root);
+    expect(r.stderr).toBe(
+      'noiselint check: warning: proj/noiselint.project.yaml: pairs[0].sampling: "../outside.yaml" leaves the project folder; pair ignored\n',
+    );
+    expect(r.code).toBe(0);
+  });
+});

@@ -1,0 +1,127 @@
+import { afterEach, describe, expect, it } from 'vitest';
+import { LineIndex } from '../../server/src/parse/lineIndex';
+import { removeTree } from '../workspace/helpers';
+import { CLEAN, LEAKY_V, ZERO_SNR_EPSILON, runCli, tempTree } from './check-helpers';
+
+const roots: string[] = [];
+function tree(files: Record<string, string | Uint8Array>): string {
+  const root = tempTree(files);
+  roots.push(root);
+  return root;
+}
+afterEach(() => {
+  while (roots.length) removeTree(roots.pop()!);
+});
+
+interface Pos {
+  line: number;
+  character: number;
+}
+interface JsonRange {
+  start: Pos;
+  end: Pos;
+}
+
+/** The text a 0-based JSON range covers. */
+function textAt(text: string, range: JsonRange): string {
+  const index = new LineIndex(text);
+  return text.slice(index.offsetAt(range.start), index.offsetAt(range.end));
+}
+
+/** Applies JSON edits (0-based ranges) back to front. */
+function applyJsonEdits(text: string, edits: { range: JsonRange; newText: string }[]): string {
+  const index = new LineIndex(text);
+  const spans = edits
+    .map((e) => ({ start: index.offsetAt(e.range.start), end: index.offsetAt(e.range.end), newText: e.newText }))
+    .sort((a, b) => b.start - a.start);
+  let out = text;
+  for (const s of spans) out = out.slice(0, s.start) + s.newText + out.slice(s.end);
+  return out;
+}
+
+const SEVERITIES = ['error', 'warning', 'info', 'hint'];
+
+describe('check --format json', () => {
+  it('follows the contract: files, findings with 0-based ranges and fixes, summary', async () => {
+    const root = tree({ 'runs/eps.yaml': ZERO_SNR_EPSILON, 'runs/leaky.yaml': LEAKY_V, 'runs/clean.yaml': CLEAN });
+    const r = await runCli(['check', '--format', 'json', 'runs'], root);
+    expect(r.code).toBe(1);
+    expect(r.stderr).toBe('');
+    const out = JSON.parse(r.stdout);
+    expect(Object.keys(out).sort()).toEqual(['files', 'skipped', 'summary']);
+    // Every checked file is listed, sorted, with paths relative to the current folder.
+    expect(out.files.map((f: { path: string }) => f.path)).toEqual(['runs/clean.yaml', 'runs/eps.yaml', 'runs/leaky.yaml']);
+    expect(out.files[0].findings).toEqual([]);
+
+    let errors = 0;
+    let warnings = 0;
+    let infos = 0;
+    for (const file of out.files) {
+      const text = file.path.endsWith('eps.yaml') ? ZERO_SNR_EPSILON : file.path.endsWith('leaky.yaml') ? LEAKY_V : CLEAN;
+      for (const f of file.findings) {
+        expect(typeof f.rule).toBe('string');
+        expect(SEVERITIES).toContain(f.severity);
+        expect(typeof f.message).toBe('string');
+        for (const p of [f.range.start, f.range.end]) {
+          expect(Number.isInteger(p.line) && p.line >= 0).toBe(true);
+          expect(Number.isInteger(p.character) && p.character >= 0).toBe(true);
+        }
+        expect(Array.isArray(f.fixes)).toBe(true);
+        for (const fix of f.fixes) {
+          expect(typeof fix.title).toBe('string');
+          expect(['safe', 'unsafe']).toContain(fix.safety);
+          expect(fix.edits.length).toBeGreaterThan(0);
+          for (const e of fix.edits) expect(typeof e.newText).toBe('string');
+        }
+        if (f.severity === 'error') errors++;
+        if (f.severity === 'warning') warnings++;
+        if (f.severity === 'info') infos++;
+        // The range lies inside the file and covers some of its text.
+        expect(textAt(text, f.range).length).toBeGreaterThan(0);
+      }
+    }
+    expect(out.summary).toMatchObject({ errors, warnings, infos, files: 3 });
+    expect(errors).toBeGreaterThan(0);
+  });
+
+  it('a range points at the field that causes the finding, and the fix edits apply to the file', async () => {
+    const root = tree({ 'eps.yaml': ZERO_SNR_EPSILON });
+    const out = JSON.parse((await runCli(['check', '--format=json'], root)).stdout);
+    const finding = out.files[0].findings.find((f: { rule: string }) => f.rule === 'epsilon-at-zero-snr');
+    expect(finding.severity).toBe('error');
+    // The target field (line 6, 0-based) is what the finding marks.
+    expect(finding.range.start.line).toBe(6);
+    expect(textAt(ZERO_SNR_EPSILON, finding.range)).toContain('epsilon');
+    const fix = finding.fixes[0];
+    // Switching the target changes what the model learns: unsafe, and the title says so.
+    expect(fix.safety).toBe('unsafe');
+    expect(fix.title).toMatch(/fine-tun|retrain/i);
+    const fixed = applyJsonEdits(ZERO_SNR_EPSILON, fix.edits);
+    expect(fixed).toContain('prediction_type: v_prediction');
+    expect(fixed).not.toContain('epsilon');
+    expect(fixed.split('\n').length).toBe(ZERO_SNR_EPSILON.split('\n').length);
+  });
+
+  it('characters count UTF-16 code units, after a BOM and non-ASCII text', async () => {
+    const text = `\uFEFF# Lanternfish: 夜景 🌙 storyboard\n${LEAKY_V.replace('noise_scheduler:', 'noise_scheduler: # 🌙')}`;
+    const root = tree({ 'moon.yaml': text });
+    const out = JSON.parse((await runCli(['check', '--format', 'json'], root)).stdout);
+    const finding = out.files[0].findings[0];
+    expect(finding.rule).toBe('terminal-snr-leak');
+    // Decoding the range against the text (BOM kept) lands on real schedule text, not off by the BOM.
+    expect(textAt(text, finding.range)).toMatch(/^[a-z_]/);
+  });
+
+  it('--quiet leaves warnings out of the JSON too', async () => {
+    const root = tree({ 'leaky.yaml': LEAKY_V });
+    const out = JSON.parse((await runCli(['check', '--format', 'json', '--quiet'], root)).stdout);
+    expect(out.files[0].findings).toEqual([]);
+    expect(out.summary.warnings).toBe(0);
+  });
+
+  it('paths stay relative when checking from a sub-folder with ..', async () => {
+    const root = tree({ 'a/leaky.yaml': LEAKY_V, 'b/.keep': '' });
+    const out = JSON.parse((await runCli(['check', '--format', 'json', '../a'], `${root}/b`)).stdout);
+    expect(out.files.map((f: { path: string }) => f.path)).toEqual(['../a/leaky.yaml']);
+  });
+});

@@ -1,0 +1,126 @@
+import { afterEach, describe, expect, it } from 'vitest';
+import { removeTree } from '../workspace/helpers';
+import { CLEAN, FEW_STEPS_LINSPACE, LEAKY_V, ZERO_SNR_EPSILON, runCli, tempTree } from './check-helpers';
+
+const roots: string[] = [];
+function tree(files: Record<string, string | Uint8Array>): string {
+  const root = tempTree(files);
+  roots.push(root);
+  return root;
+}
+afterEach(() => {
+  while (roots.length) removeTree(roots.pop()!);
+});
+
+/** Finding lines of the text output: `path:line:col severity rule message`. */
+function findingLines(stdout: string): { path: string; line: number; col: number; severity: string; rule: string; message: string }[] {
+  return stdout
+    .split('\n')
+    .map((l) => /^(\S+?):(\d+):(\d+) (error|warning|info|hint) (\S+) (.+)$/.exec(l))
+    .filter((m): m is RegExpExecArray => m !== null)
+    .map((m) => ({ path: m[1], line: Number(m[2]), col: Number(m[3]), severity: m[4], rule: m[5], message: m[6] }));
+}
+
+describe('check: text output', () => {
+  it('prints one line per finding with 1-based positions, then a summary', async () => {
+    const root = tree({ 'runs/leaky.yaml': LEAKY_V, 'runs/clean.yaml': CLEAN });
+    const r = await runCli(['check'], root);
+    expect(r.code).toBe(0); // warnings only, no limit
+    const lines = findingLines(r.stdout);
+    expect(lines.map((l) => [l.path, l.severity, l.rule])).toEqual([['runs/leaky.yaml', 'warning', 'terminal-snr-leak']]);
+    // The finding points into the schedule block (lines 1-6 of the file), at a real column.
+    expect(lines[0].line).toBeGreaterThanOrEqual(1);
+    expect(lines[0].line).toBeLessThanOrEqual(6);
+    expect(lines[0].col).toBeGreaterThanOrEqual(1);
+    // The message carries the number: signal amplitude about 0.068 (Lin et al. 2023, Table 1, from memory).
+    expect(lines[0].message).toMatch(/0\.068/);
+    const summary = r.stdout.trim().split('\n').at(-1)!;
+    expect(summary).toMatch(/^1 warning in 2 files checked/);
+    expect(r.stderr).toBe('');
+  });
+
+  it('reports no findings on clean files and exits 0', async () => {
+    const root = tree({ 'a.yaml': CLEAN, 'package.json': '{ "name": "not-a-config" }' });
+    const r = await runCli(['check', '.'], root);
+    expect(r.code).toBe(0);
+    expect(findingLines(r.stdout)).toEqual([]);
+    expect(r.stdout).toMatch(/^No findings in 2 files checked\.\n$/);
+  });
+
+  it('exits 1 on an error', async () => {
+    const root = tree({ 'eps.yaml': ZERO_SNR_EPSILON });
+    const r = await runCli(['check', 'eps.yaml'], root);
+    expect(r.code).toBe(1);
+    expect(findingLines(r.stdout).map((l) => [l.severity, l.rule])).toContainEqual(['error', 'epsilon-at-zero-snr']);
+  });
+
+  it('--max-warnings: exit 1 only when warnings exceed N', async () => {
+    const root = tree({ 'a.yaml': LEAKY_V, 'b.yaml': LEAKY_V });
+    expect((await runCli(['check', '--max-warnings', '2'], root)).code).toBe(0);
+    expect((await runCli(['check', '--max-warnings=1'], root)).code).toBe(1);
+    expect((await runCli(['check', '--max-warnings', '0'], root)).code).toBe(1);
+  });
+
+  it('--quiet prints errors only, says what it left out, and warnings still count', async () => {
+    const root = tree({ 'eps.yaml': ZERO_SNR_EPSILON, 'leaky.yaml': LEAKY_V });
+    const r = await runCli(['check', '--quiet'], root);
+    expect(r.code).toBe(1);
+    const lines = findingLines(r.stdout);
+    expect(lines.length).toBeGreaterThan(0);
+    expect(lines.every((l) => l.severity === 'error')).toBe(true);
+    expect(r.stdout).toMatch(/1 warning[^\n]*not shown: --quiet/);
+
+    const onlyWarnings = tree({ 'leaky.yaml': LEAKY_V });
+    const q = await runCli(['check', '--quiet'], onlyWarnings);
+    expect(q).toEqual({ code: 0, stdout: '', stderr: '' });
+    const limited = await runCli(['check', '--quiet', '--max-warnings', '0'], onlyWarnings);
+    expect(limited.code).toBe(1);
+    expect(limited.stdout).toMatch(/not shown: --quiet/);
+  });
+
+  it('an info finding alone keeps exit code 0 and is shown as info', async () => {
+    const root = tree({ 'few.yaml': FEW_STEPS_LINSPACE });
+    const r = await runCli(['check'], root);
+    expect(r.code).toBe(0);
+    expect(findingLines(r.stdout).map((l) => [l.severity, l.rule])).toEqual([['info', 'few-steps-linspace']]);
+  });
+
+  it('colours only on a terminal with NO_COLOR unset or empty', async () => {
+    const root = tree({ 'leaky.yaml': LEAKY_V });
+    const esc = '\x1b[';
+    expect((await runCli(['check'], root, { isTTY: false })).stdout).not.toContain(esc);
+    expect((await runCli(['check'], root, { isTTY: true })).stdout).toContain(`${esc}33mwarning`);
+    expect((await runCli(['check'], root, { isTTY: true, env: { NO_COLOR: '1' } })).stdout).not.toContain(esc);
+    expect((await runCli(['check'], root, { isTTY: true, env: { NO_COLOR: '' } })).stdout).toContain(esc);
+  });
+
+  it('shows progress on stderr for long runs on a terminal only', async () => {
+    const files: Record<string, string> = {};
+    for (let i = 0; i < 22; i++) files[`c${String(i).padStart(2, '0')}.yaml`] = CLEAN;
+    const root = tree(files);
+    const tty = await runCli(['check'], root, { isTTY: true });
+    expect(tty.stderr).toContain('checking 22/22');
+    expect((await runCli(['check'], root, { isTTY: false })).stderr).toBe('');
+  });
+
+  it('bad arguments are one-line usage errors with exit code 2', async () => {
+    const root = tree({});
+    for (const args of [['--format', 'xml'], ['--max-warnings', '-1'], ['--max-warnings', 'many'], ['--frobnicate']]) {
+      const r = await runCli(['check', ...args], root);
+      expect(r.code).toBe(2);
+      expect(r.stdout).toBe('');
+      expect(r.stderr.trim().split('\n')).toHaveLength(1);
+      expect(r.stderr).toMatch(/^noiselint check: /);
+    }
+  });
+
+  it('control characters from a file never reach the terminal', async () => {
+    // YAML "\\e" is ESC: an unknown schedule name that tries to switch the terminal to red.
+    const root = tree({ 'odd.yaml': LEAKY_V.replace('scaled_linear', '"scaled_lin\\e[31mear"') });
+    const r = await runCli(['check'], root, { isTTY: false });
+    const line = findingLines(r.stdout).find((l) => l.rule === 'unknown-value');
+    expect(line?.message).toContain('scaled_lin?[31mear');
+    // eslint-disable-next-line no-control-regex
+    expect(r.stdout).not.toMatch(/[\u0000-\u0008\u000b-\u001f]/);
+  });
+});
