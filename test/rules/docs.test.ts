@@ -1,0 +1,107 @@
+/**
+ * Docs are tests: every rule's documentation has the fixed headings, every Example block yields
+ * exactly that rule's finding (once) and every Use-instead block none; the generated pages in
+ * docs/rules are up to date.
+ */
+import { existsSync, readdirSync, readFileSync } from 'node:fs';
+import { join } from 'node:path';
+import { describe, expect, it } from 'vitest';
+import { readFile } from '../../server/src/core/api';
+import { ALL_RULE_METAS, RULES } from '../../server/src/rules';
+import { renderRuleDocPages } from '../../server/src/rules/docs';
+import type { RuleMeta } from '../../server/src/rules/types';
+import { runOnly } from './harness';
+
+const HEADINGS = ['What it finds', 'Why it matters', 'Example', 'Use instead', 'Fix safety', 'Options', 'References'];
+
+/** The text under each `## ` heading. */
+function sections(docs: string): Map<string, string> {
+  const out = new Map<string, string>();
+  const parts = docs.split(/^## /m).slice(1);
+  for (const part of parts) {
+    const nl = part.indexOf('\n');
+    out.set(part.slice(0, nl).trim(), part.slice(nl + 1));
+  }
+  return out;
+}
+
+/** Fenced blocks with their info string. */
+function codeBlocks(section: string): { info: string; body: string }[] {
+  const out: { info: string; body: string }[] = [];
+  const re = /^```([^\n]*)\n([\s\S]*?)^```$/gm;
+  for (let m = re.exec(section); m; m = re.exec(section)) out.push({ info: m[1].trim(), body: m[2] });
+  return out;
+}
+
+function partnersOf(meta: RuleMeta) {
+  const partner = codeBlocks(meta.docs).find((b) => b.info === 'yaml partner');
+  if (!partner) return undefined;
+  const read = readFile(partner.body, { path: 'train.yaml', format: 'yaml' });
+  return read.documents.map((d) => ({ path: 'train.yaml', setup: d.setup, analysis: d.analysis }));
+}
+
+describe.each(ALL_RULE_METAS.map((m) => [m.id, m] as const))('docs of %s', (id, meta) => {
+  const byHeading = sections(meta.docs);
+
+  it('has the fixed headings, in order, and nothing else', () => {
+    expect([...byHeading.keys()]).toEqual(HEADINGS);
+    for (const h of HEADINGS) expect(byHeading.get(h)!.trim().length, h).toBeGreaterThan(0);
+  });
+
+  it('names every option with its default, and cites a source with a year', () => {
+    const options = byHeading.get('Options')!;
+    for (const [name, option] of Object.entries(meta.options)) {
+      expect(options, `option ${name}`).toContain(`\`${name}\` (default ${String(option.default)}`);
+    }
+    if (Object.keys(meta.options).length === 0) expect(options).toMatch(/^None\b/m);
+    expect(byHeading.get('References')!).toMatch(/\b(19|20)\d\d\b/);
+    expect(meta.docs).not.toMatch(/lecture|talk|transcript|video|speaker/i);
+  });
+
+  it('has a yaml Example that yields exactly one finding of this rule', () => {
+    const blocks = codeBlocks(byHeading.get('Example')!).filter((b) => b.info === 'yaml');
+    expect(blocks.length).toBeGreaterThan(0);
+    for (const block of blocks) {
+      const { findings, ruleErrors } = runOnly(id, block.body, { partners: partnersOf(meta), pairRole: partnersOf(meta) ? 'sampling' : undefined });
+      expect(ruleErrors).toEqual([]);
+      expect(findings.map((f) => `${f.rule}: ${f.message}`)).toHaveLength(1);
+      expect(findings[0].rule).toBe(id);
+      expect(block.body).toContain('Lanternfish Pictures');
+    }
+  });
+
+  it('has yaml Use-instead blocks that yield none of this rule', () => {
+    const blocks = codeBlocks(byHeading.get('Use instead')!).filter((b) => b.info === 'yaml');
+    expect(blocks.length).toBeGreaterThan(0);
+    for (const block of blocks) {
+      const { findings, ruleErrors } = runOnly(id, block.body, { partners: partnersOf(meta), pairRole: partnersOf(meta) ? 'sampling' : undefined });
+      expect(ruleErrors).toEqual([]);
+      expect(findings.map((f) => `${f.rule}: ${f.message}`)).toEqual([]);
+    }
+  });
+
+  it('says fine-tuning or retraining where its fixes change training', () => {
+    const safety = byHeading.get('Fix safety')!;
+    if (/^Unsafe/.test(safety.trim()) && id !== 'parse-error') expect(safety).toMatch(/fine-tuning or retraining/);
+  });
+});
+
+describe('generated pages', () => {
+  const dir = join(__dirname, '..', '..', 'docs', 'rules');
+
+  it('docs/rules matches the rules (run `npm run docs` after changing a rule)', () => {
+    const pages = renderRuleDocPages();
+    for (const [name, content] of Object.entries(pages)) {
+      const path = join(dir, name);
+      expect(existsSync(path), `docs/rules/${name} exists`).toBe(true);
+      expect(readFileSync(path, 'utf8'), `docs/rules/${name}`).toBe(content);
+    }
+    const onDisk = readdirSync(dir).filter((f) => f.endsWith('.md'));
+    expect(onDisk.sort()).toEqual(Object.keys(pages).sort());
+  });
+
+  it('lists every rule in the index', () => {
+    const index = renderRuleDocPages()['README.md'];
+    for (const rule of RULES) expect(index).toContain(`[${rule.meta.id}](${rule.meta.id}.md)`);
+  });
+});
