@@ -31,11 +31,11 @@ export function formatNumber(n: number, ctx: NumberContext): string | null {
   const oldDot = old !== null && old.includes('.');
   let s: string;
   if (oldExp && n !== 0 && Math.abs(n) < 1e-2) {
-    s = exponential(n, old.includes('.'), ctx.format, /[eE]-0\d/.test(old));
+    s = exponential(n, old.includes('.'), /[eE][-+]0\d/.test(old));
   } else {
     s = compact(n);
     if (s.includes('e')) {
-      s = exponential(n, true, ctx.format, false);
+      s = exponential(n, true, false);
     } else if (Number.isInteger(n) && (old === null || oldDot)) {
       // A float concept keeps looking like a float: 1.0, not 1.
       s = `${s}.0`;
@@ -44,9 +44,9 @@ export function formatNumber(n: number, ctx: NumberContext): string | null {
   return s;
 }
 
-function exponential(n: number, keepDot: boolean, format: SourceFormat, padExponent: boolean): string {
+function exponential(n: number, keepDot: boolean, padExponent: boolean): string {
   let [mantissa, exponent] = Number(n.toPrecision(12)).toExponential().split('e');
-  if (!mantissa.includes('.') && (keepDot || format === 'yaml')) mantissa += '.0';
+  if (!mantissa.includes('.') && keepDot) mantissa += '.0';
   const sign = exponent.startsWith('-') ? '-' : '+';
   let digits = exponent.replace(/^[-+]/, '');
   if (padExponent && digits.length < 2) digits = `0${digits}`;

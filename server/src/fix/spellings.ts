@@ -19,7 +19,7 @@ export const INSERT_KEY: Record<Concept, Record<KeyStyle, string> | null> = {
   predictionTarget: { snake: 'prediction_type', camel: 'predictionType', short: 'parameterization' },
   timestepSpacing: { snake: 'timestep_spacing', camel: 'timestepSpacing', short: 'timestep_spacing' },
   stepsOffset: { snake: 'steps_offset', camel: 'stepsOffset', short: 'steps_offset' },
-  sampleSteps: { snake: 'num_inference_steps', camel: 'numInferenceSteps', short: 'sample_steps' },
+  sampleSteps: { snake: 'num_inference_steps', camel: 'numInferenceSteps', short: 'ddim_steps' },
   guidanceScale: { snake: 'guidance_scale', camel: 'guidanceScale', short: 'cfg_scale' },
   guidanceRescale: { snake: 'guidance_rescale', camel: 'guidanceRescale', short: 'cfg_rescale' },
   offsetNoise: { snake: 'noise_offset', camel: 'noiseOffset', short: 'offset_noise' },
@@ -29,7 +29,7 @@ export const INSERT_KEY: Record<Concept, Record<KeyStyle, string> | null> = {
   sigmaMin: { snake: 'sigma_min', camel: 'sigmaMin', short: 'sigma_min' },
   sigmaMax: { snake: 'sigma_max', camel: 'sigmaMax', short: 'sigma_max' },
   rho: { snake: 'rho', camel: 'rho', short: 'rho' },
-  flowShift: { snake: 'shift', camel: 'flowShift', short: 'shift' },
+  flowShift: { snake: 'flow_shift', camel: 'flowShift', short: 'shift' },
   resolution: { snake: 'resolution', camel: 'resolution', short: 'resolution' },
   sampler: { snake: 'sampler', camel: 'sampler', short: 'sampler' },
   karrasSigmas: { snake: 'use_karras_sigmas', camel: 'useKarrasSigmas', short: 'use_karras_sigmas' },
@@ -60,20 +60,22 @@ export function insertKeyFor(concept: Concept, style: KeyStyle, keysInTargetMap:
  * Enum value spellings, in families. A fix writes the family of the value it replaces; when that
  * is unknown, the family the key suggests; else the one of the file's key style.
  */
-export const TARGET_SPELLINGS: Record<'long' | 'short' | 'words', Record<PredictionTarget, string>> = {
+export const TARGET_SPELLINGS: Record<'long' | 'short' | 'words' | 'pred', Record<PredictionTarget, string>> = {
   // prediction_type style: epsilon, v_prediction, sample.
   long: { epsilon: 'epsilon', v: 'v_prediction', x0: 'sample', flow: 'flow' },
   // parameterization style: eps, v, x0.
   short: { epsilon: 'eps', v: 'v', x0: 'x0', flow: 'flow' },
-  // objective style: noise, velocity, x_start.
+  // noise, velocity, x_start.
   words: { epsilon: 'noise', v: 'velocity', x0: 'x_start', flow: 'flow' },
+  // objective style: pred_noise, pred_v, pred_x0.
+  pred: { epsilon: 'pred_noise', v: 'pred_v', x0: 'pred_x0', flow: 'pred_flow' },
 };
 
 /** Keys whose value family is known from the key alone (compared case- and separator-insensitively). */
 const TARGET_FAMILY_BY_KEY: Record<string, keyof typeof TARGET_SPELLINGS> = {
   predictiontype: 'long',
   parameterization: 'short',
-  objective: 'words',
+  objective: 'pred',
 };
 
 export const SCHEDULE_SPELLINGS: Record<'long' | 'short', Record<BetaScheduleKind, string>> = {
