@@ -13,7 +13,9 @@ import type { FieldSource, Setup } from '../setup/types';
 import { editsConflict, sortEdits } from './apply';
 import { commentSpans, rangeHasComment } from './comments';
 import { formatBoolean, formatNumber, formatString, requote, type QuoteStyle } from './format';
-import { INTEGER_CONCEPTS, insertKeyFor, spellEnum, targetAsBoolean } from './spellings';
+import { KEY_ALIASES } from '../fields/aliases';
+import { normalizeKeySegment } from '../fields/normalize';
+import { INSERT_KEY, INTEGER_CONCEPTS, insertKeyFor, spellEnum, targetAsBoolean } from './spellings';
 import { isBlank, keySpanWithQuotes, lineBreakOf, lineStartOf, nextLineStart } from './text';
 
 /** Thrown inside rendering to give up on the whole fix. */
@@ -88,10 +90,31 @@ class Renderer {
   private set(concept: Concept, value: ConceptValues[Concept]): void {
     const source = this.sourceOf(concept);
     if (source) this.replace(concept, value, source);
-    else this.queueInsert(concept, value);
+    else {
+      const empty = this.emptyEntryFor(concept);
+      if (empty) this.replace(concept, value, empty);
+      else this.queueInsert(concept, value);
+    }
   }
 
-  private replace(concept: Concept, value: ConceptValues[Concept], source: FieldSource): void {
+  /**
+   * `key:` with nothing after it is not a setting to the reader, but it is where the user meant the
+   * value to go: an empty entry whose key is a spelling of the concept.
+   */
+  private emptyEntryFor(concept: Concept): { entry: LocatedEntry; key: string } | null {
+    const spellings = new Set<string>();
+    for (const alias of KEY_ALIASES[concept] ?? []) {
+      if (alias.kind === 'key' && !alias.spelling.includes('.')) spellings.add(normalizeKeySegment(alias.spelling));
+    }
+    for (const key of Object.values(INSERT_KEY[concept] ?? {})) spellings.add(normalizeKeySegment(key));
+    const found: LocatedEntry[] = [];
+    walkMaps(this.documentRoot(), (map) => {
+      for (const entry of map.entries) if (entry.value === null && spellings.has(normalizeKeySegment(entry.key))) found.push(entry);
+    });
+    return found.length === 1 ? { entry: found[0], key: found[0].key } : null;
+  }
+
+  private replace(concept: Concept, value: ConceptValues[Concept], source: Pick<FieldSource, 'entry' | 'key'>): void {
     const node = source.entry.value;
     const text = this.text;
     if (concept === 'betas') {
@@ -542,6 +565,21 @@ function commaAfter(text: string, pos: number, comments: { start: number; end: n
     p = comment.end;
   }
   return -1;
+}
+
+/** Visits every map of a tree. Iterative and bounded. */
+function walkMaps(root: LocatedNode | null, visit: (map: LocatedMap) => void): void {
+  const stack: LocatedNode[] = root ? [root] : [];
+  let budget = 100_000;
+  while (stack.length > 0 && budget-- > 0) {
+    const node = stack.pop()!;
+    if (node.kind === 'map') {
+      visit(node);
+      for (const e of node.entries) if (e.value && e.value.kind !== 'scalar') stack.push(e.value);
+    } else if (node.kind === 'list') {
+      for (const item of node.items) if (item.kind !== 'scalar') stack.push(item);
+    }
+  }
 }
 
 /** Visits scalars (map values and list items) until `visit` returns true. Iterative and bounded. */
