@@ -26,6 +26,11 @@ export interface LocatedEntry {
   keySpan: Span;
   /** null for `key:` with no value. */
   value: LocatedNode | null;
+  /**
+   * When the value is written as a YAML alias (`key: *name`): the span of the alias text. `value`
+   * is then the anchored node itself (shared), whose span points at the anchor.
+   */
+  aliasSpan?: Span;
   /** From the start of the key to the end of the value (no trailing comment or newline). */
   span: Span;
 }
@@ -57,17 +62,27 @@ export interface ParseProblem {
   message: string;
   span: Span;
   severity: 'error' | 'warning';
-  /** Short machine-readable code, e.g. 'yaml-syntax', 'json-syntax', 'too-deep', 'too-large'. */
+  /**
+   * Short machine-readable code: 'yaml-syntax', 'yaml-warning', 'json-syntax', 'json-comment',
+   * 'json-trailing-comma', 'too-large', 'too-deep', 'too-long', 'alias-limit', 'alias-cycle',
+   * 'custom-tag', 'duplicate-key', 'bad-suppression', 'internal-error'.
+   */
   code: string;
 }
 
 /** A `noiselint: allow ...` comment. */
 export interface Suppression {
-  /** 'next-line' suppresses findings that start on `line + 1`; 'file' suppresses everywhere. */
+  /**
+   * 'next-line' suppresses findings that start on `targetLine`; 'file' suppresses everywhere.
+   * (`targetLine` is usually `line + 1`, but skips further comment lines, and equals `line` for a
+   * comment at the end of a line of content.)
+   */
   scope: 'next-line' | 'file';
   /** 0-based line of the comment. */
   line: number;
-  /** Rule ids, or ['*'] for all rules. */
+  /** 0-based line whose findings a 'next-line' suppression silences. */
+  targetLine: number;
+  /** Rule ids (lower case), or ['*'] for all rules. */
   rules: string[];
 }
 

@@ -11,7 +11,10 @@ export interface FieldSource {
   /** The map that holds the entry (used to insert siblings). */
   parent: LocatedMap;
   keySpan: Span;
-  /** Span of the value node; for `key:` with no value, the end of the key. */
+  /**
+   * Span of the value as written: the value node, or the alias text for `key: *name`; for `key:`
+   * with no value, an empty span just past the colon.
+   */
   valueSpan: Span;
 }
 
@@ -21,6 +24,12 @@ export interface ResolvedField<C extends Concept = Concept> {
   /** True when the file does not set it and the setup assumed a default. */
   assumed: boolean;
   source: FieldSource | null;
+  /**
+   * Why the value is what it is when that is not obvious from the text: the basis of an assumed
+   * default, or a reading that differs from the literal spelling (e.g. `linear` next to
+   * `linear_start` read as scaled_linear). One sentence, for hover and explain output.
+   */
+  note?: string;
 }
 
 export type ValueProblemKind =
@@ -65,6 +74,11 @@ export interface Setup {
    * 'snake' (num_train_timesteps), 'camel' (numTrainTimesteps), 'short' (timesteps, linear_start).
    */
   keyStyle: 'snake' | 'camel' | 'short';
+  /**
+   * Keys that name a concept but hold null (`trained_betas: null`, `guidance_rescale:`). They count
+   * as absent; a fix that sets the concept should fill this key instead of inserting a new one.
+   */
+  nullKeys?: { [C in Concept]?: FieldSource };
 }
 
 /** Typed accessor; returns undefined when the concept is neither set nor assumed. */

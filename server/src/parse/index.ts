@@ -1,0 +1,4 @@
+export * from './types';
+export { parseText, formatFromPath } from './parseText';
+export { LineIndex, type Position } from './lineIndex';
+export { detectLineEnding, hasBom } from './textInfo';

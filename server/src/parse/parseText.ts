@@ -1,0 +1,72 @@
+/** Entry point of the parse layer: text -> ParsedFile. Never throws. */
+import { LineIndex } from './lineIndex';
+import { readJson } from './json';
+import { firstLine, resolveLimits, utf8LengthExceeds, type SourceComment } from './shared';
+import { readSuppressions } from './suppressions';
+import { detectLineEnding, hasBom } from './textInfo';
+import type { ParsedDocument, ParsedFile, ParseLimits, ParseProblem, SourceFormat } from './types';
+import { readYaml } from './yaml';
+
+/** Format from a file name or URI: `.yaml`/`.yml`, `.json`, `.jsonc` (case-insensitive). */
+export function formatFromPath(path: string): SourceFormat | null {
+  const clean = path.replace(/[?#].*$/, '');
+  const m = /\.([A-Za-z]+)$/.exec(clean);
+  if (!m) return null;
+  switch (m[1].toLowerCase()) {
+    case 'yaml':
+    case 'yml':
+      return 'yaml';
+    case 'json':
+      return 'json';
+    case 'jsonc':
+      return 'jsonc';
+    default:
+      return null;
+  }
+}
+
+export function parseText(text: string, format: SourceFormat, limits?: Partial<ParseLimits>): ParsedFile {
+  const safeText = typeof text === 'string' ? text : '';
+  const bom = hasBom(safeText);
+  const base = { format, text: safeText, bom, lineEnding: detectLineEnding(safeText) };
+  let documents: ParsedDocument[] = [];
+  const problems: ParseProblem[] = [];
+  let comments: SourceComment[] = [];
+  try {
+    const lim = resolveLimits(limits);
+    if (utf8LengthExceeds(safeText, lim.maxFileBytes)) {
+      problems.push({
+        code: 'too-large',
+        severity: 'error',
+        span: { start: 0, end: 0 },
+        message: `File is larger than ${lim.maxFileBytes} bytes; it is not read.`,
+      });
+      return { ...base, documents: [], problems, suppressions: [] };
+    }
+    const read = format === 'yaml' ? readYaml(safeText, lim) : readJson(safeText, format, lim, bom);
+    documents = read.documents;
+    problems.push(...read.problems);
+    comments = read.comments;
+  } catch (e) {
+    documents = [];
+    problems.push(internalProblem(e));
+  }
+  let suppressions: ParsedFile['suppressions'] = [];
+  try {
+    suppressions = readSuppressions(safeText, comments, new LineIndex(safeText), problems);
+  } catch (e) {
+    problems.push(internalProblem(e));
+  }
+  problems.sort((a, b) => a.span.start - b.span.start || a.span.end - b.span.end);
+  return { ...base, documents, problems, suppressions };
+}
+
+function internalProblem(e: unknown): ParseProblem {
+  const msg = e instanceof Error ? e.message : String(e);
+  return {
+    code: 'internal-error',
+    severity: 'error',
+    span: { start: 0, end: 0 },
+    message: `The file could not be read: ${firstLine(msg)}`,
+  };
+}

@@ -1,0 +1,527 @@
+/**
+ * YAML text -> located documents.
+ *
+ * Two passes over the `yaml` library: its CST parser (iterative, safe at any depth) finds comments
+ * and regions nested deeper than the limit; those regions are blanked (same length, line breaks
+ * kept) before the library's composer, which recurses per level, builds the documents. The
+ * composed nodes are then copied into our located tree with their ranges.
+ */
+import { Composer, Parser, isAlias, isMap, isPair, isScalar, isSeq } from 'yaml';
+import type { CST, Node as YamlNode, Scalar, YAMLMap, YAMLSeq } from 'yaml';
+import type {
+  LocatedEntry,
+  LocatedList,
+  LocatedMap,
+  LocatedNode,
+  LocatedScalar,
+  ParsedDocument,
+  ParseLimits,
+  ParseProblem,
+  ScalarValue,
+  Span,
+} from './types';
+import {
+  blankRegions,
+  dropDuplicateKeys,
+  firstLine,
+  placeholderFor,
+  shorten,
+  tooDeepProblem,
+  tooLongProblem,
+  type Cut,
+  type SourceComment,
+} from './shared';
+
+export interface YamlReadResult {
+  documents: ParsedDocument[];
+  problems: ParseProblem[];
+  comments: SourceComment[];
+}
+
+const CORE_TAGS = new Set(
+  ['str', 'int', 'float', 'bool', 'null', 'map', 'seq'].map((t) => `tag:yaml.org,2002:${t}`),
+);
+
+export function readYaml(text: string, limits: ParseLimits): YamlReadResult {
+  const problems: ParseProblem[] = [];
+  const tokens = Array.from(new Parser().parse(text));
+  const { comments, cuts } = scanCst(tokens, limits.maxNesting);
+  for (const cut of cuts) problems.push(tooDeepProblem(cut, limits.maxNesting));
+
+  const composeTokens = cuts.length === 0 ? tokens : Array.from(new Parser().parse(blankRegions(text, cuts, '~')));
+  const composer = new Composer({
+    prettyErrors: false,
+    uniqueKeys: false,
+    merge: false,
+    intAsBigInt: false,
+    keepSourceTokens: false,
+  });
+  const docs = Array.from(composer.compose(composeTokens, false, text.length));
+  if (docs.length === 0) {
+    const info = composer.streamInfo();
+    for (const e of info.errors) problems.push(libProblem(e, 'error', text));
+    for (const w of info.warnings) problems.push(libProblem(w, 'warning', text));
+  }
+
+  const cutStarts = new Map(cuts.map((c) => [c.start, c]));
+  const documents = docs.map((doc, index) => {
+    for (const e of doc.errors) problems.push(libProblem(e, 'error', text));
+    for (const w of doc.warnings) problems.push(libProblem(w, 'warning', text));
+    const converter = new DocumentConverter(text, limits, cutStarts, problems);
+    const contents = doc.contents as YamlNode | null;
+    const root = contents && !isEmptyScalar(contents) ? converter.convertRoot(contents) : null;
+    const [start, , end] = doc.range;
+    return { index, root, span: { start, end } } satisfies ParsedDocument;
+  });
+  return { documents, problems, comments };
+}
+
+/** A value that is not written at all (`key:`, an empty document), as opposed to `~` or `null`. */
+function isEmptyScalar(n: YamlNode): boolean {
+  return isScalar(n) && n.value === null && !!n.range && n.range[0] === n.range[1] && !n.tag;
+}
+
+interface LibError {
+  code: string;
+  message: string;
+  pos: [number, number];
+}
+
+function libProblem(e: LibError, severity: 'error' | 'warning', text: string): ParseProblem {
+  const span = { start: e.pos[0], end: Math.max(e.pos[0], e.pos[1]) };
+  if (e.code === 'TAG_RESOLVE_FAILED') {
+    const tag = text.slice(span.start, span.end).split(/\s/, 1)[0] || 'tag';
+    return {
+      code: 'custom-tag',
+      severity: 'warning',
+      span,
+      message: `Custom tag ${shorten(tag, 80)} is not applied; the value is read as plain data.`,
+    };
+  }
+  if (e.code === 'RESOURCE_EXHAUSTION') {
+    return { code: 'too-deep', severity: 'warning', span, message: `YAML nesting too deep to read: ${firstLine(e.message)}` };
+  }
+  return {
+    code: severity === 'error' ? 'yaml-syntax' : 'yaml-warning',
+    severity,
+    span,
+    message: firstLine(e.message),
+  };
+}
+
+// ---------------------------------------------------------------------------------------------
+// CST pass: comments and too-deep regions, with an explicit stack (the CST can be arbitrarily deep).
+
+type AnyToken = CST.Token | CST.SourceToken;
+
+function isCollectionToken(t: AnyToken): t is CST.BlockMap | CST.BlockSequence | CST.FlowCollection {
+  return t.type === 'block-map' || t.type === 'block-seq' || t.type === 'flow-collection';
+}
+
+/** Pushes the child tokens of `t` (in reverse so that they pop in source order). */
+function children(t: AnyToken): AnyToken[] {
+  const out: AnyToken[] = [];
+  switch (t.type) {
+    case 'document':
+      out.push(...t.start);
+      if (t.value) out.push(t.value);
+      if (t.end) out.push(...t.end);
+      break;
+    case 'doc-end':
+      if (t.end) out.push(...t.end);
+      break;
+    case 'block-map':
+    case 'block-seq':
+    case 'flow-collection':
+      if (t.type === 'flow-collection') out.push(t.start);
+      for (const item of t.items as CST.CollectionItem[]) {
+        out.push(...item.start);
+        if (item.key) out.push(item.key);
+        if (item.sep) out.push(...item.sep);
+        if (item.value) out.push(item.value);
+      }
+      if (t.type === 'flow-collection') out.push(...t.end);
+      break;
+    case 'block-scalar':
+      out.push(...(t.props as AnyToken[]));
+      break;
+    case 'alias':
+    case 'scalar':
+    case 'single-quoted-scalar':
+    case 'double-quoted-scalar':
+      if (t.end) out.push(...t.end);
+      break;
+    default:
+      break;
+  }
+  return out;
+}
+
+function scanCst(tokens: CST.Token[], maxNesting: number): { comments: SourceComment[]; cuts: Cut[] } {
+  const comments: SourceComment[] = [];
+  const cuts: Cut[] = [];
+  const stack: { t: AnyToken; depth: number }[] = [];
+  for (let i = tokens.length - 1; i >= 0; i--) stack.push({ t: tokens[i], depth: 0 });
+  while (stack.length > 0) {
+    const { t, depth } = stack.pop()!;
+    if (t.type === 'comment') {
+      collectComment(t as CST.SourceToken, comments);
+      continue;
+    }
+    let childDepth = depth;
+    if (isCollectionToken(t)) {
+      childDepth = depth + 1;
+      if (childDepth > maxNesting) {
+        const cut = extentOf(t, comments);
+        if (cut) cuts.push(cut);
+        continue;
+      }
+    }
+    const kids = children(t);
+    for (let i = kids.length - 1; i >= 0; i--) stack.push({ t: kids[i], depth: childDepth });
+  }
+  cuts.sort((a, b) => a.start - b.start);
+  comments.sort((a, b) => a.start - b.start);
+  return { comments, cuts };
+}
+
+function collectComment(t: CST.SourceToken, comments: SourceComment[]): void {
+  comments.push({ start: t.offset, end: t.offset + t.source.length, text: t.source.replace(/^#/, '') });
+}
+
+/** Source extent of a subtree: first content token to the end of its last token. */
+function extentOf(root: AnyToken, comments: SourceComment[]): Cut | null {
+  let start = Infinity;
+  let end = -Infinity;
+  const stack: AnyToken[] = [root];
+  while (stack.length > 0) {
+    const t = stack.pop()!;
+    if ('source' in t && typeof t.source === 'string') {
+      if (t.type === 'comment') collectComment(t as CST.SourceToken, comments);
+      else if (t.type !== 'space' && t.type !== 'newline' && t.source.length > 0) {
+        start = Math.min(start, t.offset);
+        end = Math.max(end, t.offset + t.source.length);
+      }
+    }
+    stack.push(...children(t));
+  }
+  return Number.isFinite(start) && end > start ? { start, end } : null;
+}
+
+// ---------------------------------------------------------------------------------------------
+// Composed document -> located tree.
+
+interface NodeStats {
+  /** Collection levels at and below this node (a scalar is 0). */
+  height: number;
+  /** Nodes in the subtree, counting alias targets in full. */
+  nodes: number;
+  /** Alias expansions in the subtree, counting nested ones in full. */
+  aliases: number;
+}
+
+interface Converted {
+  node: LocatedNode;
+  stats: NodeStats;
+}
+
+const SCALAR_STATS: NodeStats = { height: 0, nodes: 1, aliases: 0 };
+
+class DocumentConverter {
+  private readonly memo = new Map<YamlNode, Converted>();
+  private readonly inProgress = new Set<YamlNode>();
+  private readonly anchors = new Map<string, { start: number; node: YamlNode }[]>();
+  private aliasExpansions = 0;
+  private aliasNodes = 0;
+  private readonly aliasNodeBudget: number;
+  private aliasLimitProblem: ParseProblem | null = null;
+  private skippedAliases = 0;
+
+  constructor(
+    private readonly text: string,
+    private readonly limits: ParseLimits,
+    private readonly cutStarts: Map<number, Cut>,
+    private readonly problems: ParseProblem[],
+  ) {
+    this.aliasNodeBudget = Math.max(1, limits.maxAliasCount) * 1000;
+  }
+
+  convertRoot(node: YamlNode): LocatedNode | null {
+    this.indexAnchors(node);
+    const result = this.convert(node, 0).node;
+    if (this.aliasLimitProblem && this.skippedAliases > 1) {
+      this.aliasLimitProblem.message += ` (${this.skippedAliases} aliases not expanded)`;
+    }
+    return result;
+  }
+
+  /** Anchors by name with the offset of their node, for "last anchor before the alias" lookup. */
+  private indexAnchors(root: YamlNode): void {
+    const stack: unknown[] = [root];
+    while (stack.length > 0) {
+      const n = stack.pop();
+      if (isPair(n)) {
+        stack.push(n.key, n.value);
+        continue;
+      }
+      if (!n || typeof n !== 'object' || !('range' in n)) continue;
+      const node = n as YamlNode;
+      if (node.anchor && node.range) {
+        const list = this.anchors.get(node.anchor) ?? [];
+        list.push({ start: node.range[0], node });
+        this.anchors.set(node.anchor, list);
+      }
+      if (isMap(node) || isSeq(node)) stack.push(...(node.items as unknown[]));
+    }
+    for (const list of this.anchors.values()) list.sort((a, b) => a.start - b.start);
+  }
+
+  private spanOf(node: { range?: [number, number, number] | null }): Span {
+    const r = node.range;
+    if (!r) return { start: 0, end: 0 };
+    return { start: r[0], end: Math.max(r[0], r[1]) };
+  }
+
+  private convert(node: YamlNode, depth: number): Converted {
+    const done = this.memo.get(node);
+    if (done) return done;
+    let result: Converted;
+    if (isAlias(node)) {
+      result = this.convertAlias(node, depth);
+      return result; // aliases are not memoised: each occurrence is budgeted
+    }
+    this.inProgress.add(node);
+    try {
+      if (isMap(node)) result = this.convertMap(node as YAMLMap, depth);
+      else if (isSeq(node)) result = this.convertSeq(node as YAMLSeq, depth);
+      else result = { node: this.convertScalar(node as Scalar), stats: SCALAR_STATS };
+    } finally {
+      this.inProgress.delete(node);
+    }
+    this.memo.set(node, result);
+    return result;
+  }
+
+  private convertScalar(node: Scalar): LocatedScalar {
+    let span = this.spanOf(node);
+    const cut = this.cutStarts.get(span.start);
+    if (cut) return placeholderFor(this.text, cut);
+    let value: ScalarValue;
+    const tag = node.tag;
+    const style = scalarStyle(node.type);
+    if (tag && !CORE_TAGS.has(tag) && style === 'plain' && typeof node.source === 'string') {
+      // A custom tag is never applied: read the text as the core schema would.
+      value = resolveCorePlain(node.source);
+    } else {
+      value = toScalarValue(node.value);
+    }
+    if (style === 'block') {
+      // Keep the trailing line break out of the span (entries end at the value's last character).
+      let end = span.end;
+      while (end > span.start && /[\r\n \t]/.test(this.text[end - 1])) end--;
+      span = { start: span.start, end };
+    }
+    return { kind: 'scalar', value, raw: this.text.slice(span.start, span.end), style, span };
+  }
+
+  private convertMap(node: YAMLMap, depth: number): Converted {
+    const span = this.spanOf(node);
+    if (depth + 1 > this.limits.maxNesting) return this.tooDeep(span);
+    const entries: LocatedEntry[] = [];
+    let height = 1;
+    let nodes = 1;
+    let aliases = 0;
+    for (const pair of node.items) {
+      const keyNode = pair.key as YamlNode | null;
+      const { key, keySpan } = this.keyOf(keyNode, pair.value as YamlNode | null, span);
+      let value: LocatedNode | null = null;
+      const v = pair.value as YamlNode | null;
+      if (v && !isEmptyScalar(v)) {
+        const c = this.convert(v, depth + 1);
+        value = c.node;
+        height = Math.max(height, 1 + c.stats.height);
+        nodes += c.stats.nodes;
+        aliases += c.stats.aliases;
+      }
+      // An alias value shares its anchor's node (and span); the entry still ends at the alias.
+      const end = value ? (isAlias(v) && v?.range ? v.range[1] : value.span.end) : this.afterColon(keySpan.end);
+      const entry: LocatedEntry = { key, keySpan, value, span: { start: keySpan.start, end: Math.max(end, keySpan.end) } };
+      if (value && isAlias(v) && v.range) entry.aliasSpan = { start: v.range[0], end: v.range[1] };
+      entries.push(entry);
+    }
+    const located: LocatedMap = {
+      kind: 'map',
+      entries: dropDuplicateKeys(entries, this.problems),
+      style: node.flow ? 'flow' : 'block',
+      span: node.flow ? span : trimBlockSpan(span, entries),
+    };
+    return { node: located, stats: { height, nodes, aliases } };
+  }
+
+  private convertSeq(node: YAMLSeq, depth: number): Converted {
+    const span = this.spanOf(node);
+    if (depth + 1 > this.limits.maxNesting) return this.tooDeep(span);
+    const items: LocatedNode[] = [];
+    let height = 1;
+    let nodes = 1;
+    let aliases = 0;
+    const all = node.items as YamlNode[];
+    const count = Math.min(all.length, this.limits.maxListLength);
+    for (let i = 0; i < count; i++) {
+      const item = all[i];
+      if (!item) {
+        items.push({ kind: 'scalar', value: null, raw: '', style: 'plain', span: { start: span.start, end: span.start } });
+        continue;
+      }
+      const c = this.convert(item, depth + 1);
+      items.push(c.node);
+      height = Math.max(height, 1 + c.stats.height);
+      nodes += c.stats.nodes;
+      aliases += c.stats.aliases;
+    }
+    if (all.length > count) {
+      const first = all[count] as YamlNode | undefined;
+      const from = first?.range ? first.range[0] : span.start;
+      this.problems.push(tooLongProblem({ start: from, end: span.end }, all.length, this.limits.maxListLength));
+    }
+    const located: LocatedList = {
+      kind: 'list',
+      items,
+      style: node.flow ? 'flow' : 'block',
+      span: node.flow ? span : trimBlockSpan(span, items),
+    };
+    return { node: located, stats: { height, nodes, aliases } };
+  }
+
+  private keyOf(keyNode: YamlNode | null, valueNode: YamlNode | null, mapSpan: Span): { key: string; keySpan: Span } {
+    if (!keyNode) {
+      const at = valueNode?.range?.[0] ?? mapSpan.start;
+      return { key: '', keySpan: { start: at, end: at } };
+    }
+    let target: YamlNode | undefined = keyNode;
+    if (isAlias(keyNode)) target = this.lookupAnchor(keyNode.source, keyNode.range?.[0] ?? 0);
+    const keySpan = this.spanOf(keyNode);
+    if (target && isScalar(target)) {
+      const v = target.value;
+      const key = typeof v === 'string' ? v : String(toScalarValue(v));
+      return { key, keySpan };
+    }
+    return { key: shorten(this.text.slice(keySpan.start, keySpan.end), 200), keySpan };
+  }
+
+  /** End of `key:` when there is no value: past the colon if it follows the key. */
+  private afterColon(keyEnd: number): number {
+    let i = keyEnd;
+    while (i < this.text.length && (this.text[i] === ' ' || this.text[i] === '\t')) i++;
+    return this.text[i] === ':' ? i + 1 : keyEnd;
+  }
+
+  private lookupAnchor(name: string, before: number): YamlNode | undefined {
+    const list = this.anchors.get(name);
+    if (!list) return undefined;
+    let found: YamlNode | undefined;
+    for (const a of list) {
+      if (a.start < before) found = a.node;
+      else break;
+    }
+    return found;
+  }
+
+  private convertAlias(node: YamlNode & { source: string }, depth: number): Converted {
+    const span = this.spanOf(node);
+    const target = this.lookupAnchor(node.source, span.start);
+    const empty = (): Converted => ({ node: placeholderFor(this.text, span), stats: SCALAR_STATS });
+    if (!target) {
+      this.problems.push({
+        code: 'yaml-syntax',
+        severity: 'error',
+        span,
+        message: `Alias *${shorten(node.source, 60)} has no anchor &${shorten(node.source, 60)} before it.`,
+      });
+      return empty();
+    }
+    if (this.inProgress.has(target)) {
+      this.problems.push({
+        code: 'alias-cycle',
+        severity: 'error',
+        span,
+        message: `Alias *${shorten(node.source, 60)} refers to a node that contains it; read as an empty value.`,
+      });
+      return empty();
+    }
+    const c = this.convert(target, depth);
+    if (depth + c.stats.height > this.limits.maxNesting) {
+      this.problems.push(tooDeepProblem(span, this.limits.maxNesting));
+      return empty();
+    }
+    const expansions = this.aliasExpansions + 1 + c.stats.aliases;
+    const nodes = this.aliasNodes + c.stats.nodes;
+    if (expansions > this.limits.maxAliasCount || nodes > this.aliasNodeBudget) {
+      this.skippedAliases++;
+      if (!this.aliasLimitProblem) {
+        this.aliasLimitProblem = {
+          code: 'alias-limit',
+          severity: 'warning',
+          span,
+          message:
+            `YAML aliases expand beyond the limit (${this.limits.maxAliasCount} expansions or ` +
+            `${this.aliasNodeBudget} nodes); this alias and later ones are read as empty values.`,
+        };
+        this.problems.push(this.aliasLimitProblem);
+      }
+      return empty();
+    }
+    this.aliasExpansions = expansions;
+    this.aliasNodes = nodes;
+    return { node: c.node, stats: { height: c.stats.height, nodes: c.stats.nodes, aliases: 1 + c.stats.aliases } };
+  }
+
+  private tooDeep(span: Span): Converted {
+    this.problems.push(tooDeepProblem(span, this.limits.maxNesting));
+    return { node: placeholderFor(this.text, span), stats: SCALAR_STATS };
+  }
+}
+
+/** A block collection ends with its last item, not with the comments and blank lines after it. */
+function trimBlockSpan(span: Span, items: { span: Span }[]): Span {
+  const last = items[items.length - 1];
+  if (!last) return span;
+  return { start: span.start, end: Math.max(span.start, Math.min(span.end, last.span.end)) };
+}
+
+function scalarStyle(type: Scalar.Type | undefined): LocatedScalar['style'] {
+  switch (type) {
+    case 'QUOTE_SINGLE':
+      return 'single';
+    case 'QUOTE_DOUBLE':
+      return 'double';
+    case 'BLOCK_FOLDED':
+    case 'BLOCK_LITERAL':
+      return 'block';
+    default:
+      return 'plain';
+  }
+}
+
+function toScalarValue(v: unknown): ScalarValue {
+  if (v === null || v === undefined) return null;
+  if (typeof v === 'string' || typeof v === 'number' || typeof v === 'boolean') return v;
+  if (typeof v === 'bigint') return Number(v);
+  if (v instanceof Date) return v.toISOString();
+  return String(v);
+}
+
+/** YAML 1.2 core schema resolution of a plain scalar (used when a custom tag is ignored). */
+export function resolveCorePlain(source: string): ScalarValue {
+  const s = source.trim();
+  if (s === '' || s === '~' || /^(null|Null|NULL)$/.test(s)) return null;
+  if (/^(true|True|TRUE)$/.test(s)) return true;
+  if (/^(false|False|FALSE)$/.test(s)) return false;
+  if (/^[-+]?[0-9]+$/.test(s)) return Number(s);
+  if (/^0o[0-7]+$/.test(s)) return parseInt(s.slice(2), 8);
+  if (/^0x[0-9a-fA-F]+$/.test(s)) return parseInt(s.slice(2), 16);
+  if (/^[-+]?(\.[0-9]+|[0-9]+(\.[0-9]*)?)([eE][-+]?[0-9]+)?$/.test(s)) return Number(s);
+  if (/^[-+]?\.(inf|Inf|INF)$/.test(s)) return s.startsWith('-') ? -Infinity : Infinity;
+  if (/^\.(nan|NaN|NAN)$/.test(s)) return NaN;
+  return s;
+}

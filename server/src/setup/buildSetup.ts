@@ -1,0 +1,347 @@
+/**
+ * Located document -> one typed Setup.
+ *
+ * Recognition (isDiffusionConfig), in order:
+ *  1. a schedule concept set under a specific key (num_train_timesteps, beta_schedule,
+ *     prediction_type, trained_betas, rescale_betas_zero_snr, sigma_min, flow_shift, ...), or
+ *  2. two different schedule concepts under any keys (`timesteps: 1000` + `schedule: cosine`), or
+ *  3. one schedule concept under a generic key together with a sampler or a sampling step count,
+ *  4. or a sampling step count together with a sampler or a guidance scale.
+ * A value with a problem still counts as set (the key is there). Nothing else makes a document a
+ * diffusion config, so CI workflows, package manifests and compiler settings are left alone.
+ *
+ * Role: 'training' when the document sets a training concept (offset noise, min-SNR gamma,
+ * resolution) or has a top-level or second-level section named train / training / trainer /
+ * finetune; 'sampling' when it sets sampling steps, guidance scale or rescale, or a sampler;
+ * 'both' when it has signs of both or of neither.
+ *
+ * Duplicates: a concept found twice (two sections, or two spellings) keeps the first in document
+ * order; a 'duplicate' problem marks the later one when the values differ.
+ */
+import type { Concept, ConceptValues } from '../fields/concepts';
+import { findConcepts, type ConceptHit } from '../fields/findConcepts';
+import { keySegments, normalizeKeySegment } from '../fields/normalize';
+import type { LocatedNode, ParsedDocument } from '../parse/types';
+import {
+  BETA_SCHEDULE_NOTE,
+  DEFAULT_BETA_RANGE,
+  DEFAULT_BETA_SCHEDULE,
+  DEFAULT_TRAIN_STEPS,
+  GUIDANCE_RESCALE_NOTE,
+  LATENT_KEY_HINTS,
+  OFFSET_NOTE,
+  SHORT_FAMILY_DEFAULT_NOTE,
+  SHORT_FAMILY_LINEAR_NOTE,
+  SHORT_FAMILY_RANGE,
+  SPACING_NOTE,
+  TARGET_NOTE_EPSILON,
+  TARGET_NOTE_FLOW,
+  TRAIN_STEPS_NOTE,
+  ZERO_SNR_NOTE,
+} from './defaults';
+import type { ConfigRole, FieldSource, ResolvedField, Setup, SetupFields, ValueProblem } from './types';
+
+export interface BuildSetupOptions {
+  /** Extra key spellings per concept (project file); dotted path suffixes allowed. */
+  extraAliases?: Partial<Record<Concept, string[]>>;
+  /** Project setting for latentSpace; when absent it is inferred (see inferLatentSpace). */
+  latentSpaceDefault?: boolean;
+}
+
+export const SCHEDULE_CONCEPTS: readonly Concept[] = [
+  'trainSteps',
+  'betaSchedule',
+  'betas',
+  'betaStart',
+  'betaEnd',
+  'predictionTarget',
+  'timestepSpacing',
+  'zeroTerminalSnr',
+  'sigmaMin',
+  'sigmaMax',
+  'flowShift',
+];
+const TRAINING_CONCEPTS: readonly Concept[] = ['offsetNoise', 'minSnrGamma', 'resolution'];
+const SAMPLING_CONCEPTS: readonly Concept[] = ['sampleSteps', 'guidanceScale', 'guidanceRescale', 'sampler'];
+const TRAINING_SECTIONS = new Set(['train', 'training', 'trainer', 'finetune', 'finetuning']);
+
+export function buildSetup(doc: ParsedDocument, opts: BuildSetupOptions = {}): Setup {
+  const rootMap = doc.root && doc.root.kind === 'map' ? doc.root : null;
+  const empty: Setup = {
+    documentIndex: doc.index,
+    isDiffusionConfig: false,
+    role: 'both',
+    fields: {},
+    assumed: [],
+    problems: [],
+    documentSpan: { ...doc.span },
+    rootMap,
+    keyStyle: 'snake',
+  };
+  try {
+    return build(doc, opts, empty);
+  } catch {
+    // A setup is advisory: an unexpected failure yields "not a diffusion config", never a crash.
+    return empty;
+  }
+}
+
+interface Decided {
+  hit: ConceptHit;
+  signature: string;
+}
+
+function build(doc: ParsedDocument, opts: BuildSetupOptions, setup: Setup): Setup {
+  const hits = findConcepts(doc.root, opts.extraAliases);
+  const fields: SetupFields = {};
+  const problems: ValueProblem[] = [];
+  const decided = new Map<Concept, Decided>();
+  const nullKeys: NonNullable<Setup['nullKeys']> = {};
+
+  for (const hit of hits) {
+    if (hit.status === 'unset') {
+      if (!nullKeys[hit.concept]) (nullKeys as Record<string, FieldSource>)[hit.concept] = toSource(hit);
+      continue;
+    }
+    const signature = signatureOf(hit);
+    const first = decided.get(hit.concept);
+    if (!first) {
+      decided.set(hit.concept, { hit, signature });
+      if (hit.status === 'ok') {
+        setField(fields, hit.concept, hit.value as ConceptValues[Concept], toSource(hit), hit.note);
+      } else if (hit.problem) {
+        const p: ValueProblem = { concept: hit.concept, kind: hit.problem.kind, source: toSource(hit), message: hit.problem.message };
+        if (hit.problem.suggestion !== undefined) p.suggestion = hit.problem.suggestion;
+        problems.push(p);
+      }
+      continue;
+    }
+    if (first.hit.source.entry === hit.source.entry || first.signature === signature) continue;
+    problems.push({
+      concept: hit.concept,
+      kind: 'duplicate',
+      source: toSource(hit),
+      message:
+        `${hit.source.path} sets ${hit.concept} to ${shown(hit)}, but ${first.hit.source.path} ` +
+        `already sets it to ${shown(first.hit)}; the first is used`,
+    });
+  }
+
+  applyShortFamilyReading(fields, decided);
+
+  const present = (c: Concept) => decided.has(c);
+  const specific = (c: Concept) => {
+    const d = decided.get(c);
+    return d !== undefined && (d.hit.alias.kind === 'key' || d.hit.extra);
+  };
+  const scheduleCount = SCHEDULE_CONCEPTS.filter(present).length;
+  const isDiffusionConfig =
+    SCHEDULE_CONCEPTS.some(specific) ||
+    scheduleCount >= 2 ||
+    (scheduleCount >= 1 && (present('sampler') || present('sampleSteps'))) ||
+    (present('sampleSteps') && (present('sampler') || present('guidanceScale')));
+
+  setup.isDiffusionConfig = isDiffusionConfig;
+  setup.role = roleOf(doc.root, present);
+  setup.fields = fields;
+  setup.problems = problems;
+  setup.keyStyle = keyStyleOf(hits);
+  if (Object.keys(nullKeys).length > 0) setup.nullKeys = nullKeys;
+  if (isDiffusionConfig) assumeDefaults(setup, decided, doc.root, opts);
+  return setup;
+}
+
+function toSource(hit: ConceptHit): FieldSource {
+  const s = hit.source;
+  return { key: s.key, path: s.path, entry: s.entry, parent: s.parent, keySpan: s.keySpan, valueSpan: s.valueSpan };
+}
+
+function signatureOf(hit: ConceptHit): string {
+  if (hit.status === 'ok') return `ok:${JSON.stringify(hit.value)}`;
+  const v = hit.source.entry.value;
+  return `raw:${v && v.kind === 'scalar' ? v.raw.trim() : hit.source.path}`;
+}
+
+function shown(hit: ConceptHit): string {
+  if (hit.status === 'ok') {
+    const v = hit.value;
+    if (Array.isArray(v)) return `a list of ${v.length} numbers`;
+    return typeof v === 'string' ? `"${v}"` : String(v);
+  }
+  const v = hit.source.entry.value;
+  return v && v.kind === 'scalar' ? v.raw.trim() : 'an unreadable value';
+}
+
+function setField<C extends Concept>(
+  fields: SetupFields,
+  concept: C,
+  value: ConceptValues[C],
+  source: FieldSource | null,
+  note?: string,
+): void {
+  const field: ResolvedField<C> = { concept, value, assumed: source === null, source };
+  if (note) field.note = note;
+  (fields as Record<string, ResolvedField>)[concept] = field as unknown as ResolvedField;
+}
+
+/** `linear` next to linear_start / linear_end means scaled_linear (see defaults.ts). */
+function applyShortFamilyReading(fields: SetupFields, decided: Map<Concept, Decided>): void {
+  const schedule = fields.betaSchedule;
+  if (!schedule || schedule.assumed || schedule.value !== 'linear' || !schedule.source) return;
+  const raw = schedule.source.entry.value;
+  if (!raw || raw.kind !== 'scalar' || typeof raw.value !== 'string') return;
+  if (normalizeKeySegment(raw.value) !== 'linear') return;
+  if (!usesShortRange(decided)) return;
+  schedule.value = 'scaled_linear';
+  schedule.note = SHORT_FAMILY_LINEAR_NOTE;
+}
+
+function usesShortRange(decided: Map<Concept, Decided>): boolean {
+  return (['betaStart', 'betaEnd'] as const).some((c) => {
+    const d = decided.get(c);
+    if (!d) return false;
+    const segs = keySegments(d.hit.alias.spelling);
+    return segs[segs.length - 1] === 'linearstart' || segs[segs.length - 1] === 'linearend';
+  });
+}
+
+function roleOf(root: LocatedNode | null, present: (c: Concept) => boolean): ConfigRole {
+  let training = TRAINING_CONCEPTS.some(present);
+  const sampling = SAMPLING_CONCEPTS.some(present);
+  if (!training && root && root.kind === 'map') {
+    outer: for (const e of root.entries) {
+      if (TRAINING_SECTIONS.has(normalizeKeySegment(e.key))) {
+        training = true;
+        break;
+      }
+      if (e.value && e.value.kind === 'map') {
+        for (const e2 of e.value.entries) {
+          if (TRAINING_SECTIONS.has(normalizeKeySegment(e2.key))) {
+            training = true;
+            break outer;
+          }
+        }
+      }
+    }
+  }
+  if (training && !sampling) return 'training';
+  if (sampling && !training) return 'sampling';
+  return 'both';
+}
+
+function keyStyleOf(hits: ConceptHit[]): Setup['keyStyle'] {
+  const counts = { snake: 0, camel: 0, short: 0 };
+  for (const h of hits) if (!h.extra) counts[h.keyStyle]++;
+  if (counts.camel > counts.snake && counts.camel >= counts.short) return 'camel';
+  if (counts.short > counts.snake && counts.short > counts.camel) return 'short';
+  return 'snake';
+}
+
+// ---------------------------------------------------------------------------------------------
+// Defaults
+
+/**
+ * Assumed when absent (never when the key is present with a bad value):
+ * - trainSteps: the length of an explicit beta list, else 1000.
+ * - betaSchedule: linear, unless the file gives a beta list, is a flow-matching setup (flow target,
+ *   flow shift or a flow sampler) or a continuous-sigma setup (sigma_min/sigma_max without betas).
+ * - betaStart / betaEnd: per family (linear 1e-4 / 0.02, Ho et al. 2020; scaled_linear
+ *   0.00085 / 0.012, common practice for latent models, recalled from memory; sigmoid as linear);
+ *   none for cosine.
+ * - predictionTarget: flow for flow setups, else epsilon.
+ * - timestepSpacing leading, stepsOffset 0, zeroTerminalSnr false: not for flow setups.
+ * - guidanceRescale 0 only when guidanceScale is set.
+ * - latentSpace: the project setting, else inferred (see inferLatentSpace).
+ * sampleSteps and guidanceScale are never assumed: their absence means "not a sampling file".
+ */
+function assumeDefaults(setup: Setup, decided: Map<Concept, Decided>, root: LocatedNode | null, opts: BuildSetupOptions): void {
+  const fields = setup.fields;
+  const present = (c: Concept) => decided.has(c);
+  const assume = <C extends Concept>(concept: C, value: ConceptValues[C], note: string) => {
+    if (present(concept) || fields[concept]) return;
+    setField(fields, concept, value, null, note);
+    setup.assumed.push(concept);
+  };
+
+  const isFlow =
+    fields.predictionTarget?.value === 'flow' ||
+    present('flowShift') ||
+    fields.sampler?.value === 'flow-euler';
+  const hasBetaParams = present('betaSchedule') || present('betas') || present('betaStart') || present('betaEnd');
+  const isSigma = (present('sigmaMin') || present('sigmaMax')) && !hasBetaParams;
+
+  if (fields.betas && fields.betas.value.length > 0 && !present('trainSteps')) {
+    assume('trainSteps', fields.betas.value.length, 'not set: taken from the length of the beta list');
+  }
+  assume('trainSteps', DEFAULT_TRAIN_STEPS, TRAIN_STEPS_NOTE);
+
+  if (!isFlow && !isSigma && !present('betas')) {
+    if (usesShortRange(decided)) {
+      // That code family's default schedule is its "linear", i.e. scaled_linear (see defaults.ts).
+      assume('betaSchedule', 'scaled_linear', `not set: ${SHORT_FAMILY_DEFAULT_NOTE}`);
+    }
+    assume('betaSchedule', DEFAULT_BETA_SCHEDULE, BETA_SCHEDULE_NOTE);
+    const schedule = fields.betaSchedule;
+    if (schedule) {
+      const shortFamily =
+        schedule.value === 'scaled_linear' &&
+        usesShortRange(decided) &&
+        (schedule.assumed || schedule.note === SHORT_FAMILY_LINEAR_NOTE);
+      const range = shortFamily ? SHORT_FAMILY_RANGE : DEFAULT_BETA_RANGE[schedule.value];
+      if (range) {
+        const label = shortFamily ? 'this schedule' : `the ${schedule.value} schedule`;
+        assume('betaStart', range.start, `not set: assumed ${range.start} for ${label} (${range.basis})`);
+        assume('betaEnd', range.end, `not set: assumed ${range.end} for ${label} (${range.basis})`);
+      }
+    }
+  }
+
+  assume('predictionTarget', isFlow ? 'flow' : 'epsilon', isFlow ? TARGET_NOTE_FLOW : TARGET_NOTE_EPSILON);
+  if (!isFlow) {
+    assume('timestepSpacing', 'leading', SPACING_NOTE);
+    assume('stepsOffset', 0, OFFSET_NOTE);
+    assume('zeroTerminalSnr', false, ZERO_SNR_NOTE);
+  }
+  if (fields.guidanceScale && !fields.guidanceScale.assumed) assume('guidanceRescale', 0, GUIDANCE_RESCALE_NOTE);
+
+  if (!present('latentSpace')) {
+    const inferred =
+      opts.latentSpaceDefault !== undefined
+        ? { value: opts.latentSpaceDefault, note: 'from the project setting' }
+        : inferLatentSpace(fields, root);
+    assume('latentSpace', inferred.value, inferred.note);
+  }
+}
+
+/**
+ * latentSpace when neither the file nor the project says: true for a scaled_linear schedule (the
+ * family used by latent models, common practice) or when a key names an autoencoder (a key segment
+ * containing vae, latent, autoencoder or first_stage, within four levels); false otherwise.
+ */
+export function inferLatentSpace(fields: SetupFields, root: LocatedNode | null): { value: boolean; note: string } {
+  if (fields.betaSchedule?.value === 'scaled_linear') {
+    return { value: true, note: 'inferred: a scaled_linear schedule is the usual choice of latent models' };
+  }
+  const key = findLatentKey(root);
+  if (key) return { value: true, note: `inferred from the key "${key}"` };
+  return { value: false, note: 'inferred: no sign of a latent model (autoencoder keys), so pixel space' };
+}
+
+function findLatentKey(root: LocatedNode | null): string | null {
+  if (!root) return null;
+  const stack: { node: LocatedNode; depth: number }[] = [{ node: root, depth: 0 }];
+  let budget = 100_000;
+  while (stack.length > 0 && budget-- > 0) {
+    const { node, depth } = stack.pop()!;
+    if (node.kind === 'map') {
+      for (const e of node.entries) {
+        const seg = normalizeKeySegment(e.key);
+        if (LATENT_KEY_HINTS.some((h) => seg.includes(h))) return e.key;
+        if (e.value && e.value.kind !== 'scalar' && depth < 3) stack.push({ node: e.value, depth: depth + 1 });
+      }
+    } else if (node.kind === 'list' && depth < 3) {
+      for (const item of node.items) if (item.kind !== 'scalar') stack.push({ node: item, depth: depth + 1 });
+    }
+  }
+  return null;
+}
