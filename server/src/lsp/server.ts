@@ -6,7 +6,7 @@
  * Diagnostics are pushed (debounced) unless the client pulls them. Never stale: a result is only
  * published when it was computed from the document's current version, and never after a newer one.
  */
-import { dirname } from 'node:path';
+import { dirname, isAbsolute } from 'node:path';
 import { fileURLToPath, pathToFileURL } from 'node:url';
 import {
   CodeActionKind,
@@ -52,6 +52,7 @@ import type { Concept } from '../fields/concepts';
 import type { SourceFormat } from '../parse/types';
 import { LineIndex } from '../parse/lineIndex';
 import type { PartnerDocument } from '../rules/types';
+import { ALL_RULE_METAS, getRuleMeta } from '../rules';
 import {
   EXPLAIN_REQUEST,
   FIX_ALL_KIND,
@@ -62,7 +63,7 @@ import {
   type UriParams,
 } from '../protocol';
 import type { ResolvedProject } from '../workspace/types';
-import { DEFAULT_PROJECT, clearProjectCache, loadProject } from '../workspace/projectFile';
+import { DEFAULT_PROJECT, clearProjectCache, loadProject, setProjectRuleCatalog } from '../workspace/projectFile';
 import { discoverFiles, isConfigFileName, isProjectFileName, projectSelects } from '../workspace/discover';
 import { nodeFs, readTextFile, type WorkspaceFs } from '../workspace/fs';
 import { findPartners, roleOfSetups, type FileRole, type PairRole } from '../workspace/pairing';
@@ -181,10 +182,14 @@ export class NoiselintServer {
   /** Partner documents read from a given text, reused while the text does not change. */
   private readonly partnerCache = new Map<string, { text: string; project: ResolvedProject; docs: PartnerDocument[] }>();
   private readonly fs: WorkspaceFs;
+  /** Display path (in messages) -> absolute path, for related locations in other files. */
+  private readonly displayed = new Map<string, string>();
   private shutDown = false;
 
   constructor(private readonly connection: Connection) {
     this.fs = this.overlayFs();
+    // Project files are checked against the real rule ids and options.
+    setProjectRuleCatalog(ALL_RULE_METAS);
   }
 
   listen(): void {
@@ -565,8 +570,9 @@ export class NoiselintServer {
     if (!read.ok) return [];
     const cached = this.partnerCache.get(path);
     if (cached && cached.text === read.text && cached.project === project) return cached.docs;
-    const file = readFile(read.text, { path, project });
-    const docs = file.documents.filter((d) => d.setup.isDiffusionConfig).map((d) => ({ path, setup: d.setup, analysis: d.analysis }));
+    const shown = this.displayPath(path);
+    const file = readFile(read.text, { path: shown, project });
+    const docs = file.documents.filter((d) => d.setup.isDiffusionConfig).map((d) => ({ path: shown, setup: d.setup, analysis: d.analysis }));
     this.partnerCache.set(path, { text: read.text, project, docs });
     return docs;
   }
@@ -680,7 +686,7 @@ export class NoiselintServer {
       return { ...base, file: null, shown: [finding], diagnostics: [this.toDiagnostic(od, finding, settings, base.version)], partners: [] };
     }
     if (file.isDiffusionConfig) od.wasConfig = true;
-    const shown = file.isDiffusionConfig || od.wasConfig ? this.visibleFindings(file, problem) : [];
+    const shown = this.visibleFindings(file, problem);
     return {
       ...base,
       file,
@@ -690,27 +696,19 @@ export class NoiselintServer {
     };
   }
 
-  /** Rule findings plus parse problems the rules did not already report, plus a project-file problem. */
+  /** The engine's findings (rules and parse errors), plus a project-file problem on config files. */
   private visibleFindings(file: FileResult, projectProblem: string | null): Finding[] {
-    const out = [...file.findings];
-    const covered = new Set(out.map((f) => `${f.rule}@${f.span.start}:${f.span.end}`));
-    for (const p of file.parsed.problems) {
-      const key = `${p.code}@${p.span.start}:${p.span.end}`;
-      if (covered.has(key) || out.some((f) => f.span.start === p.span.start && f.message === p.message)) continue;
-      out.push({ rule: p.code, severity: p.severity, message: p.message, span: p.span, documentIndex: 0, related: [], fixes: [] });
-    }
-    if (projectProblem) {
-      out.push({
-        rule: 'project-file',
-        severity: 'warning',
-        message: `${projectProblem}; checking with the built-in defaults`,
-        span: { start: 0, end: 0 },
-        documentIndex: 0,
-        related: [],
-        fixes: [],
-      });
-    }
-    return out.sort((a, b) => a.span.start - b.span.start || a.span.end - b.span.end);
+    if (!projectProblem || !file.isDiffusionConfig) return file.findings;
+    const problem: Finding = {
+      rule: 'project-file',
+      severity: 'warning',
+      message: `${projectProblem}; checking with the built-in defaults`,
+      span: { start: 0, end: 0 },
+      documentIndex: 0,
+      related: [],
+      fixes: [],
+    };
+    return [problem, ...file.findings];
   }
 
   /** A project file shows its own validation problem (if any) and nothing else. */
@@ -734,7 +732,17 @@ export class NoiselintServer {
     );
   }
 
-  private otherFile(path: string): OtherFile | null {
+  /** How messages name another file: relative to its workspace folder (remembered for links back). */
+  private displayPath(abs: string): string {
+    const folder = this.folderOf(abs);
+    const shown = folder ? relativePosix(folder, abs) : abs;
+    this.displayed.set(shown, abs);
+    return shown;
+  }
+
+  private otherFile(shown: string): OtherFile | null {
+    const path = this.displayed.get(shown) ?? (isAbsolute(shown) ? shown : null);
+    if (!path) return null;
     const uri = this.openByPath.get(path);
     const od = uri ? this.docs.get(uri) : undefined;
     if (od) return { uri: od.uri, mapper: od.doc };
@@ -771,7 +779,7 @@ export class NoiselintServer {
     if (!read.ok) return null;
     const pairing = this.pairingFor(path, project);
     const file = analyzeText(read.text, { path, project, partners: pairing.partners, pairRole: pairing.role, limits: settings.limits });
-    return { file, shown: file.isDiffusionConfig ? this.visibleFindings(file, null) : [], version: null };
+    return { file, shown: this.visibleFindings(file, null), version: null };
   }
 
   // ---------------------------------------------------------------- requests
@@ -873,11 +881,9 @@ export class NoiselintServer {
   }
 }
 
-const NON_RULE_CODES = new Set(['internal-error', 'project-file']);
-
-/** Rule ids look like `terminal-snr-leak`; parse-problem codes are not rules and have no page. */
+/** Rule ids (and `parse-error`) have a documentation page; internal codes do not. */
 function isRuleId(code: string): boolean {
-  return !NON_RULE_CODES.has(code) && !/^(yaml|json|jsonc)-/.test(code) && !/^too-/.test(code);
+  return getRuleMeta(code) !== undefined;
 }
 
 function baseName(path: string): string {
