@@ -51,7 +51,11 @@ describe.each(ALL_RULE_METAS.map((m) => [m.id, m] as const))('docs of %s', (id, 
   it('names every option with its default, and cites a source with a year', () => {
     const options = byHeading.get('Options')!;
     for (const [name, option] of Object.entries(meta.options)) {
-      expect(options, `option ${name}`).toContain(`\`${name}\` (default ${String(option.default)}`);
+      const m = new RegExp(`\`${name}\` \\(default ([^)]+)\\)`).exec(options);
+      expect(m, `option ${name} with its default`).not.toBeNull();
+      const written = m![1];
+      if (typeof option.default === 'number') expect(Number(written), `default of ${name}`).toBe(option.default);
+      else expect(written, `default of ${name}`).toBe(String(option.default));
     }
     if (Object.keys(meta.options).length === 0) expect(options).toMatch(/^None\b/m);
     expect(byHeading.get('References')!).toMatch(/\b(19|20)\d\d\b/);

@@ -244,7 +244,8 @@ function renderFixes(fixes: ConceptFix[], parsed: ParsedFile, setup: Setup): Fix
       edits = null;
     }
     if (!edits || edits.length === 0) continue;
-    rendered.push({ title: fix.title, safety: fix.safety, preferred: false, edits, wanted: fix.preferred === true });
+    const title = fix.title.replace('{newText}', edits.length === 1 ? edits[0].newText.trim() : 'the suggested value');
+    rendered.push({ title, safety: fix.safety, preferred: false, edits, wanted: fix.preferred === true });
   }
   const preferredIndex = Math.max(0, rendered.findIndex((f) => f.wanted));
   return rendered.map(({ wanted: _wanted, ...f }, i) => ({ ...f, preferred: i === preferredIndex }));

@@ -4,6 +4,7 @@
  * drift from the code.
  */
 import { ALL_RULE_METAS, ENGINE_RULE_METAS } from './index';
+import { fmt } from './format';
 import type { RuleMeta } from './types';
 
 const FIX_TEXT: Record<RuleMeta['fixable'], string> = {
@@ -17,7 +18,7 @@ function sourceFile(meta: RuleMeta): string {
 }
 
 function optionText(value: number | string | boolean): string {
-  return typeof value === 'string' ? JSON.stringify(value) : String(value);
+  return typeof value === 'string' ? JSON.stringify(value) : typeof value === 'number' ? fmt(value) : String(value);
 }
 
 export function renderRulePage(meta: RuleMeta): string {

@@ -80,7 +80,7 @@ export const epsilonAtZeroSnr: Rule = {
     return [
       {
         message:
-          `the target is epsilon but ${describeSchedule(setup, schedule)} reaches SNR ${fmt(schedule.terminalSnr)} at step ${last}: ` +
+          `the target is epsilon, but the schedule (${describeSchedule(setup, schedule)}) reaches SNR ${fmt(schedule.terminalSnr)} at step ${last}: ` +
           `there the input is pure noise, predicting it teaches nothing, and recovering the image divides by sqrt(abar) = 0` +
           assumedNote(setup, ['predictionTarget']),
         at: 'predictionTarget',

@@ -107,7 +107,7 @@ export const guidanceOverexposure: Rule = {
     const { schedule, partnerPath } = found;
     if (!(schedule.terminalSignal < nearZero)) return [];
     const whose = partnerPath ? `the paired training file's schedule (${partnerPath})` : 'the schedule';
-    const rescaleText = rescale && !rescale.assumed ? 'guidance rescale is 0' : 'no guidance rescale is set';
+    const rescaleText = rescale && !rescale.assumed ? 'guidance rescale 0' : 'no guidance rescale';
     return [
       {
         message:

@@ -46,7 +46,8 @@ None. Limits on file size, nesting and list length are project settings (\`limit
 
 ## References
 
-- YAML 1.2.2 specification; RFC 8259 (JSON).
+- Ben-Kiki, Evans and döt Net 2021, "YAML Ain't Markup Language, version 1.2.2".
+- Bray 2017, RFC 8259, "The JavaScript Object Notation (JSON) Data Interchange Format".
 `;
 
 export const PARSE_ERROR_META: RuleMeta = {

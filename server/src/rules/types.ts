@@ -9,6 +9,10 @@ export type ConceptEdit =
   | { kind: 'remove'; concept: Concept };
 
 export interface ConceptFix {
+  /**
+   * What the edit does. `{newText}` is replaced by the text the fix writes when it renders to a
+   * single text edit (else by "the suggested value"), so a title can quote the exact spelling.
+   */
   title: string;
   safety: FixSafety;
   preferred?: boolean;

@@ -55,6 +55,8 @@ None.
 
 - Common practice: the spellings accepted are those found across open training code; the alias
   table of this tool lists them.
+- Damerau 1964 and Levenshtein 1966: the edit distance (with transpositions) behind the
+  suggested spelling.
 `;
 
 const meta: RuleMeta = {
@@ -78,7 +80,7 @@ export const unknownValue: Rule = {
           severity: problem.kind === 'duplicate' ? 'warning' : 'error',
         };
         const edit = problem.kind === 'unknown-value' && problem.suggestion ? suggestionEdit(problem.concept, problem.suggestion) : null;
-        if (edit) finding.fixes = [{ title: `Write "${problem.suggestion}" instead`, safety: 'safe', edits: [edit] }];
+        if (edit) finding.fixes = [{ title: 'Write {newText} instead', safety: 'safe', edits: [edit] }];
         return finding;
       });
   },

@@ -46,16 +46,20 @@ export function showValue(value: ConceptValues[Concept] | undefined): string {
 }
 
 /**
- * " (assumed: betaSchedule = linear, betaStart = 1e-4)" for those of `concepts` whose value the
+ * " (assumed: betaSchedule = linear; betaStart = 1e-4)" for those of `concepts` whose value the
  * setup assumed because the file sets none; "" when the finding rests on nothing assumed.
  */
 export function assumedNote(setup: Setup, concepts: readonly Concept[]): string {
   const parts: string[] = [];
   for (const concept of concepts) {
     const field = setup.fields[concept];
-    if (field && field.assumed) parts.push(`${concept} = ${showValue(field.value)}`);
+    if (!field || !field.assumed) continue;
+    // An inferred value (or one from the project file) says where it came from; a plain default needs
+    // no more than its value.
+    const how = field.note && !field.note.startsWith('not set') ? `, ${field.note}` : '';
+    parts.push(`${concept} = ${showValue(field.value)}${how}`);
   }
-  return parts.length ? ` (assumed: ${parts.join(', ')})` : '';
+  return parts.length ? ` (assumed: ${parts.join('; ')})` : '';
 }
 
 /** Concepts that decide a discrete schedule's numbers (for assumedNote). */
