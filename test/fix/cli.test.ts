@@ -115,6 +115,15 @@ describe('noiselint fix', () => {
     expect(readFileSync(join(dir, 'night.yaml'), 'utf8')).toContain('timestep_spacing: trailing');
   });
 
+  it('a broken file that is not a diffusion config is skipped quietly', async () => {
+    const other = '{"name": "lanternfish-storyboard-tools",\n';
+    const dir = project({ 'package.json': other, 'night.yaml': NIGHT });
+    const r = await run(dir, '.');
+    expect(r.code).toBe(0);
+    expect(r.stderr).not.toMatch(/package\.json/);
+    expect(readFileSync(join(dir, 'package.json'), 'utf8')).toBe(other);
+  });
+
   it('a read-only file is reported and left alone (even for the superuser)', async () => {
     const dir = project({ 'night.yaml': NIGHT });
     const file = join(dir, 'night.yaml');

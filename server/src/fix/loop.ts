@@ -3,7 +3,7 @@
  * analyse again, repeat until nothing changes, so that fixing a fixed text changes nothing.
  * The analysis is passed in (the caller owns the pipeline); this module only does text.
  */
-import type { FixProposal, FixSafety, TextEdit } from '../core/findings';
+import type { Finding, FixProposal, FixSafety, TextEdit } from '../core/findings';
 import type { FileResult } from '../core/api';
 import type { ParseProblem } from '../parse/types';
 import { anyConflict, applyEdits } from './apply';
@@ -27,6 +27,8 @@ export interface FixLoopResult {
   applied: AppliedFix[];
   /** The input has parse errors: nothing was applied. */
   parseError: ParseProblem | null;
+  /** Findings of the first analysis (with a parse error: whether the engine saw a config). */
+  initialFindings: Finding[];
   /** A round produced text that no longer parsed; its edits were dropped and the loop stopped. */
   brokeText: boolean;
   /** Findings left with a fix at the allowed safety level (0 unless the loop ran out of rounds). */
@@ -56,7 +58,7 @@ export function fixText(text: string, analyze: Analyze, options: FixLoopOptions)
   const maxPasses = Math.max(1, options.maxPasses ?? DEFAULT_MAX_PASSES);
   let result = analyze(text);
   const parseError = firstParseError(result);
-  const out: FixLoopResult = { text, applied: [], parseError, brokeText: false, remaining: 0, unsafeOnly: 0 };
+  const out: FixLoopResult = { text, applied: [], parseError, initialFindings: result.findings, brokeText: false, remaining: 0, unsafeOnly: 0 };
   if (parseError) return out;
   const seen = new Set<string>([text]);
   let current = text;

@@ -30,6 +30,7 @@ import { createTwoFilesPatch } from 'diff';
 import { analyzeText, type FileResult } from '../../core/api';
 import { fixText, type FixLoopResult } from '../../fix/loop';
 import { LineIndex } from '../../parse/lineIndex';
+import { PARSE_ERROR_ID } from '../../rules';
 import { discoverFiles } from '../../workspace/discover';
 import { describeFsError, nodeFs, readTextFile } from '../../workspace/fs';
 import { loadProject, ProjectFileError, type ResolvedProject } from '../../workspace/project';
@@ -105,6 +106,8 @@ export async function runFix(args: string[], io: CliIO): Promise<number> {
     }
     unsafeOnly += result.unsafeOnly;
     if (result.parseError) {
+      // A broken file that is not a diffusion config (no parse-error finding) is none of our business.
+      if (!result.initialFindings.some((f) => f.rule === PARSE_ERROR_ID)) continue;
       const at = new LineIndex(original).positionAt(result.parseError.span.start);
       io.stderr(`${name}:${at.line + 1}:${at.character + 1}: not fixed: the file does not parse (${result.parseError.message})\n`);
       notWritten = true;
