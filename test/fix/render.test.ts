@@ -521,6 +521,18 @@ const giveUps: FixCase[] = [
     after: null,
   },
   {
+    name: 'a plain scalar folded over two lines',
+    before: lines('num_train_timesteps: 1000', 'timestep_spacing: lead', '  ing', 'num_inference_steps: 30', ''),
+    edits: [{ kind: 'set', concept: 'timestepSpacing', value: 'trailing' }],
+    after: null,
+  },
+  {
+    name: 'a value with an explicit tag',
+    before: lines('num_train_timesteps: 1000', 'timestep_spacing: !!str leading', 'num_inference_steps: 30', ''),
+    edits: [{ kind: 'set', concept: 'timestepSpacing', value: 'trailing' }],
+    after: null,
+  },
+  {
     name: 'a value that is a map',
     before: lines('num_train_timesteps: 1000', 'timestep_spacing:', '  kind: leading', ''),
     edits: [{ kind: 'set', concept: 'timestepSpacing', value: 'trailing' }],

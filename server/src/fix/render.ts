@@ -10,7 +10,8 @@ import { CONCEPT_GROUP } from '../fields/concepts';
 import type { LocatedEntry, LocatedList, LocatedMap, LocatedNode, LocatedScalar, ParsedFile, SourceFormat } from '../parse/types';
 import type { ConceptEdit } from '../rules/types';
 import type { FieldSource, Setup } from '../setup/types';
-import { editsConflict, sortEdits } from './apply';
+import { applyEdits, editsConflict, sortEdits } from './apply';
+import { parseText } from '../parse';
 import { commentSpans, rangeHasComment } from './comments';
 import { formatBoolean, formatNumber, formatString, requote, type QuoteStyle } from './format';
 import { KEY_ALIASES } from '../fields/aliases';
@@ -601,6 +602,16 @@ function walkScalars(root: LocatedNode | null, visit: (s: LocatedScalar) => bool
   }
 }
 
+/** Texts up to this size are parsed again after rendering, as a last check. */
+const VALIDATE_MAX_CHARS = 512 * 1024;
+
+/** The edited text has no more syntax errors and as many documents as before. */
+function stillParses(parsed: ParsedFile, edits: TextEdit[]): boolean {
+  const after = parseText(applyEdits(parsed.text, edits), parsed.format, { maxFileBytes: Number.MAX_SAFE_INTEGER });
+  const syntaxErrors = (problems: ParsedFile['problems']) => problems.filter((p) => p.severity === 'error' && /^(yaml|json)-/.test(p.code)).length;
+  return syntaxErrors(after.problems) <= syntaxErrors(parsed.problems) && after.documents.length === parsed.documents.length;
+}
+
 /**
  * Renders concept edits as minimal text edits, sorted by position and never overlapping.
  * Returns [] when the file already says what the edits ask, and null when the edits cannot be
@@ -608,7 +619,9 @@ function walkScalars(root: LocatedNode | null, visit: (s: LocatedScalar) => bool
  */
 export function renderConceptEdits(parsed: ParsedFile, setup: Setup, edits: ConceptEdit[]): TextEdit[] | null {
   try {
-    return new Renderer(parsed, setup).run(edits);
+    const rendered = new Renderer(parsed, setup).run(edits);
+    if (rendered.length > 0 && parsed.text.length <= VALIDATE_MAX_CHARS && !stillParses(parsed, rendered)) return null;
+    return rendered;
   } catch (err) {
     if (err instanceof GiveUp) return null;
     // Bad input never crashes the caller: an unexpected failure is a fix not offered.
