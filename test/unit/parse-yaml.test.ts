@@ -4,7 +4,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { parseText, LineIndex } from '../../server/src/parse';
-import type { LocatedMap, LocatedNode, LocatedScalar, ParsedFile } from '../../server/src/parse';
+import type { LocatedEntry, LocatedMap, LocatedNode, LocatedScalar, ParsedFile } from '../../server/src/parse';
 
 function rootMap(file: ParsedFile, doc = 0): LocatedMap {
   const root = file.documents[doc]?.root;
@@ -16,7 +16,7 @@ function get(map: LocatedMap, ...path: string[]): LocatedNode {
   let node: LocatedNode = map;
   for (const key of path) {
     if (node.kind !== 'map') throw new Error(`${key}: not a map`);
-    const entry = node.entries.find((e) => e.key === key);
+    const entry: LocatedEntry | undefined = node.entries.find((e) => e.key === key);
     if (!entry || !entry.value) throw new Error(`missing ${key}`);
     node = entry.value;
   }

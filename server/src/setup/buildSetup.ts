@@ -4,7 +4,9 @@
  * Recognition (isDiffusionConfig), in order:
  *  1. a schedule concept set under a specific key (num_train_timesteps, beta_schedule,
  *     prediction_type, trained_betas, rescale_betas_zero_snr, sigma_min, flow_shift, ...), or
- *  2. two different schedule concepts under any keys (`timesteps: 1000` + `schedule: cosine`), or
+ *  2. two different schedule concepts under any keys, at least one of them not a bare number
+ *     under a generic key (`timesteps: 1000` + `schedule: cosine` yes; `timesteps: 48` +
+ *     `shift: 2` in an animation file no), or
  *  3. one schedule concept under a generic key together with a sampler or a sampling step count,
  *  4. or a sampling step count together with a sampler or a guidance scale.
  * A value with a problem still counts as set (the key is there). Nothing else makes a document a
@@ -21,6 +23,7 @@
 import type { Concept, ConceptValues } from '../fields/concepts';
 import { findConcepts, type ConceptHit } from '../fields/findConcepts';
 import { keySegments, normalizeKeySegment } from '../fields/normalize';
+import { valueKindOf } from '../fields/values';
 import type { LocatedNode, ParsedDocument } from '../parse/types';
 import {
   BETA_SCHEDULE_NOTE,
@@ -134,10 +137,13 @@ function build(doc: ParsedDocument, opts: BuildSetupOptions, setup: Setup): Setu
     const d = decided.get(c);
     return d !== undefined && (d.hit.alias.kind === 'key' || d.hit.extra);
   };
-  const scheduleCount = SCHEDULE_CONCEPTS.filter(present).length;
+  // A number under a generic key (`timesteps`, `shift`) is the weakest evidence there is.
+  const weak = (c: Concept) => !specific(c) && valueKindOf(c) !== 'enum';
+  const presentSchedule = SCHEDULE_CONCEPTS.filter(present);
+  const scheduleCount = presentSchedule.length;
   const isDiffusionConfig =
     SCHEDULE_CONCEPTS.some(specific) ||
-    scheduleCount >= 2 ||
+    (scheduleCount >= 2 && presentSchedule.some((c) => !weak(c))) ||
     (scheduleCount >= 1 && (present('sampler') || present('sampleSteps'))) ||
     (present('sampleSteps') && (present('sampler') || present('guidanceScale')));
 
