@@ -141,6 +141,8 @@ sampling:
     const mismatch = sample.findings.find((f: { rule: string }) => f.rule === 'train-sample-mismatch');
     expect(mismatch?.severity).toBe('error');
     expect(mismatch.related.some((x: { path: string }) => x.path === 'train/run.yaml')).toBe(true);
+    // Messages name the partner as the user typed paths: relative to the current folder.
+    expect(mismatch.message).not.toContain(root);
     expect(r.code).toBe(1);
   });
 

@@ -71,7 +71,14 @@ export class CheckSession {
   private readonly warned = new Set<string>();
   private readonly pairsChecked = new Set<ResolvedProject>();
 
-  constructor(private readonly fs: WorkspaceFs = nodeFs) {}
+  /**
+   * `showPath` turns a partner's absolute path into the one messages name (check passes the path
+   * relative to the current folder); related locations resolve it back against the same folder.
+   */
+  constructor(
+    private readonly fs: WorkspaceFs = nodeFs,
+    private readonly showPath: (absPath: string) => string = (p) => p,
+  ) {}
 
   private warnOnce(message: string): void {
     if (this.warned.has(message)) return;
@@ -122,7 +129,7 @@ export class CheckSession {
       }
       texts.set(partner, peeked.text);
       for (const doc of peeked.result.documents) {
-        if (doc.setup.isDiffusionConfig) partners.push({ path: partner, setup: doc.setup, analysis: doc.analysis });
+        if (doc.setup.isDiffusionConfig) partners.push({ path: this.showPath(partner), setup: doc.setup, analysis: doc.analysis });
       }
     }
     return partners.length ? { pairRole: match.role, partners, texts } : { partners: [], texts };
@@ -157,7 +164,7 @@ export async function check(options: CheckOptions, io: CliIO, fs: WorkspaceFs = 
     throw err;
   }
 
-  const session = new CheckSession(fs);
+  const session = new CheckSession(fs, shown);
   const progress = io.isTTY && discovered.files.length >= PROGRESS_MIN_FILES;
   let done = 0;
   for (const file of discovered.files) {
