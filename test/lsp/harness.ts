@@ -115,12 +115,16 @@ export class LspClient {
     conn.onRequest('workspace/codeLens/refresh', () => null);
     conn.listen();
     const folders = options.workspaceFolders ?? [];
-    client.initializeResult = await conn.sendRequest('initialize', {
+    const died = new Promise<never>((_, reject) =>
+      proc.once('exit', (code) => reject(new Error(`the server exited (code ${code}) before initialize finished: ${client.stderr}`))),
+    );
+    client.initializeResult = await Promise.race([died, conn.sendRequest<InitializeResult>('initialize', {
       processId: process.pid,
       rootUri: folders[0] ? fileUri(folders[0]) : null,
       capabilities: options.capabilities ?? DEFAULT_CAPABILITIES,
       workspaceFolders: folders.map((f, i) => ({ uri: fileUri(f), name: `folder${i}` })),
-    });
+    })]);
+    died.catch(() => undefined);
     await conn.sendNotification('initialized', {});
     return client;
   }

@@ -174,6 +174,25 @@ describe('workspace', () => {
     expect(back.uri).toBe(sampleUri);
   });
 
+  it('skips files the editor settings exclude', async () => {
+    const before = client.settings;
+    client.settings = () => ({ files: { exclude: ['sample-*.yaml'] } });
+    let since = client.diagnostics.length;
+    client.notify('workspace/didChangeConfiguration', { settings: null });
+    const skipped = await client.waitForDiagnostics(sampleUri, (p) => p.diagnostics.length === 0, since);
+    expect(skipped.version).toBe(1);
+    client.settings = () => ({ files: { include: ['train-*.yaml'] } });
+    since = client.diagnostics.length;
+    client.notify('workspace/didChangeConfiguration', { settings: null });
+    const notIncluded = await client.waitForDiagnostics(sampleUri, () => true, since);
+    expect(notIncluded.diagnostics).toEqual([]);
+    client.settings = before;
+    since = client.diagnostics.length;
+    client.notify('workspace/didChangeConfiguration', { settings: null });
+    const back = await client.waitForDiagnostics(sampleUri, (p) => p.diagnostics.length > 0, since);
+    expect(codes(back.diagnostics)).toContain('train-sample-mismatch');
+  });
+
   it('turns checking off with noiselint.enable', async () => {
     const before = client.settings;
     client.settings = () => ({ enable: false });

@@ -97,6 +97,8 @@ interface Capabilities {
 
 /** One analysis of an open document, tied to the version and settings generation it used. */
 interface Analyzed {
+  /** Unique per computation: the pull result id. */
+  seq: number;
   version: number;
   generation: number;
   text: string;
@@ -176,6 +178,8 @@ export class NoiselintServer {
   private globalSettings: EditorSettings = defaultSettings();
   /** Bumped when settings or project files change: every cached analysis is then stale. */
   private generation = 0;
+  private analysisSeq = 0;
+  private readonly globCache = new Map<string, (path: string) => boolean>();
   private folders: { uri: string; path: string | null }[] = [];
   /** Role of every config file seen (the workspace index). */
   private readonly roles = new Map<string, FileRole>();
@@ -473,10 +477,26 @@ export class NoiselintServer {
     if (project.file && !projectSelects(project, path)) return false;
     const base = this.folderOf(path) ?? project.root;
     const rel = relativePosix(base, path);
-    if (settings.files.exclude.length && picomatch(settings.files.exclude, { dot: true })(rel)) return false;
+    if (settings.files.exclude.length && this.matcher(settings.files.exclude)(rel)) return false;
     const projectIncludes = !!project.file && project.include.length > 0;
-    if (!projectIncludes && settings.files.include.length && !picomatch(settings.files.include, { dot: true })(rel)) return false;
+    if (!projectIncludes && settings.files.include.length && !this.matcher(settings.files.include)(rel)) return false;
     return true;
+  }
+
+  private matcher(globs: string[]): (path: string) => boolean {
+    const key = JSON.stringify(globs);
+    let m = this.globCache.get(key);
+    if (!m) {
+      try {
+        m = picomatch(globs, { dot: true });
+      } catch {
+        // A malformed glob in the settings matches nothing.
+        m = () => false;
+      }
+      if (this.globCache.size > 100) this.globCache.clear();
+      this.globCache.set(key, m);
+    }
+    return m;
   }
 
   /** Bumps the generation and re-checks every open document (refreshing pulled diagnostics). */
@@ -652,14 +672,14 @@ export class NoiselintServer {
 
   private compute(od: OpenDocument, settings: EditorSettings): Analyzed {
     const text = od.doc.getText();
-    const base = { version: od.doc.version, generation: this.generation, text };
+    const base = { seq: ++this.analysisSeq, version: od.doc.version, generation: this.generation, text };
     const mapper: PositionMapper = od.doc;
     const empty: Analyzed = { ...base, file: null, shown: [], diagnostics: [], partners: [] };
     if (!settings.enable) return empty;
     if (od.path && isProjectFileName(baseName(od.path))) return this.projectFileAnalysis(od, base);
     const { project: fileProject, problem } = this.projectFor(od.path);
     const project = mergeSettingsIntoProject(fileProject, settings);
-    if (!this.selected(od.path, project, settings)) return empty;
+    if (!this.selected(od.path, fileProject, settings)) return empty;
     const pairing = od.path ? this.pairingFor(od.path, project) : { partners: [], paths: [] as string[] };
     const options: AnalyzeOptions = {
       path: od.path ?? od.uri,
@@ -712,7 +732,7 @@ export class NoiselintServer {
   }
 
   /** A project file shows its own validation problem (if any) and nothing else. */
-  private projectFileAnalysis(od: OpenDocument, base: { version: number; generation: number; text: string }): Analyzed {
+  private projectFileAnalysis(od: OpenDocument, base: { seq: number; version: number; generation: number; text: string }): Analyzed {
     const { problem } = this.projectFor(od.path);
     if (!problem) return { ...base, file: null, shown: [], diagnostics: [], partners: [] };
     const finding: Finding = { rule: 'project-file', severity: 'error', message: problem, span: { start: 0, end: 0 }, documentIndex: 0, related: [], fixes: [] };
@@ -793,7 +813,7 @@ export class NoiselintServer {
       throw new ResponseError(LSPErrorCodes.ServerCancelled, 'cancelled: the document changed', { retriggerRequest: true });
     }
     if (!analyzed) return { kind: 'full', items: [] };
-    const resultId = `${analyzed.version}:${analyzed.generation}`;
+    const resultId = `${analyzed.version}:${analyzed.seq}`;
     if (params.previousResultId === resultId) return { kind: 'unchanged', resultId };
     return { kind: 'full', resultId, items: analyzed.diagnostics };
   }
