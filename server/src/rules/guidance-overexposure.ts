@@ -1,7 +1,7 @@
 import type { ScheduleAnalysis } from '../core/analysis';
 import { fmt } from './format';
 import type { Rule, RuleContext, RuleMeta } from './types';
-import { assumedNote, discreteSchedule, numberOption, setsSchedule } from './util';
+import { assumedNote, discreteSchedule, numberOption, scheduleConcepts, setsSchedule } from './util';
 
 const docs = `
 ## What it finds
@@ -113,7 +113,7 @@ export const guidanceOverexposure: Rule = {
         message:
           `guidance scale ${fmt(scale.value)} with ${rescaleText}, while ${whose} ends at signal amplitude ` +
           `${fmt(schedule.terminalSignal)} (below ${fmt(nearZero)}): guided predictions overshoot and samples over-expose` +
-          (partnerPath ? '' : assumedNote(setup, ['zeroTerminalSnr'])),
+          (partnerPath ? '' : assumedNote(setup, scheduleConcepts(setup))),
         at: 'guidanceScale',
         fixes: [
           {
