@@ -409,6 +409,26 @@ const json: FixCase[] = [
     after: lines('{', '  "num_train_timesteps": 1000,', '  "beta_schedule": "linear"', '}', ''),
   },
   {
+    name: 'JSON pretty: remove the last member and insert after the one before it',
+    format: 'json',
+    before: lines('{', '  "num_train_timesteps": 1000,', '  "beta_schedule": "linear",', '  "noise_offset": 0.1', '}', ''),
+    edits: [
+      { kind: 'remove', concept: 'offsetNoise' },
+      { kind: 'set', concept: 'zeroTerminalSnr', value: true },
+    ],
+    after: lines('{', '  "num_train_timesteps": 1000,', '  "beta_schedule": "linear",', '  "rescale_betas_zero_snr": true', '}', ''),
+  },
+  {
+    name: 'JSON one line: remove the last member and insert after the one before it',
+    format: 'json',
+    before: '{"num_train_timesteps": 1000, "beta_schedule": "linear", "noise_offset": 0.1}',
+    edits: [
+      { kind: 'remove', concept: 'offsetNoise' },
+      { kind: 'set', concept: 'zeroTerminalSnr', value: true },
+    ],
+    after: '{"num_train_timesteps": 1000, "beta_schedule": "linear", "rescale_betas_zero_snr": true}',
+  },
+  {
     name: 'JSON pretty: numbers and booleans',
     format: 'json',
     before: lines('{', '  "num_train_timesteps": 1000,', '  "beta_schedule": "linear",', '  "rescale_betas_zero_snr": false', '}'),

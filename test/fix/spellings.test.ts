@@ -19,7 +19,7 @@ const SAMPLE: Record<Concept, [string, unknown]> = {
   betaSchedule: ['scaled_linear', 'scaled_linear'],
   betaStart: ['0.00085', 0.00085],
   betaEnd: ['0.012', 0.012],
-  betas: ['[0.1, 0.2]', [0.1, 0.2]],
+  betas: ['[0.1, 0.2, 0.3]', [0.1, 0.2, 0.3]],
   zeroTerminalSnr: ['true', true],
   predictionTarget: ['v', 'v'],
   timestepSpacing: ['trailing', 'trailing'],

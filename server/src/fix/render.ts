@@ -41,6 +41,8 @@ class Renderer {
   readonly eol: string;
   private readonly edits: TextEdit[] = [];
   private readonly removed = new Set<LocatedEntry>();
+  /** Commas that removals in flow maps delete: an insert must not rely on them. */
+  private readonly removedCommas = new Set<number>();
   private readonly inserts: PendingInsert[] = [];
   private booleanSpelling: 'lower' | 'title' | 'upper' | undefined;
   private insertQuote: QuoteStyle | undefined;
@@ -418,8 +420,10 @@ class Renderer {
     const after = anchor.span.end;
     // What follows the sibling on its line: an optional comma, then maybe a comment.
     let p1 = skipSpaces(text, after);
-    const hasComma = text[p1] === ',';
-    if (hasComma) p1 = skipSpaces(text, p1 + 1);
+    const commaHere = text[p1] === ',';
+    // A comma that a removal in this fix deletes does not count: the new member brings its own.
+    const hasComma = commaHere && !this.removedCommas.has(p1);
+    if (commaHere) p1 = skipSpaces(text, p1 + 1);
     const comment = commentSpans(this.parsed).find((c) => c.start === p1);
     if (comment) p1 = skipSpaces(text, comment.end);
     const endsLine = p1 >= text.length || text[p1] === '\n' || text[p1] === '\r';
@@ -508,6 +512,7 @@ class Renderer {
       if (!hasComma && index > 0) {
         const comma = commaAfter(text, map.entries[index - 1].span.end, commentSpans(this.parsed));
         if (comma < 0) giveUp('no comma after the previous member');
+        this.removedCommas.add(comma);
         this.edits.push({ span: { start: comma, end: comma + 1 }, newText: '' });
       }
       return;
@@ -517,6 +522,7 @@ class Renderer {
     } else if (index > 0) {
       const comma = commaAfter(text, map.entries[index - 1].span.end, commentSpans(this.parsed));
       if (comma < 0) giveUp('no comma after the previous member');
+      this.removedCommas.add(comma);
       this.edits.push({ span: { start: comma, end: after }, newText: '' });
     } else {
       this.edits.push({ span: { start: keyStart, end: after }, newText: '' });

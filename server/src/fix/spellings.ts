@@ -14,7 +14,7 @@ export const INSERT_KEY: Record<Concept, Record<KeyStyle, string> | null> = {
   betaSchedule: { snake: 'beta_schedule', camel: 'betaSchedule', short: 'beta_schedule' },
   betaStart: { snake: 'beta_start', camel: 'betaStart', short: 'linear_start' },
   betaEnd: { snake: 'beta_end', camel: 'betaEnd', short: 'linear_end' },
-  betas: { snake: 'trained_betas', camel: 'trainedBetas', short: 'betas' },
+  betas: { snake: 'trained_betas', camel: 'trainedBetas', short: 'trained_betas' },
   zeroTerminalSnr: { snake: 'rescale_betas_zero_snr', camel: 'rescaleBetasZeroSnr', short: 'zero_terminal_snr' },
   predictionTarget: { snake: 'prediction_type', camel: 'predictionType', short: 'parameterization' },
   timestepSpacing: { snake: 'timestep_spacing', camel: 'timestepSpacing', short: 'timestep_spacing' },
