@@ -136,8 +136,8 @@ function lineDataset(label: string, points: PlotPoint[], color: string, dashed: 
     data: points,
     borderColor: color,
     backgroundColor: color,
-    borderWidth: 2,
-    borderDash: dashed ? [6, 4] : [],
+    borderWidth: dashed ? 2.5 : 2,
+    borderDash: dashed ? [7, 4] : [],
     pointRadius: 0,
     pointHitRadius: 4,
     spanGaps: false,
@@ -197,7 +197,7 @@ function chartConfig(
         },
       },
       plugins: {
-        legend: { labels: { color: colors.foreground, usePointStyle: true } },
+        legend: { labels: { color: colors.foreground, usePointStyle: true, sort: (a, b) => (a.datasetIndex ?? 0) - (b.datasetIndex ?? 0) } },
         tooltip: {
           callbacks: {
             label(item: TooltipItem<'line' | 'scatter'>) {
