@@ -156,3 +156,97 @@ describe('fix rendering on generated YAML configs', () => {
     );
   });
 });
+
+/** JSONC texts: pretty-printed or one-line objects, own-line and trailing `//` comments. */
+const arbJson = fc.record({
+  entries: fc.uniqueArray(
+    fc.record({
+      pool: fc.integer({ min: 0, max: POOL.length - 1 }),
+      section: fc.integer({ min: 0, max: 2 }),
+      value: fc.nat(),
+      commentAbove: fc.boolean(),
+      commentAfter: fc.boolean(),
+    }),
+    { minLength: 1, maxLength: POOL.length, selector: (e) => e.pool },
+  ),
+  pretty: fc.boolean(),
+  crlf: fc.boolean(),
+});
+
+type JsonCfg = typeof arbJson extends fc.Arbitrary<infer T> ? T : never;
+
+/** YAML value text -> JSON value text. */
+function jsonValue(yamlText: string): string {
+  if (/^["']/.test(yamlText)) return JSON.stringify(yamlText.slice(1, -1));
+  if (/^(true|false|[-+.\d][\d.eE+-]*)$/.test(yamlText)) return yamlText;
+  return JSON.stringify(yamlText);
+}
+
+function buildJson(cfg: JsonCfg): { text: string; comments: string[] } {
+  let n = 0;
+  const comments: string[] = [];
+  const comment = () => {
+    const c = `// lanternfish note ${n++}`;
+    comments.push(c);
+    return c;
+  };
+  const eol = cfg.crlf ? '\r\n' : '\n';
+  const member = (e: GenEntry) => `"${POOL[e.pool].key}": ${jsonValue(POOL[e.pool].values[e.value % POOL[e.pool].values.length][0])}`;
+  const groups = SECTIONS.map((_, s) => (cfg.entries as GenEntry[]).filter((e) => e.section === s));
+  if (!cfg.pretty) {
+    const parts: string[] = groups[0].map(member);
+    groups.forEach((g, s) => {
+      if (s > 0 && g.length > 0) parts.push(`"${SECTIONS[s]}": {${g.map(member).join(', ')}}`);
+    });
+    return { text: `{${parts.join(', ')}}${eol}`, comments };
+  }
+  const block = (items: GenEntry[], indent: string, tail: string[]): string[] => {
+    const out: string[] = [];
+    const all = [...items.map((e) => ({ e, text: member(e) })), ...tail.map((t) => ({ e: null as GenEntry | null, text: t }))];
+    all.forEach(({ e, text }, i) => {
+      if (e?.commentAbove) out.push(`${indent}${comment()}`);
+      const comma = i < all.length - 1 ? ',' : '';
+      out.push(`${indent}${text}${comma}${e?.commentAfter ? ` ${comment()}` : ''}`);
+    });
+    return out;
+  };
+  const sections: string[] = [];
+  groups.forEach((g, s) => {
+    if (s > 0 && g.length > 0) sections.push(`"${SECTIONS[s]}": {${eol}${block(g, '    ', []).join(eol)}${eol}  }`);
+  });
+  return { text: ['{', ...block(groups[0], '  ', sections), '}', ''].join(eol), comments };
+}
+
+describe('fix rendering on generated JSONC configs', () => {
+  it('set and remove read back as intended and keep every comment', () => {
+    const arbCase = arbJson.chain((cfg) =>
+      fc
+        .record({ remove: fc.boolean(), pool: fc.integer({ min: 0, max: POOL.length - 1 }) })
+        .chain((c) => fc.record({ cfg: fc.constant(cfg), remove: fc.constant(c.remove), pool: fc.constant(c.pool), value: NEW_VALUES[POOL[c.pool].concept]! })),
+    );
+    fc.assert(
+      fc.property(arbCase, ({ cfg, remove, pool, value }) => {
+        const { text, comments } = buildJson(cfg);
+        const concept = POOL[pool].concept;
+        const entry = (cfg.entries as GenEntry[]).find((e) => e.pool === pool);
+        const edit: ConceptEdit = remove ? { kind: 'remove', concept } : { kind: 'set', concept, value: value as never };
+        const { parsed, setup } = setupOf(text, 'jsonc');
+        expect(parsed.problems.filter((p) => p.severity === 'error'), text).toEqual([]);
+        const edits = renderConceptEdits(parsed, setup, [edit]);
+        expect(edits, `gave up on ${JSON.stringify(edit)} in\n${text}`).not.toBeNull();
+        const out = applyEdits(text, edits!);
+        const again = setupOf(out, 'jsonc');
+        expect(again.parsed.problems.filter((p) => p.severity === 'error'), out).toEqual([]);
+        const field = again.setup.fields[concept];
+        if (remove) expect(field?.source ?? null, out).toBeNull();
+        else expect(field?.value, out).toEqual(value);
+        const lost = comments.filter((c) => !out.includes(c));
+        const removedLine = remove && entry ? text.split(/\r?\n/).find((l) => l.trimStart().startsWith(`"${POOL[pool].key}":`)) : undefined;
+        for (const c of lost) expect(removedLine?.includes(c), `lost ${c}:\n${out}`).toBe(true);
+        expect(editsTouchComment(parsed, edits!)).toBe(lost.length > 0);
+        if (cfg.crlf) expect(/(^|[^\r])\n/.test(out), JSON.stringify(out)).toBe(false);
+      }),
+      { numRuns: 300, seed: 20240612 },
+    );
+  });
+});
