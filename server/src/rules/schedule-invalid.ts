@@ -70,6 +70,26 @@ const meta: RuleMeta = {
   docs,
 };
 
+/** Up to three bad entries of a beta list, in one line; null when the list is fine. */
+function badBetas(betas: readonly number[]): string | null {
+  if (betas.length === 0 || betas.length > TRAIN_STEPS_MAX) return checkBetas(betas);
+  const found: string[] = [];
+  let more = 0;
+  const n = betas.length;
+  for (let i = 0; i < n; i++) {
+    const b = betas[i];
+    let why: string | null = null;
+    if (typeof b !== 'number' || !Number.isFinite(b)) why = `beta[${i}] is not a finite number`;
+    else if (b <= 0 || b > 1) why = `beta[${i}] = ${fmt(b)} is outside (0, 1]`;
+    else if (b === 1 && i !== n - 1) why = `beta[${i}] = 1 before the last step removes all signal from there on`;
+    if (!why) continue;
+    if (found.length < 3) found.push(why);
+    else more++;
+  }
+  if (found.length === 0) return null;
+  return found.join('; ') + (more > 0 ? `; and ${more} more` : '');
+}
+
 const POSITIVE: readonly Concept[] = ['sigmaMin', 'sigmaMax', 'rho', 'flowShift'];
 
 export const scheduleInvalid: Rule = {
@@ -110,8 +130,8 @@ export const scheduleInvalid: Rule = {
 
     const betas = setup.fields.betas?.value;
     if (explicit && betas) {
-      const problem = checkBetas(betas);
-      if (problem) out.push({ message: `the explicit beta list is invalid: ${problem}`, at: 'betas' });
+      const bad = badBetas(betas);
+      if (bad) out.push({ message: `the explicit beta list is invalid: ${bad}`, at: 'betas' });
       if (T !== undefined && Number.isInteger(T) && betas.length !== T && !hasProblem(setup, 'trainSteps')) {
         out.push({
           message: `the explicit beta list has ${betas.length} entries but T is ${fmt(T)}` + assumedNote(setup, ['trainSteps']),
