@@ -257,6 +257,18 @@ describe('generic keys count only when the value fits', () => {
     expect(hits('shift: left\n')).toEqual([]);
   });
 
+  it('betas: a schedule list, not the optimizer pair', () => {
+    expect(hits('optimizer:\n  betas: [0.9, 0.999]\n')).toEqual([]);
+    expect(hits('betas: [0.9, 0.999]\n')).toEqual([]);
+    expect(valuesOf(hits('betas: [0.001, 0.002, 0.003]\n'))).toEqual({ betas: [0.001, 0.002, 0.003] });
+  });
+
+  it('rho outside optimizer sections; timesteps under sampling means sampling steps', () => {
+    expect(hits('optim:\n  rho: 0.9\n')).toEqual([]);
+    expect(valuesOf(hits('karras:\n  rho: 7\n'))).toEqual({ rho: 7 });
+    expect(valuesOf(hits('sampling:\n  timesteps: 50\n'))).toEqual({ sampleSteps: 50 });
+  });
+
   it('a close misspelling under a generic key is still reported', () => {
     const [h] = hits('schedule: cosnie\n');
     expect(h.problem?.suggestion).toBe('cosine');

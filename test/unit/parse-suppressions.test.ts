@@ -29,6 +29,26 @@ describe('YAML suppression comments', () => {
     expect(file.suppressions.some((s) => s.line === 6)).toBe(false);
   });
 
+  it('finds directives in every comment position of the YAML syntax', () => {
+    const text = [
+      'a: [1, # noiselint: allow r1', // 0: inside a flow list
+      '  2]',
+      'b: | # noiselint: allow r2', // 2: after a block scalar header
+      '  text',
+      '---',
+      '# noiselint: allow r3', // 5: second document
+      'c: 1',
+      '# noiselint: allow-file r4', // 7: last line, no newline
+    ].join('\n');
+    const f = parseText(text, 'yaml');
+    expect(f.suppressions.map((s) => [s.line, s.rules[0]])).toEqual([
+      [0, 'r1'],
+      [2, 'r2'],
+      [5, 'r3'],
+      [7, 'r4'],
+    ]);
+  });
+
   it('reports a directive that names no rule', () => {
     const f = parseText('# noiselint: allow\na: 1\n', 'yaml');
     expect(f.suppressions).toEqual([]);

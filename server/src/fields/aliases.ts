@@ -5,10 +5,11 @@
  *
  * Key kinds (the ambiguity policy):
  * - 'key': a specific spelling. A scalar value that cannot be read becomes a ValueProblem.
- * - 'ambiguous': a generic word (`schedule`, `timesteps`, `shift`, `scheduler`, `sampler`,
- *   `objective`). It counts only when the value fits: an enum value that is known or within a
+ * - 'ambiguous': a generic word (`schedule`, `timesteps`, `shift`, `rho`, `betas`, `scheduler`,
+ *   `sampler`, `objective`). It counts only when the value fits: an enum value that is known or within a
  *   small edit distance of a known spelling (reported as unknown-value with a suggestion), a
- *   number for `shift`, an integer for `timesteps`. Maps are sections, never values. Ambiguous keys
+ *   number for `shift` and `rho`, an integer for `timesteps`, a list of at least 3 numbers for
+ *   `betas` (Adam's `betas: [0.9, 0.999]` is not a schedule). Maps are sections, never values. Ambiguous keys
  *   under a learning-rate, optimizer, warm-up or EMA section are ignored (`lr_scheduler.schedule:
  *   linear` is not a beta schedule).
  * - 'class-name': a field whose value names a class or function (`_class_name`, `class_name`,
@@ -52,7 +53,8 @@ export const KEY_ALIASES: Record<Concept, KeyAlias[]> = {
   betaSchedule: [key('beta_schedule'), key('noise_schedule'), ambiguous('schedule')],
   betaStart: [key('beta_start'), key('linear_start', 'short')],
   betaEnd: [key('beta_end'), key('linear_end', 'short')],
-  betas: [key('trained_betas'), key('betas')],
+  // `betas` alone is also the Adam optimizer's pair: it needs a list of at least 3 numbers.
+  betas: [key('trained_betas'), ambiguous('betas')],
   zeroTerminalSnr: [key('rescale_betas_zero_snr'), key('zero_terminal_snr')],
   predictionTarget: [
     key('prediction_type'),
@@ -71,6 +73,9 @@ export const KEY_ALIASES: Record<Concept, KeyAlias[]> = {
     key('sampler.steps'),
     key('sampling.steps'),
     key('inference.steps'),
+    key('sampler.timesteps'),
+    key('sampling.timesteps'),
+    key('inference.timesteps'),
   ],
   guidanceScale: [key('guidance_scale'), key('cfg_scale'), key('unconditional_guidance_scale', 'short')],
   guidanceRescale: [key('guidance_rescale'), key('cfg_rescale')],
@@ -80,7 +85,7 @@ export const KEY_ALIASES: Record<Concept, KeyAlias[]> = {
   latentSpace: [],
   sigmaMin: [key('sigma_min')],
   sigmaMax: [key('sigma_max')],
-  rho: [key('rho')],
+  rho: [ambiguous('rho')], // also an optimizer parameter
   flowShift: [key('flow_shift'), ambiguous('shift')],
   resolution: [key('resolution'), key('image_size')],
   sampler: [

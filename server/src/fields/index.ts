@@ -11,5 +11,6 @@ export {
   type ReadValue,
   type ReadProblemKind,
   type ValueKind,
+  type Plain,
 } from './values';
 export { editDistance, normalizeKeySegment, normalizeValue, keySegments, isCamelCase, inStyleOf } from './normalize';

@@ -38,6 +38,10 @@ export type ReadResult =
   | { status: 'unset' }
   | { status: 'skip' };
 
+type ProblemResult = Extract<ReadResult, { status: 'problem' }>;
+/** A plain reading before it is attached to a concept. */
+export type Plain<T> = { status: 'ok'; value: T } | ProblemResult;
+
 const INTEGER_CONCEPTS = new Set<Concept>(['trainSteps', 'sampleSteps', 'stepsOffset', 'resolution']);
 const NUMBER_CONCEPTS = new Set<Concept>([
   'betaStart',
@@ -81,8 +85,7 @@ export function readValue(concept: Concept, node: LocatedNode | null, key: strin
   if (concept === 'predictionTarget' && normalizeKeySegment(alias.spelling) === 'vparameterization') {
     const b = readBoolean(node, key);
     if (b.status !== 'ok') return b;
-    const on = b.values[0].value as boolean;
-    return ok(concept, on ? 'v' : 'epsilon');
+    return ok(concept, b.value ? 'v' : 'epsilon');
   }
   if (concept === 'sampler') return readSampler(node, key, alias);
 
@@ -99,7 +102,7 @@ export function readValue(concept: Concept, node: LocatedNode | null, key: strin
       if (concept === 'resolution' && node.kind === 'list') return readResolutionList(node.items, key);
       const n = readNumber(node, key);
       if (n.status !== 'ok') return n;
-      const v = n.values[0].value as number;
+      const v = n.value;
       if (kind === 'integer' && !Number.isInteger(v)) {
         return problem('not-an-integer', `${key}: ${describe(node)} is not a whole number`);
       }
@@ -107,17 +110,16 @@ export function readValue(concept: Concept, node: LocatedNode | null, key: strin
     }
     case 'boolean': {
       const b = readBoolean(node, key);
-      return b.status === 'ok' ? ok(concept, b.values[0].value) : b;
+      return b.status === 'ok' ? ok(concept, b.value) : b;
     }
     case 'number-list': {
-      if (node.kind !== 'list') return problem('wrong-type', `${key}: expected a list of numbers, found ${describe(node)}`);
-      const out: number[] = new Array(node.items.length);
-      for (let i = 0; i < node.items.length; i++) {
-        const r = readNumber(node.items[i], `${key}[${i}]`);
-        if (r.status !== 'ok') return r;
-        out[i] = r.values[0].value as number;
+      if (!strict) {
+        if (node.kind !== 'list' || node.items.length < 3) return { status: 'skip' };
+        const r = readNumberList(node.items, key);
+        return r.status === 'ok' ? r : { status: 'skip' };
       }
-      return ok(concept, out);
+      if (node.kind !== 'list') return problem('wrong-type', `${key}: expected a list of numbers, found ${describe(node)}`);
+      return readNumberList(node.items, key);
     }
     case 'enum':
       return readEnum(concept, node, key, alias);
@@ -130,7 +132,7 @@ function ok(concept: Concept, value: unknown, note?: string): ReadResult {
   return { status: 'ok', values: [v] };
 }
 
-function problem(kind: ReadProblemKind, message: string, suggestion?: string): ReadResult {
+function problem(kind: ReadProblemKind, message: string, suggestion?: string): ProblemResult {
   return suggestion === undefined ? { status: 'problem', kind, message } : { status: 'problem', kind, message, suggestion };
 }
 
@@ -144,12 +146,12 @@ function describe(node: LocatedNode): string {
 const NUMERIC_STRING = /^[-+]?(\d+(\.\d*)?|\.\d+)([eE][-+]?\d+)?$/;
 const NON_FINITE_STRING = /^[-+]?(\.?inf|infinity|\.?nan)$/i;
 
-export function readNumber(node: LocatedNode, key: string): ReadResult {
+export function readNumber(node: LocatedNode, key: string): Plain<number> {
   if (node.kind !== 'scalar') return problem('wrong-type', `${key}: expected a number, found ${describe(node)}`);
   const v = node.value;
   if (typeof v === 'number') {
     if (!Number.isFinite(v)) return problem('not-finite', `${key}: ${describe(node)} is not a finite number`);
-    return ok('betaStart', v);
+    return { status: 'ok', value: v };
   }
   if (typeof v === 'boolean') return problem('wrong-type', `${key}: ${describe(node)} is a boolean, expected a number`);
   if (typeof v === 'string') {
@@ -157,7 +159,7 @@ export function readNumber(node: LocatedNode, key: string): ReadResult {
     if (NUMERIC_STRING.test(s)) {
       const n = Number(s);
       if (!Number.isFinite(n)) return problem('not-finite', `${key}: ${describe(node)} is not a finite number`);
-      return ok('betaStart', n);
+      return { status: 'ok', value: n };
     }
     if (NON_FINITE_STRING.test(s)) return problem('not-finite', `${key}: ${describe(node)} is not a finite number`);
     return problem('not-a-number', `${key}: ${describe(node)} is not a number`);
@@ -168,17 +170,27 @@ export function readNumber(node: LocatedNode, key: string): ReadResult {
 const TRUE_WORDS = new Set(['true', 'yes', 'on']);
 const FALSE_WORDS = new Set(['false', 'no', 'off']);
 
-function readBoolean(node: LocatedNode, key: string): ReadResult {
+function readBoolean(node: LocatedNode, key: string): Plain<boolean> {
   if (node.kind !== 'scalar') return problem('wrong-type', `${key}: expected true or false, found ${describe(node)}`);
   const v = node.value;
-  if (typeof v === 'boolean') return ok('zeroTerminalSnr', v);
-  if (typeof v === 'number' && (v === 0 || v === 1)) return ok('zeroTerminalSnr', v === 1);
+  if (typeof v === 'boolean') return { status: 'ok', value: v };
+  if (typeof v === 'number' && (v === 0 || v === 1)) return { status: 'ok', value: v === 1 };
   if (typeof v === 'string') {
     const s = v.trim().toLowerCase();
-    if (TRUE_WORDS.has(s)) return ok('zeroTerminalSnr', true);
-    if (FALSE_WORDS.has(s)) return ok('zeroTerminalSnr', false);
+    if (TRUE_WORDS.has(s)) return { status: 'ok', value: true };
+    if (FALSE_WORDS.has(s)) return { status: 'ok', value: false };
   }
   return problem('wrong-type', `${key}: ${describe(node)} is not true or false`);
+}
+
+function readNumberList(items: LocatedNode[], key: string): ReadResult {
+  const out: number[] = new Array(items.length);
+  for (let i = 0; i < items.length; i++) {
+    const r = readNumber(items[i], `${key}[${i}]`);
+    if (r.status !== 'ok') return r;
+    out[i] = r.value;
+  }
+  return ok('betas', out);
 }
 
 function readResolutionList(items: LocatedNode[], key: string): ReadResult {
@@ -188,7 +200,7 @@ function readResolutionList(items: LocatedNode[], key: string): ReadResult {
   for (let i = 0; i < items.length; i++) {
     const r = readNumber(items[i], `${key}[${i}]`);
     if (r.status !== 'ok') return r;
-    const v = r.values[0].value as number;
+    const v = r.value;
     if (!Number.isInteger(v)) return problem('not-an-integer', `${key}[${i}]: ${describe(items[i])} is not a whole number`);
     max = Math.max(max, v);
   }

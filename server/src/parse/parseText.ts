@@ -57,6 +57,12 @@ export function parseText(text: string, format: SourceFormat, limits?: Partial<P
   } catch (e) {
     problems.push(internalProblem(e));
   }
+  // Libraries sometimes point one past the end (an unclosed quote at EOF): keep spans inside.
+  const n = safeText.length;
+  for (const p of problems) {
+    const start = Math.max(0, Math.min(p.span.start, n));
+    p.span = { start, end: Math.max(start, Math.min(p.span.end, n)) };
+  }
   problems.sort((a, b) => a.span.start - b.span.start || a.span.end - b.span.end);
   return { ...base, documents, problems, suppressions };
 }

@@ -4,7 +4,7 @@ import { DEFAULT_PARSE_LIMITS } from './types';
 
 /**
  * The YAML composer recurses once per nesting level and gives up near 1,000 levels, so deeper
- * limits cannot be honoured safely. Documented in parse/README.md.
+ * limits cannot be honoured safely (see parse/README.md).
  */
 export const HARD_NESTING_CAP = 500;
 
@@ -95,7 +95,10 @@ export function tooLongProblem(span: Span, length: number, maxListLength: number
   };
 }
 
-/** Removes all but the last entry of each key, reporting the dropped ones. Returns the kept list. */
+/**
+ * Removes all but the last entry of each key, reporting the dropped ones. The last wins because
+ * that is what the programs that read these files (common YAML and JSON loaders) do.
+ */
 export function dropDuplicateKeys<E extends { key: string; keySpan: Span }>(
   entries: E[],
   problems: ParseProblem[],
