@@ -4,6 +4,9 @@
  * actions applied to the text, fix-all, and robustness against bad requests.
  */
 import { spawnSync } from 'node:child_process';
+import { existsSync } from 'node:fs';
+import { join } from 'node:path';
+import { pathToFileURL } from 'node:url';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import {
   DiagnosticSeverity,
@@ -83,6 +86,9 @@ describe('diagnostics', () => {
     expect(leak!.source).toBe('noiselint');
     expect(leak!.severity).toBe(DiagnosticSeverity.Warning);
     expect(leak!.codeDescription?.href).toMatch(/terminal-snr-leak\.md$/);
+    // The repository bundle links to the bundled rule page on disk.
+    const page = join(REPO_ROOT, 'docs/rules/terminal-snr-leak.md');
+    if (!process.env.NOISELINT_TEST_SERVER && existsSync(page)) expect(leak!.codeDescription?.href).toBe(pathToFileURL(page).href);
     expect(leak!.range.start.line).toBe(lineOf(TRAIN_LEAKY, 'beta_schedule'));
     // Lin et al. 2023, Table 1 (recalled from memory): sqrt(abar_T) = 0.068265, SNR_T = 0.004682.
     expect(leak!.message).toMatch(/0\.068\b/);
@@ -198,6 +204,35 @@ describe('hover', () => {
     expect(value).toContain('First timestep 901 of 999');
     expect(value).toContain('last 1;');
     expect(value).toMatch(/901, 801, 701/);
+  });
+
+  it('explains guidance and target fields on a zero-SNR schedule', async () => {
+    const text = `# Lanternfish Pictures: high-key product stills sampler
+scheduler:
+  num_train_timesteps: 1000
+  beta_schedule: scaled_linear
+  beta_start: 0.00085
+  beta_end: 0.012
+  rescale_betas_zero_snr: true
+  prediction_type: epsilon
+  timestep_spacing: trailing
+  num_inference_steps: 25
+  guidance_scale: 7.5
+`;
+    const { uri } = await openAndWait('hover-guidance.yaml', text);
+    const at = async (needle: string) =>
+      ((await client.request<Hover>('textDocument/hover', { textDocument: { uri }, position: positionOf(text, needle, 2) })).contents as MarkupContent).value;
+    const guidance = await at('guidance_scale');
+    expect(guidance).toContain('Guidance scale 7.5, guidance rescale not set');
+    // Guidance 7.5 with rescale 0.7 works well (common practice).
+    expect(guidance).toContain('common practice: rescale 0.7');
+    const target = await at('prediction_type');
+    expect(target).toMatch(/undefined at the last step \(abar = 0\)/);
+    // Already rescaled: no rescaled column, SNR_T is 0 (Lin et al. 2023, Algorithm 1).
+    expect(target).not.toContain('rescaled to zero SNR |');
+    expect(target).toMatch(/\| terminal SNR \(SNR_T\) \| 0 \|/);
+    // Trailing with N = 25 starts at the last step, 999 (Lin et al. 2023, Table 2, trailing row).
+    expect(target).toContain('First timestep 999 of 999 (the last training step)');
   });
 
   it('says nothing on keys that are not schedule, target, spacing or guidance fields', async () => {

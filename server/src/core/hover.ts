@@ -57,7 +57,9 @@ export interface HoverModel {
   hasRescaledColumn: boolean;
   /** Sentences about the sampling timesteps. */
   sampling: string[];
-  /** Topic-specific notes and what the rescale would change. */
+  /** What the hovered target or guidance field means here (shown first). */
+  focus: string[];
+  /** Schedule problems and what the rescale would change. */
   notes: string[];
   /** log-SNR curves for the chart. */
   chart: { current: Float64Array; rescaled: Float64Array | null } | null;
@@ -153,7 +155,12 @@ function guidanceNotes(doc: DocumentResult): string[] {
   const phi = valueOf(doc.setup, 'guidanceRescale');
   const s = doc.analysis.schedule;
   const notes: string[] = [];
-  notes.push(`Guidance scale ${w === undefined ? 'not set' : num(w, 3)}, guidance rescale ${phi === undefined ? 'not set' : num(phi, 3)}.`);
+  const shown = (concept: 'guidanceScale' | 'guidanceRescale', v: number | undefined) => {
+    const field = doc.setup.fields[concept];
+    if (v === undefined || !field) return 'not set';
+    return field.assumed ? `not set (assumed ${num(v, 3)})` : num(v, 3);
+  };
+  notes.push(`Guidance scale ${shown('guidanceScale', w)}, guidance rescale ${shown('guidanceRescale', phi)}.`);
   if (s && w !== undefined && w > 1 && !(phi !== undefined && phi > 0) && s.terminalSignal < NEAR_ZERO_SIGNAL) {
     notes.push(
       `Strong guidance on a (near) zero-SNR schedule over-exposes without guidance rescale (Lin et al. 2023, eqs. 13-16); ` +
@@ -184,9 +191,8 @@ export function hoverModelAt(file: Omit<FileResult, 'findings'>, offset: number)
   const doc = hit.document;
   const { analysis } = doc;
   const { rows, rescaledColumn } = scheduleRows(analysis);
+  const focus = topic === 'target' ? targetNotes(doc) : topic === 'guidance' ? guidanceNotes(doc) : [];
   const notes: string[] = [];
-  if (topic === 'target') notes.push(...targetNotes(doc));
-  if (topic === 'guidance') notes.push(...guidanceNotes(doc));
   notes.push(...analysis.scheduleProblems.map((p) => `The schedule could not be computed: ${p}.`));
   notes.push(...rescaleNotes(analysis));
   const s = analysis.schedule;
@@ -198,6 +204,7 @@ export function hoverModelAt(file: Omit<FileResult, 'findings'>, offset: number)
     rows,
     hasRescaledColumn: rescaledColumn,
     sampling: samplingLines(analysis),
+    focus,
     notes,
     chart: s
       ? { current: s.curve.logSnr, rescaled: rescaledColumn && analysis.rescaled ? analysis.rescaled.curve.logSnr : null }
@@ -211,6 +218,7 @@ function escapeCell(text: string): string {
 
 export function renderHoverMarkdown(model: HoverModel): string {
   const out: string[] = [`**${model.title}**`, ''];
+  for (const line of model.focus) out.push(line, '');
   if (model.rows.length > 0) {
     if (model.hasRescaledColumn) {
       out.push('| | current | rescaled to zero SNR |', '|---|---|---|');
@@ -234,7 +242,7 @@ export function renderHoverMarkdown(model: HoverModel): string {
 }
 
 export function renderHoverPlainText(model: HoverModel): string {
-  const out: string[] = [model.title];
+  const out: string[] = [model.title, ...model.focus];
   if (model.rows.length > 0) {
     const w0 = Math.max(...model.rows.map((r) => r.label.length));
     const w1 = Math.max('current'.length, ...model.rows.map((r) => r.current.length));
