@@ -244,11 +244,18 @@ function renderFixes(fixes: ConceptFix[], parsed: ParsedFile, setup: Setup): Fix
       edits = null;
     }
     if (!edits || edits.length === 0) continue;
-    const title = fix.title.replace('{newText}', edits.length === 1 ? edits[0].newText.trim() : 'the suggested value');
+    const title = fix.title.replace('{newText}', edits.length === 1 ? quoted(edits[0].newText) : 'the suggested value');
     rendered.push({ title, safety: fix.safety, preferred: false, edits, wanted: fix.preferred === true });
   }
   const preferredIndex = Math.max(0, rendered.findIndex((f) => f.wanted));
   return rendered.map(({ wanted: _wanted, ...f }, i) => ({ ...f, preferred: i === preferredIndex }));
+}
+
+/** `"value"` for a written value, whatever quotes the file uses. */
+function quoted(newText: string): string {
+  const t = newText.trim();
+  const bare = /^(["']).*\1$/s.test(t) ? t.slice(1, -1) : t;
+  return `"${bare}"`;
 }
 
 // ---- parse problems ------------------------------------------------------------------------

@@ -10,8 +10,9 @@ export type ConceptEdit =
 
 export interface ConceptFix {
   /**
-   * What the edit does. `{newText}` is replaced by the text the fix writes when it renders to a
-   * single text edit (else by "the suggested value"), so a title can quote the exact spelling.
+   * What the edit does. `{newText}` is replaced by the value the fix writes, in double quotes, when
+   * it renders to a single text edit (else by "the suggested value"), so a title can quote the
+   * exact spelling.
    */
   title: string;
   safety: FixSafety;
