@@ -1,6 +1,7 @@
 import type { Concept, ConceptValues } from '../fields/concepts';
 import type { Setup } from '../setup/types';
 import type { ConceptEdit, PartnerDocument, Rule, RuleFinding, RuleMeta } from './types';
+import { fmt } from './format';
 import { isSet, setsGroup, showValue, sourceOf } from './util';
 
 const docs = `
@@ -107,6 +108,28 @@ function same(a: ConceptValues[Concept], b: ConceptValues[Concept]): boolean {
   return a === b;
 }
 
+/** Both values shown with enough digits to tell them apart (0.012 vs 0.0120001). */
+function showPair(a: ConceptValues[Concept], b: ConceptValues[Concept]): [string, string] {
+  if (typeof a === 'number' && typeof b === 'number') {
+    let x = fmt(a);
+    let y = fmt(b);
+    for (let digits = 4; x === y && digits <= 12; digits++) {
+      x = String(Number(a.toPrecision(digits)));
+      y = String(Number(b.toPrecision(digits)));
+    }
+    return [x, y];
+  }
+  return [showValue(a), showValue(b)];
+}
+
+/** "has 5 entries where", "differs at beta[3] (0.5 where ... has 0.4) from" */
+function betasDifference(mine: number[], theirs: number[]): string {
+  if (mine.length !== theirs.length) return `has ${mine.length} entries where ${theirs.length} come from`;
+  const i = mine.findIndex((x, k) => !close(x, theirs[k]));
+  const [x, y] = showPair(mine[i], theirs[i]);
+  return `differs at beta[${i}] (${x} where the training list has ${y}) from`;
+}
+
 function usesExplicitBetas(setup: Setup): boolean {
   return isSet(setup, 'betas');
 }
@@ -145,15 +168,29 @@ export const trainSampleMismatch: Rule = {
       if (mine.assumed && theirs.assumed) continue;
       if (same(mine.value, theirs.value)) continue;
       const label = LABEL[concept] ?? concept;
-      const mineText = `${showValue(mine.value)}${mine.assumed ? ' (assumed: the sampling file sets none)' : ''}`;
-      const theirsText = `${showValue(theirs.value)}${theirs.assumed ? ' (assumed: the training file sets none)' : ''}`;
+      const [mineShown, theirsShown] = showPair(mine.value, theirs.value);
+      const mineText = `${mineShown}${mine.assumed ? ' (assumed: the sampling file sets none)' : ''}`;
+      const theirsText = `${theirsShown}${theirs.assumed ? ' (assumed: the training file sets none)' : ''}`;
       const theirSource = sourceOf(training, concept);
-      const edit: ConceptEdit = { kind: 'set', concept, value: theirs.value } as ConceptEdit;
+      const edit = { kind: 'set', concept, value: theirs.value } as ConceptEdit;
+      const message =
+        concept === 'betas'
+          ? `the sampling file's explicit beta list ${betasDifference(mine.value as number[], theirs.value as number[])} the training file ${partner.path}: the sampler must use the betas the model was trained with`
+          : `the sampling file's ${label} is ${mineText} but the training file ${partner.path} uses ${theirsText}: the sampler must use what the model was trained with`;
       out.push({
-        message: `the sampling file's ${label} is ${mineText} but the training file ${partner.path} uses ${theirsText}: the sampler must use what the model was trained with`,
+        message,
         at: concept,
-        related: theirSource ? [{ source: theirSource, path: partner.path, message: `the training file sets ${label} ${showValue(theirs.value)} here` }] : [],
-        fixes: [{ title: `Set the sampling file's ${label} to ${showValue(theirs.value)}, as in training (sampling only)`, safety: 'safe', edits: [edit] }],
+        related: theirSource ? [{ source: theirSource, path: partner.path, message: `the training file sets the ${label} here` }] : [],
+        fixes: [
+          {
+            title:
+              concept === 'betas'
+                ? "Copy the training file's beta list into the sampling file (sampling only)"
+                : `Set the sampling file's ${label} to ${theirsShown}, as in training (sampling only)`,
+            safety: 'safe',
+            edits: [edit],
+          },
+        ],
       });
     }
     return out;
