@@ -6,7 +6,7 @@
  * Diagnostics are pushed (debounced) unless the client pulls them. Never stale: a result is only
  * published when it was computed from the document's current version, and never after a newer one.
  */
-import { dirname, isAbsolute } from 'node:path';
+import { dirname, isAbsolute, relative, sep } from 'node:path';
 import { fileURLToPath, pathToFileURL } from 'node:url';
 import {
   CodeActionKind,
@@ -154,7 +154,7 @@ function requireUri(params: unknown, nested: boolean): string {
   return uri;
 }
 
-function samePosition(p: unknown): p is { line: number; character: number } {
+function isPosition(p: unknown): p is { line: number; character: number } {
   const q = p as { line?: unknown; character?: unknown } | null | undefined;
   return typeof q?.line === 'number' && typeof q?.character === 'number';
 }
@@ -464,9 +464,8 @@ export class NoiselintServer {
   private folderOf(path: string): string | null {
     let best: string | null = null;
     for (const f of this.folders) {
-      if (!f.path) continue;
-      const root = f.path.endsWith('/') ? f.path : `${f.path}/`;
-      if ((path.startsWith(root) || path === f.path) && (!best || f.path.length > best.length)) best = f.path;
+      if (!f.path || !isInside(f.path, path)) continue;
+      if (!best || f.path.length > best.length) best = f.path;
     }
     return best;
   }
@@ -820,7 +819,7 @@ export class NoiselintServer {
 
   private async hover(params: HoverParams): Promise<Hover | null> {
     const uri = requireUri(params, true);
-    if (!samePosition(params.position)) throw new ResponseError(ErrorCodes.InvalidParams, 'params.position must be a position');
+    if (!isPosition(params.position)) throw new ResponseError(ErrorCodes.InvalidParams, 'params.position must be a position');
     const cur = await this.current(uri);
     if (!cur?.analyzed.file) return null;
     const offset = cur.od.doc.offsetAt(params.position);
@@ -911,9 +910,15 @@ function baseName(path: string): string {
   return i >= 0 ? path.slice(i + 1) : path;
 }
 
+function isInside(folder: string, path: string): boolean {
+  const rel = relative(folder, path);
+  return rel === '' || (rel !== '..' && !rel.startsWith(`..${sep}`) && !isAbsolute(rel));
+}
+
+/** `path` relative to `base` with forward slashes (glob matching, messages); unchanged when outside. */
 function relativePosix(base: string, path: string): string {
-  const root = base.endsWith('/') ? base : `${base}/`;
-  return path.startsWith(root) ? path.slice(root.length) : path;
+  if (!isInside(base, path)) return path;
+  return relative(base, path).split(sep).join('/');
 }
 
 export function startServer(connection: Connection): NoiselintServer {
