@@ -2,6 +2,14 @@
 import { main } from './main';
 import type { CliIO } from './io';
 
+// A closed pipe (`noiselint check | head`) ends the run quietly instead of with a stack trace.
+for (const stream of [process.stdout, process.stderr]) {
+  stream.on('error', (err: NodeJS.ErrnoException) => {
+    if (err.code === 'EPIPE') process.exit(process.exitCode ?? 0);
+    throw err;
+  });
+}
+
 const io: CliIO = {
   cwd: process.cwd(),
   stdout: (t) => void process.stdout.write(t),

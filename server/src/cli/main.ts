@@ -6,7 +6,7 @@ import { runFix } from './commands/fix';
 import { runRulesCommand } from './commands/rules';
 import { runLsp } from './commands/lsp';
 
-const VERSION = '0.1.0';
+import { VERSION } from '../version';
 
 const USAGE = `noiselint ${VERSION}: finds noise-schedule mistakes in diffusion configs
 

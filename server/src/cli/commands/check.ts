@@ -20,7 +20,7 @@ import { formatSarif } from '../output/sarif';
 import { formatText } from '../output/text';
 
 /** Keep in step with main.ts. */
-export const CHECK_TOOL_VERSION = '0.1.0';
+import { VERSION as CHECK_TOOL_VERSION } from '../../version';
 
 /** Progress on a terminal only for runs at least this long. */
 const PROGRESS_MIN_FILES = 20;
