@@ -5,8 +5,10 @@ const docs = `
 ## What it finds
 
 Sample clipping or dynamic thresholding turned on for a model that denoises latents rather than
-pixels. Whether a model is latent comes from the file (a latent-space setting or latent-model
-fields) or from the project file's \`latentSpace\` default; the message says when it is assumed.
+pixels. Whether a model is latent comes from the project file's \`latentSpace\` setting, or is
+inferred from the file: a scaled_linear schedule (the usual choice of latent models), or a key
+naming an autoencoder (\`vae\`, \`autoencoder\`, \`first_stage\`, \`latent...\`). The message
+says how it was decided.
 
 ## Why it matters
 
@@ -20,7 +22,7 @@ product backgrounds need.
 
 \`\`\`yaml
 # Lanternfish Pictures: latent storyboard model
-latent_space: true
+autoencoder: lanternfish-ae-f8
 scheduler:
   num_train_timesteps: 1000
   beta_schedule: scaled_linear
@@ -32,7 +34,7 @@ scheduler:
 ## Use instead
 
 \`\`\`yaml
-latent_space: true
+autoencoder: lanternfish-ae-f8
 scheduler:
   num_train_timesteps: 1000
   beta_schedule: scaled_linear

@@ -28,7 +28,7 @@ shift s = r / r0 shifts log-SNR by the same amount (Esser et al. 2024).
 \`\`\`yaml
 # Lanternfish Pictures: 1024 px poster fine-tune (flow model)
 prediction_type: flow
-latent_space: true
+autoencoder: lanternfish-ae-f8
 resolution: 1024
 num_train_timesteps: 1000
 \`\`\`
@@ -37,7 +37,7 @@ num_train_timesteps: 1000
 
 \`\`\`yaml
 prediction_type: flow
-latent_space: true
+autoencoder: lanternfish-ae-f8
 resolution: 1024
 num_train_timesteps: 1000
 shift: 2.0
@@ -98,13 +98,13 @@ export const resolutionShiftHint: Rule = {
     const s = r / reference;
     const advice =
       family === 'flow'
-        ? `a flow shift of ${fmt(s)} gives that (the file sets ${shift && !shift.assumed ? 'shift 1' : 'none'})`
-        : 'beta schedules have no shift setting, so this needs a shifted schedule in the training code';
+        ? `a flow shift of ${fmt(s)} does that (the file sets ${shift && !shift.assumed ? 'shift 1' : 'none'})`
+        : 'beta schedules have no shift setting, so the training code has to shift the schedule';
     return [
       {
         message:
           `training resolution ${fmt(r)} is ${fmt(s)}x the ${fmt(reference)} px reference of a ${latent ? 'latent' : 'pixel-space'} schedule (common practice): ` +
-          `the same noise hides less of a larger image; shifting log-SNR by 2 ln(${fmt(reference)}/${fmt(r)}) = ${fmt(logShift)} keeps the noise level comparable, and ${advice}` +
+          `the same noise hides less of a larger image; shifting log-SNR by 2 ln(${fmt(reference)}/${fmt(r)}) = ${fmt(logShift)} keeps the noise level comparable; ${advice}` +
           assumedNote(setup, ['latentSpace']),
         at: 'resolution',
       },
