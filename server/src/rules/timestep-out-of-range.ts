@@ -100,7 +100,13 @@ export const timestepOutOfRange: Rule = {
           `outside 0..${T - 1}: the sampler would index past the schedule (a crash, or a wrap to the wrong end)` +
           stepsNote +
           assumedNote(setup, ['timestepSpacing', 'trainSteps']),
-        at: sampling.stepsOffset !== 0 && isSet(setup, 'stepsOffset') ? 'stepsOffset' : isSet(setup, 'timestepSpacing') ? 'timestepSpacing' : 'sampleSteps',
+        at: sampling.stepsOffset !== 0 && isSet(setup, 'stepsOffset')
+          ? 'stepsOffset'
+          : N > T && isSet(setup, 'sampleSteps')
+            ? 'sampleSteps'
+            : isSet(setup, 'timestepSpacing')
+              ? 'timestepSpacing'
+              : 'sampleSteps',
         fixes,
       },
     ];
