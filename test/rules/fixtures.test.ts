@@ -31,6 +31,10 @@ describe('fixture layout', () => {
     for (const folder of folders) expect(known.has(folder), `folder ${folder} names a rule`).toBe(true);
   });
 
+  it('uses the demo studio in every fixture (no real names)', () => {
+    for (const f of fixtures) expect(readFileSync(f.inputFile, 'utf8'), f.inputFile).toMatch(/lanternfish/i);
+  });
+
   it('has at least one fixture with and one without findings per rule', () => {
     for (const id of RULE_IDS) {
       const mine = fixtures.filter((f) => f.rule === id).map((f) => JSON.parse(readFileSync(f.expectedFile, 'utf8')) as FixtureExpectation);
