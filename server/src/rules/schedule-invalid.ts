@@ -15,7 +15,9 @@ Schedule values that cannot describe a valid noise schedule:
 - an explicit beta list with a value outside (0, 1], a 1 before the last step, a non-number, or
   a length different from T;
 - a non-positive sigma, rho or flow shift, or a sigma minimum not below the maximum;
-- schedule fields whose value is not a number, not an integer or of the wrong type.
+- schedule fields whose value is not a number, not an integer or of the wrong type;
+- a schedule field set twice (two sections or two spellings) with different values: a warning
+  on the one that is ignored (the first in the file is used).
 
 ## Why it matters
 

@@ -8,7 +8,8 @@ const docs = `
 A value the tool cannot read: an enum value it does not recognise (a misspelt beta schedule,
 prediction target, timestep spacing or sampler) or, for fields outside the schedule, a value of
 the wrong type (a word where a number belongs). When a known spelling is close, the message
-names it.
+names it. A field outside the schedule that is set twice with different values (two sections
+or two spellings) is a warning on the one that is ignored (the first in the file is used).
 
 ## Why it matters
 
