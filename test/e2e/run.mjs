@@ -399,8 +399,59 @@ const steps = [
     },
   },
   {
+    name: 'status',
+    title: 'language status item shows the terminal SNR of the active file',
+    async run(ctx) {
+      const { page } = ctx;
+      await openFile(page, fixturePath);
+      const item = page.locator('[id="status.languageStatus"]').first();
+      await item.waitFor({ state: 'visible', timeout: WAIT_UI_MS });
+      const hover = page.locator('.hover-language-status').first();
+      const deadline = Date.now() + WAIT_UI_MS;
+      let text = '';
+      while (Date.now() < deadline) {
+        await page.mouse.move(10, 10);
+        await item.hover();
+        text = await hover.innerText({ timeout: 5000 }).catch(() => '');
+        if (/Terminal SNR/.test(text)) break;
+        await sleep(1000);
+      }
+      text = text.replace(/\s+/g, ' ');
+      log(`language status: ${text}`);
+      // SNR_T of scaled linear 0.00085 -> 0.012, T = 1000: 0.004682 (Lin et al. 2023, Table 1,
+      // recalled from memory).
+      expect(/Terminal SNR/.test(text), `the language status should show "Terminal SNR ...": ${text || '(no hover)'}`);
+      expect(numbersIn(text).some((n) => near(n, 0.004682, 0.01)), `the language status should show SNR 0.00468: ${text}`);
+      await page.mouse.move(10, 10);
+    },
+  },
+  {
+    name: 'explain',
+    title: '"Explain this config" opens a read-only explanation of the file',
+    async run(ctx) {
+      const { page } = ctx;
+      await openFile(page, fixturePath);
+      await runCommand(page, 'noiselint: Explain this config');
+      const tab = page.locator('.tabs-container .tab', { hasText: '(explained)' }).first();
+      await tab.waitFor({ state: 'visible', timeout: WAIT_UI_MS });
+      const editor = page.locator('.editor-group-container.active .monaco-editor .view-lines').first();
+      await editor.waitFor({ state: 'visible', timeout: WAIT_UI_MS });
+      let text = '';
+      const deadline = Date.now() + WAIT_UI_MS;
+      while (Date.now() < deadline && !/scaled_linear/.test(text)) {
+        await sleep(500);
+        text = (await editor.innerText()).replace(/\u00a0/g, ' ');
+      }
+      log(`explain (first lines): ${text.split('\n').slice(0, 6).join(' | ')}`);
+      expect(/scaled_linear/.test(text), `the explanation should name the schedule family scaled_linear: ${text.slice(0, 400)}`);
+      expect(!/could not explain/.test(text), `the explanation failed: ${text.slice(0, 400)}`);
+      await ctx.shot('03-explain');
+      await runCommand(page, 'View: Close Editor');
+    },
+  },
+  {
     name: 'quickfix',
-    title: '4. apply the "trailing spacing" quick fix through Ctrl+. and check the file on disk',
+    title: '4. apply the "trailing spacing" quick fix from the lightbulb menu and check the file on disk',
     async run(ctx) {
       const { page, workspace } = ctx;
       const file = join(workspace, fixturePath);
@@ -499,10 +550,49 @@ const steps = [
         expect(painted > 500, `the canvas #${id} should have something drawn on it (${painted} painted pixels)`);
       }
       await ctx.shot('04-plot');
+      // More room for the chart in the documentation picture: hide the bottom panel.
+      await runCommand(page, ['View: Hide Panel', 'View: Close Panel', 'View: Toggle Panel Visibility']).catch(() => {});
+      await sleep(1000);
       if (ctx.updateScreenshots) {
         await page.screenshot({ path: join(repo, 'docs/images/plot.png'), clip: { x: 0, y: 0, width: 1280, height: 800 } });
         ctx.docsWritten.push('docs/images/plot.png');
       }
+    },
+  },
+  {
+    name: 'plot-multi',
+    title: 'the plot view follows a two-document zero-SNR file: selector, -Infinity log-SNR handled',
+    async run(ctx) {
+      const { page } = ctx;
+      await openFile(page, 'e2e-fixture/stills-zero-snr.yaml');
+      await runCommand(page, 'noiselint: Show noise schedule');
+      const frame = page.frameLocator('iframe.webview.ready').last().frameLocator('#active-frame');
+      const status = frame.locator('#plot-status');
+      const waitFor = async (predicate, what) => {
+        const deadline = Date.now() + WAIT_UI_MS * 2;
+        let info = {};
+        while (Date.now() < deadline) {
+          info = await status.evaluate((el) => ({ ...el.dataset })).catch(() => ({}));
+          if (predicate(info)) return info;
+          await sleep(500);
+        }
+        throw new StepError(`${what}; plot status: ${JSON.stringify(info)}`);
+      };
+      await waitFor((i) => i.state === 'ready' && i.documents === '2', 'the plot should show the two documents of stills-zero-snr.yaml');
+      const select = frame.locator('#doc-select');
+      expect(await select.isVisible(), 'the document selector should be visible for a two-document file');
+      await select.selectOption('1');
+      // Trailing spacing with 25 steps on T = 1000 starts at 999, the zero-SNR step (DESIGN section 4
+      // spacing formula; Lin et al. 2023).
+      const info = await waitFor((i) => i.state === 'ready' && i.documentIndex === '1', 'selecting the second document should redraw the plot');
+      expect(info.sampled === '25', `the second document samples 25 steps, the plot marks ${info.sampled}`);
+      const summary = await frame.locator('#plot-summary').innerText();
+      const note = await frame.locator('#plot-note').innerText();
+      log(`multi-document plot: ${summary} / ${note}`);
+      expect(/Terminal SNR 0\b/.test(summary), `a zero-SNR schedule should report terminal SNR 0: ${summary}`);
+      expect(/−∞/.test(note), `the note should explain the -Infinity log-SNR at the last step: ${note}`);
+      expect(/t = 999/.test(summary), `trailing spacing should start at t = 999: ${summary}`);
+      await ctx.shot('06-plot-zero-snr');
     },
   },
   {
@@ -521,7 +611,7 @@ const steps = [
       await showProblems(page);
       const rows = await waitForProblems(page, (rs) => rs.some((r) => /noiselint/i.test(`${r.label} ${r.text}`)), 'no noiselint finding appeared for the demo configs');
       log(`demo problems: ${rows.length} rows`);
-      await ctx.shot('05-demo-problems');
+      await ctx.shot('07-demo-problems');
     },
   },
 ];

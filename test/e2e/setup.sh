@@ -8,6 +8,14 @@ NODE24_VERSION=24.22.3
 CODE_SERVER_VERSION=4.139.1
 mkdir -p "$CACHE"
 
+# One install at a time: two concurrent runs would rebuild the same native modules in the same
+# folders and break each other's builds.
+exec 9>"$CACHE/.setup.lock"
+if ! flock -n 9; then
+  echo "e2e setup: another setup is running (lock $CACHE/.setup.lock); waiting for it" >&2
+  flock 9
+fi
+
 need_apt=()
 [ -x /usr/bin/chromium ] || need_apt+=(chromium)
 for pkg in libkrb5-dev libx11-dev libxkbfile-dev libsecret-1-dev pkg-config; do
@@ -40,6 +48,11 @@ if [ ! -f "$CS_BIN" ] || [ ! -f "$CACHE/code-server/.installed-$CODE_SERVER_VERS
   npm_config_nodedir="$(dirname "$(dirname "$NODE24")")" \
   PATH="$(dirname "$NODE24"):$PATH" "$NODE24" "$NPM_CLI" install --no-audit --no-fund \
     --prefix "$CACHE/code-server" "code-server@$CODE_SERVER_VERSION"
+  # The marker is written only when the native modules really load under Node 24.
+  (cd "$CACHE/code-server/node_modules/code-server/lib/vscode" && "$NODE24" -e '
+    for (const m of ["@vscode/spdlog", "@vscode/sqlite3", "node-pty", "@vscode/native-watchdog"]) require(m);
+  ') || { echo "e2e setup: code-server installed but its native modules do not load under Node 24" >&2; exit 1; }
+  rm -f "$CACHE/code-server"/.installed-*
   touch "$CACHE/code-server/.installed-$CODE_SERVER_VERSION"
 fi
 echo "e2e setup ready: node24=$NODE24 code-server=$CS_BIN"

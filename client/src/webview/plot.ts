@@ -82,7 +82,7 @@ function palette(): Palette {
     muted: cssVar('--vscode-descriptionForeground', '#999999'),
     grid: cssVar('--vscode-editorWidget-border', cssVar('--vscode-panel-border', 'rgba(128,128,128,0.35)')),
     current: cssVar('--vscode-charts-blue', '#3794ff'),
-    rescaled: cssVar('--vscode-charts-orange', '#d18616'),
+    rescaled: cssVar('--vscode-charts-yellow', '#cca700'),
     sampled: cssVar('--vscode-charts-red', '#f14c4c'),
     outOfRange: cssVar('--vscode-charts-purple', '#b180d7'),
     background: cssVar('--vscode-editor-background', '#1e1e1e'),
@@ -140,6 +140,7 @@ function lineDataset(label: string, points: PlotPoint[], color: string, dashed: 
     borderDash: dashed ? [7, 4] : [],
     pointRadius: 0,
     pointHitRadius: 4,
+    pointStyle: 'line',
     spanGaps: false,
     parsing: false,
     order: 2,
@@ -153,6 +154,8 @@ function sampledDataset(points: PlotPoint[], colors: Palette): ChartDataset<'sca
     data: points,
     parsing: false,
     order: 1,
+    // Points on the axis floor or at t = T - 1 stay whole instead of being cut at the chart edge.
+    clip: false,
     pointRadius: 4.5,
     pointHoverRadius: 7,
     pointStyle: points.map((p) => (p.step?.outOfRange ? 'crossRot' : p.floor ? 'triangle' : 'circle')),
@@ -197,7 +200,18 @@ function chartConfig(
         },
       },
       plugins: {
-        legend: { labels: { color: colors.foreground, usePointStyle: true, sort: (a, b) => (a.datasetIndex ?? 0) - (b.datasetIndex ?? 0) } },
+        legend: {
+          labels: {
+            color: colors.foreground,
+            usePointStyle: true,
+            sort: (a, b) => (a.datasetIndex ?? 0) - (b.datasetIndex ?? 0),
+            // Per-point styles would give the legend the first point's marker; show a plain dot.
+            generateLabels: (chart) =>
+              Chart.defaults.plugins.legend.labels.generateLabels(chart).map((label) =>
+                label.pointStyle === 'line' ? label : { ...label, pointStyle: 'circle', fillStyle: colors.sampled, strokeStyle: colors.sampled },
+              ),
+          },
+        },
         tooltip: {
           callbacks: {
             label(item: TooltipItem<'line' | 'scatter'>) {
@@ -217,6 +231,11 @@ function currentDocument(): PlotDocument | undefined {
   if (!data || data.documents.length === 0) return undefined;
   if (documentIndex >= data.documents.length || documentIndex < 0) documentIndex = 0;
   return data.documents[documentIndex];
+}
+
+function niceFloor(value: number): number {
+  const step = Math.abs(value) > 20 ? 10 : Math.abs(value) > 5 ? 5 : 1;
+  return Math.floor(value / step) * step;
 }
 
 function hasZero(curve: PlotCurve | null): boolean {
@@ -273,7 +292,9 @@ function render(): void {
   noteEl.textContent = notes.join(' ');
 
   const logSnrRange = finiteRange([doc.current.logSnr, doc.rescaled?.logSnr ?? [], doc.sampled.map((s) => s.logSnr)]);
-  const floor = logSnrRange ? logSnrRange[0] - Math.max(1, (logSnrRange[1] - logSnrRange[0]) * 0.05) : -1;
+  // Zero-SNR sampled steps (log-SNR -Infinity) sit on a floor a little below the lowest finite
+  // value, rounded so the axis keeps round tick labels.
+  const floor = logSnrRange ? niceFloor(logSnrRange[0] - Math.max(1, (logSnrRange[1] - logSnrRange[0]) * 0.05)) : -1;
 
   const logSnrSets: ChartDataset<'line' | 'scatter', PlotPoint[]>[] = [
     lineDataset('current schedule', curvePoints(doc.t, doc.current.logSnr), colors.current, false),
