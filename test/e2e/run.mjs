@@ -273,6 +273,15 @@ async function openFile(page, relativePath) {
   await page.locator('.editor-instance .monaco-editor .view-lines').first().waitFor({ state: 'visible', timeout: WAIT_UI_MS });
 }
 
+/** Waits until the editor tab of `name` has unsaved changes (the edit landed), then saves it. */
+async function saveAfterEdit(page, name) {
+  const dirtyTab = page.locator('.tabs-container .tab.dirty', { hasText: name }).first();
+  const dirty = await dirtyTab.waitFor({ state: 'visible', timeout: WAIT_UI_MS }).then(() => true, () => false);
+  if (!dirty) throw new StepError(`the edit did not change ${name} (its tab never showed unsaved changes)`);
+  await page.keyboard.press('Control+S');
+  await dirtyTab.waitFor({ state: 'hidden', timeout: WAIT_UI_MS }).catch(() => {});
+}
+
 /** Rows of the Problems panel: { label, text } for marker rows (resource rows are left out). */
 async function problemRows(page) {
   return page.locator('.markers-panel .monaco-list-row').evaluateAll((rows) =>
@@ -484,7 +493,7 @@ const steps = [
       expect((await fix.count()) > 0, `no quick fix mentioning "trailing" was offered; offered: ${items.join(' | ') || '(none)'}`);
       await fix.click();
       await menu.waitFor({ state: 'hidden', timeout: WAIT_UI_MS }).catch(() => {});
-      await page.keyboard.press('Control+S');
+      await saveAfterEdit(page, FIXTURE_FILE);
       const expected = before.replace('timestep_spacing: leading', 'timestep_spacing: trailing');
       let after = before;
       const deadline = Date.now() + WAIT_UI_MS;
@@ -508,6 +517,36 @@ const steps = [
         WAIT_UI_MS,
       );
       await ctx.shot('03-after-fix');
+    },
+  },
+  {
+    name: 'fixall',
+    title: '"Fix all in file" applies the safe fixes of a JSON sampler config',
+    async run(ctx) {
+      const { page, workspace } = ctx;
+      const relativePath = 'e2e-fixture/preview-sampler.json';
+      const file = join(workspace, relativePath);
+      const before = readFileSync(file, 'utf8');
+      await openFile(page, relativePath);
+      await showProblems(page);
+      // Leading spacing, T = 1000, N = 30, offset 1 starts at floor(1000 / 30) * 29 + 1 = 958
+      // (DESIGN section 4 spacing formula; common practice).
+      await waitForProblems(
+        page,
+        (rs) => rs.some((r) => /sampler-skips-last-step/.test(`${r.label} ${r.text}`) && numbersIn(`${r.label} ${r.text}`).includes(958)),
+        'the JSON sampler config should get a sampler-skips-last-step finding naming step 958',
+      );
+      await page.locator('.editor-instance .monaco-editor .view-lines').first().click();
+      await runCommand(page, 'noiselint: Fix all in file');
+      await saveAfterEdit(page, 'preview-sampler.json');
+      const expected = before.replace('"timestep_spacing": "leading"', '"timestep_spacing": "trailing"');
+      let after = before;
+      const deadline = Date.now() + WAIT_UI_MS;
+      while (Date.now() < deadline && after === before) {
+        await sleep(300);
+        after = readFileSync(file, 'utf8');
+      }
+      expect(after === expected, `after "Fix all in file" only the spacing should change to trailing; the file is now:\n${after}`);
     },
   },
   {
