@@ -25,7 +25,10 @@ export interface EngineHooks {
 
 type ReadFile = Omit<FileResult, 'findings'>;
 
-/** Keys that mark a broken file as a diffusion config even when no tree could be built. */
+/**
+ * Keys that mark a file with syntax errors as a diffusion config even when the (partial) tree is
+ * not recognised as one. Cheap: one regular expression, no parsing.
+ */
 const CONFIG_KEY_HINT =
   /(?:^|[\s{,"'])(?:beta_schedule|num_train_timesteps|beta_start|beta_end|trained_betas|rescale_betas_zero_snr|zero_terminal_snr|prediction_type|timestep_spacing|steps_offset|num_inference_steps|noise_scheduler)["']?\s*:/m;
 
@@ -100,7 +103,7 @@ export function ruleOptions(meta: RuleMeta, project: ResolvedProject | undefined
   const overrides = project?.rules?.[meta.id]?.options;
   if (overrides) {
     for (const [name, value] of Object.entries(overrides)) {
-      const option = meta.options[name];
+      const option = Object.hasOwn(meta.options, name) ? meta.options[name] : undefined;
       if (!option || typeof value !== typeof option.default) continue;
       if (typeof value === 'number' && !Number.isFinite(value)) continue;
       out[name] = value;
