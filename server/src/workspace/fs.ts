@@ -87,6 +87,8 @@ export function readTextFile(fs: WorkspaceFs, path: string, maxBytes: number = D
   const st = fs.stat(path);
   if (!st) return { ok: false, kind: 'io', problem: 'cannot read: no such file' };
   if (st.kind === 'dir') return { ok: false, kind: 'io', problem: 'is a folder, not a file' };
+  // A FIFO would block the read forever and a device (/dev/zero) would never end it.
+  if (st.kind !== 'file') return { ok: false, kind: 'io', problem: 'not a regular file (a pipe, socket or device)' };
   if (st.size > maxBytes) {
     return { ok: false, kind: 'skipped', problem: `skipped: ${formatBytes(st.size)} is above the ${formatBytes(maxBytes)} limit (limits.maxFileBytes)` };
   }
