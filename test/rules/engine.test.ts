@@ -140,6 +140,12 @@ sampling:
     expect(slice(flat, f2[0])).toBe('num_train_timesteps: 1000');
   });
 
+  it('uses a key that is present but empty (`key:` / null) for its concept', () => {
+    const t2 = `noise_scheduler:\n  num_train_timesteps: 1000\n  rescale_betas_zero_snr: null\n  beta_schedule: linear\n`;
+    const { findings } = run(t2, [at({ message: 'm', at: 'zeroTerminalSnr' })]);
+    expect(slice(t2, findings[0])).toBe('rescale_betas_zero_snr: null');
+  });
+
   it('resolves related concepts and drops those the file does not set', () => {
     const { findings } = run(text, [
       at({

@@ -157,6 +157,9 @@ function locate(result: RuleFinding, setup: Setup, parsed: ParsedFile, lines: Li
     if (field?.source) return fieldSpan(field.source);
     const problem = setup.problems.find((p) => p.concept === result.at);
     if (problem) return fieldSpan(problem.source);
+    // `key:` or `key: null` names the concept without setting it: the finding belongs there.
+    const nullKey = setup.nullKeys?.[result.at];
+    if (nullKey) return fieldSpan(nullKey);
     const section = enclosingKey(setup, result.at);
     if (section) return section;
   }
