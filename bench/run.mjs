@@ -53,6 +53,8 @@ await build({
   target: 'node20',
   format: 'esm',
   logLevel: 'warning',
+  // jsonc-parser's UMD build hides its requires from the bundler; its ESM build does not.
+  mainFields: ['module', 'main'],
   banner: { js: "import { createRequire as __nlCreateRequire } from 'node:module'; const require = __nlCreateRequire(import.meta.url);" },
 });
 const H = await import(pathToFileURL(harnessFile).href);

@@ -33,6 +33,8 @@ await build({
   format: 'cjs',
   logLevel: 'warning',
   external: ['fast-check'],
+  // jsonc-parser's UMD build hides its requires from the bundler; its ESM build does not.
+  mainFields: ['module', 'main'],
 });
 const require = createRequire(import.meta.url);
 const fc = require('fast-check');

@@ -57,6 +57,14 @@ export function retainedHeapGrowth<T>(fn: () => T): { result: T; growthBytes: nu
 
 export const MB = 1024 * 1024;
 
+/**
+ * A flat copy of `s`. Strings built by concatenation are V8 "cons" trees; the first reader
+ * flattens them, which would count a copy of the input as the reader's own growth.
+ */
+export function flat(s: string): string {
+  return Buffer.from(s, 'utf8').toString('utf8');
+}
+
 // ------------------------------------------------------------------ located tree
 
 /** Depth and node count of a located tree, and every scalar value's JS type. */

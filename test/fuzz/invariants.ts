@@ -6,6 +6,7 @@
  */
 import { analyzeText, type FileResult } from '../../server/src/core/api';
 import { SEVERITIES, type TextEdit } from '../../server/src/core/findings';
+import { applyEdits } from '../../server/src/fix/apply';
 import { parseText } from '../../server/src/parse';
 import type { SourceFormat, Span } from '../../server/src/parse/types';
 import type { GeneratedConfig } from './configGen';
@@ -99,6 +100,13 @@ export function checkConfig(c: GeneratedConfig, stats?: CheckStats): FileResult 
       if (!fix.title) fail(`${fwhat}: no title`, c);
       if (fix.safety !== 'safe' && fix.safety !== 'unsafe') fail(`${fwhat}: safety ${String(fix.safety)}`, c);
       const after = applyEditsChecked(text, fix.edits, fwhat, c);
+      let viaFix: string;
+      try {
+        viaFix = applyEdits(text, fix.edits);
+      } catch (err) {
+        fail(`${fwhat}: fix/applyEdits refused the edits: ${err instanceof Error ? err.message : String(err)}`, c);
+      }
+      if (viaFix !== after) fail(`${fwhat}: fix/applyEdits and the reference application disagree`, c);
       if (text.startsWith('\ufeff') && !after.startsWith('\ufeff')) fail(`${fwhat}: lost the BOM`, c);
       if (onlyCrlf(text) && /(^|[^\r])\n/.test(after)) fail(`${fwhat}: wrote a bare LF into a CRLF file`, c);
       before ??= errorCount(text, c.format);
