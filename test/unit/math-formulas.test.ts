@@ -158,7 +158,8 @@ describe('continuous families', () => {
         expect(close(flowTimestepShift(t, 1), t, 1e-15)).toBe(true);
         const shifted = flowTimestepShift(t, s);
         expect(shifted >= 0 && shifted <= 1).toBe(true);
-        if (s > 1) expect(shifted).toBeGreaterThanOrEqual(t);
+        // s > 1 moves t towards 1; allow one rounding step of float64 just below 1
+        if (s > 1) expect(shifted).toBeGreaterThanOrEqual(t - Number.EPSILON);
         // in SNR terms the shift divides SNR by s^2 (follows from the formula)
         if (t > 0.01 && t < 0.99) expect(close(flowSnr(shifted), flowSnr(t) / (s * s), 1e-9)).toBe(true);
       }),
