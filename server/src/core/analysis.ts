@@ -4,6 +4,8 @@
  * document's setup implies.
  */
 import {
+  checkSampleSteps,
+  checkTrainSteps,
   computeSchedule,
   flowSnr,
   flowTimestepShift,
@@ -233,6 +235,11 @@ function analyzeDiscreteSampling(setup: Setup, out: Analysis): void {
 
 function analyzeFlow(setup: Setup, out: Analysis): void {
   const T = valueOf(setup, 'trainSteps') ?? 1000;
+  const badT = checkTrainSteps(T);
+  if (badT) {
+    out.scheduleProblems.push(badT);
+    return;
+  }
   const shift = valueOf(setup, 'flowShift') ?? 1;
   if (!(shift > 0) || !Number.isFinite(shift)) {
     out.scheduleProblems.push(`flow shift ${shift} must be a positive number`);
@@ -267,8 +274,9 @@ function analyzeFlow(setup: Setup, out: Analysis): void {
   const stepsField = setup.fields.sampleSteps;
   if (!stepsField) return;
   const N = stepsField.value;
-  if (!Number.isInteger(N) || N < 1 || N > 100_000) {
-    out.samplingProblems.push(`${N} sampling steps is outside [1, 100000]`);
+  const badN = checkSampleSteps(N);
+  if (badN) {
+    out.samplingProblems.push(badN);
     return;
   }
   // Flow samplers integrate from t = 1 (pure noise) down; shifted, as index round(t' T) - 1.

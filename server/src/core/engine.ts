@@ -4,7 +4,7 @@
  * that fails yields no findings (and is reported through `onRuleError`), the run goes on.
  */
 import { CONCEPT_GROUP, type Concept } from '../fields/concepts';
-import { renderConceptEdits } from '../fix';
+import { editsTouchComment, renderConceptEdits } from '../fix';
 import { LineIndex } from '../parse/lineIndex';
 import type { LocatedMap, LocatedNode, ParsedFile, Span } from '../parse/types';
 import { PARSE_ERROR_ID, RULES, getRuleMeta } from '../rules';
@@ -250,8 +250,14 @@ function renderFixes(fixes: ConceptFix[], parsed: ParsedFile, setup: Setup): Fix
       edits = null;
     }
     if (!edits || edits.length === 0) continue;
-    const title = fix.title.replace('{newText}', edits.length === 1 ? quoted(edits[0].newText) : 'the suggested value');
-    rendered.push({ title, safety: fix.safety, preferred: false, edits, wanted: fix.preferred === true });
+    let title = fix.title.replace('{newText}', edits.length === 1 ? quoted(edits[0].newText) : 'the suggested value');
+    let safety = fix.safety;
+    // "safe" promises that no comment is touched; an edit that would drop one needs consent.
+    if (editsTouchComment(parsed, edits)) {
+      if (safety === 'safe') safety = 'unsafe';
+      title += ' (also removes a comment)';
+    }
+    rendered.push({ title, safety, preferred: false, edits, wanted: fix.preferred === true });
   }
   const preferredIndex = Math.max(0, rendered.findIndex((f) => f.wanted));
   return rendered.map(({ wanted: _wanted, ...f }, i) => ({ ...f, preferred: i === preferredIndex }));
@@ -297,7 +303,7 @@ function finish(findings: Finding[], parsed: ParsedFile, lines: LineIndex): Find
     if (suppressions.length === 0) return false;
     const line = lines.lineAt(f.span.start);
     return suppressions.some(
-      (s) => (s.rules.includes('*') || s.rules.includes(f.rule)) && (s.scope === 'file' || s.line + 1 === line),
+      (s) => (s.rules.includes('*') || s.rules.includes(f.rule)) && (s.scope === 'file' || s.targetLine === line),
     );
   };
   const seen = new Set<string>();
