@@ -1,5 +1,6 @@
 // Preloaded with `node --require test/safety/no-network.cjs ...`: every way out to the network
-// throws (and is logged to stderr with a marker), so a test can prove a command never tries.
+// (and every way to start a process) throws
+// (and is logged to stderr with a marker), so a test can prove a command never tries.
 'use strict';
 const MARK = 'NOISELINT-NETWORK-ATTEMPT';
 function refuse(what) {
@@ -26,3 +27,13 @@ http.request = http.get = refuse('http.request');
 https.request = https.get = refuse('https.request');
 if (typeof globalThis.fetch === 'function') globalThis.fetch = refuse('fetch');
 if (typeof globalThis.WebSocket === 'function') globalThis.WebSocket = refuse('WebSocket');
+
+// And no child processes: noiselint never starts one (a config must not be able to run anything).
+const SUB = 'NOISELINT-SUBPROCESS-ATTEMPT';
+const childProcess = require('node:child_process');
+for (const name of ['spawn', 'spawnSync', 'exec', 'execSync', 'execFile', 'execFileSync', 'fork']) {
+  childProcess[name] = function () {
+    process.stderr.write(`${SUB}: child_process.${name}\n`);
+    throw new Error(`${SUB}: child_process.${name} is not allowed`);
+  };
+}
