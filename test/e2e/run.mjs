@@ -63,11 +63,11 @@ async function cleanup() {
       process.kill(-codeServer.pid, 'SIGTERM');
     } catch {}
     const exited = await Promise.race([new Promise((r) => codeServer.once('exit', () => r(true))), sleep(8_000).then(() => false)]);
-    if (!exited) {
-      try {
-        process.kill(-codeServer.pid, 'SIGKILL');
-      } catch {}
-    }
+    // Its children (extension host, language server) may outlive it briefly: end the group.
+    if (!exited) log('code-server did not stop on SIGTERM; killing its process group');
+    try {
+      process.kill(-codeServer.pid, 'SIGKILL');
+    } catch {}
   }
   if (tempRoot && !flag('keep')) rmSync(tempRoot, { recursive: true, force: true });
   else if (tempRoot) log(`kept ${tempRoot}`);
@@ -268,8 +268,10 @@ async function openFile(page, relativePath) {
       if (Date.now() > deadline) throw new StepError(`Quick Open did not find ${relativePath}`);
     }
   }
-  await input.press('Enter');
-  await page.locator(`.tabs-container .tab[aria-label*="${name}"]`).first().waitFor({ state: 'visible', timeout: WAIT_UI_MS });
+  // Click the matching row (Enter could pick a stale first row while the list still updates) and
+  // wait until that file's tab is the active one.
+  await row.click();
+  await page.locator('.editor-group-container.active .tabs-container .tab.active', { hasText: name }).first().waitFor({ state: 'visible', timeout: WAIT_UI_MS });
   await page.locator('.editor-instance .monaco-editor .view-lines').first().waitFor({ state: 'visible', timeout: WAIT_UI_MS });
 }
 
@@ -459,8 +461,62 @@ const steps = [
     },
   },
   {
+    name: 'plot',
+    title: '4. open the noise schedule view and check that the chart rendered',
+    async run(ctx) {
+      const { page } = ctx;
+      await openFile(page, fixturePath);
+      await runCommand(page, 'noiselint: Show noise schedule');
+      const tab = page.locator('.tabs-container .tab', { hasText: 'Noise schedule' }).first();
+      await tab.waitFor({ state: 'visible', timeout: WAIT_UI_MS });
+      // A webview is an iframe (class "webview") holding the content frame "#active-frame".
+      const outer = page.frameLocator('iframe.webview.ready').last();
+      const frame = outer.frameLocator('#active-frame');
+      const status = frame.locator('#plot-status');
+      await status.waitFor({ state: 'attached', timeout: WAIT_UI_MS * 2 });
+      const deadline = Date.now() + WAIT_UI_MS * 2;
+      let state = await status.getAttribute('data-state');
+      while (Date.now() < deadline && (state === 'loading' || state === null)) {
+        await sleep(500);
+        state = await status.getAttribute('data-state');
+      }
+      const info = await status.evaluate((el) => ({ ...el.dataset, text: el.textContent ?? '' }));
+      const summary = await frame.locator('#plot-summary').innerText().catch(() => '');
+      log(`plot status: ${JSON.stringify(info)}; summary: ${summary}`);
+      expect(info.state === 'ready', `the plot view should be ready, its state is "${info.state}" (${info.text || summary})`);
+      expect(Number(info.points) > 0, `the plot should draw points, data-points = ${info.points}`);
+      // Leading spacing with 10 steps: 10 sampled timesteps are marked.
+      expect(Number(info.sampled) === 10, `the plot should mark the 10 sampled timesteps, data-sampled = ${info.sampled}`);
+      for (const id of ['chart-logsnr', 'chart-signal']) {
+        const painted = await frame.locator(`#${id}`).evaluate((canvas) => {
+          const context = canvas.getContext('2d');
+          if (!context || canvas.width === 0 || canvas.height === 0) return 0;
+          const pixels = context.getImageData(0, 0, canvas.width, canvas.height).data;
+          let count = 0;
+          for (let i = 3; i < pixels.length; i += 4) if (pixels[i] > 0) count++;
+          return count;
+        });
+        expect(painted > 500, `the canvas #${id} should have something drawn on it (${painted} painted pixels)`);
+      }
+      ctx.plotOpen = true;
+      await ctx.shot('04-plot');
+      // More room for the chart in the documentation picture: hide the bottom panel.
+      await runCommand(page, ['View: Hide Panel', 'View: Close Panel', 'View: Toggle Panel Visibility']).catch(() => {});
+      await sleep(1000);
+      if (ctx.updateScreenshots) {
+        // Room for the chart: hide the side bar, and keep the mouse off tabs (no tooltips).
+        await runCommand(page, ['View: Toggle Primary Side Bar Visibility', 'View: Toggle Side Bar Visibility']).catch(() => {});
+        await page.mouse.move(600, 700);
+        await sleep(1500);
+        await page.screenshot({ path: join(repo, 'docs/images/plot.png'), clip: { x: 0, y: 0, width: 1280, height: 800 } });
+        ctx.docsWritten.push('docs/images/plot.png');
+        await runCommand(page, ['View: Toggle Primary Side Bar Visibility', 'View: Toggle Side Bar Visibility']).catch(() => {});
+      }
+    },
+  },
+  {
     name: 'quickfix',
-    title: '4. apply the "trailing spacing" quick fix from the lightbulb menu and check the file on disk',
+    title: '5. apply the "trailing spacing" quick fix from the lightbulb menu; check the file on disk and the open plot',
     async run(ctx) {
       const { page, workspace } = ctx;
       const file = join(workspace, fixturePath);
@@ -516,7 +572,18 @@ const steps = [
         'after the fix, sampler-skips-last-step should be gone and terminal-snr-leak should remain',
         WAIT_UI_MS,
       );
-      await ctx.shot('03-after-fix');
+      if (ctx.plotOpen) {
+        // The open plot follows the edit: trailing spacing with 10 steps on T = 1000 starts at
+        // t = 999 (Lin et al. 2023, Table 2: trailing 1000, 900, ..., 100 in 1-based steps).
+        const frame = page.frameLocator('iframe.webview.ready').last().frameLocator('#active-frame');
+        const summary = frame.locator('#plot-summary');
+        const updated = await summary
+          .filter({ hasText: 'starting at t = 999' })
+          .waitFor({ state: 'visible', timeout: WAIT_UI_MS })
+          .then(() => true, () => false);
+        expect(updated, `the open plot should update to start at t = 999 after the fix; it says: ${await summary.innerText().catch(() => '?')}`);
+      }
+      await ctx.shot('05-after-fix');
     },
   },
   {
@@ -547,55 +614,6 @@ const steps = [
         after = readFileSync(file, 'utf8');
       }
       expect(after === expected, `after "Fix all in file" only the spacing should change to trailing; the file is now:\n${after}`);
-    },
-  },
-  {
-    name: 'plot',
-    title: '5. open the noise schedule view and check that the chart rendered',
-    async run(ctx) {
-      const { page } = ctx;
-      await openFile(page, fixturePath);
-      await runCommand(page, 'noiselint: Show noise schedule');
-      const tab = page.locator('.tabs-container .tab', { hasText: 'Noise schedule' }).first();
-      await tab.waitFor({ state: 'visible', timeout: WAIT_UI_MS });
-      // A webview is an iframe (class "webview") holding the content frame "#active-frame".
-      const outer = page.frameLocator('iframe.webview.ready').last();
-      const frame = outer.frameLocator('#active-frame');
-      const status = frame.locator('#plot-status');
-      await status.waitFor({ state: 'attached', timeout: WAIT_UI_MS * 2 });
-      const deadline = Date.now() + WAIT_UI_MS * 2;
-      let state = await status.getAttribute('data-state');
-      while (Date.now() < deadline && (state === 'loading' || state === null)) {
-        await sleep(500);
-        state = await status.getAttribute('data-state');
-      }
-      const info = await status.evaluate((el) => ({ ...el.dataset, text: el.textContent ?? '' }));
-      const summary = await frame.locator('#plot-summary').innerText().catch(() => '');
-      log(`plot status: ${JSON.stringify(info)}; summary: ${summary}`);
-      expect(info.state === 'ready', `the plot view should be ready, its state is "${info.state}" (${info.text || summary})`);
-      expect(Number(info.points) > 0, `the plot should draw points, data-points = ${info.points}`);
-      // After the quick fix the sampler uses trailing spacing with 10 steps; before it, leading
-      // with 10 steps: either way 10 sampled timesteps are marked.
-      expect(Number(info.sampled) === 10, `the plot should mark the 10 sampled timesteps, data-sampled = ${info.sampled}`);
-      for (const id of ['chart-logsnr', 'chart-signal']) {
-        const painted = await frame.locator(`#${id}`).evaluate((canvas) => {
-          const context = canvas.getContext('2d');
-          if (!context || canvas.width === 0 || canvas.height === 0) return 0;
-          const pixels = context.getImageData(0, 0, canvas.width, canvas.height).data;
-          let count = 0;
-          for (let i = 3; i < pixels.length; i += 4) if (pixels[i] > 0) count++;
-          return count;
-        });
-        expect(painted > 500, `the canvas #${id} should have something drawn on it (${painted} painted pixels)`);
-      }
-      await ctx.shot('04-plot');
-      // More room for the chart in the documentation picture: hide the bottom panel.
-      await runCommand(page, ['View: Hide Panel', 'View: Close Panel', 'View: Toggle Panel Visibility']).catch(() => {});
-      await sleep(1000);
-      if (ctx.updateScreenshots) {
-        await page.screenshot({ path: join(repo, 'docs/images/plot.png'), clip: { x: 0, y: 0, width: 1280, height: 800 } });
-        ctx.docsWritten.push('docs/images/plot.png');
-      }
     },
   },
   {
