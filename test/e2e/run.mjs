@@ -178,6 +178,7 @@ function writeUserSettings(userData) {
     'editor.hover.delay': 200,
     'editor.lightbulb.enabled': 'on',
     'window.restoreWindows': 'none',
+    'terminal.integrated.hideOnStartup': 'always',
     'noiselint.trace.server': 'messages',
   };
   mkdirSync(join(userData, 'User'), { recursive: true });
@@ -206,7 +207,7 @@ async function startCodeServer({ port, extensionsDir, userData, configFile, logF
     cwd: tempRoot,
     detached: true,
     stdio: ['ignore', out, out],
-    env: { ...process.env, PATH: `${dirname(NODE24)}:${process.env.PATH}` },
+    env: codeServerEnv(),
   });
   codeServer.once('exit', (code, signal) => {
     if (!cleaningUp) log(`code-server exited (${code ?? signal}); see ${logFile}`);
@@ -221,6 +222,11 @@ async function startCodeServer({ port, extensionsDir, userData, configFile, logF
     await sleep(500);
   }
   throw new Error(`code-server did not answer on port ${port}; see ${logFile}`);
+}
+
+/** code-server's environment: Node 24 first on PATH, and no extension marketplace (no network). */
+function codeServerEnv() {
+  return { ...process.env, PATH: `${dirname(NODE24)}:${process.env.PATH}`, EXTENSIONS_GALLERY: '{}' };
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -653,6 +659,31 @@ const steps = [
     },
   },
   {
+    name: 'theme',
+    title: 'the open plot redraws in the new colours when the colour theme changes',
+    async run(ctx) {
+      const { page } = ctx;
+      const frame = page.frameLocator('iframe.webview.ready').last().frameLocator('#active-frame');
+      const status = frame.locator('#plot-status');
+      const before = await status.getAttribute('data-foreground', { timeout: WAIT_UI_MS }).catch(() => null);
+      expect(before, 'the plot view should be open (from the earlier plot steps) and drawn');
+      // Switch to the light theme with the editor focused (keys sent while the webview has focus
+      // go to the webview).
+      await page.locator('.editor-group-container .tabs-container .tab', { hasText: FIXTURE_FILE }).first().click();
+      await runCommand(page, ['Preferences: Toggle between Light/Dark Themes', 'Preferences: Toggle Between Light/Dark Themes']);
+      let after = before;
+      const deadline = Date.now() + WAIT_UI_MS;
+      while (Date.now() < deadline && after === before) {
+        await sleep(500);
+        after = await status.getAttribute('data-foreground').catch(() => before);
+      }
+      log(`plot foreground colour: ${before} -> ${after}`);
+      expect(after !== before, `the plot should redraw with the light theme's colours (foreground still ${before})`);
+      expect((await status.getAttribute('data-state')) === 'ready', 'the redrawn plot should be ready');
+      await ctx.shot('08-plot-light-theme');
+    },
+  },
+  {
     name: 'demo',
     title: 'open each demo config from examples/ and check that noiselint reports on it without failing',
     async run(ctx) {
@@ -689,7 +720,7 @@ async function main() {
   const codeServerLog = join(ARTIFACTS, 'code-server.log');
 
   run(NODE24, [CODE_SERVER, '--extensions-dir', extensionsDir, '--user-data-dir', userData, '--install-extension', vsix], {
-    env: { ...process.env, PATH: `${dirname(NODE24)}:${process.env.PATH}` },
+    env: codeServerEnv(),
   });
   const installed = readdirSync(extensionsDir).filter((name) => name.startsWith(`${EXTENSION_ID}-`));
   expect(installed.length === 1, `the extension was not installed into ${extensionsDir} (found: ${readdirSync(extensionsDir).join(', ')})`);

@@ -318,6 +318,8 @@ function render(): void {
 
   const drawn = doc.current.signal.length;
   setStatus('ready', drawn, doc.sampled.length);
+  // Which theme colour the charts were drawn with (lets a test see the redraw on a theme change).
+  statusEl.dataset.foreground = colors.foreground;
 }
 
 function renderPicker(): void {
