@@ -3,7 +3,7 @@
 // the bundled language server (dist/server.js) so the .vsix is self-contained.
 // Run from any folder: `node client/build.mjs [--production]`; scripts/build.mjs imports it too.
 import { build } from 'esbuild';
-import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs';
+import { cpSync, existsSync, mkdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 
@@ -57,3 +57,13 @@ if (!existsSync(serverBundle)) {
 // the server with its map); drop the comment that points at it.
 const text = readFileSync(serverBundle, 'utf8').replace(/\n\/\/# sourceMappingURL=\S+\s*$/, '\n');
 writeFileSync(join(here, 'dist/server.js'), text);
+
+// The rule pages (generated into docs/rules by `npm run docs`) travel with the package: the server
+// links each finding's rule id to <extension>/docs/rules/<id>.md when that folder exists.
+const rulePages = join(root, 'docs/rules');
+const packagedPages = join(here, 'docs/rules');
+rmSync(join(here, 'docs'), { recursive: true, force: true });
+if (existsSync(rulePages)) {
+  mkdirSync(packagedPages, { recursive: true });
+  cpSync(rulePages, packagedPages, { recursive: true, filter: (source) => !source.endsWith('~') });
+}
