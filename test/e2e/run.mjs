@@ -504,6 +504,9 @@ const steps = [
         });
         expect(painted > 500, `the canvas #${id} should have something drawn on it (${painted} painted pixels)`);
       }
+      // The strict content security policy must not have blocked anything in the plot view.
+      const blocked = ctx.consoleErrors.filter((e) => /Content Security Policy|Refused to/i.test(e));
+      expect(blocked.length === 0, `the plot view's content security policy blocked something:\n${blocked.join('\n')}`);
       ctx.plotOpen = true;
       await ctx.shot('04-plot');
       // More room for the chart in the documentation picture: hide the bottom panel.
@@ -750,6 +753,11 @@ async function main() {
   const page = browserContext.pages()[0] ?? (await browserContext.newPage());
   const browserErrors = [];
   page.on('pageerror', (error) => browserErrors.push(String(error)));
+  // Console errors from every frame, webviews included (CSP violations show up here).
+  const consoleErrors = [];
+  page.on('console', (message) => {
+    if (message.type() === 'error') consoleErrors.push(`${message.location()?.url ?? ''}: ${message.text()}`);
+  });
   await page.goto(`http://127.0.0.1:${port}/?folder=${encodeURIComponent(workspace)}`);
   await page.locator('.monaco-workbench').waitFor({ state: 'visible', timeout: WAIT_WORKBENCH_MS });
   await page.locator('.explorer-folders-view, .explorer-viewlet').first().waitFor({ state: 'attached', timeout: WAIT_WORKBENCH_MS }).catch(() => {});
@@ -760,6 +768,7 @@ async function main() {
     page,
     workspace,
     demoFiles,
+    consoleErrors,
     updateScreenshots: flag('update-screenshots'),
     docsWritten: [],
     notes: [],
@@ -793,7 +802,9 @@ async function main() {
   }
 
   collectLogs(userData);
-  if (browserErrors.length) writeFileSync(join(ARTIFACTS, 'browser-errors.txt'), `${browserErrors.join('\n')}\n`);
+  if (browserErrors.length || consoleErrors.length) {
+    writeFileSync(join(ARTIFACTS, 'browser-errors.txt'), `${[...browserErrors, ...consoleErrors].join('\n')}\n`);
+  }
 
   console.log('\nnoiselint e2e results');
   for (const r of results) {
