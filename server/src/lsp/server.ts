@@ -70,7 +70,7 @@ import { findPartners, roleOfSetups, type FileRole, type PairRole } from '../wor
 import picomatch from 'picomatch';
 import { findingToDiagnostic, spanToRange, type PositionMapper, type OtherFile } from './convert';
 import { fixAllAction, kindRequested, quickFixes, type CurrentFindings } from './codeActions';
-import { ruleDocsUrl } from './docsLink';
+import { ruleDocsUrl } from '../workspace/ruleDocs';
 import { DEFAULT_DEBOUNCE_MS, defaultSettings, mergeSettingsIntoProject, normalizeSettings, type EditorSettings } from './settings';
 
 const SERVER_VERSION = '0.1.0';

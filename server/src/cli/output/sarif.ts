@@ -2,9 +2,8 @@
  * `check --format sarif`: SARIF 2.1.0 (OASIS). One run; the driver lists every rule with its
  * documentation; lines and columns are 1-based, columns count UTF-16 code units.
  */
-import { existsSync } from 'node:fs';
-import { dirname, join } from 'node:path';
 import { pathToFileURL } from 'node:url';
+import { ruleDocsUrl } from '../../workspace/ruleDocs';
 import type { Severity } from '../../core/findings';
 import type { RuleMeta } from '../../rules/types';
 import { displayPath, Locator, type CheckReport, type Range } from './report';
@@ -38,19 +37,6 @@ function uriOf(displayed: string): string {
   return displayed.split('/').map(encodeURIComponent).join('/');
 }
 
-/** The docs/rules folder of this installation, looked up from this module's own location. */
-export function findDocsFolder(): string | null {
-  let dir = typeof __filename === 'string' ? dirname(__filename) : null;
-  while (dir) {
-    if (existsSync(join(dir, 'docs', 'rules'))) return join(dir, 'docs', 'rules');
-    if (existsSync(join(dir, 'server')) && existsSync(join(dir, 'package.json'))) return join(dir, 'docs', 'rules');
-    const up = dirname(dir);
-    if (up === dir) return null;
-    dir = up;
-  }
-  return null;
-}
-
 /** What a rule finds: the first paragraph under "What it finds", as plain text. */
 function fullDescription(meta: RuleMeta): string {
   const match = /##\s*What it finds\s*\n+([\s\S]*?)(\n\s*\n|\n##|$)/.exec(meta.docs);
@@ -64,7 +50,6 @@ function plainHelp(meta: RuleMeta): string {
 
 export function toSarif(report: CheckReport, tool: SarifToolInfo): Record<string, unknown> {
   const locate = new Locator(report);
-  const docs = tool.docsFolder === undefined ? findDocsFolder() : tool.docsFolder;
   const descriptors: Record<string, unknown>[] = [];
   const ruleIndex = new Map<string, number>();
   for (const meta of tool.rules) {
@@ -74,7 +59,7 @@ export function toSarif(report: CheckReport, tool: SarifToolInfo): Record<string
       shortDescription: { text: meta.summary },
       fullDescription: { text: fullDescription(meta) },
       help: { text: plainHelp(meta), markdown: meta.docs.trim() || meta.summary },
-      helpUri: docs ? pathToFileURL(join(docs, `${meta.id}.md`)).href : `docs/rules/${meta.id}.md`,
+      helpUri: ruleDocsUrl(meta.id, '', tool.docsFolder),
       defaultConfiguration: { level: LEVEL[meta.defaultSeverity] },
       properties: { fixable: meta.fixable, defaultSeverity: meta.defaultSeverity },
     });
