@@ -134,6 +134,9 @@ export interface CorpusFile {
 /** Writes `count` configs under `dir` (replacing what was there) and returns their paths. */
 export function writeCorpus(dir: string, count: number): CorpusFile[] {
   rmSync(dir, { recursive: true, force: true });
+  // The corpus lives in a git-ignored folder; discovery honours .gitignore files up to the folder
+  // that holds `.git`, so an empty `.git` marks the corpus as a tree of its own.
+  mkdirSync(join(dir, '.git'), { recursive: true });
   const files: CorpusFile[] = [];
   const perFolder = 20;
   for (let i = 0; i < count; i++) {

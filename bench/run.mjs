@@ -16,7 +16,7 @@ const { values } = parseArgs({
   options: {
     only: { type: 'string', default: 'a,b,c,d' },
     files: { type: 'string', default: '10000' },
-    reps: { type: 'string', default: '5' },
+    reps: { type: 'string', default: '3' },
     'no-write': { type: 'boolean', default: false },
   },
 });
