@@ -203,9 +203,18 @@ function extentOf(root: AnyToken, comments: SourceComment[]): Cut | null {
         end = Math.max(end, t.offset + t.source.length);
       }
     }
-    stack.push(...children(t));
+    // A loop, not push(...): a flow list can have more children than a call has arguments.
+    for (const kid of children(t)) stack.push(kid);
   }
   return Number.isFinite(start) && end > start ? { start, end } : null;
+}
+
+/**
+ * The same string, flattened: V8 flattens a rope in place when it is searched. (A copy through
+ * Buffer would also flatten it but would replace lone surrogates.)
+ */
+function flatString(s: string): string {
+  return s.indexOf('\u0000') === -2 ? '' : s;
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -271,7 +280,8 @@ class DocumentConverter {
         list.push({ start: node.range[0], node });
         this.anchors.set(node.anchor, list);
       }
-      if (isMap(node) || isSeq(node)) stack.push(...(node.items as unknown[]));
+      // A loop, not push(...): a list can have more items than a call has arguments.
+      if (isMap(node) || isSeq(node)) for (const item of node.items as unknown[]) stack.push(item);
     }
     for (const list of this.anchors.values()) list.sort((a, b) => a.start - b.start);
   }
@@ -315,6 +325,9 @@ class DocumentConverter {
     } else {
       value = toScalarValue(node.value);
     }
+    // The yaml library builds quoted strings piece by piece: a V8 rope that costs ~30 bytes per
+    // character until something flattens it. Flatten long ones here (a 1 MB string kept 32 MB).
+    if (typeof value === 'string' && value.length > 1024) value = flatString(value);
     if (style === 'block') {
       // Keep the trailing line break out of the span (entries end at the value's last character).
       let end = span.end;
