@@ -59,13 +59,22 @@ export function parseText(text: string, format: SourceFormat, limits?: Partial<P
   }
   // Libraries sometimes point one past the end (an unclosed quote at EOF): keep spans inside.
   const n = safeText.length;
+  // They may also point between the two halves of a surrogate pair (an invalid LSP position):
+  // widen to the whole character.
+  const splits = (at: number) => at > 0 && at < n && isHighSurrogate(safeText.charCodeAt(at - 1)) && isLowSurrogate(safeText.charCodeAt(at));
   for (const p of problems) {
-    const start = Math.max(0, Math.min(p.span.start, n));
-    p.span = { start, end: Math.max(start, Math.min(p.span.end, n)) };
+    let start = Math.max(0, Math.min(p.span.start, n));
+    let end = Math.max(start, Math.min(p.span.end, n));
+    if (splits(start)) start--;
+    if (splits(end)) end++;
+    p.span = { start, end };
   }
   problems.sort((a, b) => a.span.start - b.span.start || a.span.end - b.span.end);
   return { ...base, documents, problems, suppressions };
 }
+
+const isHighSurrogate = (c: number) => c >= 0xd800 && c <= 0xdbff;
+const isLowSurrogate = (c: number) => c >= 0xdc00 && c <= 0xdfff;
 
 function internalProblem(e: unknown): ParseProblem {
   const msg = e instanceof Error ? e.message : String(e);
