@@ -6,12 +6,14 @@
 import { mkdirSync, rmSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 
-const SCHEDULES = [
+const SCHEDULES: Record<string, Json>[] = [
   { beta_schedule: 'scaled_linear', beta_start: 0.00085, beta_end: 0.012 },
   { beta_schedule: 'linear', beta_start: 0.0001, beta_end: 0.02 },
   { beta_schedule: 'squaredcos_cap_v2' },
   { beta_schedule: 'sigmoid', beta_start: 0.0001, beta_end: 0.02 },
 ];
+type Json = string | number | boolean | null | Json[] | { [k: string]: Json };
+
 const TARGETS = ['epsilon', 'v_prediction', 'sample'];
 const SPACINGS = ['leading', 'linspace', 'trailing'];
 const SAMPLERS = ['ddim', 'euler', 'dpm-solver-multistep', 'heun', 'unipc', 'ddpm'];
@@ -26,7 +28,6 @@ function rng(seed: number): () => number {
   };
 }
 
-type Json = string | number | boolean | null | Json[] | { [k: string]: Json };
 
 function pick<T>(r: () => number, xs: readonly T[]): T {
   return xs[Math.floor(r() * xs.length)];
