@@ -382,3 +382,26 @@ export const anyConfigArb: fc.Arbitrary<GeneratedConfig> = fc.oneof(
   { weight: 1, arbitrary: seedConfigArb() },
   { weight: 3, arbitrary: mutatedConfigArb },
 );
+
+/** Keys a training file sets, and keys a sampling file sets (so that pairs have real roles). */
+const TRAINING_KEYS = ['num_train_timesteps', 'beta_schedule', 'beta_start', 'beta_end', 'trained_betas', 'rescale_betas_zero_snr', 'prediction_type', 'noise_offset', 'snr_gamma'] as const;
+const SAMPLING_KEYS = ['num_train_timesteps', 'beta_schedule', 'prediction_type', 'rescale_betas_zero_snr', 'timestep_spacing', 'steps_offset', 'num_inference_steps', 'guidance_scale', 'guidance_rescale', 'sampler'] as const;
+
+function roleConfig(keys: readonly string[], name: string): fc.Arbitrary<GeneratedConfig> {
+  return fc
+    .tuple(
+      fc.constantFrom<SourceFormat>('yaml', 'json', 'jsonc'),
+      fc.uniqueArray(fc.constantFrom(...keys), { minLength: 2, maxLength: keys.length }),
+      fc.array(fc.oneof({ weight: 3, arbitrary: enumToken }, { weight: 3, arbitrary: specialNumber }, { weight: 1, arbitrary: boolToken }), { minLength: keys.length, maxLength: keys.length }),
+      fc.boolean(),
+      fc.array(mutationArb, { maxLength: 2 }),
+    )
+    .map(([format, chosen, tokens, crlf, ms]) => {
+      const root: GenNode = { t: 'map', flow: false, entries: chosen.map((k, i) => [k, { t: 'scalar', token: tokens[i] }]) };
+      const text = mutate(render(root, { format, crlf, bom: false, comments: true, extraDocs: [] }), ms);
+      return { format, path: `lanternfish/pair/${name}.${EXT[format]}`, text };
+    });
+}
+
+/** [sampling file, training file]. */
+export const pairArb: fc.Arbitrary<[GeneratedConfig, GeneratedConfig]> = fc.tuple(roleConfig(SAMPLING_KEYS, 'sample-night'), roleConfig(TRAINING_KEYS, 'train-night'));

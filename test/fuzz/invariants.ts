@@ -4,7 +4,7 @@
  * are in range and non-overlapping, and applying them keeps the BOM and CRLF endings and adds no
  * syntax errors. Shared by the vitest properties and `npm run fuzz`.
  */
-import { analyzeText, type FileResult } from '../../server/src/core/api';
+import { analyzeText, readFile, type FileResult } from '../../server/src/core/api';
 import { SEVERITIES, type TextEdit } from '../../server/src/core/findings';
 import { applyEdits } from '../../server/src/fix/apply';
 import { parseText } from '../../server/src/parse';
@@ -68,11 +68,24 @@ export interface CheckStats {
   rules: Set<string>;
 }
 
+/** A paired training file: its documents are passed as partners (train-sample-mismatch). */
+export interface Partner {
+  config: GeneratedConfig;
+  role: 'training' | 'sampling';
+}
+
 /** Runs the whole pipeline on one input and checks every invariant; returns what it saw. */
-export function checkConfig(c: GeneratedConfig, stats?: CheckStats): FileResult {
+export function checkConfig(c: GeneratedConfig, stats?: CheckStats, partner?: Partner): FileResult {
   let result: FileResult;
+  let options: Parameters<typeof analyzeText>[1] = { path: c.path, format: c.format };
   try {
-    result = analyzeText(c.text, { path: c.path, format: c.format });
+    if (partner) {
+      const p = partner.config;
+      const read = readFile(p.text, { path: p.path, format: p.format });
+      const partners = read.documents.filter((d) => d.setup.isDiffusionConfig).map((d) => ({ path: p.path, setup: d.setup, analysis: d.analysis }));
+      options = { ...options, partners, pairRole: partner.role === 'training' ? 'sampling' : 'training' };
+    }
+    result = analyzeText(c.text, options);
   } catch (err) {
     fail(`analyzeText threw: ${err instanceof Error ? (err.stack ?? err.message) : String(err)}`, c);
   }
@@ -92,6 +105,8 @@ export function checkConfig(c: GeneratedConfig, stats?: CheckStats): FileResult 
     checkSpan(f.span, text, what, c);
     for (const [j, r] of (f.related ?? []).entries()) {
       if (r.path === undefined) checkSpan(r.span, text, `${what}, related ${j}`, c);
+      else if (partner && r.path === partner.config.path) checkSpan(r.span, partner.config.text, `${what}, related ${j} in the partner`, c);
+      else if (r.path !== c.path) fail(`${what}, related ${j}: unknown path ${r.path}`, c);
     }
     if (f.fixes.filter((x) => x.preferred).length > 1) fail(`${what}: more than one preferred fix`, c);
     stats?.rules.add(f.rule);
@@ -115,7 +130,7 @@ export function checkConfig(c: GeneratedConfig, stats?: CheckStats): FileResult 
         fail(`${fwhat}: the fixed text has ${afterErrors} parse errors, the original ${before}\n  fixed: ${JSON.stringify(after.slice(0, 400))}`, c);
       }
       try {
-        analyzeText(after, { path: c.path, format: c.format });
+        analyzeText(after, options);
       } catch (err) {
         fail(`${fwhat}: analyzeText threw on the fixed text: ${err instanceof Error ? err.message : String(err)}`, c);
       }

@@ -3,13 +3,14 @@
  * (scripts/fuzz.mjs) runs them with a long one and prints the seed to replay a failure.
  */
 import fc from 'fast-check';
-import { anyConfigArb, configArb, mutatedConfigArb, type GeneratedConfig } from './configGen';
+import { anyConfigArb, configArb, mutatedConfigArb, pairArb, type GeneratedConfig } from './configGen';
 import { checkConfig, type CheckStats } from './invariants';
 
 export interface NamedProperty {
   name: string;
   description: string;
-  property: (stats: CheckStats) => fc.IProperty<[GeneratedConfig]>;
+  // Properties differ in their inputs (one config, or a pair).
+  property: (stats: CheckStats) => fc.IProperty<any>;
 }
 
 export const PROPERTIES: NamedProperty[] = [
@@ -22,6 +23,11 @@ export const PROPERTIES: NamedProperty[] = [
     name: 'mutated',
     description: 'generated and seed configs with random text mutations (syntax bits, CR/LF swaps, surrogates)',
     property: (stats) => fc.property(mutatedConfigArb, (c) => void checkConfig(c, stats)),
+  },
+  {
+    name: 'paired',
+    description: 'a sampling config checked against a generated training partner (train-sample-mismatch, related spans in the partner)',
+    property: (stats) => fc.property(pairArb, ([sampling, training]) => void checkConfig(sampling, stats, { config: training, role: 'training' })),
   },
   {
     name: 'mixed',
