@@ -70,8 +70,9 @@ describe('adversarial YAML/JSON structure', () => {
       ['YAML flow maps', `${'{a: '.repeat(depth)}1${'}'.repeat(depth)}\n`, 'yaml'],
       // Compact block sequences: `- - - 1` is block nesting on one line.
       ['YAML block lists', `${'- '.repeat(depth)}1\n`, 'yaml'],
-      // Block maps with one-space indentation (12.5 MB: the file limit is raised for this case).
-      ['YAML block maps', Array.from({ length: depth }, (_, i) => `${' '.repeat(i)}k:`).join('\n') + ' 1\n', 'yaml'],
+      // Block maps need one more column of indentation per level: 2,000 levels with one-space
+      // indentation is 2 MB (the file limit is raised so that depth, not size, is what stops it).
+      ['YAML block maps (2,000 deep)', Array.from({ length: 2000 }, (_, i) => `${' '.repeat(i)}k:`).join('\n') + ' 1\n', 'yaml'],
       ['JSON lists', `${'['.repeat(depth)}1${']'.repeat(depth)}`, 'json'],
       ['JSON maps', `${'{"a":'.repeat(depth)}1${'}'.repeat(depth)}`, 'json'],
     ];
