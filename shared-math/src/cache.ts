@@ -2,8 +2,12 @@
  * computeSchedule: every number of a discrete schedule in one call, memoised per distinct
  * parameter set (DESIGN section 4: "A schedule is computed once per distinct parameter set").
  *
- * Callers cannot corrupt the cache: entries hold private arrays and every call returns fresh
- * copies (copying is much cheaper than the log1p/exp work it saves).
+ * Shared, read-only results: every call with the same parameters returns the same frozen
+ * ScheduleNumbers object and the same arrays, so documents with the same schedule share one copy
+ * of its curves. The arrays are typed ReadonlyFloat64Array: callers must not write to them (the
+ * type forbids index writes and the mutating methods; JavaScript typed arrays cannot be frozen at
+ * run time). A caller that needs a mutable array takes a copy with `.slice()`. The input list of an
+ * explicit schedule is copied on the way in, so changing it afterwards is harmless.
  */
 import { checkBetaBound, checkBetas, checkTrainSteps, describeValue, fail, ok, type MathResult } from './guards';
 import { rescaleZeroTerminalSnr } from './rescale';
@@ -24,17 +28,32 @@ export interface ScheduleParams {
   rescaleZeroSnr?: boolean;
 }
 
+/** Typed-array methods and properties through which an array could be changed. */
+type Float64Mutators = 'set' | 'fill' | 'copyWithin' | 'reverse' | 'sort' | 'subarray' | 'buffer';
+
+/**
+ * A Float64Array that may be shared: index reads, iteration, `slice` (a mutable copy), `map`,
+ * `reduce`... but no index writes, no mutating methods and no access to the underlying buffer.
+ * Any Float64Array can be passed where one is expected.
+ */
+export type ReadonlyFloat64Array = Readonly<Omit<Float64Array, Float64Mutators>> & {
+  subarray(begin?: number, end?: number): ReadonlyFloat64Array;
+};
+
+/** Shared by every caller with the same parameters: read only (see the module comment). */
 export interface ScheduleNumbers {
-  betas: Float64Array;
-  alphaBar: Float64Array;
-  logSnr: Float64Array;
+  readonly betas: ReadonlyFloat64Array;
+  readonly alphaBar: ReadonlyFloat64Array;
+  readonly logSnr: ReadonlyFloat64Array;
+  /** Signal amplitude sqrt(abar) at each step. */
+  readonly signal: ReadonlyFloat64Array;
   /** sqrt(abar), sqrt(1 - abar) and SNR at i = T - 1; exactly 0 / 1 / 0 when abar there is 0. */
-  terminalSignal: number;
-  terminalNoise: number;
-  terminalSnr: number;
+  readonly terminalSignal: number;
+  readonly terminalNoise: number;
+  readonly terminalSnr: number;
   /** logSnr at i = 0 and at i = T - 1 (logSnrMin may be -Infinity). */
-  logSnrMax: number;
-  logSnrMin: number;
+  readonly logSnrMax: number;
+  readonly logSnrMin: number;
 }
 
 /**
@@ -128,25 +147,29 @@ function sameBits(a: Float64Array, b: Float64Array): boolean {
   return true;
 }
 
-function copyNumbers(n: ScheduleNumbers): ScheduleNumbers {
-  return { ...n, betas: n.betas.slice(), alphaBar: n.alphaBar.slice(), logSnr: n.logSnr.slice() };
-}
+/** Arrays per cached schedule (betas, abar, log-SNR, signal), for the cache weight. */
+const ARRAYS_PER_ENTRY = 4;
 
 function numbersFromBetas(betas: Float64Array): ScheduleNumbers {
   const alphaBar = alphaBarFromBetas(betas);
   const logSnr = new Float64Array(alphaBar.length);
-  for (let i = 0; i < alphaBar.length; i++) logSnr[i] = logSnrFromAlphaBar(alphaBar[i]);
+  const signal = new Float64Array(alphaBar.length);
+  for (let i = 0; i < alphaBar.length; i++) {
+    logSnr[i] = logSnrFromAlphaBar(alphaBar[i]);
+    signal[i] = signalAmplitude(alphaBar[i]);
+  }
   const last = alphaBar[alphaBar.length - 1];
-  return {
+  return Object.freeze({
     betas,
     alphaBar,
     logSnr,
+    signal,
     terminalSignal: signalAmplitude(last),
     terminalNoise: noiseAmplitude(last),
     terminalSnr: snrFromAlphaBar(last),
     logSnrMax: logSnr[0],
     logSnrMin: logSnr[logSnr.length - 1],
-  };
+  });
 }
 
 /** Validates the parameters a kind reads and builds the cache key from those only. */
@@ -201,8 +224,9 @@ function buildBetas(p: ScheduleParams, explicit: Float64Array | null): MathResul
  * All numbers of a discrete schedule: betas (optionally rescaled to zero terminal SNR with
  * Lin et al. 2023, Algorithm 1), abar, log-SNR and the terminal values.
  * Memoised per distinct parameter set (LRU; the key covers only the parameters the kind reads,
- * plus a hash of an explicit list, which is also compared in full on a hit). Returned arrays are
- * fresh copies on every call. T must be an integer in [2, 100000] and is checked before anything
+ * plus a hash of an explicit list, which is also compared in full on a hit). The result is shared
+ * with every other caller of the same parameters and must not be changed (ReadonlyFloat64Array;
+ * copy with `.slice()` to get a mutable array). T must be an integer in [2, 100000] and is checked before anything
  * is allocated; an explicit list must have exactly trainSteps entries.
  */
 export function computeSchedule(p: ScheduleParams): MathResult<ScheduleNumbers> {
@@ -215,7 +239,7 @@ export function computeSchedule(p: ScheduleParams): MathResult<ScheduleNumbers> 
   const cached = scheduleCache.get(key);
   if (cached !== undefined && (explicit === null || (cached.explicit !== null && sameBits(cached.explicit, explicit)))) {
     stats.hits++;
-    return ok(copyNumbers(cached.numbers));
+    return ok(cached.numbers);
   }
   stats.misses++;
   const built = buildBetas(p, explicit);
@@ -227,6 +251,6 @@ export function computeSchedule(p: ScheduleParams): MathResult<ScheduleNumbers> 
     betas = rescaled.value;
   }
   const numbers = numbersFromBetas(betas);
-  scheduleCache.set(key, { explicit, numbers }, betas.length * 3 + (explicit?.length ?? 0));
-  return ok(copyNumbers(numbers));
+  scheduleCache.set(key, { explicit, numbers }, betas.length * ARRAYS_PER_ENTRY + (explicit?.length ?? 0));
+  return ok(numbers);
 }

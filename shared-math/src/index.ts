@@ -62,6 +62,8 @@ export {
 export {
   type ScheduleParams,
   type ScheduleNumbers,
+  type ReadonlyFloat64Array,
+  LruCache,
   computeSchedule,
   clearScheduleCache,
   scheduleCacheStats,

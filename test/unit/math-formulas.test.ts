@@ -7,6 +7,8 @@ import { beforeEach, describe, expect, it } from 'vitest';
 import {
   alphaBarFromBetas,
   alphaBarFromSigma,
+  checkBetas,
+  classifierFreeGuidance,
   clearScheduleCache,
   computeSchedule,
   epsFromV,
@@ -14,9 +16,12 @@ import {
   flowTimestepShift,
   guidanceRescale,
   logSnrFromAlphaBar,
+  mean,
   minSnrWeight,
   noiseAmplitude,
   noisySample,
+  populationStd,
+  rescaleZeroTerminalSnr,
   resolutionLogSnrShift,
   samplingTimesteps,
   scheduleCacheStats,
@@ -236,17 +241,91 @@ describe('schedule cache', () => {
     expect(scheduleCacheStats()).toMatchObject({ hits: 2, misses: 3, entries: 3 });
   });
 
-  it('callers cannot corrupt cached numbers', () => {
+  it('hands every caller the same frozen numbers, and a copy is the way to get a mutable array', () => {
     const first = computeSchedule(params);
     if (!first.ok) throw new Error(first.problem);
-    const original = first.value.alphaBar[999];
-    first.value.alphaBar.fill(0.5);
-    first.value.betas[0] = 0.9;
-    const second = computeSchedule(params);
+    const second = computeSchedule({ ...params });
     if (!second.ok) throw new Error(second.problem);
-    expect(scheduleCacheStats().hits).toBe(1);
-    expect(second.value.alphaBar[999]).toBe(original);
-    expect(second.value.betas[0]).toBeCloseTo(0.00085, 15);
+    // Shared, not copied: documents with the same schedule hold one set of arrays.
+    expect(second.value).toBe(first.value);
+    expect(second.value.alphaBar).toBe(first.value.alphaBar);
+    expect(Object.isFrozen(first.value)).toBe(true);
+    expect(() => {
+      (first.value as { terminalSnr: number }).terminalSnr = 1;
+    }).toThrow(TypeError);
+    const original = first.value.alphaBar[999];
+    const copy = first.value.alphaBar.slice();
+    copy.fill(0.5);
+    const third = computeSchedule(params);
+    if (!third.ok) throw new Error(third.problem);
+    expect(third.value.alphaBar[999]).toBe(original);
+    expect(third.value.alphaBar[999]).not.toBe(0.5);
+    expect(scheduleCacheStats()).toMatchObject({ hits: 2, misses: 1 });
+  });
+
+  it('the shared arrays are read only to the type checker (tsc -b checks these lines)', () => {
+    const r = computeSchedule(params);
+    if (!r.ok) throw new Error(r.problem);
+    const n = r.value;
+    // Each line below must stay a type error; if ReadonlyFloat64Array ever allowed a write,
+    // `@ts-expect-error` would fail the type check. The writes are never run.
+    const writes = [
+      // @ts-expect-error index writes are not allowed
+      () => (n.alphaBar[0] = 0.5),
+      // @ts-expect-error no fill
+      () => n.betas.fill(0),
+      // @ts-expect-error no set
+      () => n.logSnr.set([1]),
+      // @ts-expect-error no sort / reverse / copyWithin
+      () => n.signal.reverse(),
+      // @ts-expect-error a subarray is read only too
+      () => (n.alphaBar.subarray(1)[0] = 0.5),
+      // @ts-expect-error no way to the underlying buffer
+      () => new Float64Array(n.alphaBar.buffer),
+      // @ts-expect-error not assignable to a mutable Float64Array
+      (): Float64Array => n.alphaBar,
+    ];
+    expect(writes).toHaveLength(7);
+    // Reading, iterating and copying work on the same values.
+    expect(Array.from(n.signal.subarray(0, 2))).toEqual([Math.sqrt(n.alphaBar[0]), Math.sqrt(n.alphaBar[1])]);
+  });
+
+  it('no public function writes to the arrays it is given: the cache stays bit-for-bit intact', () => {
+    const r = computeSchedule(params);
+    if (!r.ok) throw new Error(r.problem);
+    const shared = r.value;
+    const before = [shared.betas, shared.alphaBar, shared.logSnr, shared.signal].map((a) => Array.from(a));
+    // Every shared-math function that takes a list, fed the shared arrays.
+    expect(checkBetas(shared.betas)).toBeNull();
+    alphaBarFromBetas(shared.betas);
+    rescaleZeroTerminalSnr(shared.betas);
+    computeSchedule({ kind: 'explicit', trainSteps: 1000, betas: shared.betas, rescaleZeroSnr: true });
+    mean(shared.logSnr.subarray(0, 10));
+    populationStd(shared.alphaBar);
+    classifierFreeGuidance(shared.alphaBar, shared.signal, 7.5);
+    guidanceRescale(shared.alphaBar, shared.signal, 7.5, 0.7);
+    const after = computeSchedule(params);
+    if (!after.ok) throw new Error(after.problem);
+    expect(after.value).toBe(shared);
+    expect([shared.betas, shared.alphaBar, shared.logSnr, shared.signal].map((a) => Array.from(a))).toEqual(before);
+    // And the shared numbers are those a fresh computation gives.
+    clearScheduleCache();
+    const fresh = computeSchedule(params);
+    if (!fresh.ok) throw new Error(fresh.problem);
+    expect(fresh.value).not.toBe(shared);
+    expect(Array.from(fresh.value.alphaBar)).toEqual(before[1]);
+    expect(Array.from(fresh.value.signal)).toEqual(before[3]);
+  });
+
+  // Signal amplitude sqrt(abar) (DESIGN section 4; Ho et al. 2020).
+  it('the signal curve is sqrt(abar) at every step', () => {
+    const r = computeSchedule({ ...params, rescaleZeroSnr: true });
+    if (!r.ok) throw new Error(r.problem);
+    const { alphaBar, signal } = r.value;
+    expect(signal.length).toBe(1000);
+    for (let i = 0; i < 1000; i++) expect(signal[i]).toBe(Math.sqrt(alphaBar[i]));
+    // Lin et al. 2023: exactly zero signal at the last step after the rescale.
+    expect(signal[999]).toBe(0);
   });
 
   it('explicit lists are keyed by content, and mutating the input list afterwards is harmless', () => {

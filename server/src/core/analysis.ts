@@ -2,6 +2,11 @@
  * setup -> analysis: the numbers every rule, hover and output reads. All arithmetic is delegated
  * to shared-math (which caches per parameter set); this module only decides which numbers a
  * document's setup implies.
+ *
+ * Curves are shared: a discrete schedule's curve holds the arrays of shared-math's cache, and the
+ * flow and Karras curves are memoised here per parameter set, so documents with the same schedule
+ * hold one copy of its 1,000-point curves between them. Every array in an Analysis is read only
+ * (ReadonlyFloat64Array); copy it with `.slice()` before changing it.
  */
 import {
   checkSampleSteps,
@@ -10,12 +15,13 @@ import {
   flowSnr,
   flowTimestepShift,
   karrasSigmas,
-  logSnrFromAlphaBar,
+  LruCache,
   samplingTimesteps,
   sigmaFromAlphaBar,
   snrFromAlphaBar,
   snrFromSigma,
   SIGMA_DATA_DEFAULT,
+  type ReadonlyFloat64Array,
   type ScheduleParams,
 } from '@noiselint/shared-math';
 import type { BetaScheduleKind, TimestepSpacing } from '../fields/concepts';
@@ -30,12 +36,13 @@ export const ASSUMED_SAMPLE_STEPS = 50;
 /** Points of the continuous curves (flow, Karras) drawn over t. */
 const CONTINUOUS_POINTS = 1000;
 
+/** Shared between documents with the same schedule: read only. */
 export interface ScheduleCurve {
   /** Variance-preserving abar at each x (for flow: (1 - t)^2 / ((1 - t)^2 + t^2)). */
-  alphaBar: Float64Array;
-  logSnr: Float64Array;
+  readonly alphaBar: ReadonlyFloat64Array;
+  readonly logSnr: ReadonlyFloat64Array;
   /** Signal amplitude: sqrt(abar) for discrete and Karras, (1 - t) for flow. */
-  signal: Float64Array;
+  readonly signal: ReadonlyFloat64Array;
 }
 
 export interface ScheduleAnalysis {
@@ -46,7 +53,7 @@ export interface ScheduleAnalysis {
   /** The file already asks for the zero-terminal-SNR rescale. */
   rescaleApplied: boolean;
   curve: ScheduleCurve;
-  betas: Float64Array | null;
+  betas: ReadonlyFloat64Array | null;
   terminalSignal: number;
   terminalNoise: number;
   terminalSnr: number;
@@ -61,7 +68,7 @@ export interface RescaleAnalysis {
   terminalSignal: number;
   logSnrMax: number;
   curve: ScheduleCurve;
-  betas: Float64Array;
+  betas: ReadonlyFloat64Array;
 }
 
 export interface SamplingAnalysis {
@@ -124,16 +131,15 @@ export function analyzeSetup(setup: Setup): Analysis {
   return out;
 }
 
-function curveFromAlphaBar(alphaBar: Float64Array, logSnr?: Float64Array): ScheduleCurve {
-  const n = alphaBar.length;
-  const signal = new Float64Array(n);
-  const ls = logSnr ?? new Float64Array(n);
-  for (let i = 0; i < n; i++) {
-    signal[i] = Math.sqrt(alphaBar[i]);
-    if (!logSnr) ls[i] = logSnrFromAlphaBar(alphaBar[i]);
-  }
-  return { alphaBar, logSnr: ls, signal };
+/** The curves of the continuous families, one per parameter set (small: a few distinct sets are usual). */
+const CONTINUOUS_CACHE_ENTRIES = 16;
+const flowCurves = new LruCache<string, ScheduleCurve>(CONTINUOUS_CACHE_ENTRIES, CONTINUOUS_CACHE_ENTRIES);
+interface KarrasCurve {
+  curve: ScheduleCurve;
+  /** The dense sigmas, ascending (clean to noisy), for placing sampled sigmas on the curve. */
+  sigmas: ReadonlyFloat64Array;
 }
+const karrasCurves = new LruCache<string, KarrasCurve>(CONTINUOUS_CACHE_ENTRIES, CONTINUOUS_CACHE_ENTRIES);
 
 function discreteParams(setup: Setup, problems: string[]): ScheduleParams | null {
   const trainSteps = valueOf(setup, 'trainSteps');
@@ -166,7 +172,7 @@ function analyzeDiscrete(setup: Setup, out: Analysis): void {
     kind: params.kind,
     trainSteps: params.trainSteps,
     rescaleApplied,
-    curve: curveFromAlphaBar(n.alphaBar, n.logSnr),
+    curve: { alphaBar: n.alphaBar, logSnr: n.logSnr, signal: n.signal },
     betas: n.betas,
     terminalSignal: n.terminalSignal,
     terminalNoise: n.terminalNoise,
@@ -182,7 +188,7 @@ function analyzeDiscrete(setup: Setup, out: Analysis): void {
       terminalSnr: r.terminalSnr,
       terminalSignal: r.terminalSignal,
       logSnrMax: r.logSnrMax,
-      curve: curveFromAlphaBar(r.alphaBar, r.logSnr),
+      curve: { alphaBar: r.alphaBar, logSnr: r.logSnr, signal: r.signal },
       betas: r.betas,
     };
   }
@@ -246,23 +252,15 @@ function analyzeFlow(setup: Setup, out: Analysis): void {
     return;
   }
   const points = Math.min(T, CONTINUOUS_POINTS);
-  const alphaBar = new Float64Array(points);
-  const logSnr = new Float64Array(points);
-  const signal = new Float64Array(points);
-  for (let i = 0; i < points; i++) {
-    const t = flowTimestepShift((i + 1) / points, shift);
-    const snr = flowSnr(t);
-    alphaBar[i] = snr / (1 + snr);
-    logSnr[i] = Math.log(snr);
-    signal[i] = 1 - t;
-  }
+  const curve = flowCurve(points, shift);
+  const { logSnr, signal } = curve;
   const last = points - 1;
   out.schedule = {
     family: 'flow',
     kind: 'flow',
     trainSteps: T,
     rescaleApplied: false,
-    curve: { alphaBar, logSnr, signal },
+    curve,
     betas: null,
     terminalSignal: signal[last],
     terminalNoise: 1,
@@ -299,33 +297,68 @@ function analyzeFlow(setup: Setup, out: Analysis): void {
   };
 }
 
-function analyzeKarras(setup: Setup, out: Analysis): void {
-  const sigmaMin = valueOf(setup, 'sigmaMin') ?? 0.002;
-  const sigmaMax = valueOf(setup, 'sigmaMax') ?? 80;
-  const rho = valueOf(setup, 'rho') ?? 7;
-  const dense = karrasSigmas(CONTINUOUS_POINTS, sigmaMin, sigmaMax, rho);
-  if (!dense.ok) {
-    out.scheduleProblems.push(dense.problem);
-    return;
+/** The flow-matching curve at `points` shifted times (memoised per points and shift). */
+function flowCurve(points: number, shift: number): ScheduleCurve {
+  const key = `${points}|${shift}`;
+  const cached = flowCurves.get(key);
+  if (cached) return cached;
+  const alphaBar = new Float64Array(points);
+  const logSnr = new Float64Array(points);
+  const signal = new Float64Array(points);
+  for (let i = 0; i < points; i++) {
+    const t = flowTimestepShift((i + 1) / points, shift);
+    const snr = flowSnr(t);
+    alphaBar[i] = snr / (1 + snr);
+    logSnr[i] = Math.log(snr);
+    signal[i] = 1 - t;
   }
+  const curve: ScheduleCurve = Object.freeze({ alphaBar, logSnr, signal });
+  flowCurves.set(key, curve);
+  return curve;
+}
+
+/** The dense Karras et al. 2022 curve (memoised per sigma range and rho), or the problem. */
+function karrasCurve(sigmaMin: number, sigmaMax: number, rho: number): KarrasCurve | string {
+  const key = `${sigmaMin}|${sigmaMax}|${rho}`;
+  const cached = karrasCurves.get(key);
+  if (cached) return cached;
+  const dense = karrasSigmas(CONTINUOUS_POINTS, sigmaMin, sigmaMax, rho);
+  if (!dense.ok) return dense.problem;
   // Drawn from clean (x = 0) to noisy like the discrete schedules.
-  const sig = Array.from(dense.value).reverse();
-  const n = sig.length;
+  const sigmas = dense.value.slice().reverse();
+  const n = sigmas.length;
   const alphaBar = new Float64Array(n);
   const logSnr = new Float64Array(n);
   const signal = new Float64Array(n);
   for (let i = 0; i < n; i++) {
-    const snr = snrFromSigma(sig[i], KARRAS_SIGMA_DATA);
+    const snr = snrFromSigma(sigmas[i], KARRAS_SIGMA_DATA);
     alphaBar[i] = snr / (1 + snr);
     logSnr[i] = Math.log(snr);
     signal[i] = Math.sqrt(alphaBar[i]);
   }
+  const entry: KarrasCurve = Object.freeze({ curve: Object.freeze({ alphaBar, logSnr, signal }), sigmas });
+  karrasCurves.set(key, entry);
+  return entry;
+}
+
+function analyzeKarras(setup: Setup, out: Analysis): void {
+  const sigmaMin = valueOf(setup, 'sigmaMin') ?? 0.002;
+  const sigmaMax = valueOf(setup, 'sigmaMax') ?? 80;
+  const rho = valueOf(setup, 'rho') ?? 7;
+  const dense = karrasCurve(sigmaMin, sigmaMax, rho);
+  if (typeof dense === 'string') {
+    out.scheduleProblems.push(dense);
+    return;
+  }
+  const { curve, sigmas: sig } = dense;
+  const { alphaBar, logSnr, signal } = curve;
+  const n = sig.length;
   out.schedule = {
     family: 'karras',
     kind: 'karras',
     trainSteps: n,
     rescaleApplied: false,
-    curve: { alphaBar, logSnr, signal },
+    curve,
     betas: null,
     terminalSignal: signal[n - 1],
     terminalNoise: Math.sqrt(1 - alphaBar[n - 1]),
@@ -360,7 +393,7 @@ function analyzeKarras(setup: Setup, out: Analysis): void {
   out.sigmas = { sigmaMax, sigmaMin, karras: sigmas };
 }
 
-function nearestIndex(ascending: number[], value: number): number {
+function nearestIndex(ascending: ReadonlyFloat64Array, value: number): number {
   let lo = 0;
   let hi = ascending.length - 1;
   while (lo < hi) {

@@ -61,8 +61,8 @@ export interface HoverModel {
   focus: string[];
   /** Schedule problems and what the rescale would change. */
   notes: string[];
-  /** log-SNR curves for the chart. */
-  chart: { current: Float64Array; rescaled: Float64Array | null } | null;
+  /** log-SNR curves for the chart (the analysis' shared arrays: read only). */
+  chart: { current: ArrayLike<number>; rescaled: ArrayLike<number> | null } | null;
 }
 
 function listTimesteps(ts: number[]): string {
