@@ -7,9 +7,9 @@
 import { execFileSync } from 'node:child_process';
 import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { beforeAll, describe, expect, it } from 'vitest';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { analyzeText } from '../../server/src/core/api';
-import { MB, describeCrash, ensureCliBuilt, expectSpansInside, runCli, tempDir } from './helpers';
+import { MB, describeCrash, ensureCliBuilt, expectSpansInside, runCli, removeTempDirs, tempDir } from './helpers';
 
 /** Deterministic pseudo-random bytes (a 32-bit LCG; the exact generator does not matter). */
 function garbage(n: number, seed: number): Buffer {
@@ -25,6 +25,7 @@ function garbage(n: number, seed: number): Buffer {
 const VALID = 'num_train_timesteps: 1000\nbeta_schedule: linear\ntimestep_spacing: leading\nnum_inference_steps: 10\n';
 
 describe('adversarial bytes and files', () => {
+  afterAll(removeTempDirs);
   beforeAll(() => ensureCliBuilt());
 
   it('binary garbage: analyzeText copes in process; the CLI skips it with one line', () => {

@@ -195,6 +195,17 @@ export function describeCrash(r: CliRun): string | null {
   return null;
 }
 
+const madeDirs: string[] = [];
+
+/** A fresh folder under the system temp folder (removed by removeTempDirs). */
 export function tempDir(prefix: string): string {
-  return mkdtempSync(join(tmpdir(), `noiselint-${prefix}-`));
+  const dir = mkdtempSync(join(tmpdir(), `noiselint-${prefix}-`));
+  madeDirs.push(dir);
+  return dir;
+}
+
+/** Removes the folders tempDir made (test files call it in afterAll); NOISELINT_KEEP_TEMP keeps them. */
+export function removeTempDirs(): void {
+  if (process.env.NOISELINT_KEEP_TEMP) return;
+  for (const d of madeDirs.splice(0)) rmSync(d, { recursive: true, force: true });
 }

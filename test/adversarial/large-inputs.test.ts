@@ -5,14 +5,15 @@
  */
 import { writeFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { beforeAll, describe, expect, it } from 'vitest';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { analyzeText } from '../../server/src/core/api';
 import { DEFAULT_PARSE_LIMITS } from '../../server/src/parse/types';
-import { MB, describeCrash, flat, ensureCliBuilt, expectSpansInside, reportText, retainedHeapGrowth, runCli, tempDir, treeStats } from './helpers';
+import { MB, describeCrash, flat, ensureCliBuilt, expectSpansInside, reportText, retainedHeapGrowth, runCli, removeTempDirs, tempDir, treeStats } from './helpers';
 
 const HEADER = '# Lanternfish Pictures: invented demo data\nbeta_schedule: linear\nbeta_start: 0.0001\nbeta_end: 0.02\n';
 
 describe('adversarial sizes', () => {
+  afterAll(removeTempDirs);
   beforeAll(() => ensureCliBuilt());
 
   it('a 20 MB file: refused as too large (maxFileBytes), in process and through the CLI', () => {

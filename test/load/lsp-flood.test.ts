@@ -12,7 +12,7 @@ import type { Diagnostic } from 'vscode-languageserver-protocol';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { analyzeText } from '../../server/src/core/api';
 import { EXPLAIN_REQUEST, PLOT_DATA_REQUEST, SUMMARY_REQUEST } from '../../server/src/protocol';
-import { ensureCliBuilt, tempDir } from '../adversarial/helpers';
+import { ensureCliBuilt, removeTempDirs, tempDir } from '../adversarial/helpers';
 import { LspTestClient } from './lspClient';
 import { configText } from './texts';
 
@@ -22,6 +22,7 @@ const DOCS = Number(process.env.NOISELINT_LOAD_DOCS ?? 2_000);
 const codesOf = (d: Diagnostic[]) => d.map((x) => String(x.code ?? '')).sort();
 
 describe('language server under load', () => {
+  afterAll(removeTempDirs);
   let client: LspTestClient;
   let dir: string;
 

@@ -7,7 +7,7 @@
 import { join } from 'node:path';
 import type { Diagnostic } from 'vscode-languageserver-protocol';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { ensureCliBuilt, tempDir } from '../adversarial/helpers';
+import { ensureCliBuilt, removeTempDirs, tempDir } from '../adversarial/helpers';
 import { LspTestClient } from './lspClient';
 import { configText } from './texts';
 
@@ -20,6 +20,7 @@ function aliasBomb(): string {
 }
 
 describe('language server with hostile documents', () => {
+  afterAll(removeTempDirs);
   let client: LspTestClient;
   let dir: string;
 

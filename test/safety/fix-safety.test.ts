@@ -8,8 +8,8 @@ import { spawn } from 'node:child_process';
 import { watch } from 'node:fs';
 import { chmodSync, copyFileSync, lstatSync, readFileSync, readdirSync, readlinkSync, statSync, symlinkSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { beforeAll, describe, expect, it } from 'vitest';
-import { CLI, describeCrash, ensureCliBuilt, runCli, tempDir } from '../adversarial/helpers';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { CLI, describeCrash, ensureCliBuilt, runCli, removeTempDirs, tempDir } from '../adversarial/helpers';
 
 /**
  * Explicit linear betas (Ho et al. 2020 endpoints 1e-4 -> 0.02) stretched to T = n. 10,000 keeps
@@ -79,6 +79,7 @@ function runFixAndKill(cwd: string, file: string, afterWriteStartsMs: number | n
 }
 
 describe('fix safety', () => {
+  afterAll(removeTempDirs);
   beforeAll(() => ensureCliBuilt());
 
   it('SIGKILL during a large rewrite leaves the original or the fully fixed file, never a partial one', { timeout: 180_000 }, async () => {

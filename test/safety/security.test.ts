@@ -5,11 +5,11 @@
 import { spawnSync } from 'node:child_process';
 import { existsSync, mkdirSync, readdirSync, readFileSync, statSync, symlinkSync, writeFileSync } from 'node:fs';
 import { join, relative } from 'node:path';
-import { beforeAll, describe, expect, it } from 'vitest';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { findPartners, resolvePairPath, validatePairs } from '../../server/src/workspace';
 import { loadProject } from '../../server/src/workspace/projectFile';
 import { diskRoleProbe } from '../../server/src/workspace/roles';
-import { CLI, REPO, describeCrash, ensureCliBuilt, runCli, tempDir } from '../adversarial/helpers';
+import { CLI, REPO, describeCrash, ensureCliBuilt, runCli, removeTempDirs, tempDir } from '../adversarial/helpers';
 import { LspTestClient } from '../load/lspClient';
 
 const NO_NETWORK = join(REPO, 'test/safety/no-network.cjs');
@@ -43,6 +43,7 @@ function listFiles(dir: string): string[] {
 }
 
 describe('security', () => {
+  afterAll(removeTempDirs);
   beforeAll(() => ensureCliBuilt());
 
   it('pair paths with .., absolute paths and escaping symlinks are refused', () => {
