@@ -32,7 +32,7 @@ const CHROMIUM = process.env.NOISELINT_E2E_CHROMIUM || '/usr/bin/chromium';
 const ARTIFACTS = join(here, 'artifacts');
 const FIXTURES = join(here, 'fixtures');
 const FIXTURE_FILE = 'nightframes-finetune.yaml';
-const EXTENSION_ID = 'lanternfish-tools.noiselint';
+const EXTENSION_ID = 'noiselint.noiselint';
 
 // Generous waits: the first start of code-server and of the language server is slow on a busy
 // 2-core machine. These bound the run; they are not assertions about speed.
