@@ -1,7 +1,9 @@
 import { afterEach, describe, expect, it } from 'vitest';
-import { chmodSync } from 'node:fs';
+import { chmodSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { check, parseCheckArgs } from '../../server/src/cli/commands/check';
+import { CheckSession, check, parseCheckArgs } from '../../server/src/cli/commands/check';
+import { analyzeText } from '../../server/src/core/api';
+import { clearProjectCache, loadProject } from '../../server/src/workspace/project';
 import type { CliIO } from '../../server/src/cli/io';
 import { nodeFs, type WorkspaceFs } from '../../server/src/workspace/fs';
 import { removeTree } from '../workspace/helpers';
@@ -164,5 +166,47 @@ sampling:
       'noiselint check: warning: proj/noiselint.project.yaml: pairs[0].sampling: "../outside.yaml" leaves the project folder; pair ignored\n',
     );
     expect(r.code).toBe(0);
+  });
+
+  it('reads each file once (pairing and the check share the reading) and finds what a separate check of each file finds', async () => {
+    // The demo pair (a training file and a sampling file that disagree), three times over: pairs by name.
+    const demo = (name: string) => readFileSync(join(__dirname, '../../examples/night-storyboards', name), 'utf8');
+    const files: Record<string, string> = {};
+    for (const take of ['dusk', 'dawn', 'tide']) {
+      files[`night/train-${take}.yaml`] = demo('train-finetune.yaml');
+      files[`night/sample-${take}.yaml`] = demo('sample-leading.yaml');
+    }
+    files['night/leaky.yaml'] = LEAKY_V;
+    const root = tree(files);
+    const reads = new Map<string, number>();
+    const counting: WorkspaceFs = {
+      ...nodeFs,
+      readBytes(path) {
+        reads.set(path, (reads.get(path) ?? 0) + 1);
+        return nodeFs.readBytes(path);
+      },
+    };
+    clearProjectCache(counting);
+    let stdout = '';
+    const io: CliIO = { cwd: root, stdout: (t) => void (stdout += t), stderr: () => undefined, isTTY: false, env: {} };
+    expect(await check(parseCheckArgs(['--format', 'json']), io, counting)).toBe(1);
+    expect([...reads.keys()].sort()).toEqual(Object.keys(files).map((f) => join(root, f)).sort());
+    expect([...reads.values()].every((n) => n === 1)).toBe(true);
+
+    // The same findings as analysing each file on its own (fresh parse) with the partners pairing gives.
+    clearProjectCache();
+    const out = JSON.parse(stdout) as { files: { path: string; findings: { rule: string; severity: string; message: string }[] }[] };
+    const session = new CheckSession(nodeFs, (p) => p.slice(root.length + 1));
+    for (const rel of Object.keys(files)) {
+      const path = join(root, rel);
+      const project = loadProject(path);
+      const pairing = session.partnersOf(path, project);
+      const alone = analyzeText(files[rel], { path, project, partners: pairing.partners, pairRole: pairing.pairRole });
+      const reported = out.files.find((f) => f.path === rel)!.findings;
+      expect(reported.map((f) => `${f.rule} ${f.severity} ${f.message}`)).toEqual(alone.findings.map((f) => `${f.rule} ${f.severity} ${f.message}`));
+    }
+    const rules = out.files.flatMap((f) => f.findings.map((x) => x.rule));
+    expect(rules.filter((r) => r === 'train-sample-mismatch')).toHaveLength(3);
+    expect(rules).toContain('terminal-snr-leak');
   });
 });

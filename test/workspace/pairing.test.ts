@@ -3,12 +3,14 @@ import { realpathSync, symlinkSync } from 'node:fs';
 import { join, relative } from 'node:path';
 import {
   findPartners,
+  PairingMemo,
   pairNameKey,
   resolvePairPath,
   validatePairs,
   type FileRole,
   type RoleProbe,
 } from '../../server/src/workspace/pairing';
+import { nodeFs, type WorkspaceFs } from '../../server/src/workspace/fs';
 import { clearProjectCache, loadProject } from '../../server/src/workspace/project';
 import { makeTree, removeTree } from './helpers';
 
@@ -183,5 +185,65 @@ describe('pair paths stay inside the project folder', () => {
     const root = tree({ 'noiselint.project.yaml': '', 't.yaml': '' });
     symlinkSync(join(outside, 'serve.yaml'), join(root, 's.yaml'));
     expect(partnersOf(root, 't.yaml', { 't.yaml': 'training', 's.yaml': 'sampling' })).toBeNull();
+  });
+});
+
+describe('a pairing memo (one run over a tree that does not change)', () => {
+  /** The disk, counting the folder listings and canonical-path look-ups pairing asks for. */
+  function countingFs() {
+    const calls = { readDir: 0, realpath: 0 };
+    const fs: WorkspaceFs = {
+      ...nodeFs,
+      readDir: (p) => (calls.readDir++, nodeFs.readDir(p)),
+      realpath: (p) => (calls.realpath++, nodeFs.realpath(p)),
+    };
+    return { fs, calls };
+  }
+
+  it('lists each folder once and needs no canonical paths when no links are involved, with the same pairs', () => {
+    const files: Record<string, string> = {};
+    const roles: Record<string, FileRole> = {};
+    for (let k = 0; k < 10; k++) {
+      files[`night/train-take${k}.yaml`] = '';
+      files[`night/sample-take${k}.yaml`] = '';
+      roles[`night/train-take${k}.yaml`] = 'training';
+      roles[`night/sample-take${k}.yaml`] = 'sampling';
+    }
+    const root = tree(files);
+    const { fs, calls } = countingFs();
+    const memo = new PairingMemo(fs);
+    const roleOf = roleFromMarker(root, roles);
+    for (const file of Object.keys(files)) {
+      const project = loadProject(join(root, file));
+      const withMemo = findPartners(join(root, file), project, { roleOf, memo });
+      const alone = findPartners(join(root, file), project, { roleOf });
+      expect(withMemo).toEqual(alone);
+      const other = file.startsWith('night/train-') ? file.replace('train-', 'sample-') : file.replace('sample-', 'train-');
+      expect(withMemo).toEqual({ role: roles[file], how: 'auto-name', partners: [join(root, other)] });
+    }
+    expect(calls).toEqual({ readDir: 1, realpath: 0 });
+  });
+
+  it('a file asked about through a link it shares with a candidate pairs as that candidate', () => {
+    // link.yaml is excluded, so it is not a candidate itself; it is the same file as t.yaml.
+    const root = tree({ 'noiselint.project.yaml': 'exclude: ["link.yaml"]\n', 't.yaml': '', 's.yaml': '' });
+    symlinkSync(join(root, 't.yaml'), join(root, 'link.yaml'));
+    const roles: Record<string, FileRole> = { 't.yaml': 'training', 's.yaml': 'sampling' };
+    const project = loadProject(join(root, 't.yaml'));
+    const memo = new PairingMemo();
+    const viaLink = findPartners(join(root, 'link.yaml'), project, { roleOf: roleFromMarker(root, roles), memo });
+    expect(viaLink).toEqual({ role: 'training', how: 'auto-role', partners: [join(root, 's.yaml')] });
+    expect(findPartners(join(root, 'link.yaml'), project, { roleOf: roleFromMarker(root, roles) })).toEqual(viaLink);
+  });
+
+  it('with a link among the candidates, the first name of the file in sorted order speaks for it', () => {
+    // b.yaml links to a.yaml: one training file under two names, so one training and one sampling file.
+    const root = tree({ 'a.yaml': '', 'serve.yaml': '' });
+    symlinkSync(join(root, 'a.yaml'), join(root, 'b.yaml'));
+    const roles: Record<string, FileRole> = { 'a.yaml': 'training', 'b.yaml': 'none', 'serve.yaml': 'sampling' };
+    const memo = new PairingMemo();
+    const project = loadProject(join(root, 'a.yaml'));
+    const viaB = findPartners(join(root, 'b.yaml'), project, { roleOf: roleFromMarker(root, roles), memo });
+    expect(viaB).toEqual({ role: 'training', how: 'auto-role', partners: [join(root, 'serve.yaml')] });
   });
 });

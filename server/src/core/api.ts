@@ -59,9 +59,18 @@ export function readFile(text: string, options: AnalyzeOptions): Omit<FileResult
   };
 }
 
-/** The whole pipeline, rules included. */
-export function analyzeText(text: string, options: AnalyzeOptions): FileResult {
-  const file = readFile(text, options);
+/**
+ * Rules over a file `readFile` already read, so that nothing is parsed twice (the check command
+ * reads every file once to learn its role for pairing, then checks it). `options` must read the
+ * text the way `file` was read (same path, format, project and limits); partners and the pair
+ * role only change the findings.
+ */
+export function analyzeRead(file: Omit<FileResult, 'findings'>, options: AnalyzeOptions): FileResult {
   const findings = runRules(file, options);
   return { ...file, findings };
+}
+
+/** The whole pipeline, rules included. */
+export function analyzeText(text: string, options: AnalyzeOptions): FileResult {
+  return analyzeRead(readFile(text, options), options);
 }

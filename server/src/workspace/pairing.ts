@@ -15,6 +15,10 @@
  *     training file and a sampling file with the same remaining words pair when no other file of
  *     either role has those words (`train-night.yaml` + `sample-night.yaml`).
  * A folder with more than MAX_AUTO_CANDIDATES config files is not auto-paired.
+ *
+ * Two paths name the same file when they are equal once resolved, or else when their canonical
+ * (symlink-free) paths are equal; canonical paths are only asked for when links are in play, and a
+ * PairingMemo keeps them, with each folder's candidates, for a whole run.
  */
 import { dirname, isAbsolute, join, relative, resolve, sep } from 'node:path';
 import type { Setup } from '../setup/types';
@@ -36,9 +40,15 @@ export interface PairMatch {
 }
 
 export interface PairingDeps {
+  /** Ignored when `memo` is given (the memo reads through its own view). */
   fs?: WorkspaceFs;
   /** Role of a sibling file, for automatic pairing (see roles.ts: diskRoleProbe). */
   roleOf: RoleProbe;
+  /**
+   * File-system facts kept between calls. Pass one for a run over files that do not change
+   * meanwhile (the check command); without one, each call starts afresh.
+   */
+  memo?: PairingMemo;
 }
 
 export const MAX_AUTO_CANDIDATES = 64;
@@ -55,17 +65,20 @@ const isInside = (root: string, p: string) => {
 
 /** Resolves a pair path against the project folder; it must exist and stay inside. */
 export function resolvePairPath(project: ResolvedProject, written: string, fs: WorkspaceFs = nodeFs): PairPathResult {
+  return resolvePairPathWith(project, written, new PairingMemo(fs));
+}
+
+function resolvePairPathWith(project: ResolvedProject, written: string, memo: PairingMemo): PairPathResult {
   if (isAbsolute(written) || /^[A-Za-z]:[\\/]/.test(written)) {
     return { ok: false, problem: `"${written}" must be relative to the project folder` };
   }
   const abs = resolve(project.root, written);
   if (!isInside(project.root, abs)) return { ok: false, problem: `"${written}" leaves the project folder` };
-  const st = fs.stat(abs);
+  const st = memo.fs.stat(abs);
   if (!st) return { ok: false, problem: `"${written}" does not exist` };
   if (st.kind !== 'file') return { ok: false, problem: `"${written}" is not a file` };
-  const real = fs.realpath(abs);
-  const realRoot = fs.realpath(project.root) ?? project.root;
-  if (!real || !isInside(realRoot, real)) {
+  const real = memo.realpath(abs);
+  if (!real || !isInside(memo.realRoot(project), real)) {
     return { ok: false, problem: `"${written}" is a link that resolves outside the project folder` };
   }
   return { ok: true, path: abs };
@@ -76,18 +89,27 @@ interface ResolvedPair {
   sampling: string;
 }
 
+interface ValidatedPairs {
+  pairs: ResolvedPair[];
+  warnings: string[];
+}
+
 /** The usable explicit pairs and one warning line for each unusable pair side. */
-export function validatePairs(project: ResolvedProject, fs: WorkspaceFs = nodeFs): { pairs: ResolvedPair[]; warnings: string[] } {
+export function validatePairs(project: ResolvedProject, fs: WorkspaceFs = nodeFs): ValidatedPairs {
+  return validatePairsWith(project, new PairingMemo(fs));
+}
+
+function validatePairsWith(project: ResolvedProject, memo: PairingMemo): ValidatedPairs {
   const pairs: ResolvedPair[] = [];
   const warnings: string[] = [];
   project.pairs.forEach((pair, i) => {
-    const training = resolvePairPath(project, pair.training, fs);
-    const sampling = resolvePairPath(project, pair.sampling, fs);
+    const training = resolvePairPathWith(project, pair.training, memo);
+    const sampling = resolvePairPathWith(project, pair.sampling, memo);
     for (const [side, r] of [['training', training], ['sampling', sampling]] as const) {
       if (!r.ok) warnings.push(`${project.file ?? 'project'}: pairs[${i}].${side}: ${r.problem}; pair ignored`);
     }
     if (training.ok && sampling.ok) {
-      if (samePath(training.path, sampling.path, fs)) {
+      if (memo.samePath(training.path, sampling.path)) {
         warnings.push(`${project.file ?? 'project'}: pairs[${i}]: training and sampling are the same file; pair ignored`);
       } else {
         pairs.push({ training: training.path, sampling: sampling.path });
@@ -97,10 +119,99 @@ export function validatePairs(project: ResolvedProject, fs: WorkspaceFs = nodeFs
   return { pairs, warnings };
 }
 
-function samePath(a: string, b: string, fs: WorkspaceFs): boolean {
-  if (resolve(a) === resolve(b)) return true;
-  const ra = fs.realpath(a);
-  return ra !== undefined && ra === fs.realpath(b);
+/** The config files of one folder that take part in automatic pairing, sorted. */
+interface FolderCandidates {
+  paths: string[];
+  /** pairNameKey of each path's file name. */
+  keys: Map<string, string>;
+  /** At least one of them is a symbolic link: paths alone do not tell which are the same file. */
+  anyLink: boolean;
+}
+
+/**
+ * What pairing learns from the file system, kept for the life of the memo: canonical paths, the
+ * validated explicit pairs of each project and the candidates of each folder. Pairing asks the
+ * same questions for every file of a folder, so a run over a tree asks each one once.
+ */
+export class PairingMemo {
+  private readonly realpaths = new Map<string, string | undefined>();
+  private readonly realRoots = new Map<ResolvedProject, string>();
+  private readonly validated = new Map<ResolvedProject, ValidatedPairs>();
+  private readonly folders = new Map<ResolvedProject, Map<string, FolderCandidates | null>>();
+
+  constructor(readonly fs: WorkspaceFs = nodeFs) {}
+
+  realpath(path: string): string | undefined {
+    if (this.realpaths.has(path)) return this.realpaths.get(path);
+    const real = this.fs.realpath(path);
+    this.realpaths.set(path, real);
+    return real;
+  }
+
+  realRoot(project: ResolvedProject): string {
+    let root = this.realRoots.get(project);
+    if (root === undefined) {
+      root = this.realpath(project.root) ?? project.root;
+      this.realRoots.set(project, root);
+    }
+    return root;
+  }
+
+  /** Same file: equal once resolved, or (only then) equal canonical paths. */
+  samePath(a: string, b: string): boolean {
+    if (resolve(a) === resolve(b)) return true;
+    const ra = this.realpath(a);
+    return ra !== undefined && ra === this.realpath(b);
+  }
+
+  pairs(project: ResolvedProject): ValidatedPairs {
+    let v = this.validated.get(project);
+    if (!v) {
+      v = validatePairsWith(project, this);
+      this.validated.set(project, v);
+    }
+    return v;
+  }
+
+  /** Candidates of `folder` (null when it cannot be read). */
+  candidates(project: ResolvedProject, folder: string): FolderCandidates | null {
+    let byFolder = this.folders.get(project);
+    if (!byFolder) {
+      byFolder = new Map();
+      this.folders.set(project, byFolder);
+    }
+    if (byFolder.has(folder)) return byFolder.get(folder)!;
+    let found: FolderCandidates | null;
+    try {
+      found = this.listCandidates(project, folder);
+    } catch {
+      found = null;
+    }
+    byFolder.set(folder, found);
+    return found;
+  }
+
+  private listCandidates(project: ResolvedProject, folder: string): FolderCandidates {
+    const { pairs } = this.pairs(project);
+    const inExplicitPair = (p: string) => pairs.some((pair) => this.samePath(p, pair.training) || this.samePath(p, pair.sampling));
+    const paths: string[] = [];
+    const keys = new Map<string, string>();
+    let anyLink = false;
+    for (const entry of this.fs.readDir(folder)) {
+      if (entry.kind !== 'file' || !isConfigFileName(entry.name) || isProjectFileName(entry.name)) continue;
+      const path = join(folder, entry.name);
+      if (!projectSelects(project, path) || inExplicitPair(path)) continue;
+      if (entry.isSymlink) {
+        const real = this.realpath(path);
+        if (!real || !isInside(this.realRoot(project), real)) continue;
+        anyLink = true;
+      }
+      paths.push(path);
+      keys.set(path, pairNameKey(entry.name));
+    }
+    paths.sort();
+    return { paths, keys, anyLink };
+  }
 }
 
 /** File role from its documents' setups (only diffusion documents count). */
@@ -123,24 +234,24 @@ export function pairNameKey(fileName: string): string {
 
 /** The partner(s) of `file`, or null. Never throws; a broken pair is simply not used. */
 export function findPartners(file: string, project: ResolvedProject, deps: PairingDeps): PairMatch | null {
-  const fs = deps.fs ?? nodeFs;
+  const memo = deps.memo ?? new PairingMemo(deps.fs ?? nodeFs);
   const abs = resolve(file);
-  const { pairs } = validatePairs(project, fs);
-  const explicit = explicitMatch(abs, pairs, fs);
-  if (explicit) return explicit;
-  if (!project.autoPair) return null;
   try {
-    return autoMatch(abs, project, pairs, fs, deps.roleOf);
+    const { pairs } = memo.pairs(project);
+    const explicit = explicitMatch(abs, pairs, memo);
+    if (explicit) return explicit;
+    if (!project.autoPair) return null;
+    return autoMatch(abs, project, memo, deps.roleOf);
   } catch {
     return null;
   }
 }
 
-function explicitMatch(file: string, pairs: ResolvedPair[], fs: WorkspaceFs): PairMatch | null {
+function explicitMatch(file: string, pairs: ResolvedPair[], memo: PairingMemo): PairMatch | null {
   let match: PairMatch | null = null;
   for (const pair of pairs) {
     for (const role of ['training', 'sampling'] as const) {
-      if (!samePath(file, pair[role], fs)) continue;
+      if (!memo.samePath(file, pair[role])) continue;
       const partner = role === 'training' ? pair.sampling : pair.training;
       if (!match) match = { role, partners: [partner], how: 'explicit' };
       else if (match.role === role && !match.partners.includes(partner)) match.partners.push(partner);
@@ -149,24 +260,25 @@ function explicitMatch(file: string, pairs: ResolvedPair[], fs: WorkspaceFs): Pa
   return match;
 }
 
-function autoMatch(file: string, project: ResolvedProject, pairs: ResolvedPair[], fs: WorkspaceFs, roleOf: RoleProbe): PairMatch | null {
-  const folder = dirname(file);
-  const inExplicitPair = (p: string) => pairs.some((pair) => samePath(p, pair.training, fs) || samePath(p, pair.sampling, fs));
-  const realRoot = fs.realpath(project.root) ?? project.root;
-  const candidates: string[] = [];
-  for (const entry of fs.readDir(folder)) {
-    if (entry.kind !== 'file' || !isConfigFileName(entry.name) || isProjectFileName(entry.name)) continue;
-    const path = join(folder, entry.name);
-    if (!projectSelects(project, path) || inExplicitPair(path)) continue;
-    if (entry.isSymlink) {
-      const real = fs.realpath(path);
-      if (!real || !isInside(realRoot, real)) continue;
-    }
-    candidates.push(path);
+/**
+ * The candidate that is `file` (the first in sorted order, as links can make two names one file).
+ * Without links in the folder, two different names in it are two files: a text comparison is exact.
+ */
+function selfAmong(file: string, folder: FolderCandidates, memo: PairingMemo): string | undefined {
+  if (!folder.anyLink) {
+    const i = folder.paths.indexOf(file);
+    if (i >= 0) return folder.paths[i];
   }
-  if (candidates.length > MAX_AUTO_CANDIDATES || !candidates.some((c) => samePath(c, file, fs))) return null;
-  candidates.sort();
-  const self = candidates.find((c) => samePath(c, file, fs))!;
+  return folder.paths.find((c) => memo.samePath(c, file));
+}
+
+function autoMatch(file: string, project: ResolvedProject, memo: PairingMemo, roleOf: RoleProbe): PairMatch | null {
+  const folder = dirname(file);
+  const found = memo.candidates(project, folder);
+  if (!found || found.paths.length > MAX_AUTO_CANDIDATES) return null;
+  const self = selfAmong(file, found, memo);
+  if (self === undefined) return null;
+  const candidates = found.paths;
   const roles = new Map(candidates.map((c) => [c, roleOf(c)]));
   const role = roles.get(self);
   if (role !== 'training' && role !== 'sampling') return null;
@@ -174,8 +286,8 @@ function autoMatch(file: string, project: ResolvedProject, pairs: ResolvedPair[]
   const sameRole = candidates.filter((c) => roles.get(c) === role);
   const otherRole = candidates.filter((c) => roles.get(c) === other);
   if (sameRole.length === 1 && otherRole.length === 1) return { role, partners: [otherRole[0]], how: 'auto-role' };
-  const key = pairNameKey(self.slice(folder.length + 1));
-  const keyOf = (p: string) => pairNameKey(p.slice(folder.length + 1));
+  const keyOf = (p: string) => found.keys.get(p);
+  const key = keyOf(self);
   const sameKey = sameRole.filter((c) => keyOf(c) === key);
   const otherKey = otherRole.filter((c) => keyOf(c) === key);
   if (sameKey.length === 1 && otherKey.length === 1) return { role, partners: [otherKey[0]], how: 'auto-name' };

@@ -5,12 +5,13 @@
  * file, or a file or folder that could not be read (the others are still checked).
  */
 import { parseArgs } from 'node:util';
-import { analyzeText, readFile, type FileResult } from '../../core/api';
+import { LruCache } from '@noiselint/shared-math';
+import { analyzeRead, analyzeText, readFile, type AnalyzeOptions, type FileResult } from '../../core/api';
 import type { PartnerDocument } from '../../rules/types';
 import { ALL_RULE_METAS } from '../../rules';
 import { discoverFiles } from '../../workspace/discover';
-import { nodeFs, readTextFile, type WorkspaceFs } from '../../workspace/fs';
-import { findPartners, roleOfSetups, validatePairs, type FileRole } from '../../workspace/pairing';
+import { nodeFs, readTextFile, type TextReadResult, type WorkspaceFs } from '../../workspace/fs';
+import { findPartners, MAX_AUTO_CANDIDATES, PairingMemo, roleOfSetups, type FileRole } from '../../workspace/pairing';
 import { loadProject, ProjectFileError, type ResolvedProject } from '../../workspace/project';
 
 import { UsageError, type CliIO } from '../io';
@@ -63,10 +64,27 @@ export function parseCheckArgs(args: string[]): CheckOptions {
   return { inputs: parsed.positionals, format, maxWarnings, quiet: parsed.values.quiet ?? false };
 }
 
+/** A file read and analysed without rules (a role probe or a partner). */
+interface Peeked {
+  text: string;
+  project: ResolvedProject;
+  result: Omit<FileResult, 'findings'>;
+}
+
+/**
+ * Files read without rules kept by a session. Automatic pairing looks within one folder (at most
+ * MAX_AUTO_CANDIDATES files) and files are checked folder by folder, so twice that keeps every
+ * probe until its own check and its partners' checks, and the run's memory stays flat on large
+ * trees (a miss only costs a second reading).
+ */
+const PEEK_CACHE_ENTRIES = 2 * MAX_AUTO_CANDIDATES;
+
 /** Analyses files the way `check` does; shared with tests and other commands. */
 export class CheckSession {
-  private readonly partnerCache = new Map<string, { text: string; result: Omit<FileResult, 'findings'> } | null>();
+  private readonly peeked = new LruCache<string, Peeked | null>(PEEK_CACHE_ENTRIES, PEEK_CACHE_ENTRIES);
   private readonly roleCache = new Map<string, FileRole>();
+  /** File-system facts of pairing: the tree does not change during a run. */
+  private readonly pairing: PairingMemo;
   readonly warnings: string[] = [];
   private readonly warned = new Set<string>();
   private readonly pairsChecked = new Set<ResolvedProject>();
@@ -78,7 +96,11 @@ export class CheckSession {
   constructor(
     private readonly fs: WorkspaceFs = nodeFs,
     private readonly showPath: (absPath: string) => string = (p) => p,
-  ) {}
+    /** Project of each file, when the caller has already loaded them (saves a lookup per probe). */
+    private readonly projects: ReadonlyMap<string, ResolvedProject> = new Map(),
+  ) {
+    this.pairing = new PairingMemo(fs);
+  }
 
   private warnOnce(message: string): void {
     if (this.warned.has(message)) return;
@@ -87,17 +109,18 @@ export class CheckSession {
   }
 
   /** A file analysed without rules (a partner or a role probe), memoised; null when unreadable. */
-  private peek(path: string): { text: string; result: Omit<FileResult, 'findings'> } | null {
-    if (this.partnerCache.has(path)) return this.partnerCache.get(path)!;
-    let entry: { text: string; result: Omit<FileResult, 'findings'> } | null = null;
+  private peek(path: string): Peeked | null {
+    const cached = this.peeked.get(path);
+    if (cached !== undefined) return cached;
+    let entry: Peeked | null = null;
     try {
-      const project = loadProject(path, this.fs);
+      const project = this.projects.get(path) ?? loadProject(path, this.fs);
       const read = readTextFile(this.fs, path, project.limits.maxFileBytes);
-      if (read.ok) entry = { text: read.text, result: readFile(read.text, { path, project }) };
+      if (read.ok) entry = { text: read.text, project, result: readFile(read.text, { path, project }) };
     } catch {
       entry = null;
     }
-    this.partnerCache.set(path, entry);
+    this.peeked.set(path, entry);
     return entry;
   }
 
@@ -115,10 +138,10 @@ export class CheckSession {
   partnersOf(path: string, project: ResolvedProject): { pairRole?: 'training' | 'sampling'; partners: PartnerDocument[]; texts: Map<string, string> } {
     if (!this.pairsChecked.has(project)) {
       this.pairsChecked.add(project);
-      for (const w of validatePairs(project, this.fs).warnings) this.warnOnce(w);
+      for (const w of this.pairing.pairs(project).warnings) this.warnOnce(w);
     }
     const texts = new Map<string, string>();
-    const match = findPartners(path, project, { fs: this.fs, roleOf: this.roleOf });
+    const match = findPartners(path, project, { roleOf: this.roleOf, memo: this.pairing });
     if (!match) return { partners: [], texts };
     const partners: PartnerDocument[] = [];
     for (const partner of match.partners) {
@@ -133,6 +156,28 @@ export class CheckSession {
       }
     }
     return partners.length ? { pairRole: match.role, partners, texts } : { partners: [], texts };
+  }
+
+  /**
+   * The text of a file as `check` reads it. The reading is kept (parsed, without rules) for
+   * pairing and for the file's own analysis, so each file is read and parsed once per run.
+   */
+  readText(path: string, project: ResolvedProject): TextReadResult {
+    const peeked = this.peek(path);
+    if (peeked && peeked.project === project) return { ok: true, text: peeked.text };
+    // Unreadable (the reason is read again) or governed by another project than the probe's.
+    return readTextFile(this.fs, path, project.limits.maxFileBytes);
+  }
+
+  /**
+   * The whole analysis of `path`, whose text is `text`. When pairing already read the same text
+   * under the same project (its role probe), the rules run on that reading: nothing is parsed twice.
+   */
+  analyze(path: string, text: string, options: Omit<AnalyzeOptions, 'path'> & { project: ResolvedProject }): FileResult {
+    const full: AnalyzeOptions = { ...options, path };
+    const peeked = this.peeked.get(path);
+    const reusable = peeked && peeked.text === text && peeked.project === options.project && !options.format && !options.limits;
+    return reusable ? analyzeRead(peeked.result, full) : analyzeText(text, full);
   }
 }
 
@@ -164,13 +209,13 @@ export async function check(options: CheckOptions, io: CliIO, fs: WorkspaceFs = 
     throw err;
   }
 
-  const session = new CheckSession(fs, shown);
+  const session = new CheckSession(fs, shown, projects);
   const progress = io.isTTY && discovered.files.length >= PROGRESS_MIN_FILES;
   let done = 0;
   for (const file of discovered.files) {
     if (progress) io.stderr(`\rchecking ${++done}/${discovered.files.length}`);
     const project = projects.get(file)!;
-    const read = readTextFile(fs, file, project.limits.maxFileBytes);
+    const read = session.readText(file, project);
     if (!read.ok) {
       if (progress) io.stderr('\r\x1b[K');
       if (read.kind === 'io') notice('error', `${shown(file)}: ${read.problem}`);
@@ -182,9 +227,10 @@ export async function check(options: CheckOptions, io: CliIO, fs: WorkspaceFs = 
     }
     let result: FileResult;
     try {
+      // Pairing reads the folder's files (their roles); the file's own check reuses that reading.
       const pairing = session.partnersOf(file, project);
       for (const [p, t] of pairing.texts) report.otherTexts.set(p, t);
-      result = analyzeText(read.text, { path: file, project, partners: pairing.partners, pairRole: pairing.pairRole });
+      result = session.analyze(file, read.text, { project, partners: pairing.partners, pairRole: pairing.pairRole });
     } catch (err) {
       // The core never throws by contract; if it does, one file's failure must not end the run.
       notice('error', `${shown(file)}: internal error while checking: ${err instanceof Error ? err.message.split('\n')[0] : String(err)}`);
