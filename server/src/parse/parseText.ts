@@ -41,7 +41,7 @@ export function parseText(text: string, format: SourceFormat, limits?: Partial<P
         span: { start: 0, end: 0 },
         message: `File is larger than ${lim.maxFileBytes} bytes; it is not read.`,
       });
-      return { ...base, documents: [], problems, suppressions: [] };
+      return { ...base, documents: [], problems, suppressions: [], comments: [] };
     }
     const read = format === 'yaml' ? readYaml(safeText, lim) : readJson(safeText, format, lim, bom);
     documents = read.documents;
@@ -70,7 +70,7 @@ export function parseText(text: string, format: SourceFormat, limits?: Partial<P
     p.span = { start, end };
   }
   problems.sort((a, b) => a.span.start - b.span.start || a.span.end - b.span.end);
-  return { ...base, documents, problems, suppressions };
+  return { ...base, documents, problems, suppressions, comments: comments.map((c) => ({ start: c.start, end: c.end })) };
 }
 
 const isHighSurrogate = (c: number) => c >= 0xd800 && c <= 0xdbff;

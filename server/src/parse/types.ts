@@ -95,6 +95,12 @@ export interface ParsedFile {
   /** True when the text starts with U+FEFF. Offsets still count it. */
   bom: boolean;
   suppressions: Suppression[];
+  /**
+   * Every comment of the file (`#`, `//` or block comments, markers included), sorted by start,
+   * as the parse saw them. Fixes use them to avoid or report edits that touch a comment. Absent
+   * on hand-made ParsedFiles (fix/comments.ts then reads them from a parse of the text).
+   */
+  comments?: Span[];
 }
 
 /** Limits that keep parsing bounded; documented user settings. */
