@@ -4,6 +4,7 @@
  * layout. All fixtures are invented Lanternfish Pictures configs.
  */
 import { describe, expect, it } from 'vitest';
+import { parseText } from '../../server/src/parse';
 import { checkFix, lines, type FixCase } from './helpers';
 
 const yamlBlock: FixCase[] = [
@@ -560,7 +561,43 @@ const giveUps: FixCase[] = [
   },
 ];
 
+/**
+ * Fixes whose text would not parse: the renderer's own shapes would write them, and only the
+ * parse of the result (done for these risky shapes) keeps them from being offered. Each case says
+ * why by parsing the text the fix would have made.
+ */
+const wouldNotParse: (FixCase & { broken: string })[] = [
+  {
+    name: 'removing the kept one of two duplicate JSON keys (the dropped one keeps its comma)',
+    format: 'json',
+    before: lines('{', '  "num_train_timesteps": 1000,', '  "beta_schedule": "linear",', '  "noise_offset": 0.1,', '  "noise_offset": 0.05', '}', ''),
+    edits: [{ kind: 'remove', concept: 'offsetNoise' }],
+    after: null,
+    // The line goes and, the member being last in the tree, the comma after the one before it.
+    broken: lines('{', '  "num_train_timesteps": 1000,', '  "beta_schedule": "linear"', '  "noise_offset": 0.1,', '}', ''),
+  },
+  {
+    name: 'removing an entry whose value is an anchor an alias still uses',
+    before: lines('num_train_timesteps: 1000', 'beta_schedule: linear', 'noise_offset: &jitter 0.1', 'extra_noise: *jitter', ''),
+    edits: [{ kind: 'remove', concept: 'offsetNoise' }],
+    after: null,
+    broken: lines('num_train_timesteps: 1000', 'beta_schedule: linear', 'extra_noise: *jitter', ''),
+  },
+];
+
 describe('renderConceptEdits', () => {
+  describe('never offers a fix whose result would not parse', () => {
+    for (const c of wouldNotParse) {
+      it(c.name, () => {
+        const format = c.format ?? 'yaml';
+        const broken = parseText(c.broken, format).problems.filter((p) => p.severity === 'error');
+        expect(broken.length, 'the text the fix would make has a syntax error').toBeGreaterThan(0);
+        expect(parseText(c.before, format).problems.filter((p) => p.severity === 'error')).toEqual([]);
+        checkFix(c);
+      });
+    }
+  });
+
   const groups: [string, FixCase[]][] = [
     ['YAML block maps: set', yamlBlock],
     ['YAML: insert', yamlInsert],

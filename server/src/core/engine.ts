@@ -4,7 +4,7 @@
  * that fails yields no findings (and is reported through `onRuleError`), the run goes on.
  */
 import { CONCEPT_GROUP, type Concept } from '../fields/concepts';
-import { editsTouchComment, renderConceptEdits } from '../fix';
+import { editsTouchComment, rememberOrigin, renderConceptEdits } from '../fix';
 import { LineIndex } from '../parse/lineIndex';
 import type { LocatedMap, LocatedNode, ParsedFile, Span } from '../parse/types';
 import { PARSE_ERROR_ID, RULES, getRuleMeta } from '../rules';
@@ -260,7 +260,12 @@ function renderFixes(fixes: ConceptFix[], parsed: ParsedFile, setup: Setup): Fix
     rendered.push({ title, safety, preferred: false, edits, wanted: fix.preferred === true });
   }
   const preferredIndex = Math.max(0, rendered.findIndex((f) => f.wanted));
-  return rendered.map(({ wanted: _wanted, ...f }, i) => ({ ...f, preferred: i === preferredIndex }));
+  return rendered.map(({ wanted: _wanted, ...f }, i) => {
+    const proposal = { ...f, preferred: i === preferredIndex };
+    // Where the fix is handed out (LSP code actions), its result is parsed in full from here.
+    rememberOrigin(proposal, parsed);
+    return proposal;
+  });
 }
 
 /** `"value"` for a written value, whatever quotes the file uses. */

@@ -3,6 +3,22 @@
  * place, an inserted key goes next to its siblings with their indentation and spacing, a removed
  * key takes its own line(s) with it. When an edit cannot be made without breaking the text or
  * losing a comment, the whole fix is given up (null).
+ *
+ * Syntax safety, without parsing the file once per fix:
+ * - On a file that parsed cleanly, the shapes written here keep the syntax by construction: a
+ *   scalar token (checked against the token grammar below) in place of a one-line scalar, a list
+ *   of number tokens with the list's own separators, whole `key: value` lines at a sibling's
+ *   indentation in a block map, whole block-map lines removed, JSON members added or removed
+ *   with their commas (JSON's grammar has no context beyond the comma).
+ * - Anything else is "risky" and the edited text is parsed again before the fix is offered (as
+ *   every fix was once): a file with parse problems (its tree is partial; a dropped duplicate key
+ *   still has its comma), YAML flow collections, a key that does not start its line or follows a
+ *   dash with tabs, a removed line that defines an anchor (an alias elsewhere may need it), a
+ *   value text outside the token grammar.
+ * - Where a fix is applied, the result is checked in full again: the fix loop re-analyses every
+ *   round and refuses a round that adds a parse error (fix/loop.ts), and LSP code actions parse
+ *   the result of each fix they hand out (editsKeepSyntax, lsp/codeActions.ts). Printed fixes
+ *   (`check --format json`, SARIF) rely on the construction above.
  */
 import type { TextEdit } from '../core/findings';
 import type { Concept, ConceptValues } from '../fields/concepts';
@@ -12,7 +28,7 @@ import type { ConceptEdit } from '../rules/types';
 import type { FieldSource, Setup } from '../setup/types';
 import { applyEdits, editsConflict, sortEdits } from './apply';
 import { parseText } from '../parse';
-import { commentSpans, rangeHasComment } from './comments';
+import { commentStartingAt, rangeHasComment } from './comments';
 import { formatBoolean, formatNumber, formatString, requote, type QuoteStyle } from './format';
 import { KEY_ALIASES } from '../fields/aliases';
 import { normalizeKeySegment } from '../fields/normalize';
@@ -28,6 +44,35 @@ function giveUp(why: string): never {
 
 const BOOLEAN_CONCEPTS: ReadonlySet<Concept> = new Set<Concept>(['zeroTerminalSnr', 'thresholding', 'latentSpace', 'karrasSigmas']);
 const ENUM_CONCEPTS: ReadonlySet<Concept> = new Set<Concept>(['betaSchedule', 'predictionTarget', 'timestepSpacing', 'sampler']);
+
+const JSON_NUMBER = /^-?(?:0|[1-9]\d*)(?:\.\d+)?(?:[eE][-+]?\d+)?$/;
+const YAML_NUMBER = /^[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?$/;
+/** A JSON string, without the raw characters some YAML readers take for line breaks. */
+const JSON_STRING = /^"(?:[^"\\\u0000-\u001f\u0080-\u009f\u2028\u2029\ufeff]|\\(?:["\\/bfnrt]|u[0-9a-fA-F]{4}))*"$/;
+/** YAML plain words: no indicator, no `: ` or ` #`, nothing a flow collection stops at. */
+const YAML_WORD = /^[A-Za-z_][A-Za-z0-9_.+-]*$/;
+const YAML_SINGLE = /^'(?:[^'\r\n]|'')*'$/;
+
+/** True when `text` is a number token that YAML and (for JSON files) JSON read as written. */
+function isNumberToken(text: string, format: SourceFormat): boolean {
+  return (format === 'yaml' ? YAML_NUMBER : JSON_NUMBER).test(text);
+}
+
+/**
+ * True when `text` is one complete scalar token of the format on one line, which ends where it is
+ * written in block and flow context alike.
+ */
+export function isScalarToken(text: string, format: SourceFormat): boolean {
+  if (JSON_STRING.test(text) || isNumberToken(text, format)) return true;
+  if (format !== 'yaml') return text === 'true' || text === 'false' || text === 'null';
+  return YAML_WORD.test(text) || YAML_SINGLE.test(text);
+}
+
+/** `[n, n, ...]` of number tokens (an inserted beta list). */
+function isNumberList(text: string, format: SourceFormat): boolean {
+  const m = /^\[(.*)\]$/.exec(text);
+  return m !== null && m[1].split(', ').every((n) => isNumberToken(n, format));
+}
 
 interface PendingInsert {
   map: LocatedMap;
@@ -46,6 +91,8 @@ class Renderer {
   private readonly inserts: PendingInsert[] = [];
   private booleanSpelling: 'lower' | 'title' | 'upper' | undefined;
   private insertQuote: QuoteStyle | undefined;
+  /** Why the edits need a parse of the result before they are offered (see the module comment). */
+  riskyBecause: string | null = null;
 
   constructor(
     readonly parsed: ParsedFile,
@@ -54,6 +101,11 @@ class Renderer {
     this.text = parsed.text;
     this.format = parsed.format;
     this.eol = parsed.lineEnding;
+  }
+
+  /** Marks the rendered edits as outside the shapes that keep the syntax by construction. */
+  private risky(why: string): void {
+    this.riskyBecause ??= why;
   }
 
   run(edits: readonly ConceptEdit[]): TextEdit[] {
@@ -104,20 +156,22 @@ class Renderer {
    * `key:` with nothing after it is not a setting to the reader, but it is where the user meant the
    * value to go: an empty entry whose key is a spelling of the concept.
    */
-  private emptyEntryFor(concept: Concept): { entry: LocatedEntry; key: string } | null {
+  private emptyEntryFor(concept: Concept): { entry: LocatedEntry; key: string; parent: LocatedMap } | null {
     const spellings = new Set<string>();
     for (const alias of KEY_ALIASES[concept] ?? []) {
       if (alias.kind === 'key' && !alias.spelling.includes('.')) spellings.add(normalizeKeySegment(alias.spelling));
     }
     for (const key of Object.values(INSERT_KEY[concept] ?? {})) spellings.add(normalizeKeySegment(key));
-    const found: LocatedEntry[] = [];
+    const found: { entry: LocatedEntry; key: string; parent: LocatedMap }[] = [];
     walkMaps(this.documentRoot(), (map) => {
-      for (const entry of map.entries) if (entry.value === null && spellings.has(normalizeKeySegment(entry.key))) found.push(entry);
+      for (const entry of map.entries) {
+        if (entry.value === null && spellings.has(normalizeKeySegment(entry.key))) found.push({ entry, key: entry.key, parent: map });
+      }
     });
-    return found.length === 1 ? { entry: found[0], key: found[0].key } : null;
+    return found.length === 1 ? found[0] : null;
   }
 
-  private replace(concept: Concept, value: ConceptValues[Concept], source: Pick<FieldSource, 'entry' | 'key'>): void {
+  private replace(concept: Concept, value: ConceptValues[Concept], source: Pick<FieldSource, 'entry' | 'key' | 'parent'>): void {
     const node = source.entry.value;
     const text = this.text;
     if (concept === 'betas') {
@@ -136,6 +190,8 @@ class Renderer {
       const rest = text.slice(colon + 1, lineBreakOf(text, colon + 1));
       if (!/^[ \t]*(#.*)?$/.test(rest)) giveUp('unexpected text after the key');
       const valueText = this.valueText(concept, value, null, source.key);
+      if (this.isFlow(source.parent)) this.risky('value written into an empty flow-map entry');
+      if (!isScalarToken(valueText, this.format) && !isNumberList(valueText, this.format)) this.risky('value text outside the token grammar');
       this.edits.push({ span: { start: colon + 1, end: colon + 1 }, newText: ` ${valueText}` });
       return;
     }
@@ -151,6 +207,7 @@ class Renderer {
     }
     const valueText = this.valueText(concept, value, node, source.key);
     if (valueText === text.slice(node.span.start, node.span.end)) return;
+    if (node.kind !== 'scalar' || !isScalarToken(valueText, this.format)) this.risky('value text outside the token grammar');
     this.edits.push({ span: { ...node.span }, newText: valueText });
   }
 
@@ -230,6 +287,7 @@ class Renderer {
     const items = list.items;
     if (items.some((item) => item.kind !== 'scalar')) giveUp('list of non-scalars');
     const written = values.map((b, i) => this.number('betas', b, (items[Math.min(i, items.length - 1)] as LocatedScalar | undefined)?.raw ?? null));
+    if (!written.every((n) => isNumberToken(n, this.format))) this.risky('beta text outside the number grammar');
     const isFlow = this.format !== 'yaml' || list.style === 'flow';
     if (isFlow) {
       const open = list.span.start;
@@ -307,6 +365,7 @@ class Renderer {
       this.inserts.push(pending);
     }
     if (pending.members.some((m) => m.key === key)) giveUp('two inserts of one key');
+    if (!isScalarToken(valueText, this.format) && !isNumberList(valueText, this.format)) this.risky('value text outside the token grammar');
     pending.members.push({ concept, key, value: valueText });
   }
 
@@ -373,6 +432,8 @@ class Renderer {
     const before = text.slice(lineStart, keySpan.start);
     const indent = isBlank(before) ? before : ' '.repeat(before.length);
     if (/\t/.test(indent)) giveUp('tab indentation');
+    // A sibling that starts its line, or follows list dashes: the new key lands in the same column.
+    if (!isBlank(before) && !/^(?: *- +)+$/.test(before)) this.risky('sibling key does not start its line');
     // Spacing after the colon: `key: value`, or aligned values when the sibling aligns them.
     let valueColumn: number | null = null;
     const value = anchor.value;
@@ -382,6 +443,7 @@ class Renderer {
     }
     const lines = p.members.map((m) => {
       const key = this.keyText(m.key, anchor);
+      if (!isScalarToken(key, this.format)) this.risky('key text outside the token grammar');
       const pad = valueColumn === null ? 1 : Math.max(1, valueColumn - (indent.length + key.length + 1));
       return `${indent}${key}:${' '.repeat(pad)}${m.value}`;
     });
@@ -406,8 +468,10 @@ class Renderer {
     const close = map.span.end - 1;
     if (text[open] !== '{' || text[close] !== '}') giveUp('flow map without braces');
     if (this.format === 'yaml' && rangeHasComment(this.parsed, map.span.start, map.span.end)) giveUp('comments inside a YAML flow map');
+    if (this.format === 'yaml') this.risky('insert into a YAML flow map');
     const anchor = p.anchor;
     const members = (colon: string) => p.members.map((m) => `${this.keyText(m.key, anchor)}${colon}${m.value}`);
+    for (const m of p.members) if (!isScalarToken(this.keyText(m.key, anchor), this.format)) this.risky('key text outside the token grammar');
     if (!anchor) {
       if (!isBlank(text.slice(open + 1, close))) giveUp('empty flow map with content');
       this.edits.push({ span: { start: open + 1, end: close }, newText: members(': ').join(', ') });
@@ -424,7 +488,7 @@ class Renderer {
     // A comma that a removal in this fix deletes does not count: the new member brings its own.
     const hasComma = commaHere && !this.removedCommas.has(p1);
     if (commaHere) p1 = skipSpaces(text, p1 + 1);
-    const comment = commentSpans(this.parsed).find((c) => c.start === p1);
+    const comment = commentStartingAt(this.parsed, p1);
     if (comment) p1 = skipSpaces(text, comment.end);
     const endsLine = p1 >= text.length || text[p1] === '\n' || text[p1] === '\r';
     const lineStart = lineStartOf(text, keySpan.start);
@@ -470,7 +534,10 @@ class Renderer {
     if (!valueEndsLine) {
       const rest = text.slice(end, lineBreakOf(text, end));
       if (!/^[ \t]*:?[ \t]*(#.*)?$/.test(rest)) giveUp('text after the entry on its line');
+      if (rest.includes(':')) this.risky('colon after the removed entry');
     }
+    // An anchor defined in the removed text may be what an alias elsewhere refers to.
+    if (text.slice(keyStart, end).includes('&')) this.risky('removed text may define an anchor');
     if (isBlank(before)) {
       let from = lineStart;
       let to = valueEndsLine ? end : nextLineStart(text, end);
@@ -487,6 +554,7 @@ class Renderer {
       const next = map.entries[1];
       const nextStart = keySpanWithQuotes(text, next.keySpan).start;
       if (rangeHasComment(this.parsed, keyStart, nextStart)) giveUp('comment between list-item keys');
+      this.risky('next key moves up behind a list dash');
       this.edits.push({ span: { start: keyStart, end: nextStart }, newText: '' });
       return;
     }
@@ -495,6 +563,7 @@ class Renderer {
 
   private removeFlow(entry: LocatedEntry, map: LocatedMap): void {
     const text = this.text;
+    if (this.format === 'yaml') this.risky('removal from a YAML flow map');
     const index = map.entries.indexOf(entry);
     const keyStart = keySpanWithQuotes(text, entry.keySpan).start;
     const after = entry.span.end;
@@ -502,7 +571,7 @@ class Renderer {
     const hasComma = text[p] === ',';
     const commaEnd = hasComma ? p + 1 : after;
     p = skipSpaces(text, commaEnd);
-    const comment = commentSpans(this.parsed).find((c) => c.start === p);
+    const comment = commentStartingAt(this.parsed, p);
     if (comment) p = skipSpaces(text, comment.end);
     const endsLine = p >= text.length || text[p] === '\n' || text[p] === '\r';
     const lineStart = lineStartOf(text, keyStart);
@@ -510,7 +579,7 @@ class Renderer {
     if (endsLine && startsLine) {
       this.edits.push({ span: { start: lineStart, end: nextLineStart(text, p) }, newText: '' });
       if (!hasComma && index > 0) {
-        const comma = commaAfter(text, map.entries[index - 1].span.end, commentSpans(this.parsed));
+        const comma = commaAfter(text, map.entries[index - 1].span.end, this.parsed);
         if (comma < 0) giveUp('no comma after the previous member');
         this.removedCommas.add(comma);
         this.edits.push({ span: { start: comma, end: comma + 1 }, newText: '' });
@@ -520,7 +589,7 @@ class Renderer {
     if (hasComma) {
       this.edits.push({ span: { start: keyStart, end: skipSpaces(text, commaEnd) }, newText: '' });
     } else if (index > 0) {
-      const comma = commaAfter(text, map.entries[index - 1].span.end, commentSpans(this.parsed));
+      const comma = commaAfter(text, map.entries[index - 1].span.end, this.parsed);
       if (comma < 0) giveUp('no comma after the previous member');
       this.removedCommas.add(comma);
       this.edits.push({ span: { start: comma, end: after }, newText: '' });
@@ -558,7 +627,7 @@ function skipSpaces(text: string, pos: number): number {
 }
 
 /** Offset of the comma that follows `pos` past whitespace and comments, or -1. */
-function commaAfter(text: string, pos: number, comments: { start: number; end: number }[]): number {
+function commaAfter(text: string, pos: number, parsed: ParsedFile): number {
   let p = pos;
   for (let guard = 0; guard < 10_000 && p < text.length; guard++) {
     const c = text[p];
@@ -567,7 +636,7 @@ function commaAfter(text: string, pos: number, comments: { start: number; end: n
       p++;
       continue;
     }
-    const comment = comments.find((s) => s.start === p);
+    const comment = commentStartingAt(parsed, p);
     if (!comment) return -1;
     p = comment.end;
   }
@@ -608,13 +677,29 @@ function walkScalars(root: LocatedNode | null, visit: (s: LocatedScalar) => bool
   }
 }
 
-/** Texts up to this size are parsed again after rendering, as a last check. */
+/** Texts up to this size are parsed again after rendering risky edits, as a last check. */
 const VALIDATE_MAX_CHARS = 512 * 1024;
 
-/** The edited text has no more syntax errors and as many documents as before. */
-function stillParses(parsed: ParsedFile, edits: TextEdit[]): boolean {
-  const after = parseText(applyEdits(parsed.text, edits), parsed.format, { maxFileBytes: Number.MAX_SAFE_INTEGER });
-  const syntaxErrors = (problems: ParsedFile['problems']) => problems.filter((p) => p.severity === 'error' && /^(yaml|json)-/.test(p.code)).length;
+/** Parse problems that leave the tree whole: edits on such a file keep the syntax by construction. */
+const HARMLESS_PROBLEMS: ReadonlySet<string> = new Set(['bad-suppression', 'json-comment']);
+
+function syntaxErrors(problems: ParsedFile['problems']): number {
+  let n = 0;
+  for (const p of problems) if (p.severity === 'error' && /^(yaml|json)-/.test(p.code)) n++;
+  return n;
+}
+
+/**
+ * The text after `edits` has no more syntax errors than `parsed` and as many documents: a full
+ * parse of the result. Where a fix is applied or handed to an editor, this is the last check.
+ */
+export function editsKeepSyntax(parsed: ParsedFile, edits: readonly TextEdit[]): boolean {
+  let after: ParsedFile;
+  try {
+    after = parseText(applyEdits(parsed.text, edits), parsed.format, { maxFileBytes: Number.MAX_SAFE_INTEGER });
+  } catch {
+    return false;
+  }
   return syntaxErrors(after.problems) <= syntaxErrors(parsed.problems) && after.documents.length === parsed.documents.length;
 }
 
@@ -625,8 +710,10 @@ function stillParses(parsed: ParsedFile, edits: TextEdit[]): boolean {
  */
 export function renderConceptEdits(parsed: ParsedFile, setup: Setup, edits: ConceptEdit[]): TextEdit[] | null {
   try {
-    const rendered = new Renderer(parsed, setup).run(edits);
-    if (rendered.length > 0 && parsed.text.length <= VALIDATE_MAX_CHARS && !stillParses(parsed, rendered)) return null;
+    const renderer = new Renderer(parsed, setup);
+    const rendered = renderer.run(edits);
+    const mustParse = renderer.riskyBecause !== null || !parsed.problems.every((p) => HARMLESS_PROBLEMS.has(p.code));
+    if (rendered.length > 0 && mustParse && parsed.text.length <= VALIDATE_MAX_CHARS && !editsKeepSyntax(parsed, rendered)) return null;
     return rendered;
   } catch (err) {
     if (err instanceof GiveUp) return null;

@@ -2,6 +2,11 @@
  * Code actions: one quick fix per fix of each noiselint diagnostic in the request, and
  * `source.fixAll.noiselint` applying every safe fix that does not overlap another (computed on the
  * current text).
+ *
+ * A fix handed out here has been parsed in full: the result of each quick fix, and the combined
+ * result of fix-all, must add no syntax error (analysis renders fixes without that parse; see
+ * fix/render.ts). Verdicts are kept per analysed version, so a request costs a parse only for
+ * fixes not asked about before.
  */
 import {
   CodeActionKind,
@@ -12,7 +17,10 @@ import {
   type WorkspaceEdit,
 } from 'vscode-languageserver/node';
 import type { Finding, FixProposal, TextEdit } from '../core/findings';
+import { editsAreApplicable, fixKeepsSyntax, originOf } from '../fix/applicable';
 import { anyConflict, applyEdits, sortEdits } from '../fix/apply';
+import { formatFromPath, parseText } from '../parse';
+import type { ParsedFile, SourceFormat } from '../parse/types';
 import { FIX_ALL_KIND } from '../protocol';
 import { DIAGNOSTIC_SOURCE, fixToData, isDiagnosticData, spanToRange, type FixData, type PositionMapper } from './convert';
 
@@ -22,6 +30,48 @@ export interface CurrentFindings {
   text: string;
   mapper: PositionMapper;
   findings: Finding[];
+  /** Format of the text; when absent, that of the parse behind the findings, else from the uri. */
+  format?: SourceFormat;
+}
+
+const currentParses = new WeakMap<Finding[], ParsedFile>();
+
+/** The parse of the current text: the one the fixes were rendered from, else a parse made now. */
+function currentParse(current: CurrentFindings): ParsedFile {
+  let parsed = currentParses.get(current.findings);
+  if (parsed?.text === current.text) return parsed;
+  parsed = undefined;
+  for (const finding of current.findings) {
+    for (const fix of finding.fixes) {
+      const origin = originOf(fix);
+      if (origin?.text === current.text) parsed ??= origin;
+    }
+  }
+  const format = current.format ?? parsed?.format ?? formatFromPath(current.uri) ?? 'yaml';
+  if (!parsed || parsed.format !== format) parsed = parseText(current.text, format, { maxFileBytes: Number.MAX_SAFE_INTEGER });
+  currentParses.set(current.findings, parsed);
+  return parsed;
+}
+
+/** The fix applied to the current text adds no syntax error (parsed once per fix). */
+function applicable(fix: FixProposal, current: CurrentFindings): boolean {
+  const origin = originOf(fix);
+  const base = origin && origin.text === current.text && origin.format === (current.format ?? origin.format) ? origin : currentParse(current);
+  return fix.edits.length > 0 && fixKeepsSyntax(fix, base);
+}
+
+/** LSP edits of a fix from a diagnostic's data, back to offsets in the current text. */
+function dataEditsToSpans(fix: FixData, mapper: PositionMapper): TextEdit[] {
+  return fix.edits.map((e) => ({ span: { start: mapper.offsetAt(e.range.start), end: mapper.offsetAt(e.range.end) }, newText: e.newText }));
+}
+
+/** A fix from a diagnostic's data (client input) applies to the current text and adds no syntax error. */
+function dataFixApplicable(fix: FixData, current: CurrentFindings): boolean {
+  try {
+    return Array.isArray(fix?.edits) && editsAreApplicable(currentParse(current), dataEditsToSpans(fix, current.mapper));
+  } catch {
+    return false;
+  }
 }
 
 /** True when a requested kind filter (`only`) lets `kind` through. */
@@ -46,9 +96,9 @@ function fixesFor(diagnostic: Diagnostic, current: CurrentFindings): FixData[] {
   const code = typeof diagnostic.code === 'string' ? diagnostic.code : undefined;
   if (!code) return [];
   const finding = current.findings.find((f) => f.rule === code && sameRange(spanToRange(current.mapper, f.span), diagnostic.range));
-  if (finding) return finding.fixes.map((f) => fixToData(current.mapper, f));
+  if (finding) return finding.fixes.filter((f) => applicable(f, current)).map((f) => fixToData(current.mapper, f));
   if (isDiagnosticData(diagnostic.data) && diagnostic.data.version === current.version && diagnostic.data.rule === code) {
-    return diagnostic.data.fixes;
+    return diagnostic.data.fixes.filter((f) => dataFixApplicable(f, current));
   }
   return [];
 }
@@ -73,17 +123,17 @@ export function quickFixes(params: CodeActionParams, current: CurrentFindings, v
   return actions;
 }
 
-function pickSafeFix(finding: Finding): FixProposal | undefined {
-  const safe = finding.fixes.filter((f) => f.safety === 'safe' && f.edits.length > 0);
+function pickSafeFix(finding: Finding, accept: (fix: FixProposal) => boolean): FixProposal | undefined {
+  const safe = finding.fixes.filter((f) => f.safety === 'safe' && f.edits.length > 0 && accept(f));
   return safe.find((f) => f.preferred) ?? safe[0];
 }
 
-/** Every safe fix, in position order, skipping any that would overlap one already taken. */
-export function collectSafeEdits(findings: Finding[], text: string): TextEdit[] {
+/** Every safe fix that `accept` lets through, in position order, skipping any that overlaps one taken. */
+export function collectSafeEdits(findings: Finding[], text: string, accept: (fix: FixProposal) => boolean = () => true): TextEdit[] {
   const taken: TextEdit[] = [];
   const ordered = [...findings].sort((a, b) => a.span.start - b.span.start);
   for (const finding of ordered) {
-    const fix = pickSafeFix(finding);
+    const fix = pickSafeFix(finding, accept);
     if (!fix) continue;
     const own = sortEdits(fix.edits);
     if (own.some((e, i) => i > 0 && anyConflict([e], own.slice(0, i)))) continue;
@@ -94,8 +144,24 @@ export function collectSafeEdits(findings: Finding[], text: string): TextEdit[] 
   return sortEdits(taken);
 }
 
+const fixAllEdits = new WeakMap<Finding[], { text: string; edits: TextEdit[] }>();
+
+/** The edits of fix-all on the current text, checked by one parse of the combined result. */
+function checkedFixAllEdits(current: CurrentFindings): TextEdit[] {
+  const known = fixAllEdits.get(current.findings);
+  if (known?.text === current.text) return known.edits;
+  let edits = collectSafeEdits(current.findings, current.text);
+  if (edits.length > 0 && !editsAreApplicable(currentParse(current), edits)) {
+    // Some fix breaks the text: keep the fixes that are fine on their own, and check them together.
+    edits = collectSafeEdits(current.findings, current.text, (fix) => applicable(fix, current));
+    if (edits.length > 0 && !editsAreApplicable(currentParse(current), edits)) edits = [];
+  }
+  fixAllEdits.set(current.findings, { text: current.text, edits });
+  return edits;
+}
+
 export function fixAllAction(current: CurrentFindings, versionedEdits: boolean): CodeAction | null {
-  const edits = collectSafeEdits(current.findings, current.text);
+  const edits = checkedFixAllEdits(current);
   if (edits.length === 0) return null;
   // A last check that the edits apply cleanly to the current text (throws on overlap).
   applyEdits(current.text, edits);
