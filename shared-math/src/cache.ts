@@ -93,6 +93,13 @@ export class LruCache<K, V> {
     }
   }
 
+  delete(key: K): void {
+    const old = this.map.get(key);
+    if (old === undefined) return;
+    this.totalWeight -= old.weight;
+    this.map.delete(key);
+  }
+
   get size(): number {
     return this.map.size;
   }

@@ -396,6 +396,50 @@ describe('code actions', () => {
   });
 });
 
+describe('documents analysed long ago', () => {
+  /** Every view the editor asks for, on one document. */
+  async function views(uri: string, diagnostics: Diagnostic[]) {
+    const skip = diagnostics.find((d) => d.code === 'sampler-skips-last-step');
+    return {
+      hover: await client.request<Hover | null>('textDocument/hover', { textDocument: { uri }, position: positionOf(SAMPLE_LEADING, 'beta_schedule', 3) }),
+      spacing: await client.request<Hover | null>('textDocument/hover', { textDocument: { uri }, position: positionOf(SAMPLE_LEADING, 'leading', 2) }),
+      hints: await client.request<InlayHint[]>('textDocument/inlayHint', {
+        textDocument: { uri },
+        range: { start: { line: 0, character: 0 }, end: { line: 100, character: 0 } },
+      }),
+      lenses: await client.request<CodeLens[]>('textDocument/codeLens', { textDocument: { uri } }),
+      plot: await client.request<PlotData | null>('noiselint/plotData', { uri }),
+      summary: await client.request<DocumentSummary>('noiselint/summary', { uri }),
+      explain: await client.request<{ text: string }>('noiselint/explain', { uri }),
+      quickFixes: await client.request<CodeAction[]>('textDocument/codeAction', {
+        textDocument: { uri },
+        range: skip!.range,
+        context: { diagnostics: [skip], only: ['quickfix'] },
+      }),
+      fixAll: await client.request<CodeAction[]>('textDocument/codeAction', {
+        textDocument: { uri },
+        range: { start: { line: 0, character: 0 }, end: { line: 0, character: 0 } },
+        context: { diagnostics: [], only: ['source.fixAll.noiselint'] },
+      }),
+    };
+  }
+
+  it('answer every view as they did right after the analysis (the server keeps only recent readings in full)', async () => {
+    const { uri, published } = await openAndWait('old-sample.yaml', SAMPLE_LEADING);
+    const fresh = await views(uri, published.diagnostics);
+    // Sanity: the views are not empty, so the comparison below means something.
+    expect(fresh.hover).not.toBeNull();
+    expect(fresh.hints.length).toBe(2);
+    expect(fresh.lenses).toHaveLength(1);
+    expect(fresh.plot?.documents[0].sampled.map((p) => p.t)).toEqual([901, 801, 701, 601, 501, 401, 301, 201, 101, 1]);
+    expect(fresh.quickFixes.length).toBeGreaterThanOrEqual(1);
+    expect(fresh.fixAll).toHaveLength(1);
+    // Many more documents analysed since: far more than the server keeps in full.
+    for (let i = 0; i < 24; i++) await openAndWait(`later-${i}.yaml`, i % 2 ? SAMPLE_LEADING : TRAIN_LEAKY);
+    expect(await views(uri, published.diagnostics)).toEqual(fresh);
+  });
+});
+
 describe('robustness', () => {
   it('answers malformed requests with errors and keeps serving', async () => {
     await expect(client.request('textDocument/hover', { position: { line: 0, character: 0 } })).rejects.toMatchObject({

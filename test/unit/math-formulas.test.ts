@@ -16,6 +16,7 @@ import {
   flowTimestepShift,
   guidanceRescale,
   logSnrFromAlphaBar,
+  LruCache,
   mean,
   minSnrWeight,
   noiseAmplitude,
@@ -340,3 +341,35 @@ describe('schedule cache', () => {
     expect(b.value.alphaBar[3]).toBeCloseTo(0.4705470, 14);
   });
 });
+
+describe('LruCache (the bounded map behind the schedule and curve caches)', () => {
+  it('drops the least recently used entry past the entry bound; get refreshes an entry', () => {
+    const c = new LruCache<string, number>(2, 100);
+    c.set('a', 1);
+    c.set('b', 2);
+    expect(c.get('a')).toBe(1); // a is now the most recent
+    c.set('c', 3);
+    expect(c.get('b')).toBeUndefined();
+    expect(c.get('a')).toBe(1);
+    expect(c.get('c')).toBe(3);
+    expect(c.size).toBe(2);
+  });
+
+  it('stays under the weight bound, refuses a value heavier than the bound, and delete frees its weight', () => {
+    const c = new LruCache<string, number>(10, 10);
+    c.set('a', 1, 6);
+    c.set('b', 2, 6); // 12 > 10: a goes
+    expect(c.get('a')).toBeUndefined();
+    expect(c.get('b')).toBe(2);
+    c.set('huge', 3, 11);
+    expect(c.get('huge')).toBeUndefined();
+    expect(c.get('b')).toBe(2);
+    c.delete('b');
+    expect(c.size).toBe(0);
+    c.set('d', 4, 10); // fits only because b's weight was given back
+    expect(c.get('d')).toBe(4);
+    c.delete('missing');
+    expect(c.size).toBe(1);
+  });
+});
+

@@ -3,10 +3,18 @@
  * documents, their settings and a role index of the workspace's config files; every analysis goes
  * through `analyzeText` / `readFile` and every number through the core helpers.
  *
+ * Memory: per open document the server keeps its text, the findings (as plain data) and
+ * diagnostics of its last analysis and the document's role, not the located tree, setups and
+ * schedule numbers behind them. Those are kept for the few most recently analysed or asked-about
+ * documents (RECENT_READS) and read again from the analysed text when a view (hover, hints, lens,
+ * plot, explain, summary) asks for an older one; schedule curves come from shared-math's cache
+ * either way.
+ *
  * Diagnostics are pushed (debounced) unless the client pulls them. Never stale: a result is only
  * published when it was computed from the document's current version, and never after a newer one.
  */
 import { dirname, isAbsolute, relative, sep } from 'node:path';
+import { setFlagsFromString } from 'node:v8';
 import { fileURLToPath, pathToFileURL } from 'node:url';
 import {
   CodeActionKind,
@@ -40,6 +48,7 @@ import {
   type WorkspaceFolder,
 } from 'vscode-languageserver/node';
 import { TextDocument } from 'vscode-languageserver-textdocument';
+import { LruCache } from '@noiselint/shared-math';
 import { analyzeText, readFile, type AnalyzeOptions, type FileResult } from '../core/api';
 import type { Finding } from '../core/findings';
 import { plotDataFor } from '../core/plotData';
@@ -81,6 +90,14 @@ const MAX_INDEXED_FILES = 20_000;
 const INDEX_BATCH = 64;
 /** Schedule fields, in the order the "Show noise schedule" lens looks for them. */
 const SCHEDULE_FIELDS: readonly Concept[] = ['betaSchedule', 'betas', 'trainSteps', 'betaStart', 'betaEnd', 'zeroTerminalSnr', 'sigmaMax', 'sigmaMin', 'flowShift'];
+/** Documents whose full reading (tree, setups, analysis) is kept for the views; others are read again. */
+const RECENT_READS = 8;
+/** Partner files whose documents are kept between analyses. */
+const PARTNER_CACHE_ENTRIES = 64;
+
+type ReadResult = Omit<FileResult, 'findings'>;
+/** How an analysis read its text: enough to read it again the same way (partners only change findings). */
+type ReadOptions = Omit<AnalyzeOptions, 'partners' | 'pairRole'>;
 
 interface Capabilities {
   pullDiagnostics: boolean;
@@ -102,7 +119,11 @@ interface Analyzed {
   version: number;
   generation: number;
   text: string;
-  file: FileResult | null;
+  /** How the text was read; null when it was not analysed (turned off, a project file, a failure). */
+  read: ReadOptions | null;
+  isDiffusionConfig: boolean;
+  /** Role of the document for pairing (from its setups); null when not analysed. */
+  role: FileRole | null;
   /** What the user sees: rule findings plus parse and project problems, or nothing. */
   shown: Finding[];
   diagnostics: Diagnostic[];
@@ -174,6 +195,8 @@ export class NoiselintServer {
   };
   private readonly docs = new Map<string, OpenDocument>();
   private readonly openByPath = new Map<string, string>();
+  /** File names of the open documents, by folder (the overlay's folder listings). */
+  private readonly openByFolder = new Map<string, Set<string>>();
   private readonly settingsCache = new Map<string, Promise<EditorSettings>>();
   private globalSettings: EditorSettings = defaultSettings();
   /** Bumped when settings or project files change: every cached analysis is then stale. */
@@ -184,7 +207,16 @@ export class NoiselintServer {
   /** Role of every config file seen (the workspace index). */
   private readonly roles = new Map<string, FileRole>();
   /** Partner documents read from a given text, reused while the text does not change. */
-  private readonly partnerCache = new Map<string, { text: string; project: ResolvedProject; docs: PartnerDocument[] }>();
+  private readonly partnerCache = new LruCache<string, { text: string; project: ResolvedProject; docs: PartnerDocument[] }>(
+    PARTNER_CACHE_ENTRIES,
+    PARTNER_CACHE_ENTRIES,
+  );
+  /**
+   * The full reading of the most recently used analyses, by document URI, with the findings as
+   * the engine made them (their fixes know the parse they came from, which spares code actions a
+   * parse; see fix/applicable.ts).
+   */
+  private readonly recentReads = new LruCache<string, { seq: number; file: ReadResult; shown?: Finding[] }>(RECENT_READS, RECENT_READS);
   private readonly fs: WorkspaceFs;
   /** Display path (in messages) -> absolute path, for related locations in other files. */
   private readonly displayed = new Map<string, string>();
@@ -357,7 +389,7 @@ export class NoiselintServer {
       wasConfig: false,
     };
     this.docs.set(item.uri, od);
-    if (path) this.openByPath.set(path, item.uri);
+    if (path) this.trackOpen(path, item.uri);
     this.contentChanged(od, 0);
   }
 
@@ -378,14 +410,34 @@ export class NoiselintServer {
     if (od.timer) clearTimeout(od.timer);
     this.docs.delete(uri);
     this.settingsCache.delete(uri);
+    this.recentReads.delete(uri);
     if (od.path) {
-      this.openByPath.delete(od.path);
+      this.untrackOpen(od.path);
       // The disk copy speaks again for pairing.
       this.roles.set(od.path, this.roleFromDisk(od.path));
       this.partnerCache.delete(od.path);
       this.dependentsChanged(od.path, true);
     }
     if (!this.caps.pullDiagnostics) void this.connection.sendDiagnostics({ uri, diagnostics: [] });
+  }
+
+  private trackOpen(path: string, uri: string): void {
+    this.openByPath.set(path, uri);
+    const folder = dirname(path);
+    let names = this.openByFolder.get(folder);
+    if (!names) {
+      names = new Set();
+      this.openByFolder.set(folder, names);
+    }
+    names.add(baseName(path));
+  }
+
+  private untrackOpen(path: string): void {
+    this.openByPath.delete(path);
+    const folder = dirname(path);
+    const names = this.openByFolder.get(folder);
+    names?.delete(baseName(path));
+    if (names?.size === 0) this.openByFolder.delete(folder);
   }
 
   /** A document's text changed: re-check it (debounced) and the files paired with it. */
@@ -412,7 +464,7 @@ export class NoiselintServer {
     const analyzed = await this.analyze(od);
     if (!analyzed || this.docs.get(od.uri) !== od || analyzed.version !== od.doc.version) return;
     if (!this.caps.pullDiagnostics) this.publish(od, analyzed);
-    if (analyzed.file?.isDiffusionConfig || od.wasConfig) {
+    if (analyzed.isDiffusionConfig || od.wasConfig) {
       void this.connection.sendNotification(PLOT_CHANGED_NOTIFICATION, { uri: od.uri });
     }
   }
@@ -538,14 +590,15 @@ export class NoiselintServer {
         } catch (err) {
           failure = err;
         }
-        const names = new Set(entries.map((e) => e.name));
+        const open = this.openByFolder.get(path);
         let added = false;
-        for (const open of this.openByPath.keys()) {
-          if (dirname(open) !== path) continue;
-          const name = baseName(open);
-          if (!names.has(name)) {
-            entries.push({ name, kind: 'file', isSymlink: false });
-            added = true;
+        if (open) {
+          const names = new Set(entries.map((e) => e.name));
+          for (const name of open) {
+            if (!names.has(name)) {
+              entries.push({ name, kind: 'file', isSymlink: false });
+              added = true;
+            }
           }
         }
         if (failure && !added) throw failure;
@@ -573,7 +626,7 @@ export class NoiselintServer {
   private roleOf = (path: string): FileRole => {
     const uri = this.openByPath.get(path);
     const od = uri ? this.docs.get(uri) : undefined;
-    if (od?.cache?.file && od.cache.version === od.doc.version) return roleOfSetups(od.cache.file.documents.map((d) => d.setup));
+    if (od?.cache?.role && od.cache.version === od.doc.version) return od.cache.role;
     let role = od ? undefined : this.roles.get(path);
     if (role === undefined) {
       role = this.roleFromDisk(path);
@@ -659,8 +712,8 @@ export class NoiselintServer {
     if (od.cache && od.cache.version === version && od.cache.generation === this.generation) return od.cache;
     const analyzed = this.compute(od, settings);
     od.cache = analyzed;
-    if (od.path && analyzed.file) {
-      const role = roleOfSetups(analyzed.file.documents.map((d) => d.setup));
+    if (od.path && analyzed.role) {
+      const role = analyzed.role;
       const before = this.roles.get(od.path);
       this.roles.set(od.path, role);
       // A file that became (or stopped being) a training or sampling file may change the folder's pairs.
@@ -673,7 +726,7 @@ export class NoiselintServer {
     const text = od.doc.getText();
     const base = { seq: ++this.analysisSeq, version: od.doc.version, generation: this.generation, text };
     const mapper: PositionMapper = od.doc;
-    const empty: Analyzed = { ...base, file: null, shown: [], diagnostics: [], partners: [] };
+    const empty: Analyzed = { ...base, read: null, isDiffusionConfig: false, role: null, shown: [], diagnostics: [], partners: [] };
     if (!settings.enable) return empty;
     if (od.path && isProjectFileName(baseName(od.path))) return this.projectFileAnalysis(od, base);
     const { project: fileProject, problem } = this.projectFor(od.path);
@@ -702,14 +755,18 @@ export class NoiselintServer {
         related: [],
         fixes: [],
       };
-      return { ...base, file: null, shown: [finding], diagnostics: [this.toDiagnostic(od, finding, settings, base.version)], partners: [] };
+      return { ...empty, shown: [finding], diagnostics: [this.toDiagnostic(od, finding, settings, base.version)] };
     }
     if (file.isDiffusionConfig) od.wasConfig = true;
     const shown = this.visibleFindings(file, problem);
+    this.recentReads.set(od.uri, { seq: base.seq, file, shown });
+    const { partners: _partners, pairRole: _pairRole, ...read } = options;
     return {
       ...base,
-      file,
-      shown,
+      read,
+      isDiffusionConfig: file.isDiffusionConfig,
+      role: roleOfSetups(file.documents.map((d) => d.setup)),
+      shown: plainFindings(shown),
       diagnostics: shown.map((f) => this.toDiagnostic(od, f, settings, base.version, mapper)),
       partners: pairing.paths,
     };
@@ -733,9 +790,29 @@ export class NoiselintServer {
   /** A project file shows its own validation problem (if any) and nothing else. */
   private projectFileAnalysis(od: OpenDocument, base: { seq: number; version: number; generation: number; text: string }): Analyzed {
     const { problem } = this.projectFor(od.path);
-    if (!problem) return { ...base, file: null, shown: [], diagnostics: [], partners: [] };
+    const none: Analyzed = { ...base, read: null, isDiffusionConfig: false, role: null, shown: [], diagnostics: [], partners: [] };
+    if (!problem) return none;
     const finding: Finding = { rule: 'project-file', severity: 'error', message: problem, span: { start: 0, end: 0 }, documentIndex: 0, related: [], fixes: [] };
-    return { ...base, file: null, shown: [finding], diagnostics: [this.toDiagnostic(od, finding, defaultSettings(), base.version)], partners: [] };
+    return { ...none, shown: [finding], diagnostics: [this.toDiagnostic(od, finding, defaultSettings(), base.version)] };
+  }
+
+  /**
+   * The full reading (tree, setups, analysis) behind an analysis: kept for recent ones, otherwise
+   * read again from the same text with the same options (the findings are not recomputed).
+   */
+  private readOf(uri: string, analyzed: Analyzed): ReadResult | null {
+    if (!analyzed.read) return null;
+    const recent = this.recentReads.get(uri);
+    if (recent && recent.seq === analyzed.seq) return recent.file;
+    const file = readFile(analyzed.text, analyzed.read);
+    this.recentReads.set(uri, { seq: analyzed.seq, file });
+    return file;
+  }
+
+  /** The findings of an analysis, as the engine made them while they are recent. */
+  private findingsOf(uri: string, analyzed: Analyzed): Finding[] {
+    const recent = this.recentReads.get(uri);
+    return recent?.seq === analyzed.seq && recent.shown ? recent.shown : analyzed.shown;
   }
 
   private toDiagnostic(od: OpenDocument, finding: Finding, settings: EditorSettings, version: number, mapper: PositionMapper = od.doc): Diagnostic {
@@ -786,9 +863,9 @@ export class NoiselintServer {
   }
 
   /** An open document's analysis, or a file on disk read (not kept) for the custom requests. */
-  private async fileFor(uri: string): Promise<{ file: FileResult | null; shown: Finding[]; version: number | null } | null> {
+  private async fileFor(uri: string): Promise<{ file: ReadResult | null; shown: Finding[]; version: number | null } | null> {
     const cur = await this.current(uri);
-    if (cur) return { file: cur.analyzed.file, shown: cur.analyzed.shown, version: cur.analyzed.version };
+    if (cur) return { file: this.readOf(uri, cur.analyzed), shown: cur.analyzed.shown, version: cur.analyzed.version };
     const path = uriToPath(uri);
     if (!path) return null;
     const settings = await this.settingsFor(uri);
@@ -821,10 +898,11 @@ export class NoiselintServer {
     const uri = requireUri(params, true);
     if (!isPosition(params.position)) throw new ResponseError(ErrorCodes.InvalidParams, 'params.position must be a position');
     const cur = await this.current(uri);
-    if (!cur?.analyzed.file) return null;
+    const file = cur && this.readOf(uri, cur.analyzed);
+    if (!cur || !file) return null;
     const offset = cur.od.doc.offsetAt(params.position);
     const format = this.caps.hoverMarkdown ? 'markdown' : 'plaintext';
-    const hover = hoverAt(cur.analyzed.file, offset, format);
+    const hover = hoverAt(file, offset, format);
     if (!hover) return null;
     return { contents: { kind: format, value: hover.text }, range: spanToRange(cur.od.doc, hover.span) };
   }
@@ -838,7 +916,7 @@ export class NoiselintServer {
       version: cur.analyzed.version,
       text: cur.analyzed.text,
       mapper: cur.od.doc,
-      findings: cur.analyzed.shown,
+      findings: this.findingsOf(uri, cur.analyzed),
     };
     const only = Array.isArray(params.context?.only) ? params.context.only : undefined;
     const actions: CodeAction[] = [];
@@ -853,12 +931,13 @@ export class NoiselintServer {
   private async inlayHints(params: InlayHintParams): Promise<InlayHint[]> {
     const uri = requireUri(params, true);
     const cur = await this.current(uri);
-    if (!cur?.analyzed.file || cur.analyzed.shown === undefined) return [];
+    const file = cur && this.readOf(uri, cur.analyzed);
+    if (!cur || !file) return [];
     const doc = cur.od.doc;
     const range = params.range;
     const from = range ? doc.offsetAt(range.start) : 0;
     const to = range ? doc.offsetAt(range.end) : Infinity;
-    return inlineHintsFor(cur.analyzed.file)
+    return inlineHintsFor(file)
       .filter((h) => h.offset >= from && h.offset <= to)
       .map((h) => ({ position: doc.positionAt(h.offset), label: h.label, tooltip: h.tooltip, paddingLeft: true }));
   }
@@ -866,8 +945,9 @@ export class NoiselintServer {
   private async codeLenses(params: CodeLensParams): Promise<CodeLens[]> {
     const uri = requireUri(params, true);
     const cur = await this.current(uri);
-    const file = cur?.analyzed.file;
-    if (!cur || !file?.isDiffusionConfig) return [];
+    if (!cur?.analyzed.isDiffusionConfig) return [];
+    const file = this.readOf(uri, cur.analyzed);
+    if (!file) return [];
     const first = firstFieldOf(file, SCHEDULE_FIELDS);
     if (!first) return [];
     return [
@@ -900,6 +980,18 @@ export class NoiselintServer {
   }
 }
 
+/**
+ * Findings as a document keeps them: plain data. The engine's fix objects may be tied to the parse
+ * they were rendered from (fix/applicable.ts remembers it for code actions), which would keep every
+ * open document's tree alive; these copies are not, and code actions parse the text when asked.
+ */
+function plainFindings(findings: Finding[]): Finding[] {
+  return findings.map((f) => ({
+    ...f,
+    fixes: f.fixes.map((x) => ({ title: x.title, safety: x.safety, preferred: x.preferred, edits: x.edits })),
+  }));
+}
+
 /** Rule ids (and `parse-error`) have a documentation page; internal codes do not. */
 function isRuleId(code: string): boolean {
   return getRuleMeta(code) !== undefined;
@@ -921,7 +1013,19 @@ function relativePosix(base: string, path: string): string {
   return relative(base, path).split(sep).join('/');
 }
 
+/**
+ * How far V8 lets the old generation grow past the live heap before the next full collection, in
+ * percent. Left to itself V8 lets a busy process grow to several times its live size (up to 4x)
+ * between full collections, and does not give the memory back soon after. A language server runs
+ * for hours beside the editor and holds little per open document (its text and findings), so it
+ * keeps the heap near its live size; the cost is a few more (short) full collections during bursts
+ * such as opening thousands of files (bench/RESULTS.md, (d)).
+ */
+export const SERVER_HEAP_GROWING_PERCENT = 30;
+
 export function startServer(connection: Connection): NoiselintServer {
+  // Process-wide: startServer runs in the server's own process (`noiselint lsp`).
+  setFlagsFromString(`--heap-growing-percent=${SERVER_HEAP_GROWING_PERCENT}`);
   const server = new NoiselintServer(connection);
   server.listen();
   return server;

@@ -121,6 +121,8 @@ function validatePairsWith(project: ResolvedProject, memo: PairingMemo): Validat
 
 /** The config files of one folder that take part in automatic pairing, sorted. */
 interface FolderCandidates {
+  /** More than MAX_AUTO_CANDIDATES: the folder is not auto-paired (and `paths` is incomplete). */
+  tooMany: boolean;
   paths: string[];
   /** pairNameKey of each path's file name. */
   keys: Map<string, string>;
@@ -207,10 +209,11 @@ export class PairingMemo {
         anyLink = true;
       }
       paths.push(path);
+      if (paths.length > MAX_AUTO_CANDIDATES) return { tooMany: true, paths: [], keys: new Map(), anyLink };
       keys.set(path, pairNameKey(entry.name));
     }
     paths.sort();
-    return { paths, keys, anyLink };
+    return { tooMany: false, paths, keys, anyLink };
   }
 }
 
@@ -275,7 +278,7 @@ function selfAmong(file: string, folder: FolderCandidates, memo: PairingMemo): s
 function autoMatch(file: string, project: ResolvedProject, memo: PairingMemo, roleOf: RoleProbe): PairMatch | null {
   const folder = dirname(file);
   const found = memo.candidates(project, folder);
-  if (!found || found.paths.length > MAX_AUTO_CANDIDATES) return null;
+  if (!found || found.tooMany) return null;
   const self = selfAmong(file, found, memo);
   if (self === undefined) return null;
   const candidates = found.paths;
