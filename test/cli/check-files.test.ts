@@ -2,7 +2,8 @@ import { afterEach, describe, expect, it } from 'vitest';
 import { chmodSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { CheckSession, check, parseCheckArgs } from '../../server/src/cli/commands/check';
-import { analyzeText } from '../../server/src/core/api';
+import { analyzeText, findingsAsData } from '../../server/src/core/api';
+import { originOf } from '../../server/src/fix/applicable';
 import { clearProjectCache, loadProject } from '../../server/src/workspace/project';
 import type { CliIO } from '../../server/src/cli/io';
 import { nodeFs, type WorkspaceFs } from '../../server/src/workspace/fs';
@@ -210,3 +211,17 @@ sampling:
     expect(rules).toContain('terminal-snr-leak');
   });
 });
+
+describe('check: what the report keeps', () => {
+  it('findings as data: equal to the engine\'s, but no fix still points at the parse it came from', () => {
+    const result = analyzeText(LEAKY_V, { path: 'leaky.yaml' });
+    const fixes = result.findings.flatMap((f) => f.fixes);
+    expect(fixes.length).toBeGreaterThan(0);
+    // The engine ties each fix to its parse (for code actions); that would keep every file's tree.
+    expect(fixes.every((x) => originOf(x) !== undefined)).toBe(true);
+    const data = findingsAsData(result.findings);
+    expect(data).toEqual(result.findings);
+    expect(data.flatMap((f) => f.fixes).every((x) => originOf(x) === undefined)).toBe(true);
+  });
+});
+

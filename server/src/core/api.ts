@@ -70,6 +70,19 @@ export function analyzeRead(file: Omit<FileResult, 'findings'>, options: Analyze
   return { ...file, findings };
 }
 
+/**
+ * Findings as plain data, for keeping after the analysis (a report, an open document). The
+ * engine's fix objects stay tied to the parse they were rendered from (fix/applicable.ts keeps it
+ * for code actions), so holding them holds the file's whole tree; these copies hold only the
+ * findings' own numbers, spans and edits.
+ */
+export function findingsAsData(findings: readonly Finding[]): Finding[] {
+  return findings.map((f) => ({
+    ...f,
+    fixes: f.fixes.map((x) => ({ title: x.title, safety: x.safety, preferred: x.preferred, edits: x.edits })),
+  }));
+}
+
 /** The whole pipeline, rules included. */
 export function analyzeText(text: string, options: AnalyzeOptions): FileResult {
   return analyzeRead(readFile(text, options), options);

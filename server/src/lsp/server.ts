@@ -49,7 +49,7 @@ import {
 } from 'vscode-languageserver/node';
 import { TextDocument } from 'vscode-languageserver-textdocument';
 import { LruCache } from '@noiselint/shared-math';
-import { analyzeText, readFile, type AnalyzeOptions, type FileResult } from '../core/api';
+import { analyzeText, findingsAsData, readFile, type AnalyzeOptions, type FileResult } from '../core/api';
 import type { Finding } from '../core/findings';
 import { plotDataFor } from '../core/plotData';
 import { hoverAt } from '../core/hover';
@@ -766,7 +766,7 @@ export class NoiselintServer {
       read,
       isDiffusionConfig: file.isDiffusionConfig,
       role: roleOfSetups(file.documents.map((d) => d.setup)),
-      shown: plainFindings(shown),
+      shown: findingsAsData(shown),
       diagnostics: shown.map((f) => this.toDiagnostic(od, f, settings, base.version, mapper)),
       partners: pairing.paths,
     };
@@ -978,18 +978,6 @@ export class NoiselintServer {
     const found = await this.fileFor(uri);
     return summaryFor(found?.file ? { ...found.file, findings: found.shown } : null, uri);
   }
-}
-
-/**
- * Findings as a document keeps them: plain data. The engine's fix objects may be tied to the parse
- * they were rendered from (fix/applicable.ts remembers it for code actions), which would keep every
- * open document's tree alive; these copies are not, and code actions parse the text when asked.
- */
-function plainFindings(findings: Finding[]): Finding[] {
-  return findings.map((f) => ({
-    ...f,
-    fixes: f.fixes.map((x) => ({ title: x.title, safety: x.safety, preferred: x.preferred, edits: x.edits })),
-  }));
 }
 
 /** Rule ids (and `parse-error`) have a documentation page; internal codes do not. */

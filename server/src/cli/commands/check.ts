@@ -6,7 +6,7 @@
  */
 import { parseArgs } from 'node:util';
 import { LruCache } from '@noiselint/shared-math';
-import { analyzeRead, analyzeText, readFile, type AnalyzeOptions, type FileResult } from '../../core/api';
+import { analyzeRead, analyzeText, findingsAsData, readFile, type AnalyzeOptions, type FileResult } from '../../core/api';
 import type { PartnerDocument } from '../../rules/types';
 import { ALL_RULE_METAS } from '../../rules';
 import { discoverFiles } from '../../workspace/discover';
@@ -236,7 +236,8 @@ export async function check(options: CheckOptions, io: CliIO, fs: WorkspaceFs = 
       notice('error', `${shown(file)}: internal error while checking: ${err instanceof Error ? err.message.split('\n')[0] : String(err)}`);
       continue;
     }
-    report.files.push({ path: file, text: read.text, findings: result.findings, isDiffusionConfig: result.isDiffusionConfig });
+    // As data: the report outlives every file's tree.
+    report.files.push({ path: file, text: read.text, findings: findingsAsData(result.findings), isDiffusionConfig: result.isDiffusionConfig });
   }
   if (progress) io.stderr('\r\x1b[K');
   for (const w of session.warnings) notice('warning', relativizeWarning(w, io.cwd));
