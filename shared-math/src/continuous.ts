@@ -80,7 +80,9 @@ export function flowSnr(t: number): number {
  */
 export function flowTimestepShift(t: number, shift: number): number {
   if (!(t >= 0 && t <= 1) || !(shift > 0) || shift === Infinity) return NaN;
-  return (shift * t) / (1 + (shift - 1) * t);
+  // The endpoints are fixed points of the shift; keep them exact (float rounding can give 1 + 2^-52).
+  if (t === 0 || t === 1) return t;
+  return Math.min(1, (shift * t) / (1 + (shift - 1) * t));
 }
 
 /**
