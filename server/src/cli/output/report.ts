@@ -60,7 +60,10 @@ export interface Range {
 /** Offsets -> 0-based positions, with one line index per file text. */
 export class Locator {
   private readonly indexes = new Map<string, LineIndex>();
-  constructor(private readonly report: CheckReport) {}
+  private readonly texts = new Map<string, string>();
+  constructor(private readonly report: CheckReport) {
+    for (const f of report.files) if (f.text !== undefined && !this.texts.has(f.path)) this.texts.set(f.path, f.text);
+  }
 
   /** The absolute path of a related location (absent path: the finding's own file). */
   resolvePath(filePath: string, relatedPath: string | undefined): string {
@@ -69,7 +72,7 @@ export class Locator {
   }
 
   textOf(path: string): string | undefined {
-    return this.report.files.find((f) => f.path === path)?.text ?? this.report.otherTexts.get(path);
+    return this.texts.get(path) ?? this.report.otherTexts.get(path);
   }
 
   range(path: string, span: Span): Range {
