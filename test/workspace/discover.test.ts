@@ -1,20 +1,11 @@
-import { afterEach, describe, expect, it } from 'vitest';
-import { mkdirSync, realpathSync, symlinkSync } from 'node:fs';
+import { describe, expect, it } from 'vitest';
+import { mkdirSync, symlinkSync } from 'node:fs';
 import { join, relative } from 'node:path';
 import { discoverFiles } from '../../server/src/workspace/discover';
-import { clearProjectCache, parseProjectFile } from '../../server/src/workspace/project';
-import { makeTree, removeTree } from './helpers';
+import { parseProjectFile } from '../../server/src/workspace/project';
+import { useTempTrees } from './helpers';
 
-const roots: string[] = [];
-function tree(files: Record<string, string>): string {
-  const root = realpathSync(makeTree(files));
-  roots.push(root);
-  return root;
-}
-afterEach(() => {
-  clearProjectCache();
-  while (roots.length) removeTree(roots.pop()!);
-});
+const tree = useTempTrees();
 
 /** Discovered files relative to `root`, in the order returned. */
 function found(root: string, inputs: string[], cwd = root) {

@@ -1,4 +1,6 @@
-import { mkdirSync, mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { mkdirSync, mkdtempSync, realpathSync, rmSync, writeFileSync } from 'node:fs';
+import { afterEach } from 'vitest';
+import { clearProjectCache } from '../../server/src/workspace/project';
 import { tmpdir } from 'node:os';
 import { dirname, join } from 'node:path';
 
@@ -19,4 +21,21 @@ export function writeTree(root: string, files: Record<string, string | Uint8Arra
 
 export function removeTree(root: string): void {
   rmSync(root, { recursive: true, force: true });
+}
+
+/**
+ * `tree(files)` for a test file: real-path temp trees that are removed, together with the
+ * project-file cache, after each test.
+ */
+export function useTempTrees(): (files: Record<string, string>) => string {
+  const roots: string[] = [];
+  afterEach(() => {
+    clearProjectCache();
+    while (roots.length) removeTree(roots.pop()!);
+  });
+  return (files) => {
+    const root = realpathSync(makeTree(files));
+    roots.push(root);
+    return root;
+  };
 }

@@ -1,5 +1,5 @@
-import { afterEach, describe, expect, it } from 'vitest';
-import { realpathSync, symlinkSync } from 'node:fs';
+import { describe, expect, it } from 'vitest';
+import { symlinkSync } from 'node:fs';
 import { join, relative } from 'node:path';
 import {
   findPartners,
@@ -11,19 +11,10 @@ import {
   type RoleProbe,
 } from '../../server/src/workspace/pairing';
 import { nodeFs, type WorkspaceFs } from '../../server/src/workspace/fs';
-import { clearProjectCache, loadProject } from '../../server/src/workspace/project';
-import { makeTree, removeTree } from './helpers';
+import { loadProject } from '../../server/src/workspace/project';
+import { useTempTrees } from './helpers';
 
-const roots: string[] = [];
-function tree(files: Record<string, string>): string {
-  const root = realpathSync(makeTree(files));
-  roots.push(root);
-  return root;
-}
-afterEach(() => {
-  clearProjectCache();
-  while (roots.length) removeTree(roots.pop()!);
-});
+const tree = useTempTrees();
 
 /** Role from the file's first line, `# role: training`: a stand-in for the content analysis. */
 function roleFromMarker(root: string, roles: Record<string, FileRole>): RoleProbe {

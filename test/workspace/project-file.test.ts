@@ -1,6 +1,5 @@
-import { afterEach, describe, expect, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
 import { join, parse } from 'node:path';
-import { realpathSync } from 'node:fs';
 import {
   DEFAULT_PROJECT,
   ProjectFileError,
@@ -10,18 +9,9 @@ import {
   resolveProjectData,
 } from '../../server/src/workspace/project';
 import type { RuleMeta } from '../../server/src/rules/types';
-import { makeTree, removeTree, writeTree } from './helpers';
+import { useTempTrees, writeTree } from './helpers';
 
-const roots: string[] = [];
-function tree(files: Record<string, string>): string {
-  const root = realpathSync(makeTree(files));
-  roots.push(root);
-  return root;
-}
-afterEach(() => {
-  clearProjectCache();
-  while (roots.length) removeTree(roots.pop()!);
-});
+const tree = useTempTrees();
 
 /** The one-line error a project file gives, or null when it loads. */
 function errorOf(text: string, name = 'noiselint.project.yaml', catalog: RuleMeta[] | null = null): string | null {
