@@ -8,7 +8,7 @@ import { parse as parseJsonc } from 'jsonc-parser';
 import { parse as parseYaml } from 'yaml';
 import { check } from '../server/src/cli/commands/check';
 import type { CliIO } from '../server/src/cli/io';
-import { analyzeText } from '../server/src/core/api';
+import { analyzeText } from '../server/src/engine/api';
 import { formatFromPath, parseText } from '../server/src/parse';
 import type { SourceFormat } from '../server/src/parse/types';
 import { discoverFiles } from '../server/src/workspace/discover';

@@ -6,7 +6,7 @@ export {
   PLOT_DATA_REQUEST,
   SHOW_SCHEDULE_COMMAND,
   SUMMARY_REQUEST,
-} from '@noiselint/server/src/protocol';
+} from '@noiselint/server/src/base/protocol';
 export type {
   DocumentSummary,
   PlotCurve,
@@ -15,7 +15,7 @@ export type {
   PlotDocument,
   PlotSampledStep,
   UriParams,
-} from '@noiselint/server/src/protocol';
+} from '@noiselint/server/src/base/protocol';
 
 /** Languages the extension checks. */
 export const LANGUAGES = ['yaml', 'json', 'jsonc'] as const;

@@ -8,7 +8,7 @@ import { execFileSync } from 'node:child_process';
 import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { analyzeText } from '../../server/src/core/api';
+import { analyzeText } from '../../server/src/engine/api';
 import { MB, describeCrash, ensureCliBuilt, expectSpansInside, runCli, removeTempDirs, tempDir } from './helpers';
 
 /** Deterministic pseudo-random bytes (a 32-bit LCG; the exact generator does not matter). */

@@ -3,7 +3,7 @@
  * they run on every `npm test` whatever seed the fuzzer draws.
  */
 import { describe, expect, it } from 'vitest';
-import { analyzeText } from '../../server/src/core/api';
+import { analyzeText } from '../../server/src/engine/api';
 import { expectSpansInside } from './helpers';
 
 const isHigh = (c: number) => c >= 0xd800 && c <= 0xdbff;

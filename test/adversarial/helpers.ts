@@ -9,7 +9,7 @@ import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { setFlagsFromString } from 'node:v8';
 import { runInNewContext } from 'node:vm';
-import type { FileResult } from '../../server/src/core/api';
+import type { FileReading, FileResult } from '../../server/src/engine/api';
 import type { LocatedNode } from '../../server/src/parse/types';
 
 /** The repository root (NOISELINT_REPO overrides it for bundled copies of these helpers). */
@@ -91,7 +91,7 @@ export function treeStats(root: LocatedNode | null): { depth: number; nodes: num
 }
 
 /** Everything the file reports: parse problem codes/messages, setup problems, findings. */
-export function reportText(file: FileResult | Omit<FileResult, 'findings'>): string {
+export function reportText(file: FileResult | FileReading): string {
   const lines = file.parsed.problems.map((p) => `problem ${p.code}: ${p.message}`);
   for (const d of file.documents) for (const p of d.setup.problems) lines.push(`setup ${p.kind}: ${p.message}`);
   if ('findings' in file) for (const f of file.findings) lines.push(`finding ${f.rule}: ${f.message}`);

@@ -6,7 +6,7 @@
 import { writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { analyzeText } from '../../server/src/core/api';
+import { analyzeText } from '../../server/src/engine/api';
 import { DEFAULT_PARSE_LIMITS } from '../../server/src/parse/types';
 import { MB, describeCrash, flat, ensureCliBuilt, expectSpansInside, reportText, retainedHeapGrowth, runCli, removeTempDirs, tempDir, treeStats } from './helpers';
 

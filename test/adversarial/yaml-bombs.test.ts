@@ -4,7 +4,7 @@
  * the memory it keeps alive stays bounded (measured after a forced GC).
  */
 import { describe, expect, it } from 'vitest';
-import { analyzeText } from '../../server/src/core/api';
+import { analyzeText } from '../../server/src/engine/api';
 import { DEFAULT_PARSE_LIMITS } from '../../server/src/parse/types';
 import { MB, expectSpansInside, reportText, retainedHeapGrowth, treeStats } from './helpers';
 

@@ -2,7 +2,7 @@ import { afterEach, describe, expect, it } from 'vitest';
 import { chmodSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { CheckSession, check, parseCheckArgs } from '../../server/src/cli/commands/check';
-import { analyzeText, findingsAsData } from '../../server/src/core/api';
+import { analyzeText, findingsAsData } from '../../server/src/engine/api';
 import { originOf } from '../../server/src/fix/applicable';
 import { clearProjectCache, loadProject } from '../../server/src/workspace/project';
 import type { CliIO } from '../../server/src/cli/io';

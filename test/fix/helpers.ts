@@ -5,7 +5,7 @@ import type { SourceFormat } from '../../server/src/parse/types';
 import { buildSetup } from '../../server/src/setup';
 import type { Setup } from '../../server/src/setup/types';
 import type { ConceptEdit } from '../../server/src/rules/types';
-import type { TextEdit } from '../../server/src/core/findings';
+import type { TextEdit } from '../../server/src/base/findings';
 import { applyEdits, editsTouchComment, renderConceptEdits } from '../../server/src/fix';
 
 export function setupOf(text: string, format: SourceFormat = 'yaml', documentIndex = 0): { parsed: ReturnType<typeof parseText>; setup: Setup } {

@@ -3,7 +3,7 @@
  * `trailing` one word at a time, plus unsafe and conflicting fixes.
  */
 import { describe, expect, it } from 'vitest';
-import type { Finding, FixProposal } from '../../server/src/core/findings';
+import type { Finding, FixProposal } from '../../server/src/base/findings';
 import type { ParsedFile } from '../../server/src/parse/types';
 import { fixText } from '../../server/src/fix/loop';
 

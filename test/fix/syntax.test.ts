@@ -8,7 +8,7 @@
  */
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import { analyzeText } from '../../server/src/core/api';
+import { analyzeText } from '../../server/src/engine/api';
 import { applyEdits } from '../../server/src/fix';
 import { parseText } from '../../server/src/parse';
 

@@ -4,8 +4,8 @@
  * are in range and non-overlapping, and applying them keeps the BOM and CRLF endings and adds no
  * syntax errors. Shared by the vitest properties and `npm run fuzz`.
  */
-import { analyzeText, readFile, type FileResult } from '../../server/src/core/api';
-import { SEVERITIES, type TextEdit } from '../../server/src/core/findings';
+import { analyzeText, readFile, type FileResult } from '../../server/src/engine/api';
+import { SEVERITIES, type TextEdit } from '../../server/src/base/findings';
 import { applyEdits } from '../../server/src/fix/apply';
 import { parseText } from '../../server/src/parse';
 import type { SourceFormat, Span } from '../../server/src/parse/types';

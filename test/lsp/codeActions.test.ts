@@ -5,8 +5,8 @@
  */
 import { describe, expect, it } from 'vitest';
 import type { CodeActionParams, Diagnostic } from 'vscode-languageserver-protocol';
-import { analyzeText } from '../../server/src/core/api';
-import type { Finding, FixProposal } from '../../server/src/core/findings';
+import { analyzeText } from '../../server/src/engine/api';
+import type { Finding, FixProposal } from '../../server/src/base/findings';
 import { applyEdits } from '../../server/src/fix/apply';
 import { fixAllAction, quickFixes, type CurrentFindings } from '../../server/src/lsp/codeActions';
 import { findingToDiagnostic } from '../../server/src/lsp/convert';

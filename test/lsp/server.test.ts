@@ -18,9 +18,9 @@ import {
   type InlayHint,
   type MarkupContent,
 } from 'vscode-languageserver-protocol';
-import { readFile } from '../../server/src/core/api';
+import { readFile } from '../../server/src/engine/api';
 import { valueOf } from '../../server/src/setup/types';
-import type { DocumentSummary, PlotData } from '../../server/src/protocol';
+import type { DocumentSummary, PlotData } from '../../server/src/base/protocol';
 import { LspClient } from './harness';
 import { REPO_ROOT, ensureServerBuilt } from './buildServer';
 import { applyLspEdits, editsFor } from './edits';

@@ -3,7 +3,7 @@
  * publication for an older version ever arrives after one for a newer version.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { PlotData } from '../../server/src/protocol';
+import type { PlotData } from '../../server/src/base/protocol';
 import { LspClient } from './harness';
 import { TRAIN_LEAKY, positionOf } from './fixtures';
 

@@ -6,7 +6,7 @@
 import { existsSync, readdirSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { readFile } from '../../server/src/core/api';
+import { readFile } from '../../server/src/engine/api';
 import { ALL_RULE_METAS, RULES } from '../../server/src/rules';
 import { renderRuleDocPages } from '../../server/src/rules/docs';
 import type { RuleMeta } from '../../server/src/rules/types';

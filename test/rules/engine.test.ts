@@ -3,9 +3,9 @@
  * rule never stops the run.
  */
 import { describe, expect, it } from 'vitest';
-import { analyzeText, readFile } from '../../server/src/core/api';
-import { ruleOptions, runRules } from '../../server/src/core/engine';
-import type { Finding } from '../../server/src/core/findings';
+import { analyzeText, readFile } from '../../server/src/engine/api';
+import { ruleOptions, runRules } from '../../server/src/engine/engine';
+import type { Finding } from '../../server/src/base/findings';
 import { RULES, getRule } from '../../server/src/rules';
 import type { Rule, RuleFinding } from '../../server/src/rules/types';
 import type { ResolvedProject, RuleSetting } from '../../server/src/workspace/types';

@@ -6,9 +6,9 @@
  */
 import { existsSync, readdirSync, readFileSync, statSync } from 'node:fs';
 import { basename, extname, join } from 'node:path';
-import { readFile } from '../../server/src/core/api';
-import { runRules } from '../../server/src/core/engine';
-import type { Finding, Severity } from '../../server/src/core/findings';
+import { readFile } from '../../server/src/engine/api';
+import { runRules } from '../../server/src/engine/engine';
+import type { Finding, Severity } from '../../server/src/base/findings';
 import { applyEdits } from '../../server/src/fix';
 import type { SourceFormat } from '../../server/src/parse/types';
 import type { PartnerDocument } from '../../server/src/rules/types';

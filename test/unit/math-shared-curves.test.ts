@@ -8,13 +8,13 @@ import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { computeSchedule } from '@noiselint/shared-math';
-import { formatExplainText } from '../../server/src/cli/explainFormat';
-import { analyzeText, type FileResult } from '../../server/src/core/api';
-import type { ScheduleCurve } from '../../server/src/core/analysis';
-import { hoverAt } from '../../server/src/core/hover';
-import { inlineHintsFor } from '../../server/src/core/inlayHints';
-import { plotDataFor } from '../../server/src/core/plotData';
-import { summaryFor } from '../../server/src/core/documentSummary';
+import { formatExplainText } from '../../server/src/views/explainFormat';
+import { analyzeText, type FileResult } from '../../server/src/engine/api';
+import type { ScheduleCurve } from '../../server/src/analysis/analysis';
+import { hoverAt } from '../../server/src/views/hover';
+import { inlineHintsFor } from '../../server/src/views/inlayHints';
+import { plotDataFor } from '../../server/src/views/plotData';
+import { summaryFor } from '../../server/src/views/documentSummary';
 
 const examples = join(__dirname, '..', '..', 'examples');
 const DEMO_FILES = [

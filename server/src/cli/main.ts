@@ -6,7 +6,7 @@ import { runFix } from './commands/fix';
 import { runRulesCommand } from './commands/rules';
 import { runLsp } from './commands/lsp';
 
-import { VERSION } from '../version';
+import { VERSION } from '../base/version';
 
 const USAGE = `noiselint ${VERSION}: finds noise-schedule mistakes in diffusion configs
 

@@ -3,7 +3,7 @@
  * actions) instead of once per finding during analysis. The engine records which parse each
  * rendered fix was made from; a fix is parsed again at most once, when it is first asked about.
  */
-import type { FixProposal, TextEdit } from '../core/findings';
+import type { FixProposal, TextEdit } from '../base/findings';
 import type { ParsedFile } from '../parse/types';
 import { editsKeepSyntax } from './render';
 

@@ -1,4 +1,4 @@
-import type { TextEdit } from '../core/findings';
+import type { TextEdit } from '../base/findings';
 
 /** Sorts edits by position, keeping the given order for edits at the same start. */
 export function sortEdits(edits: readonly TextEdit[]): TextEdit[] {

@@ -3,8 +3,7 @@
  * analyse again, repeat until nothing changes, so that fixing a fixed text changes nothing.
  * The analysis is passed in (the caller owns the pipeline); this module only does text.
  */
-import type { Finding, FixProposal, FixSafety, TextEdit } from '../core/findings';
-import type { FileResult } from '../core/api';
+import type { Finding, FixProposal, FixSafety, TextEdit } from '../base/findings';
 import type { ParseProblem } from '../parse/types';
 import { anyConflict, applyEdits } from './apply';
 
@@ -28,7 +27,7 @@ export interface FixLoopResult {
   /** The input has parse errors: nothing was applied. */
   parseError: ParseProblem | null;
   /** Findings of the first analysis (with a parse error: whether the engine saw a config). */
-  initialFindings: Finding[];
+  initialFindings: readonly Finding[];
   /** A round produced text that no longer parsed; its edits were dropped and the loop stopped. */
   brokeText: boolean;
   /** Findings left with a fix at the allowed safety level (0 unless the loop ran out of rounds). */
@@ -39,9 +38,15 @@ export interface FixLoopResult {
 
 export const DEFAULT_MAX_PASSES = 5;
 
-type Analyze = (text: string) => Pick<FileResult, 'parsed' | 'findings'>;
+/** What the loop needs of an analysis: the parse (for its problems) and the findings. */
+export interface LoopReading {
+  parsed: { problems: readonly ParseProblem[] };
+  findings: readonly Finding[];
+}
 
-function firstParseError(result: Pick<FileResult, 'parsed'>): ParseProblem | null {
+type Analyze = (text: string) => LoopReading;
+
+function firstParseError(result: Pick<LoopReading, 'parsed'>): ParseProblem | null {
   return result.parsed.problems.find((p) => p.severity === 'error') ?? null;
 }
 

@@ -20,7 +20,7 @@
  *   the result of each fix they hand out (editsKeepSyntax, lsp/codeActions.ts). Printed fixes
  *   (`check --format json`, SARIF) rely on the construction above.
  */
-import type { TextEdit } from '../core/findings';
+import type { TextEdit } from '../base/findings';
 import type { Concept, ConceptValues } from '../fields/concepts';
 import { CONCEPT_GROUP } from '../fields/concepts';
 import type { LocatedEntry, LocatedList, LocatedMap, LocatedNode, LocatedScalar, ParsedFile, SourceFormat } from '../parse/types';

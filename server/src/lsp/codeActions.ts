@@ -16,12 +16,12 @@ import {
   type TextEdit as LspTextEdit,
   type WorkspaceEdit,
 } from 'vscode-languageserver/node';
-import type { Finding, FixProposal, TextEdit } from '../core/findings';
+import type { Finding, FixProposal, TextEdit } from '../base/findings';
 import { editsAreApplicable, fixKeepsSyntax, originOf } from '../fix/applicable';
 import { anyConflict, applyEdits, sortEdits } from '../fix/apply';
 import { formatFromPath, parseText } from '../parse';
 import type { ParsedFile, SourceFormat } from '../parse/types';
-import { FIX_ALL_KIND } from '../protocol';
+import { FIX_ALL_KIND } from '../base/protocol';
 import { DIAGNOSTIC_SOURCE, fixToData, isDiagnosticData, spanToRange, type FixData, type PositionMapper } from './convert';
 
 export interface CurrentFindings {

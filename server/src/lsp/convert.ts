@@ -7,7 +7,7 @@ import {
   type Range,
   type TextEdit as LspTextEdit,
 } from 'vscode-languageserver/node';
-import type { Finding, FixProposal, Severity } from '../core/findings';
+import type { Finding, FixProposal, Severity } from '../base/findings';
 import type { Span } from '../parse/types';
 
 export const DIAGNOSTIC_SOURCE = 'noiselint';

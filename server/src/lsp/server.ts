@@ -49,14 +49,14 @@ import {
 } from 'vscode-languageserver/node';
 import { TextDocument } from 'vscode-languageserver-textdocument';
 import { LruCache } from '@noiselint/shared-math';
-import { analyzeText, findingsAsData, readFile, type AnalyzeOptions, type FileResult } from '../core/api';
-import type { Finding } from '../core/findings';
-import { plotDataFor } from '../core/plotData';
-import { hoverAt } from '../core/hover';
-import { inlineHintsFor } from '../core/inlayHints';
-import { firstFieldOf } from '../core/fieldAt';
-import { summaryFor } from '../core/documentSummary';
-import { formatExplainText } from '../cli/explainFormat';
+import { analyzeText, findingsAsData, readFile, type AnalyzeOptions, type FileReading, FileResult } from '../engine/api';
+import type { Finding } from '../base/findings';
+import { plotDataFor } from '../views/plotData';
+import { hoverAt } from '../views/hover';
+import { inlineHintsFor } from '../views/inlayHints';
+import { firstFieldOf } from '../views/fieldAt';
+import { summaryFor } from '../views/documentSummary';
+import { formatExplainText } from '../views/explainFormat';
 import type { Concept } from '../fields/concepts';
 import type { SourceFormat } from '../parse/types';
 import { LineIndex } from '../parse/lineIndex';
@@ -70,7 +70,7 @@ import {
   SHOW_SCHEDULE_COMMAND,
   SUMMARY_REQUEST,
   type UriParams,
-} from '../protocol';
+} from '../base/protocol';
 import type { ResolvedProject } from '../workspace/types';
 import { DEFAULT_PROJECT, clearProjectCache, loadProject, setProjectRuleCatalog } from '../workspace/projectFile';
 import { discoverFiles, isConfigFileName, isProjectFileName, projectSelects } from '../workspace/discover';
@@ -95,7 +95,6 @@ const RECENT_READS = 8;
 /** Partner files whose documents are kept between analyses. */
 const PARTNER_CACHE_ENTRIES = 64;
 
-type ReadResult = Omit<FileResult, 'findings'>;
 /** How an analysis read its text: enough to read it again the same way (partners only change findings). */
 type ReadOptions = Omit<AnalyzeOptions, 'partners' | 'pairRole'>;
 
@@ -216,7 +215,7 @@ export class NoiselintServer {
    * the engine made them (their fixes know the parse they came from, which spares code actions a
    * parse; see fix/applicable.ts).
    */
-  private readonly recentReads = new LruCache<string, { seq: number; file: ReadResult; shown?: Finding[] }>(RECENT_READS, RECENT_READS);
+  private readonly recentReads = new LruCache<string, { seq: number; file: FileReading; shown?: Finding[] }>(RECENT_READS, RECENT_READS);
   private readonly fs: WorkspaceFs;
   /** Display path (in messages) -> absolute path, for related locations in other files. */
   private readonly displayed = new Map<string, string>();
@@ -800,7 +799,7 @@ export class NoiselintServer {
    * The full reading (tree, setups, analysis) behind an analysis: kept for recent ones, otherwise
    * read again from the same text with the same options (the findings are not recomputed).
    */
-  private readOf(uri: string, analyzed: Analyzed): ReadResult | null {
+  private readOf(uri: string, analyzed: Analyzed): FileReading | null {
     if (!analyzed.read) return null;
     const recent = this.recentReads.get(uri);
     if (recent && recent.seq === analyzed.seq) return recent.file;
@@ -863,7 +862,7 @@ export class NoiselintServer {
   }
 
   /** An open document's analysis, or a file on disk read (not kept) for the custom requests. */
-  private async fileFor(uri: string): Promise<{ file: ReadResult | null; shown: Finding[]; version: number | null } | null> {
+  private async fileFor(uri: string): Promise<{ file: FileReading | null; shown: Finding[]; version: number | null } | null> {
     const cur = await this.current(uri);
     if (cur) return { file: this.readOf(uri, cur.analyzed), shown: cur.analyzed.shown, version: cur.analyzed.version };
     const path = uriToPath(uri);

@@ -2,7 +2,7 @@
  * The `noiselint.*` editor settings: defaults, validation of what the client sends (anything
  * malformed falls back to the default, field by field), and merging over a project file.
  */
-import { SEVERITIES, type Severity } from '../core/findings';
+import { SEVERITIES, type Severity } from '../base/findings';
 import type { ParseLimits } from '../parse/types';
 import type { ResolvedProject, RuleSetting } from '../workspace/types';
 

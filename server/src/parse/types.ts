@@ -1,12 +1,9 @@
 /** Located tree: every key and value knows where it sits in the source text. */
-
 export type SourceFormat = 'yaml' | 'json' | 'jsonc';
 
-/** Half-open range of UTF-16 code-unit offsets into the document text. */
-export interface Span {
-  start: number;
-  end: number;
-}
+import type { Span } from '../base/span';
+
+export type { Span } from '../base/span';
 
 export type ScalarValue = string | number | boolean | null;
 

@@ -1,4 +1,4 @@
-import type { ScheduleAnalysis } from '../core/analysis';
+import type { ScheduleAnalysis } from '../analysis/analysis';
 import { fmt } from './format';
 import type { Rule, RuleContext, RuleMeta } from './types';
 import { assumedNote, discreteSchedule, numberOption, scheduleConcepts, setsSchedule } from './util';

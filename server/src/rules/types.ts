@@ -1,5 +1,5 @@
-import type { Analysis } from '../core/analysis';
-import type { Severity, FixSafety } from '../core/findings';
+import type { Analysis } from '../analysis/analysis';
+import type { Severity, FixSafety } from '../base/findings';
 import type { Concept, ConceptValues } from '../fields/concepts';
 import type { FieldSource, Setup } from '../setup/types';
 

@@ -1,6 +1,6 @@
 /** Helpers shared by the rules: reading fields, noting assumptions, the zero-terminal-SNR fix. */
 import { samplingTimesteps } from '@noiselint/shared-math';
-import type { Analysis, SamplingAnalysis, ScheduleAnalysis } from '../core/analysis';
+import type { Analysis, SamplingAnalysis, ScheduleAnalysis } from '../analysis/analysis';
 import type { Concept, ConceptValues } from '../fields/concepts';
 import { CONCEPT_GROUP } from '../fields/concepts';
 import type { FieldSource, Setup, ValueProblem } from '../setup/types';

@@ -6,7 +6,7 @@
 import { dirname, isAbsolute, join, parse as parsePath, resolve } from 'node:path';
 import picomatch from 'picomatch';
 import { LineCounter, parseDocument } from 'yaml';
-import { SEVERITIES, type Severity } from '../core/findings';
+import { SEVERITIES, type Severity } from '../base/findings';
 import { CONCEPTS, type Concept } from '../fields/concepts';
 import type { ParseLimits } from '../parse/types';
 import { ALL_RULE_METAS } from '../rules';

@@ -1,5 +1,5 @@
 /** The role of a config file on disk (training, sampling, mixed), read from its analysed documents. */
-import { readFile } from '../core/api';
+import { readFile } from '../engine/api';
 import { nodeFs, readTextFile, type WorkspaceFs } from './fs';
 import { roleOfSetups, type FileRole, type RoleProbe } from './pairing';
 import { loadProject } from './projectFile';

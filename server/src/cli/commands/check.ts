@@ -6,7 +6,7 @@
  */
 import { parseArgs } from 'node:util';
 import { LruCache } from '@noiselint/shared-math';
-import { analyzeRead, analyzeText, findingsAsData, readFile, type AnalyzeOptions, type FileResult } from '../../core/api';
+import { analyzeRead, analyzeText, findingsAsData, readFile, type AnalyzeOptions, type FileReading, FileResult } from '../../engine/api';
 import type { PartnerDocument } from '../../rules/types';
 import { ALL_RULE_METAS } from '../../rules';
 import { discoverFiles } from '../../workspace/discover';
@@ -21,7 +21,7 @@ import { formatSarif } from '../output/sarif';
 import { formatText } from '../output/text';
 
 /** Keep in step with main.ts. */
-import { VERSION as CHECK_TOOL_VERSION } from '../../version';
+import { VERSION as CHECK_TOOL_VERSION } from '../../base/version';
 
 /** Progress on a terminal only for runs at least this long. */
 const PROGRESS_MIN_FILES = 20;
@@ -68,7 +68,7 @@ export function parseCheckArgs(args: string[]): CheckOptions {
 interface Peeked {
   text: string;
   project: ResolvedProject;
-  result: Omit<FileResult, 'findings'>;
+  result: FileReading;
 }
 
 /**

@@ -1,8 +1,8 @@
 /** `noiselint explain <file...> [--format text|json]` */
 import { parseArgs } from 'node:util';
 import { resolve, relative } from 'node:path';
-import { readFile } from '../../core/api';
-import { explainJson, formatExplainText } from '../explainFormat';
+import { readFile } from '../../engine/api';
+import { explainJson, formatExplainText } from '../../views/explainFormat';
 import { nodeFs, readTextFile } from '../../workspace/fs';
 import { UsageError, type CliIO } from '../io';
 import { loadProject } from '../../workspace/projectFile';

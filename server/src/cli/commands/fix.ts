@@ -27,7 +27,7 @@ import {
 } from 'node:fs';
 import { basename, dirname, join } from 'node:path';
 import { createTwoFilesPatch } from 'diff';
-import { analyzeText, type FileResult } from '../../core/api';
+import { analyzeText, type FileResult } from '../../engine/api';
 import { fixText, type FixLoopResult } from '../../fix/loop';
 import { LineIndex } from '../../parse/lineIndex';
 import { PARSE_ERROR_ID } from '../../rules';

@@ -3,7 +3,7 @@
  * text of every file a location can point into (so offsets become lines and columns).
  */
 import { isAbsolute, relative, resolve, sep } from 'node:path';
-import type { Finding, Severity } from '../../core/findings';
+import type { Finding, Severity } from '../../base/findings';
 import { LineIndex, type Position } from '../../parse/lineIndex';
 import type { Span } from '../../parse/types';
 

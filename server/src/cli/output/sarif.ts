@@ -4,7 +4,7 @@
  */
 import { pathToFileURL } from 'node:url';
 import { ruleDocsUrl } from '../../workspace/ruleDocs';
-import type { Severity } from '../../core/findings';
+import type { Severity } from '../../base/findings';
 import type { RuleMeta } from '../../rules/types';
 import { displayPath, Locator, type CheckReport, type Range } from './report';
 

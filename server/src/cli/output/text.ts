@@ -2,7 +2,7 @@
  * `check --format text`: one line per finding, `path:line:col severity rule message` (1-based
  * line and column, as editors and terminals jump to them), then one summary line.
  */
-import type { Severity } from '../../core/findings';
+import type { Severity } from '../../base/findings';
 import { displayPath, Locator, summarize, type CheckReport, type Summary } from './report';
 
 export interface TextOptions {

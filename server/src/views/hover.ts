@@ -3,8 +3,8 @@
  * cursor, rendered as markdown (with a small log-SNR chart) or as a plain-text table.
  * Protocol-agnostic: offsets and strings only.
  */
-import type { FileResult, DocumentResult } from './api';
-import type { Analysis } from './analysis';
+import type { FileReading, FileResult, DocumentResult } from '../engine/api';
+import type { Analysis } from '../analysis/analysis';
 import type { Concept } from '../fields/concepts';
 import type { Span } from '../parse/types';
 import { valueOf } from '../setup/types';
@@ -183,7 +183,7 @@ function titleFor(doc: DocumentResult): string {
 }
 
 /** The hover model for `offset`, or null when no schedule/target/spacing/guidance field is there. */
-export function hoverModelAt(file: Omit<FileResult, 'findings'>, offset: number): HoverModel | null {
+export function hoverModelAt(file: FileReading, offset: number): HoverModel | null {
   const hit = fieldAtOffset(file, offset);
   if (!hit) return null;
   const topic = HOVER_TOPIC[hit.concept];
@@ -261,7 +261,7 @@ export interface HoverText {
   format: 'markdown' | 'plaintext';
 }
 
-export function hoverAt(file: Omit<FileResult, 'findings'>, offset: number, format: 'markdown' | 'plaintext'): HoverText | null {
+export function hoverAt(file: FileReading, offset: number, format: 'markdown' | 'plaintext'): HoverText | null {
   const model = hoverModelAt(file, offset);
   if (!model) return null;
   return { span: model.span, format, text: format === 'markdown' ? renderHoverMarkdown(model) : renderHoverPlainText(model) };

@@ -1,4 +1,4 @@
-import type { Span } from '../parse/types';
+import type { Span } from './span';
 
 /** Finding severities, most severe first. 'hint' is the LSP's faintest level. */
 export type Severity = 'error' | 'warning' | 'info' | 'hint';

@@ -2,12 +2,10 @@
  * `explain`: what a config resolves to and the numbers behind it, as readable text or as the
  * documented JSON contract (docs/explain-json.md). Pure: file result in, text or data out.
  */
-import type { DocumentResult, FileResult } from '../core/api';
-import type { Analysis } from '../core/analysis';
+import type { DocumentResult, FileReading, FileResult } from '../engine/api';
+import type { Analysis } from '../analysis/analysis';
 import { CONCEPTS, type Concept } from '../fields/concepts';
 import type { Setup } from '../setup/types';
-
-type ReadResultFile = Omit<FileResult, 'findings'>;
 
 /** JSON numbers: exactly zero stays 0; non-finite values (log-SNR at zero SNR) become null. */
 function num(x: number): number | null {
@@ -118,7 +116,7 @@ export function explainDocumentJson(doc: DocumentResult): ExplainDocumentJson {
   };
 }
 
-export function explainJson(files: ReadResultFile[]): ExplainJson {
+export function explainJson(files: FileReading[]): ExplainJson {
   return {
     files: files.map((f) => ({
       path: f.path,
@@ -216,7 +214,7 @@ function documentText(doc: DocumentResult, count: number): string[] {
   return lines;
 }
 
-export function formatExplainText(file: ReadResultFile): string {
+export function formatExplainText(file: FileReading): string {
   const lines: string[] = [`${file.path}`];
   for (const p of file.parsed.problems) {
     if (p.severity === 'error') lines.push(`  problem: ${p.message}`);

@@ -2,7 +2,7 @@
  * Inline numbers shown after fields: `SNR_T 4.7e-3` after the schedule field and
  * `starts at 901/999` after the spacing (or step count) field. Offsets and strings only.
  */
-import type { FileResult } from './api';
+import type { FileReading, FileResult } from '../engine/api';
 import type { Concept } from '../fields/concepts';
 import { shortNumber } from './displayNumber';
 
@@ -17,7 +17,7 @@ export interface InlineHint {
 const SCHEDULE_ANCHORS: readonly Concept[] = ['betaSchedule', 'betas', 'trainSteps', 'sigmaMax', 'flowShift'];
 const SAMPLING_ANCHORS: readonly Concept[] = ['timestepSpacing', 'sampleSteps'];
 
-export function inlineHintsFor(file: Omit<FileResult, 'findings'>): InlineHint[] {
+export function inlineHintsFor(file: FileReading): InlineHint[] {
   const hints: InlineHint[] = [];
   for (const doc of file.documents) {
     if (!doc.setup.isDiffusionConfig) continue;

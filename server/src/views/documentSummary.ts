@@ -1,6 +1,6 @@
 /** The one-line status of a document (the `noiselint/summary` request). */
-import type { FileResult } from './api';
-import type { DocumentSummary } from '../protocol';
+import type { FileResult } from '../engine/api';
+import type { DocumentSummary } from '../base/protocol';
 
 export function summaryFor(file: FileResult | null, uri: string): DocumentSummary {
   const first = file?.documents.find((d) => d.setup.isDiffusionConfig && d.analysis.schedule);

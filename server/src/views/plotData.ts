@@ -2,15 +2,13 @@
  * Plot data for one file (the `noiselint/plotData` request): log-SNR and signal over t, current and
  * rescaled, plus the steps the sampler visits. Protocol-agnostic: plain data out of an analysis.
  */
-import type { FileResult } from './api';
-import type { ScheduleAnalysis, ScheduleCurve } from './analysis';
+import type { FileReading, FileResult } from '../engine/api';
+import type { ScheduleAnalysis, ScheduleCurve } from '../analysis/analysis';
 import { valueOf } from '../setup/types';
-import type { PlotCurve, PlotData, PlotDocument, PlotSampledStep } from '../protocol';
+import type { PlotCurve, PlotData, PlotDocument, PlotSampledStep } from '../base/protocol';
 
 /** Most x positions sent per curve; long schedules are thinned (first and last point kept). */
 export const MAX_PLOT_POINTS = 1000;
-
-type ReadResult = Omit<FileResult, 'findings'>;
 
 /** Finite numbers pass; -Infinity (zero SNR), +Infinity and NaN become null. */
 function finiteOrNull(x: number): number | null {
@@ -73,7 +71,7 @@ function labelFor(schedule: ScheduleAnalysis, target: string | undefined): strin
 }
 
 /** Plot data of every diffusion document of a file whose schedule could be computed. */
-export function plotDataFor(file: ReadResult, uri: string, version: number | null): PlotData {
+export function plotDataFor(file: FileReading, uri: string, version: number | null): PlotData {
   const documents: PlotDocument[] = [];
   for (const doc of file.documents) {
     const { setup, analysis } = doc;

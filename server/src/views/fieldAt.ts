@@ -1,5 +1,5 @@
 /** Which concept's key or value sits at a text offset (hover and friends). */
-import type { FileResult, DocumentResult } from './api';
+import type { FileReading, FileResult, DocumentResult } from '../engine/api';
 import type { Concept } from '../fields/concepts';
 import type { FieldSource } from '../setup/types';
 import type { Span } from '../parse/types';
@@ -17,7 +17,7 @@ function contains(span: Span, offset: number): boolean {
 }
 
 /** The innermost concept field whose key or value covers `offset`, if any. */
-export function fieldAtOffset(file: Omit<FileResult, 'findings'>, offset: number): FieldAtOffset | null {
+export function fieldAtOffset(file: FileReading, offset: number): FieldAtOffset | null {
   let best: FieldAtOffset | null = null;
   for (const document of file.documents) {
     if (!contains(document.setup.documentSpan, offset)) continue;
@@ -35,7 +35,7 @@ export function fieldAtOffset(file: Omit<FileResult, 'findings'>, offset: number
 }
 
 /** The first field (by position) among `concepts` in the file's diffusion documents. */
-export function firstFieldOf(file: Omit<FileResult, 'findings'>, concepts: readonly Concept[]): FieldAtOffset | null {
+export function firstFieldOf(file: FileReading, concepts: readonly Concept[]): FieldAtOffset | null {
   let best: FieldAtOffset | null = null;
   for (const document of file.documents) {
     if (!document.setup.isDiffusionConfig) continue;

@@ -3,45 +3,16 @@
  * text -> located tree -> setup -> analysis -> findings. Never throws.
  */
 import { parseText, formatFromPath } from '../parse';
-import type { ParsedFile, ParseLimits, SourceFormat } from '../parse/types';
 import { buildSetup } from '../setup';
-import type { Setup } from '../setup/types';
-import type { PartnerDocument } from '../rules/types';
-import type { ResolvedProject } from '../workspace/project';
-import { analyzeSetup, type Analysis } from './analysis';
-import type { Finding } from './findings';
+import { analyzeSetup } from '../analysis/analysis';
+import type { Finding } from '../base/findings';
 import { runRules } from './engine';
+import type { AnalyzeOptions, DocumentResult, FileReading, FileResult } from './types';
 
-export interface AnalyzeOptions {
-  /** Path or URI, for format detection and messages. */
-  path: string;
-  format?: SourceFormat;
-  /** Project file settings (rule severities and options, aliases, limits). */
-  project?: ResolvedProject;
-  /** Documents of the paired training or sampling file (train-sample-mismatch). */
-  partners?: PartnerDocument[];
-  pairRole?: 'training' | 'sampling';
-  limits?: Partial<ParseLimits>;
-}
-
-export interface DocumentResult {
-  index: number;
-  setup: Setup;
-  analysis: Analysis;
-}
-
-export interface FileResult {
-  path: string;
-  parsed: ParsedFile;
-  documents: DocumentResult[];
-  /** Sorted by position. */
-  findings: Finding[];
-  /** At least one document is a diffusion config. */
-  isDiffusionConfig: boolean;
-}
+export type { AnalyzeOptions, DocumentResult, FileReading, FileResult } from './types';
 
 /** Parse, resolve and analyse without running rules (explain, hover, plot). */
-export function readFile(text: string, options: AnalyzeOptions): Omit<FileResult, 'findings'> {
+export function readFile(text: string, options: AnalyzeOptions): FileReading {
   const format = options.format ?? formatFromPath(options.path) ?? 'yaml';
   const parsed = parseText(text, format, { ...options.project?.limits, ...options.limits });
   const documents: DocumentResult[] = parsed.documents.map((doc) => {
@@ -65,7 +36,7 @@ export function readFile(text: string, options: AnalyzeOptions): Omit<FileResult
  * text the way `file` was read (same path, format, project and limits); partners and the pair
  * role only change the findings.
  */
-export function analyzeRead(file: Omit<FileResult, 'findings'>, options: AnalyzeOptions): FileResult {
+export function analyzeRead(file: FileReading, options: AnalyzeOptions): FileResult {
   const findings = runRules(file, options);
   return { ...file, findings };
 }

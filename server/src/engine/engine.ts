@@ -10,9 +10,8 @@ import type { LocatedMap, LocatedNode, ParsedFile, Span } from '../parse/types';
 import { PARSE_ERROR_ID, RULES, getRuleMeta } from '../rules';
 import type { ConceptFix, Rule, RuleContext, RuleFinding, RuleMeta } from '../rules/types';
 import type { FieldSource, Setup } from '../setup/types';
-import type { ResolvedProject } from '../workspace/types';
-import type { AnalyzeOptions, FileResult } from './api';
-import { SEVERITIES, type Finding, type FixProposal, type RelatedLocation, type Severity } from './findings';
+import type { AnalyzeOptions, FileReading, ResolvedProject } from './types';
+import { SEVERITIES, type Finding, type FixProposal, type RelatedLocation, type Severity } from '../base/findings';
 
 export interface EngineHooks {
   /** Called when a rule (or a step of turning its result into a finding) throws. */
@@ -23,8 +22,6 @@ export interface EngineHooks {
   rules?: readonly Rule[];
 }
 
-type ReadFile = Omit<FileResult, 'findings'>;
-
 /**
  * Keys that mark a file with syntax errors as a diffusion config even when the (partial) tree is
  * not recognised as one. Cheap: one regular expression, no parsing.
@@ -32,7 +29,7 @@ type ReadFile = Omit<FileResult, 'findings'>;
 const CONFIG_KEY_HINT =
   /(?:^|[\s{,"'])(?:beta_schedule|num_train_timesteps|beta_start|beta_end|trained_betas|rescale_betas_zero_snr|zero_terminal_snr|prediction_type|timestep_spacing|steps_offset|num_inference_steps|noise_scheduler)["']?\s*:/m;
 
-export function runRules(file: ReadFile, options: AnalyzeOptions, hooks: EngineHooks = {}): Finding[] {
+export function runRules(file: FileReading, options: AnalyzeOptions, hooks: EngineHooks = {}): Finding[] {
   const report = (id: string, error: unknown) => {
     try {
       hooks.onRuleError?.(id, error);
@@ -277,7 +274,7 @@ function quoted(newText: string): string {
 
 // ---- parse problems ------------------------------------------------------------------------
 
-function parseFindings(file: ReadFile, project: ResolvedProject | undefined): Finding[] {
+function parseFindings(file: FileReading, project: ResolvedProject | undefined): Finding[] {
   const problems = file.parsed.problems;
   if (problems.length === 0) return [];
   const hasError = problems.some((p) => p.severity === 'error');
