@@ -154,3 +154,215 @@ export function writeCorpus(dir: string, count: number): CorpusFile[] {
   }
   return files;
 }
+
+// ------------------------------------------------------------------------------------------------
+// A monorepo-like tree: mostly configs that are not diffusion configs (service manifests, package
+// manifests, CI workflows, compose files, configs of other models), with about one file in ten a
+// diffusion training or sampling config. Checking it measures how cheaply the tool passes over
+// everything it has nothing to say about.
+
+function serviceManifest(i: number, r: () => number): string {
+  const name = `lanternfish-svc-${i}`;
+  return `# service ${i} (invented demo data)
+apiVersion: apps/v1
+kind: Deployment
+metadata:
+  name: ${name}
+  labels:
+    app: ${name}
+    team: render-farm
+spec:
+  replicas: ${1 + Math.floor(r() * 6)}
+  selector:
+    matchLabels:
+      app: ${name}
+  template:
+    metadata:
+      labels:
+        app: ${name}
+    spec:
+      containers:
+        - name: ${name}
+          image: registry.lanternfish.example/${name}:1.${i % 40}.${Math.floor(r() * 10)}
+          ports:
+            - containerPort: ${8000 + (i % 100)}
+          env:
+            - name: LOG_LEVEL
+              value: info
+            - name: QUEUE_URL
+              value: "amqp://queue.lanternfish.example:5672/frames"
+          resources:
+            limits:
+              cpu: "${1 + Math.floor(r() * 4)}"
+              memory: ${pick(r, ['512Mi', '1Gi', '4Gi'])}
+          readinessProbe:
+            httpGet:
+              path: /healthz
+              port: ${8000 + (i % 100)}
+            initialDelaySeconds: 5
+            periodSeconds: 10
+---
+apiVersion: v1
+kind: Service
+metadata:
+  name: ${name}
+spec:
+  selector:
+    app: ${name}
+  ports:
+    - port: 80
+      targetPort: ${8000 + (i % 100)}
+`;
+}
+
+function packageManifest(i: number, r: () => number): string {
+  const deps: Record<string, string> = {};
+  for (let k = 0; k < 3 + Math.floor(r() * 8); k++) deps[`@lanternfish/lib-${(i + k * 7) % 90}`] = `1.${k}.${Math.floor(r() * 20)}`;
+  return `${JSON.stringify(
+    {
+      name: `@lanternfish/pkg-${i}`,
+      version: `0.${i % 30}.${Math.floor(r() * 10)}`,
+      private: true,
+      main: 'dist/index.js',
+      scripts: { build: 'tsc -b', test: 'vitest run', lint: 'eslint src' },
+      dependencies: deps,
+      devDependencies: { typescript: '5.9.3', vitest: '4.1.12' },
+    },
+    null,
+    2,
+  )}\n`;
+}
+
+function workflow(i: number, r: () => number): string {
+  return `name: build-${i}
+on:
+  push:
+    branches: [main]
+  pull_request:
+jobs:
+  test:
+    runs-on: ubuntu-latest
+    timeout-minutes: ${10 + Math.floor(r() * 30)}
+    strategy:
+      matrix:
+        node: [18, 20, 22]
+    steps:
+      - uses: actions/checkout@v4
+      - name: Install
+        run: npm ci
+      - name: Test
+        run: npm test -- --shard=${1 + (i % 4)}/4
+      - name: Upload frames
+        if: always()
+        run: ./scripts/upload.sh renders/${i}
+`;
+}
+
+function composeFile(i: number, r: () => number): string {
+  return `services:
+  render-${i}:
+    image: registry.lanternfish.example/render:${i % 12}
+    restart: unless-stopped
+    environment:
+      FRAME_QUEUE: frames-${i}
+      WORKERS: "${1 + Math.floor(r() * 8)}"
+    volumes:
+      - ./renders:/renders
+    depends_on:
+      - queue
+  queue:
+    image: registry.lanternfish.example/queue:3
+    ports:
+      - "${5672 + (i % 10)}:5672"
+`;
+}
+
+/** Configs of models that are not diffusion models (a caption classifier, a tokenizer, a tagger). */
+function otherModelConfig(i: number, r: () => number): Record<string, Json> {
+  return {
+    experiment: `lanternfish-caption-tagger-${i}`,
+    model: { arch: pick(r, ['resnet50', 'vit_small', 'bert_base']), hidden_size: pick(r, [256, 512, 768]), num_layers: pick(r, [4, 6, 12]), dropout: 0.1 },
+    optimizer: { name: 'adamw', lr: pick(r, [1e-4, 3e-4]), weight_decay: 0.01, betas: [0.9, 0.999] },
+    trainer: { max_epochs: pick(r, [10, 30, 90]), batch_size: pick(r, [32, 64, 128]), precision: pick(r, ['16-mixed', 'bf16-mixed']), accumulate_grad_batches: 1 },
+    data: { train: `/data/lanternfish/tags/train-${i}.jsonl`, val: `/data/lanternfish/tags/val-${i}.jsonl`, num_workers: 8, max_length: 128 },
+    tokenizer: { vocab_size: 32000, lowercase: r() < 0.5, special_tokens: ['<pad>', '<unk>', '<s>', '</s>'] },
+  };
+}
+
+export interface MonorepoMix {
+  diffusion: number;
+  other: number;
+}
+
+/**
+ * Writes a monorepo-like tree of `count` files under `dir`: about 10% diffusion configs (in
+ * `models/<n>/`, paired training and sampling files), the rest service manifests, package
+ * manifests, CI workflows, compose files and configs of other models.
+ */
+export function writeMonorepo(dir: string, count: number): { files: CorpusFile[]; mix: MonorepoMix } {
+  rmSync(dir, { recursive: true, force: true });
+  mkdirSync(join(dir, '.git'), { recursive: true });
+  const files: CorpusFile[] = [];
+  const made = new Set<string>();
+  const folder = (f: string) => {
+    const p = join(dir, f);
+    if (!made.has(p)) {
+      mkdirSync(p, { recursive: true });
+      made.add(p);
+    }
+    return p;
+  };
+  const mix: MonorepoMix = { diffusion: 0, other: 0 };
+  for (let i = 0; i < count; i++) {
+    const r = rng(i * 31337 + 11);
+    const u = i % 10;
+    const group = Math.floor(i / 10);
+    let path: string;
+    let text: string;
+    let format: CorpusFormat = 'yaml';
+    if (u === 0) {
+      // Diffusion configs: a training file and its sampling file side by side.
+      const sampling = group % 2 === 1;
+      const model = Math.floor(group / 2);
+      format = model % 3 === 2 ? 'json' : 'yaml';
+      const cfg = sampling ? samplingConfig(i) : trainingConfig(i);
+      path = join(folder(`models/m${model}`), `${sampling ? 'sample' : 'train'}-${SUBJECTS[model % SUBJECTS.length]}.${format}`);
+      text = renderConfig(cfg, format, i);
+      mix.diffusion++;
+    } else {
+      mix.other++;
+      const pkg = `packages/p${Math.floor(group / 4)}`;
+      switch (u) {
+        case 1:
+        case 2:
+        case 3:
+          path = join(folder(`deploy/k8s/${Math.floor(group / 8)}`), `svc-${i}.yaml`);
+          text = serviceManifest(i, r);
+          break;
+        case 4:
+        case 5:
+          format = 'json';
+          path = join(folder(`${pkg}/m${i}`), 'package.json');
+          text = packageManifest(i, r);
+          break;
+        case 6:
+          path = join(folder(`.github/workflows/${Math.floor(group / 16)}`), `build-${i}.yml`);
+          text = workflow(i, r);
+          break;
+        case 7:
+          path = join(folder(`${pkg}/compose`), `compose-${i}.yaml`);
+          text = composeFile(i, r);
+          break;
+        default: {
+          format = u === 8 ? 'yaml' : 'json';
+          const cfg = otherModelConfig(i, r);
+          path = join(folder(`research/taggers/${Math.floor(group / 8)}`), `tagger-${i}.${format}`);
+          text = format === 'yaml' ? `# tagger run ${i} (invented demo data)${toYaml(cfg)}\n` : `${JSON.stringify(cfg, null, 2)}\n`;
+        }
+      }
+    }
+    writeFileSync(path, text);
+    files.push({ path, format });
+  }
+  return { files, mix };
+}

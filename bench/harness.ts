@@ -6,7 +6,7 @@
 import Ajv from 'ajv';
 import { parse as parseJsonc } from 'jsonc-parser';
 import { parse as parseYaml } from 'yaml';
-import { check } from '../server/src/cli/commands/check';
+import { check, parseCheckArgs } from '../server/src/cli/commands/check';
 import type { CliIO } from '../server/src/cli/io';
 import { analyzeText } from '../server/src/engine/api';
 import { formatFromPath, parseText } from '../server/src/parse';
@@ -15,7 +15,7 @@ import { discoverFiles } from '../server/src/workspace/discover';
 import { nodeFs, readTextFile } from '../server/src/workspace/fs';
 import { clearProjectCache, loadProject } from '../server/src/workspace/projectFile';
 
-export { writeCorpus } from './corpus';
+export { writeCorpus, writeMonorepo } from './corpus';
 export { LspTestClient } from '../test/load/lspClient';
 export { configText } from '../test/load/texts';
 
@@ -27,7 +27,31 @@ function discover(dir: string): string[] {
 
 const formatOf = (path: string): SourceFormat => formatFromPath(path) ?? 'yaml';
 
-/** Baseline 1: discover, read and parse every file into the located tree. */
+/**
+ * The baseline: discover, read and parse every file to plain data with the standard libraries
+ * (`yaml.parse`, `JSON.parse`, jsonc-parser's `parse`), which is the schema validator's own parse.
+ */
+export function plainParse(dir: string): { files: number; failed: number } {
+  let failed = 0;
+  const files = discover(dir);
+  for (const file of files) {
+    const read = readTextFile(nodeFs, file);
+    if (!read.ok) continue;
+    if (parsePlain(read.text, formatOf(file)) === FAILED) failed++;
+  }
+  return { files: files.length, failed };
+}
+
+const FAILED = Symbol('failed');
+function parsePlain(text: string, format: SourceFormat): unknown {
+  try {
+    return format === 'yaml' ? parseYaml(text) : format === 'json' ? JSON.parse(text) : parseJsonc(text);
+  } catch {
+    return FAILED;
+  }
+}
+
+/** Discover, read and parse every file into our located tree (no setup, no rules). */
 export function parseOnly(dir: string): { files: number; problems: number } {
   let problems = 0;
   const files = discover(dir);
@@ -53,20 +77,42 @@ export function coreCheck(dir: string): { files: number; findings: number } {
   return { files: files.length, findings };
 }
 
+export interface CommandResult {
+  code: number;
+  /** Bytes of the JSON report (UTF-8). */
+  outputBytes: number;
+  /** The report's own summary: every finding, pairing findings included. */
+  summary: Record<string, number>;
+}
+
 /** The whole `check` command in process (pairing, JSON report), output discarded. */
-export async function checkCommand(dir: string): Promise<{ code: number; outputBytes: number }> {
+export async function checkCommand(dir: string, extraArgs: string[] = []): Promise<CommandResult> {
   clearProjectCache();
   let outputBytes = 0;
+  let tail = '';
   const io: CliIO = {
     cwd: dir,
-    stdout: (t) => void (outputBytes += t.length),
-    stderr: (t) => void (outputBytes += t.length),
+    stdout: (t) => {
+      outputBytes += Buffer.byteLength(t);
+      tail = (tail + t).slice(-4096);
+    },
+    stderr: () => undefined,
     isTTY: false,
     env: {},
   };
-  const code = await check({ inputs: ['.'], format: 'json', maxWarnings: Infinity, quiet: false }, io);
-  return { code, outputBytes };
+  const code = await check({ ...parseCheckArgs(['.', '--format', 'json', ...extraArgs]) }, io);
+  return { code, outputBytes, summary: reportSummary(tail) };
 }
+
+/** The `summary` object at the end of a JSON report. */
+export function reportSummary(tail: string): Record<string, number> {
+  const m = /"summary"\s*:\s*(\{[^{}]*\})\s*\}\s*$/.exec(tail);
+  if (!m) throw new Error(`no summary at the end of the JSON report: ${tail.slice(-200)}`);
+  return JSON.parse(m[1]) as Record<string, number>;
+}
+
+/** Total findings of a report summary. */
+export const findingsIn = (s: Record<string, number>): number => (s.errors ?? 0) + (s.warnings ?? 0) + (s.infos ?? 0) + (s.hints ?? 0);
 
 /** Baseline 2: discover, read, parse to plain data (yaml / JSON / jsonc-parser), validate with ajv. */
 export function schemaValidator(schema: object): (dir: string) => { files: number; invalid: number } {
@@ -78,15 +124,8 @@ export function schemaValidator(schema: object): (dir: string) => { files: numbe
     for (const file of files) {
       const read = readTextFile(nodeFs, file);
       if (!read.ok) continue;
-      const format = formatOf(file);
-      let data: unknown;
-      try {
-        data = format === 'yaml' ? parseYaml(read.text) : format === 'json' ? JSON.parse(read.text) : parseJsonc(read.text);
-      } catch {
-        invalid++;
-        continue;
-      }
-      if (!validate(data)) invalid++;
+      const data = parsePlain(read.text, formatOf(file));
+      if (data === FAILED || !validate(data)) invalid++;
     }
     return { files: files.length, invalid };
   };
