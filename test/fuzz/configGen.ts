@@ -288,7 +288,7 @@ export interface GeneratedConfig {
   text: string;
 }
 
-const EXT: Record<SourceFormat, string> = { yaml: 'yaml', json: 'json', jsonc: 'jsonc' };
+const EXT: Record<SourceFormat, string> = { yaml: 'yaml', json: 'json', jsonc: 'jsonc', toml: 'toml' };
 
 /** A well-formed (as far as the renderer goes) config in one of the three formats. */
 export const configArb: fc.Arbitrary<GeneratedConfig> = fc

@@ -14,17 +14,18 @@ function found(root: string, inputs: string[], cwd = root) {
 }
 
 describe('discoverFiles', () => {
-  it('with no input walks the current folder for yaml, yml, json and jsonc files, sorted', () => {
+  it('with no input walks the current folder for yaml, yml, json, jsonc and toml files, sorted', () => {
     const root = tree({
       'b.yaml': '',
       'a.yml': '',
       'sub/c.json': '',
       'sub/d.jsonc': '',
+      'sub/e.toml': '',
       'notes.txt': '',
       'README.md': '',
       'sub/deeper/E.YAML': '',
     });
-    expect(found(root, [])).toEqual({ files: ['a.yml', 'b.yaml', 'sub/c.json', 'sub/d.jsonc', 'sub/deeper/E.YAML'], errors: [] });
+    expect(found(root, [])).toEqual({ files: ['a.yml', 'b.yaml', 'sub/c.json', 'sub/d.jsonc', 'sub/deeper/E.YAML', 'sub/e.toml'], errors: [] });
   });
 
   it('always skips node_modules and .git, and never lists project files', () => {
@@ -69,10 +70,13 @@ describe('discoverFiles', () => {
     const root = tree({
       'noiselint.project.yaml': 'include: ["configs/**"]\nexclude: ["configs/archive/**"]\n',
       'configs/a.yaml': '',
+      'configs/args.toml': '',
       'configs/archive/old.yaml': '',
+      'configs/archive/old.toml': '',
       'other/b.yaml': '',
+      'other/c.toml': '',
     });
-    expect(found(root, []).files).toEqual(['configs/a.yaml']);
+    expect(found(root, []).files).toEqual(['configs/a.yaml', 'configs/args.toml']);
   });
 
   it('uses a given project instead of looking one up', () => {

@@ -27,7 +27,7 @@ export interface EngineHooks {
  * not recognised as one. Cheap: one regular expression, no parsing.
  */
 const CONFIG_KEY_HINT =
-  /(?:^|[\s{,"'])(?:beta_schedule|num_train_timesteps|beta_start|beta_end|trained_betas|rescale_betas_zero_snr|zero_terminal_snr|prediction_type|timestep_spacing|steps_offset|num_inference_steps|noise_scheduler)["']?\s*:/m;
+  /(?:^|[\s{,"'.[])(?:beta_schedule|num_train_timesteps|beta_start|beta_end|trained_betas|rescale_betas_zero_snr|zero_terminal_snr|prediction_type|timestep_spacing|steps_offset|num_inference_steps|noise_scheduler)["']?\s*[:=\]]/m;
 
 export function runRules(file: FileReading, options: AnalyzeOptions, hooks: EngineHooks = {}): Finding[] {
   const report = (id: string, error: unknown) => {

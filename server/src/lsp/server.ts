@@ -84,7 +84,7 @@ import { DEFAULT_DEBOUNCE_MS, defaultSettings, mergeSettingsIntoProject, normali
 
 const SERVER_VERSION = '0.1.0';
 const SETTINGS_SECTION = 'noiselint';
-const WATCH_GLOBS = ['**/*.{yaml,yml,json,jsonc}', '**/noiselint.project.{yaml,json}'];
+const WATCH_GLOBS = ['**/*.{yaml,yml,json,jsonc,toml}', '**/noiselint.project.{yaml,json}'];
 /** Files indexed per workspace folder at start-up; beyond this, pairing reads files on demand. */
 const MAX_INDEXED_FILES = 20_000;
 const INDEX_BATCH = 64;
@@ -154,8 +154,9 @@ function uriToPath(uri: string): string | null {
 }
 
 function formatOf(languageId: string | undefined, uri: string): SourceFormat {
-  if (languageId === 'json' || languageId === 'jsonc' || languageId === 'yaml') return languageId;
+  if (languageId === 'json' || languageId === 'jsonc' || languageId === 'yaml' || languageId === 'toml') return languageId;
   const lower = uri.toLowerCase();
+  if (lower.endsWith('.toml')) return 'toml';
   if (lower.endsWith('.jsonc')) return 'jsonc';
   if (lower.endsWith('.json')) return 'json';
   return 'yaml';

@@ -5,9 +5,10 @@ import { firstLine, resolveLimits, utf8LengthExceeds, type SourceComment } from 
 import { readSuppressions } from './suppressions';
 import { detectLineEnding, hasBom } from './textInfo';
 import type { ParsedDocument, ParsedFile, ParseLimits, ParseProblem, SourceFormat } from './types';
+import { readToml } from './toml';
 import { readYaml } from './yaml';
 
-/** Format from a file name or URI: `.yaml`/`.yml`, `.json`, `.jsonc` (case-insensitive). */
+/** Format from a file name or URI: `.yaml`/`.yml`, `.json`, `.jsonc`, `.toml` (case-insensitive). */
 export function formatFromPath(path: string): SourceFormat | null {
   const clean = path.replace(/[?#].*$/, '');
   const m = /\.([A-Za-z]+)$/.exec(clean);
@@ -20,6 +21,8 @@ export function formatFromPath(path: string): SourceFormat | null {
       return 'json';
     case 'jsonc':
       return 'jsonc';
+    case 'toml':
+      return 'toml';
     default:
       return null;
   }
@@ -43,7 +46,8 @@ export function parseText(text: string, format: SourceFormat, limits?: Partial<P
       });
       return { ...base, documents: [], problems, suppressions: [], comments: [] };
     }
-    const read = format === 'yaml' ? readYaml(safeText, lim) : readJson(safeText, format, lim, bom);
+    const read =
+      format === 'yaml' ? readYaml(safeText, lim) : format === 'toml' ? readToml(safeText, lim, bom) : readJson(safeText, format, lim, bom);
     documents = read.documents;
     problems.push(...read.problems);
     comments = read.comments;

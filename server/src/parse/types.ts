@@ -1,5 +1,5 @@
 /** Located tree: every key and value knows where it sits in the source text. */
-export type SourceFormat = 'yaml' | 'json' | 'jsonc';
+export type SourceFormat = 'yaml' | 'json' | 'jsonc' | 'toml';
 
 import type { Span } from '../base/span';
 
@@ -28,6 +28,12 @@ export interface LocatedEntry {
    * is then the anchored node itself (shared), whose span points at the anchor.
    */
   aliasSpan?: Span;
+  /**
+   * TOML entries written by a `key = value` line: where the whole (maybe dotted) key starts, and
+   * whether the line sits inside an inline table. Absent on tables made by headers or by the
+   * leading segments of a dotted key.
+   */
+  tomlKey?: { start: number; inline: boolean };
   /** From the start of the key to the end of the value (no trailing comment or newline). */
   span: Span;
 }
@@ -49,7 +55,7 @@ export interface LocatedList {
 export type LocatedNode = LocatedScalar | LocatedMap | LocatedList;
 
 export interface ParsedDocument {
-  /** 0-based index of the document in a multi-document YAML file; 0 for JSON. */
+  /** 0-based index of the document in a multi-document YAML file; 0 for JSON and TOML. */
   index: number;
   root: LocatedNode | null;
   span: Span;
@@ -61,7 +67,7 @@ export interface ParseProblem {
   severity: 'error' | 'warning';
   /**
    * Short machine-readable code: 'yaml-syntax', 'yaml-warning', 'json-syntax', 'json-comment',
-   * 'json-trailing-comma', 'too-large', 'too-deep', 'too-long', 'alias-limit', 'alias-cycle',
+   * 'json-trailing-comma', 'toml-syntax', 'too-large', 'too-deep', 'too-long', 'alias-limit', 'alias-cycle',
    * 'custom-tag', 'duplicate-key', 'bad-suppression', 'internal-error'.
    */
   code: string;

@@ -5,11 +5,12 @@ export const PARSE_ERROR_ID = 'parse-error';
 const docs = `
 ## What it finds
 
-Text that cannot be read as YAML, JSON or JSON with comments, in a file that looks like a
+Text that cannot be read as YAML, JSON, JSON with comments or TOML, in a file that looks like a
 diffusion config (a document is recognised as one, or the text names a key such as
 \`beta_schedule\` or \`num_train_timesteps\`). Syntax errors are errors; readable oddities
-(a comment in a \`.json\` file, a duplicated key, a custom tag) are warnings. Other YAML and
-JSON files in a workspace are never reported.
+(a comment in a \`.json\` file, a duplicated key, a custom tag) are warnings. Other YAML,
+JSON and TOML files in a workspace are never reported. A TOML file with a syntax error is
+not read at all, as TOML loaders refuse it whole.
 
 ## Why it matters
 
@@ -48,11 +49,12 @@ None. Limits on file size, nesting and list length are project settings (\`limit
 
 - Ben-Kiki, Evans and döt Net 2021, "YAML Ain't Markup Language, version 1.2.2".
 - Bray 2017, RFC 8259, "The JavaScript Object Notation (JSON) Data Interchange Format".
+- Preston-Werner and Gedda 2021, "TOML v1.0.0".
 `;
 
 export const PARSE_ERROR_META: RuleMeta = {
   id: PARSE_ERROR_ID,
-  summary: 'Text that cannot be read as YAML / JSON, in a file that looks like a diffusion config.',
+  summary: 'Text that cannot be read as YAML / JSON / TOML, in a file that looks like a diffusion config.',
   defaultSeverity: 'error',
   fixable: 'never',
   options: {},

@@ -2,7 +2,7 @@
  * Which files a run checks. Inputs are files, folders or globs (none: the current folder).
  *
  * - A file named on the command line is always checked, whatever its extension.
- * - A folder is walked for *.yaml, *.yml, *.json and *.jsonc files.
+ * - A folder is walked for *.yaml, *.yml, *.json, *.jsonc and *.toml files.
  * - A glob is matched against paths relative to the current folder; it picks the extensions itself.
  * - Walks honour .gitignore files (nested ones too, and those of parent folders up to the folder
  *   that holds `.git`) and the project file's include / exclude. node_modules and .git folders are
@@ -16,7 +16,7 @@ import { describeFsError, nodeFs, type WorkspaceFs } from './fs';
 import { PROJECT_FILE_NAMES, loadProject } from './projectFile';
 import type { ResolvedProject } from './types';
 
-export const CONFIG_EXTENSIONS = ['.yaml', '.yml', '.json', '.jsonc'] as const;
+export const CONFIG_EXTENSIONS = ['.yaml', '.yml', '.json', '.jsonc', '.toml'] as const;
 
 const ALWAYS_SKIPPED = new Set(['node_modules', '.git']);
 /** Bounds on one run: beyond these the walk stops with an error instead of growing without end. */
