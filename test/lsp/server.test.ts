@@ -72,7 +72,7 @@ describe('initialize', () => {
     await client.waitUntil(() => client.registrations.length >= 2, 'registrations');
     const watch = client.registrations.find((r) => r.method === 'workspace/didChangeWatchedFiles');
     const globs = (watch?.registerOptions as { watchers: { globPattern: string }[] }).watchers.map((w) => w.globPattern);
-    expect(globs).toContain('**/*.{yaml,yml,json,jsonc}');
+    expect(globs).toContain('**/*.{yaml,yml,json,jsonc,toml}');
     expect(globs.some((g) => g.includes('noiselint.project'))).toBe(true);
     expect(client.registrations.some((r) => r.method === 'workspace/didChangeConfiguration')).toBe(true);
   });
