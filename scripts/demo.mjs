@@ -27,8 +27,8 @@ const steps = [
     args: ['explain', 'examples/night-storyboards/sample-leading.yaml'],
   },
   {
-    title: 'What the fixes would change (dry run, unsafe fixes included; nothing is written)',
-    args: ['fix', '--dry-run', '--unsafe', 'examples'],
+    title: 'What the fixes would change (dry run, retraining and comment edits accepted; nothing is written)',
+    args: ['fix', '--dry-run', '--accept-retraining', '--accept-comment-edits', 'examples'],
   },
 ];
 

@@ -1,4 +1,4 @@
-// "Fix all in file": runs the server's source.fixAll.noiselint code action on the active editor.
+// "Apply sampling-only fixes in this file": runs the server's source.fixAll.noiselint code action on the active editor.
 import * as vscode from 'vscode';
 import { FIX_ALL_KIND } from './protocol';
 

@@ -52,7 +52,7 @@ describe('adversarial bytes and files', () => {
     // 0xFF never appears in UTF-8; 0xC3 0x28 is a broken two-byte sequence.
     const bytes = Buffer.concat([Buffer.from(VALID), Buffer.from([0x23, 0x20, 0xff, 0xfe, 0xc3, 0x28, 0x0a])]);
     writeFileSync(file, bytes);
-    for (const args of [['check', file], ['explain', file], ['fix', file], ['fix', '--unsafe', file]]) {
+    for (const args of [['check', file], ['explain', file], ['fix', file], ['fix', '--accept-retraining', '--accept-comment-edits', file]]) {
       const r = runCli(args, { heapMb: 128 });
       expect(describeCrash(r), args.join(' ')).toBeNull();
       // One line naming the problem. (`check` and `fix` count the file as skipped, exit 0.)

@@ -48,7 +48,7 @@ describe('check --format json', () => {
     expect(r.code).toBe(1);
     expect(r.stderr).toBe('');
     const out = JSON.parse(r.stdout);
-    expect(Object.keys(out).sort()).toEqual(['files', 'skipped', 'summary']);
+    expect(Object.keys(out).sort()).toEqual(['files', 'formatVersion', 'skipped', 'summary']);
     // Every checked file is listed, sorted, with paths relative to the current folder.
     expect(out.files.map((f: { path: string }) => f.path)).toEqual(['runs/clean.yaml', 'runs/eps.yaml', 'runs/leaky.yaml']);
     expect(out.files[0].findings).toEqual([]);
@@ -69,7 +69,8 @@ describe('check --format json', () => {
         expect(Array.isArray(f.fixes)).toBe(true);
         for (const fix of f.fixes) {
           expect(typeof fix.title).toBe('string');
-          expect(['safe', 'unsafe']).toContain(fix.safety);
+          expect(['sampling-only', 'needs-retraining']).toContain(fix.effect);
+          expect(typeof fix.touchesComment).toBe('boolean');
           expect(fix.edits.length).toBeGreaterThan(0);
           for (const e of fix.edits) expect(typeof e.newText).toBe('string');
         }
@@ -81,6 +82,8 @@ describe('check --format json', () => {
       }
     }
     expect(out.summary).toMatchObject({ errors, warnings, infos, files: 3 });
+    expect(out.formatVersion).toBe(2);
+    expect(Object.keys(out)).toEqual(['formatVersion', 'files', 'skipped', 'summary']);
     expect(errors).toBeGreaterThan(0);
   });
 
@@ -93,8 +96,10 @@ describe('check --format json', () => {
     expect(finding.range.start.line).toBe(6);
     expect(textAt(ZERO_SNR_EPSILON, finding.range)).toContain('epsilon');
     const fix = finding.fixes[0];
-    // Switching the target changes what the model learns: unsafe, and the title says so.
-    expect(fix.safety).toBe('unsafe');
+    // Switching the target changes what the model learns: it needs retraining, and the title says so.
+    expect(fix.effect).toBe('needs-retraining');
+    expect(fix.touchesComment).toBe(false);
+    expect(Object.keys(fix)).not.toContain('safety');
     expect(fix.title).toMatch(/fine-tun|retrain/i);
     const fixed = applyJsonEdits(ZERO_SNR_EPSILON, fix.edits);
     expect(fixed).toContain('prediction_type: v_prediction');

@@ -168,6 +168,8 @@ describe('check --format sarif', () => {
     expect(run.tool.driver.rules[eps.ruleIndex].id).toBe('epsilon-at-zero-snr');
     expect(eps.fixes[0].artifactChanges[0].artifactLocation.uri).toBe('runs/eps.yaml');
     expect(eps.fixes[0].artifactChanges[0].replacements[0].insertedContent.text).toMatch(/v_prediction/);
+    // What the fix means for a trained checkpoint, in the project's own words.
+    expect(eps.fixes[0].properties).toEqual({ effect: 'needs-retraining', touchesComment: false, preferred: true });
 
     const leak = run.results.find((x: { ruleId: string }) => x.ruleId === 'terminal-snr-leak');
     expect(leak.level).toBe('warning');
@@ -186,7 +188,16 @@ describe('check --format sarif', () => {
       expect(d.helpUri.endsWith(`docs/rules/${meta.id}.md`)).toBe(true);
       expect(d.help.markdown).toBe(meta.docs.trim() || meta.summary);
       expect(d.fullDescription.text.length).toBeGreaterThan(0);
+      expect(d.properties).toEqual({
+        repairEffects: meta.repair ? [...meta.repair.effects] : [],
+        repairForEveryFinding: meta.repair?.everyFinding ?? false,
+        defaultSeverity: meta.defaultSeverity,
+      });
     }
+    const eps = rules.find((x: { id: string }) => x.id === 'epsilon-at-zero-snr');
+    expect(eps.properties.repairEffects).toEqual(['needs-retraining']);
+    expect(eps.help.markdown).toContain('## Effect on a trained checkpoint');
+    expect(eps.fullDescription.text).not.toMatch(/^#/);
   });
 
   it('a clean run is a valid log with no results', async () => {

@@ -597,7 +597,7 @@ const steps = [
   },
   {
     name: 'fixall',
-    title: '"Fix all in file" applies the safe fixes of a JSON sampler config',
+    title: '"Apply sampling-only fixes in this file" applies the sampling-only fixes of a JSON sampler config',
     async run(ctx) {
       const { page, workspace } = ctx;
       const relativePath = 'e2e-fixture/preview-sampler.json';
@@ -613,7 +613,7 @@ const steps = [
         'the JSON sampler config should get a sampler-skips-last-step finding naming step 958',
       );
       await page.locator('.editor-instance .monaco-editor .view-lines').first().click();
-      await runCommand(page, 'noiselint: Fix all in file');
+      await runCommand(page, 'noiselint: Apply sampling-only fixes in this file');
       await saveAfterEdit(page, 'preview-sampler.json');
       const expected = before.replace('"timestep_spacing": "leading"', '"timestep_spacing": "trailing"');
       let after = before;
@@ -622,7 +622,7 @@ const steps = [
         await sleep(300);
         after = readFileSync(file, 'utf8');
       }
-      expect(after === expected, `after "Fix all in file" only the spacing should change to trailing; the file is now:\n${after}`);
+      expect(after === expected, `after "Apply sampling-only fixes in this file" only the spacing should change to trailing; the file is now:\n${after}`);
     },
   },
   {

@@ -50,15 +50,16 @@ describe('noiselint fix', () => {
     expect(r.stdout).toContain('+++ b/night.yaml');
     expect(r.stdout).toMatch(/^- {2}timestep_spacing: leading$/m);
     expect(r.stdout).toMatch(/^\+ {2}timestep_spacing: trailing$/m);
-    // Only the safe fix: the schedule and target stay as they are without --unsafe.
+    // Only the sampling-only fix: the schedule and target stay as they are without --accept-retraining.
     expect(r.stdout).not.toMatch(/^\+.*rescale_betas_zero_snr/m);
     expect(r.stderr).toMatch(/would apply 1 fix/);
-    expect(r.stderr).toMatch(/--unsafe/);
+    expect(r.stderr).toMatch(/2 more findings have fixes that change what the model learns \(the checkpoint then needs fine-tuning or retraining\); add --accept-retraining to apply them\./);
+    expect(r.stderr).not.toMatch(/unsafe/);
     expect(readFileSync(join(dir, 'night.yaml'), 'utf8')).toBe(NIGHT);
     expect(statSync(join(dir, 'night.yaml')).mtimeMs).toBe(before);
   });
 
-  it('writes the safe fix, keeps mode and CRLF, and a second run changes nothing', async () => {
+  it('writes the sampling-only fix, keeps mode and CRLF, and a second run changes nothing', async () => {
     const crlf = NIGHT.replace(/\n/g, '\r\n');
     const dir = project({ 'night.yaml': crlf });
     const file = join(dir, 'night.yaml');
@@ -76,11 +77,23 @@ describe('noiselint fix', () => {
     expect(readFileSync(file, 'utf8')).toBe(fixed);
   });
 
-  it('--unsafe applies every fix, keeps comments it does not remove, and is idempotent', async () => {
+  it('--accept-retraining holds back a fix that would rewrite a comment and says which flag lets it through', async () => {
+    const dir = project({ 'night.yaml': NIGHT });
+    const r = await run(dir, '--accept-retraining', 'night.yaml');
+    expect(r.code).toBe(0);
+    expect(r.stdout).toContain('1 more finding has a fix that would rewrite a comment you wrote; add --accept-comment-edits to apply it.');
+    expect(r.stdout).not.toMatch(/add --accept-retraining/);
+    const fixed = readFileSync(join(dir, 'night.yaml'), 'utf8');
+    expect(fixed).toContain('  rescale_betas_zero_snr: true\n');
+    expect(fixed).toContain('  noise_offset: 0.1   # brighter blacks, old trick\n');
+  });
+
+  it('--accept-retraining with --accept-comment-edits applies every fix, keeps comments it does not remove, and is idempotent', async () => {
     const dir = project({ 'night.yaml': NIGHT });
     const file = join(dir, 'night.yaml');
-    const r = await run(dir, '--unsafe', 'night.yaml');
+    const r = await run(dir, '--accept-retraining', '--accept-comment-edits', 'night.yaml');
     expect(r.code).toBe(0);
+    expect(r.stdout).not.toMatch(/more finding/);
     const fixed = readFileSync(file, 'utf8');
     expect(fixed).toContain('  rescale_betas_zero_snr: true\n');
     expect(fixed).toContain('  prediction_type: v_prediction\n');
@@ -88,7 +101,7 @@ describe('noiselint fix', () => {
     expect(fixed).toContain('  guidance_rescale: 0.7\n');
     expect(fixed).toContain('# Lanternfish Pictures: night storyboard fine-tune (invented demo data)\n');
     expect(fixed).toContain('  beta_schedule: scaled_linear   # latent default\n');
-    const again = await run(dir, '--unsafe', 'night.yaml');
+    const again = await run(dir, '--accept-retraining', '--accept-comment-edits', 'night.yaml');
     expect(again.code).toBe(0);
     expect(readFileSync(file, 'utf8')).toBe(fixed);
   });

@@ -5,7 +5,7 @@
  * syntax errors. Shared by the vitest properties and `npm run fuzz`.
  */
 import { analyzeText, readFile, type FileResult } from '../../server/src/engine/api';
-import { SEVERITIES, type TextEdit } from '../../server/src/base/findings';
+import { FIX_EFFECTS, SEVERITIES, type TextEdit } from '../../server/src/base/findings';
 import { applyEdits } from '../../server/src/fix/apply';
 import { parseText } from '../../server/src/parse';
 import type { SourceFormat, Span } from '../../server/src/parse/types';
@@ -113,7 +113,9 @@ export function checkConfig(c: GeneratedConfig, stats?: CheckStats, partner?: Pa
     for (const [k, fix] of f.fixes.entries()) {
       const fwhat = `${what}, fix ${k} "${fix.title}"`;
       if (!fix.title) fail(`${fwhat}: no title`, c);
-      if (fix.safety !== 'safe' && fix.safety !== 'unsafe') fail(`${fwhat}: safety ${String(fix.safety)}`, c);
+      if (!FIX_EFFECTS.includes(fix.effect)) fail(`${fwhat}: effect ${String(fix.effect)}`, c);
+      if (typeof fix.touchesComment !== 'boolean') fail(`${fwhat}: touchesComment ${String(fix.touchesComment)}`, c);
+      if (fix.effect === 'needs-retraining' && !/fine-tuning or retraining/.test(fix.title)) fail(`${fwhat}: needs retraining but the title does not say so`, c);
       const after = applyEditsChecked(text, fix.edits, fwhat, c);
       let viaFix: string;
       try {

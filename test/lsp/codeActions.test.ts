@@ -18,7 +18,7 @@ import { SAMPLE_LEADING } from './fixtures';
 const uri = 'file:///lanternfish/preview-sampler.yaml';
 const mapper = new LineIndex(SAMPLE_LEADING);
 
-/** The sample's findings, with a safe fix planted on the spacing finding that opens a flow list it never closes. */
+/** The sample's findings, with a sampling-only fix planted on the spacing finding that opens a flow list it never closes. */
 function current(): { current: CurrentFindings; broken: FixProposal; skip: Finding } {
   const findings = analyzeText(SAMPLE_LEADING, { path: 'preview-sampler.yaml' }).findings;
   const skip = findings.find((f) => f.rule === 'sampler-skips-last-step');
@@ -26,7 +26,8 @@ function current(): { current: CurrentFindings; broken: FixProposal; skip: Findi
   const at = SAMPLE_LEADING.indexOf('leading');
   const broken: FixProposal = {
     title: 'Write "[trailing"',
-    safety: 'safe',
+    effect: 'sampling-only',
+    touchesComment: false,
     preferred: false,
     edits: [{ span: { start: at, end: at + 'leading'.length }, newText: '[trailing' }],
   };

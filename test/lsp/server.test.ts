@@ -377,7 +377,7 @@ describe('code actions', () => {
     expect(actions).toEqual([]);
   });
 
-  it('fix-all applies every safe fix and no unsafe one', async () => {
+  it('fix-all applies every sampling-only fix and none that needs retraining', async () => {
     const { uri } = await openAndWait('fixall-sample.yaml', SAMPLE_LEADING);
     const actions = await client.request<CodeAction[]>('textDocument/codeAction', {
       textDocument: { uri },
@@ -386,6 +386,7 @@ describe('code actions', () => {
     });
     expect(actions).toHaveLength(1);
     expect(actions[0].kind).toBe('source.fixAll.noiselint');
+    expect(actions[0].title).toBe('noiselint: apply every sampling-only fix (the checkpoint stays valid)');
     const fixed = applyLspEdits(SAMPLE_LEADING, editsFor(actions[0].edit, uri));
     const doc = readFile(fixed, { path: 'fixall-sample.yaml' }).documents[0];
     expect(valueOf(doc.setup, 'timestepSpacing')).toBe('trailing');

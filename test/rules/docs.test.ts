@@ -1,6 +1,6 @@
 /**
- * Docs are tests: every rule's documentation has the fixed headings, every Example block yields
- * exactly that rule's finding (once) and every Use-instead block none; the generated pages in
+ * Docs are tests: every rule's documentation has the fixed headings, every flagged config yields
+ * exactly that rule's finding (once) and every repaired config none; the generated pages in
  * docs/rules are up to date.
  */
 import { existsSync, readdirSync, readFileSync } from 'node:fs';
@@ -8,11 +8,23 @@ import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { readFile } from '../../server/src/engine/api';
 import { ALL_RULE_METAS, RULES } from '../../server/src/rules';
-import { renderRuleDocPages } from '../../server/src/rules/docs';
+import { RULE_DOC_HEADINGS, renderRuleDocPages } from '../../server/src/rules/docs';
 import type { RuleMeta } from '../../server/src/rules/types';
 import { runOnly } from './harness';
 
-const HEADINGS = ['What it finds', 'Why it matters', 'Example', 'Use instead', 'Fix safety', 'Options', 'References'];
+const HEADINGS = [...RULE_DOC_HEADINGS];
+
+it('the headings are the project\'s own set', () => {
+  expect(HEADINGS).toEqual([
+    'What triggers it',
+    'What the run loses',
+    'A flagged config',
+    'The repaired config',
+    'Effect on a trained checkpoint',
+    'Numbers you can tune',
+    'Published sources',
+  ]);
+});
 
 /** The text under each `## ` heading. */
 function sections(docs: string): Map<string, string> {
@@ -49,7 +61,7 @@ describe.each(ALL_RULE_METAS.map((m) => [m.id, m] as const))('docs of %s', (id, 
   });
 
   it('names every option with its default, and cites a source with a year', () => {
-    const options = byHeading.get('Options')!;
+    const options = byHeading.get('Numbers you can tune')!;
     for (const [name, option] of Object.entries(meta.options)) {
       const m = new RegExp(`\`${name}\` \\(default ([^)]+)\\)`).exec(options);
       expect(m, `option ${name} with its default`).not.toBeNull();
@@ -58,11 +70,11 @@ describe.each(ALL_RULE_METAS.map((m) => [m.id, m] as const))('docs of %s', (id, 
       else expect(written, `default of ${name}`).toBe(String(option.default));
     }
     if (Object.keys(meta.options).length === 0) expect(options).toMatch(/^None\b/m);
-    expect(byHeading.get('References')!).toMatch(/\b(19|20)\d\d\b/);
+    expect(byHeading.get('Published sources')!).toMatch(/\b(19|20)\d\d\b/);
   });
 
-  it('has a yaml Example that yields exactly one finding of this rule', () => {
-    const blocks = codeBlocks(byHeading.get('Example')!).filter((b) => b.info === 'yaml');
+  it('has a yaml flagged config that yields exactly one finding of this rule', () => {
+    const blocks = codeBlocks(byHeading.get('A flagged config')!).filter((b) => b.info === 'yaml');
     expect(blocks.length).toBeGreaterThan(0);
     for (const block of blocks) {
       const { findings, ruleErrors } = runOnly(id, block.body, { partners: partnersOf(meta), pairRole: partnersOf(meta) ? 'sampling' : undefined });
@@ -73,8 +85,8 @@ describe.each(ALL_RULE_METAS.map((m) => [m.id, m] as const))('docs of %s', (id, 
     }
   });
 
-  it('has yaml Use-instead blocks that yield none of this rule', () => {
-    const blocks = codeBlocks(byHeading.get('Use instead')!).filter((b) => b.info === 'yaml');
+  it('has yaml repaired configs that yield none of this rule', () => {
+    const blocks = codeBlocks(byHeading.get('The repaired config')!).filter((b) => b.info === 'yaml');
     expect(blocks.length).toBeGreaterThan(0);
     for (const block of blocks) {
       const { findings, ruleErrors } = runOnly(id, block.body, { partners: partnersOf(meta), pairRole: partnersOf(meta) ? 'sampling' : undefined });
@@ -83,9 +95,12 @@ describe.each(ALL_RULE_METAS.map((m) => [m.id, m] as const))('docs of %s', (id, 
     }
   });
 
-  it('says fine-tuning or retraining where its fixes change training', () => {
-    const safety = byHeading.get('Fix safety')!;
-    if (/^Unsafe/.test(safety.trim()) && id !== 'parse-error') expect(safety).toMatch(/fine-tuning or retraining/);
+  it('says what its repair means for a trained checkpoint, in step with its metadata', () => {
+    const effect = byHeading.get('Effect on a trained checkpoint')!.trim();
+    const effects = meta.repair?.effects ?? [];
+    if (effects.length === 0) expect(effect).toMatch(/^No repair offered\b/);
+    else if (effects.includes('needs-retraining')) expect(effect).toMatch(/^Needs fine-tuning or retraining\./);
+    else expect(effect).toMatch(/^Sampling only\b/);
   });
 });
 

@@ -24,7 +24,7 @@ function project(rules: Record<string, RuleSetting>, extra: Partial<ResolvedProj
 }
 
 function fakeRule(id: string, check: Rule['check'], options: Rule['meta']['options'] = {}): Rule {
-  return { meta: { id, summary: id, defaultSeverity: 'warning', fixable: 'sometimes', options, docs: '' }, check };
+  return { meta: { id, summary: id, defaultSeverity: 'warning', repair: { effects: ['sampling-only'], everyFinding: false }, options, docs: '' }, check };
 }
 
 function run(text: string, rules: readonly Rule[], opts: { project?: ResolvedProject; path?: string } = {}) {
@@ -174,10 +174,10 @@ describe('fixes', () => {
         at: 'timestepSpacing',
         fixes: [
           // latentSpace has no key to insert: the renderer gives up.
-          { title: 'impossible', safety: 'safe', edits: [{ kind: 'set', concept: 'latentSpace', value: true }] },
-          { title: 'first', safety: 'safe', edits: [setSpacing] },
-          { title: 'second', safety: 'safe', preferred: true, edits: [{ kind: 'set', concept: 'sampleSteps', value: 20 }] },
-          { title: 'empty', safety: 'safe', edits: [] },
+          { title: 'impossible', effect: 'sampling-only', edits: [{ kind: 'set', concept: 'latentSpace', value: true }] },
+          { title: 'first', effect: 'sampling-only', edits: [setSpacing] },
+          { title: 'second', effect: 'sampling-only', preferred: true, edits: [{ kind: 'set', concept: 'sampleSteps', value: 20 }] },
+          { title: 'empty', effect: 'sampling-only', edits: [] },
         ],
       },
     ]);
@@ -193,12 +193,12 @@ describe('fixes', () => {
       {
         message: 'm',
         fixes: [
-          { title: 'a', safety: 'safe', edits: [setSpacing] },
-          { title: 'b', safety: 'safe', preferred: true, edits: [{ kind: 'set', concept: 'sampleSteps', value: 20 }] },
-          { title: 'c', safety: 'safe', preferred: true, edits: [{ kind: 'set', concept: 'sampleSteps', value: 30 }] },
+          { title: 'a', effect: 'sampling-only', edits: [setSpacing] },
+          { title: 'b', effect: 'sampling-only', preferred: true, edits: [{ kind: 'set', concept: 'sampleSteps', value: 20 }] },
+          { title: 'c', effect: 'sampling-only', preferred: true, edits: [{ kind: 'set', concept: 'sampleSteps', value: 30 }] },
         ],
       },
-      { message: 'n', fixes: [{ title: 'only', safety: 'safe', edits: [setSpacing] }, { title: 'next', safety: 'safe', edits: [setSpacing] }] },
+      { message: 'n', fixes: [{ title: 'only', effect: 'sampling-only', edits: [setSpacing] }, { title: 'next', effect: 'sampling-only', edits: [setSpacing] }] },
     ]);
     const { findings } = run(text, [rule]);
     const m = findings.find((f) => f.message === 'm')!;
@@ -208,7 +208,7 @@ describe('fixes', () => {
   });
 
   it('puts the written value into a title with {newText}', () => {
-    const rule = fakeRule('title', () => [{ message: 'm', fixes: [{ title: 'Write {newText} instead', safety: 'safe', edits: [setSpacing] }] }]);
+    const rule = fakeRule('title', () => [{ message: 'm', fixes: [{ title: 'Write {newText} instead', effect: 'sampling-only', edits: [setSpacing] }] }]);
     const { findings } = run(text, [rule]);
     expect(findings[0].fixes[0].title).toBe('Write "trailing" instead');
   });

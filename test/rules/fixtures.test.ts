@@ -47,6 +47,7 @@ describe('fixture layout', () => {
 describe.each(fixtures.map((f) => [`${f.rule}/${f.name}`, f] as const))('%s', (_label, fixture) => {
   it('matches its expectation', () => {
     const expectation = JSON.parse(readFileSync(fixture.expectedFile, 'utf8')) as FixtureExpectation;
+    const meta = ALL_RULE_METAS.find((m) => m.id === fixture.rule)!;
     expect(validateExpectation(fixture.rule, expectation)).toEqual([]);
     const text = readFileSync(fixture.inputFile, 'utf8');
     const project = projectFor(expectation, fixture.rule);
@@ -81,15 +82,20 @@ describe.each(fixtures.map((f) => [`${f.rule}/${f.name}`, f] as const))('%s', (_
       });
 
       const titles = got.fixes.map((f) => f.title);
+      if (meta.repair?.everyFinding) expect(got.fixes.length, `${where}: the rule promises a repair for every finding`).toBeGreaterThan(0);
       expect(got.fixes.length, `${where}: fixes ${JSON.stringify(titles)}`).toBe(want.fixes.length);
       expect(got.fixes.filter((f) => f.preferred).length, `${where}: preferred fixes`).toBeLessThanOrEqual(1);
       want.fixes.forEach((wantFix, k) => {
         const fix = got.fixes[k];
         expect(fix.title, `${where}: fix ${k}`).toBe(wantFix.title);
-        expect(fix.safety, `${where}: fix ${k}`).toBe(wantFix.safety);
+        expect(fix.effect, `${where}: fix ${k} effect`).toBe(wantFix.effect);
+        expect(fix.touchesComment, `${where}: fix ${k} touches a comment`).toBe(wantFix.touchesComment ?? false);
         expect(fix.preferred, `${where}: fix ${k} preferred`).toBe(wantFix.preferred);
-        if (fix.safety === 'unsafe' && /schedule|target|offset noise|beta/i.test(fix.title)) {
+        expect(meta.repair?.effects ?? [], `${where}: the rule's repair metadata names this effect`).toContain(fix.effect);
+        if (fix.effect === 'needs-retraining') {
           expect(fix.title, 'a fix that changes training says so').toContain('(needs fine-tuning or retraining)');
+        } else {
+          expect(fix.title, 'a sampling-only fix claims no retraining').not.toMatch(/retrain|fine-tun/i);
         }
         const after = applyEdits(text, fix.edits);
         const expectedAfter = readFileSync(join(fixture.dir, wantFix.after), 'utf8');

@@ -8,7 +8,7 @@ import { existsSync, readdirSync, readFileSync, statSync } from 'node:fs';
 import { basename, extname, join } from 'node:path';
 import { readFile } from '../../server/src/engine/api';
 import { runRules } from '../../server/src/engine/engine';
-import type { Finding, Severity } from '../../server/src/base/findings';
+import { FIX_EFFECTS, type Finding, type FixEffect, type Severity } from '../../server/src/base/findings';
 import { applyEdits } from '../../server/src/fix';
 import type { SourceFormat } from '../../server/src/parse/types';
 import type { PartnerDocument } from '../../server/src/rules/types';
@@ -24,7 +24,9 @@ export type MessagePart = string | { text: string; source: string };
 
 export interface ExpectedFix {
   title: string;
-  safety: 'safe' | 'unsafe';
+  effect: FixEffect;
+  /** True when the fix replaces or deletes part of a comment (absent: false). */
+  touchesComment?: boolean;
   preferred: boolean;
   /** File (beside the fixture) holding the whole text after applying this fix. */
   after: string;
@@ -65,7 +67,7 @@ export interface Fixture {
 
 const EXPECTATION_KEYS = new Set(['about', 'options', 'severity', 'latentSpace', 'partner', 'pairRole', 'findings']);
 const FINDING_KEYS = new Set(['rule', 'severity', 'document', 'text', 'message', 'related', 'fixes']);
-const FIX_KEYS = new Set(['title', 'safety', 'preferred', 'after']);
+const FIX_KEYS = new Set(['title', 'effect', 'touchesComment', 'preferred', 'after']);
 
 /** Every fixture folder and its problems of layout (missing or orphaned files, duplicates). */
 export function collectFixtures(): { fixtures: Fixture[]; layoutProblems: string[] } {
@@ -144,6 +146,7 @@ export function validateExpectation(rule: string, e: FixtureExpectation): string
     if (!Array.isArray(f.fixes)) problems.push(`finding ${i}: "fixes" must be a list (empty when none)`);
     for (const [j, fix] of (f.fixes ?? []).entries()) {
       for (const k of Object.keys(fix)) if (!FIX_KEYS.has(k)) problems.push(`finding ${i} fix ${j}: unknown key "${k}"`);
+      if (!FIX_EFFECTS.includes(fix.effect)) problems.push(`finding ${i} fix ${j}: "effect" must be one of ${FIX_EFFECTS.join(', ')}`);
       if (typeof fix.after !== 'string' || !AFTER_FILE.test(fix.after)) problems.push(`finding ${i} fix ${j}: "after" must name a <name>.after-<k>.<ext> file`);
     }
   }

@@ -12,13 +12,13 @@ async function run(args: string[]): Promise<{ code: number; out: string; err: st
 }
 
 describe('noiselint rules', () => {
-  it('lists the 17 rules and parse-error with default severity and fixability', async () => {
+  it('lists the 17 rules and parse-error with default severity and what their repair does', async () => {
     const { code, out, err } = await run([]);
     expect(code).toBe(0);
     expect(err).toBe('');
     const lines = out.trimEnd().split('\n');
     expect(lines).toHaveLength(1 + RULE_IDS.length + 1);
-    expect(lines[0]).toMatch(/^rule\s+default\s+fix\s+what it finds$/);
+    expect(lines[0]).toMatch(/^rule\s+default\s+repair\s+what it finds$/);
     for (const id of [...RULE_IDS, 'parse-error']) {
       const meta = getRuleMeta(id)!;
       const line = lines.find((l) => l.startsWith(`${id} `));
@@ -26,15 +26,20 @@ describe('noiselint rules', () => {
       expect(line).toContain(` ${meta.defaultSeverity} `);
       expect(line).toContain(meta.summary);
     }
-    expect(lines.find((l) => l.startsWith('epsilon-at-zero-snr '))).toMatch(/ error +yes /);
-    expect(lines.find((l) => l.startsWith('resolution-shift-hint '))).toMatch(/ info +no /);
+    expect(lines.find((l) => l.startsWith('epsilon-at-zero-snr '))).toMatch(/ error +needs retraining +/);
+    expect(lines.find((l) => l.startsWith('sampler-skips-last-step '))).toMatch(/ sampling only +/);
+    expect(lines.find((l) => l.startsWith('unknown-value '))).toMatch(/ sampling only, some findings +/);
+    expect(lines.find((l) => l.startsWith('resolution-shift-hint '))).toMatch(/ info +none +/);
   });
 
   it('prints one rule\'s documentation', async () => {
     const { code, out } = await run(['terminal-snr-leak']);
     expect(code).toBe(0);
     expect(out).toContain('terminal-snr-leak: The last training step still carries signal');
-    expect(out).toContain('## Why it matters');
+    expect(out).toContain('## What the run loses');
+    expect(out).toContain('## Effect on a trained checkpoint');
+    expect(out).toContain('repair: needs retraining, some findings');
+    expect(out).not.toMatch(/Why it matters|Use instead|Fix safety/);
     expect(out).toContain('```yaml');
   });
 

@@ -56,12 +56,12 @@ function* delays(seed: number, maxMs: number): Generator<number> {
 }
 
 /**
- * Runs `fix --unsafe file` in `cwd` and kills it with SIGKILL: `afterWriteStartsMs` after the
+ * Runs `fix --accept-retraining --accept-comment-edits file` in `cwd` and kills it with SIGKILL: `afterWriteStartsMs` after the
  * temporary file appears (the write window), or, when that is null, `fallbackMs` after spawning.
  */
 function runFixAndKill(cwd: string, file: string, afterWriteStartsMs: number | null, fallbackMs: number): Promise<{ code: number | null; signal: NodeJS.Signals | null; sawTemp: boolean }> {
   return new Promise((resolve) => {
-    const child = spawn(process.execPath, [CLI, 'fix', '--unsafe', file], { cwd, stdio: 'ignore' });
+    const child = spawn(process.execPath, [CLI, 'fix', '--accept-retraining', '--accept-comment-edits', file], { cwd, stdio: 'ignore' });
     let sawTemp = false;
     const kill = () => child.kill('SIGKILL');
     const watcher = watch(cwd, (_event, name) => {
@@ -87,7 +87,7 @@ describe('fix safety', () => {
     const refDir = tempDir('fix-ref');
     writeFileSync(join(refDir, 'long.yaml'), original);
     const started = performance.now();
-    const ref = runCli(['fix', '--unsafe', 'long.yaml'], { cwd: refDir, heapMb: 512 });
+    const ref = runCli(['fix', '--accept-retraining', '--accept-comment-edits', 'long.yaml'], { cwd: refDir, heapMb: 512 });
     const fullMs = performance.now() - started;
     expect(describeCrash(ref), ref.stderr).toBeNull();
     const fixed = readFileSync(join(refDir, 'long.yaml'));
@@ -134,7 +134,7 @@ describe('fix safety', () => {
     writeFileSync(file, SMALL);
     chmodSync(file, 0o640);
     const before = statSync(file);
-    const r = runCli(['fix', '--unsafe', 'stills.yaml'], { cwd: dir });
+    const r = runCli(['fix', '--accept-retraining', '--accept-comment-edits', 'stills.yaml'], { cwd: dir });
     expect(describeCrash(r)).toBeNull();
     const after = statSync(file);
     expect(readFileSync(file, 'utf8')).not.toBe(SMALL);
@@ -149,7 +149,7 @@ describe('fix safety', () => {
     const file = join(dir, 'stills.yaml');
     const text = '\ufeff' + SMALL.replace(/\n/g, '\r\n');
     writeFileSync(file, text);
-    const r = runCli(['fix', '--unsafe', 'stills.yaml'], { cwd: dir });
+    const r = runCli(['fix', '--accept-retraining', '--accept-comment-edits', 'stills.yaml'], { cwd: dir });
     expect(describeCrash(r)).toBeNull();
     const out = readFileSync(file, 'utf8');
     expect(out).not.toBe(text);
@@ -163,7 +163,7 @@ describe('fix safety', () => {
     const file = join(dir, 'stills.yaml');
     writeFileSync(file, SMALL);
     chmodSync(file, 0o444);
-    const r = runCli(['fix', '--unsafe', 'stills.yaml'], { cwd: dir });
+    const r = runCli(['fix', '--accept-retraining', '--accept-comment-edits', 'stills.yaml'], { cwd: dir });
     expect(describeCrash(r)).toBeNull();
     expect(r.status).toBe(1);
     expect(r.stderr).toMatch(/read-only/);
@@ -177,7 +177,7 @@ describe('fix safety', () => {
     const target = join(dir, 'real.yaml');
     writeFileSync(target, SMALL);
     symlinkSync('real.yaml', join(dir, 'link.yaml'));
-    const r = runCli(['fix', '--unsafe', 'link.yaml'], { cwd: dir });
+    const r = runCli(['fix', '--accept-retraining', '--accept-comment-edits', 'link.yaml'], { cwd: dir });
     expect(describeCrash(r)).toBeNull();
     expect(lstatSync(join(dir, 'link.yaml')).isSymbolicLink()).toBe(true);
     expect(readlinkSync(join(dir, 'link.yaml'))).toBe('real.yaml');
@@ -191,7 +191,7 @@ describe('fix safety', () => {
     const copy = join(dir, 'copy.yaml.bak');
     copyFileSync(file, copy);
     const before = statSync(file).mtimeMs;
-    const r = runCli(['fix', '--unsafe', '--dry-run', 'stills.yaml'], { cwd: dir });
+    const r = runCli(['fix', '--accept-retraining', '--accept-comment-edits', '--dry-run', 'stills.yaml'], { cwd: dir });
     expect(describeCrash(r)).toBeNull();
     expect(r.stdout).toMatch(/^\+.*trailing/m);
     expect(readFileSync(file, 'utf8')).toBe(SMALL);

@@ -28,7 +28,7 @@ const leakMeta: RuleMeta = {
   id: 'terminal-snr-leak',
   summary: 'test stand-in',
   defaultSeverity: 'warning',
-  fixable: 'sometimes',
+  repair: { effects: ['needs-retraining'], everyFinding: false },
   options: { warnSignal: { default: 0.01, description: 'warning threshold' } },
   docs: '',
 };

@@ -11,14 +11,21 @@ export interface TextEdit {
 }
 
 /**
- * 'safe': nothing the model learns changes and no comment is touched.
- * 'unsafe': changes the schedule, the target or a comment; applied on request only.
+ * What applying a fix does to a model already trained with the file:
+ * 'sampling-only': changes only how the trained model is sampled (spacing, step count, guidance),
+ *   or writes the spelling a loader accepts for the value the file already means; the checkpoint
+ *   stays valid.
+ * 'needs-retraining': changes what the model learns (schedule, target, loss weighting, offset
+ *   noise); the checkpoint needs fine-tuning or retraining. Applied on request only.
  */
-export type FixSafety = 'safe' | 'unsafe';
+export type FixEffect = 'sampling-only' | 'needs-retraining';
+export const FIX_EFFECTS: readonly FixEffect[] = ['sampling-only', 'needs-retraining'];
 
 export interface FixProposal {
   title: string;
-  safety: FixSafety;
+  effect: FixEffect;
+  /** An edit replaces or deletes part of a comment the user wrote; applied on request only. */
+  touchesComment: boolean;
   /** The best fix of a finding; at most one per finding. */
   preferred: boolean;
   edits: TextEdit[];

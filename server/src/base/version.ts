@@ -1,2 +1,9 @@
 /** The tool's version, shown by --version and written into SARIF. */
 export const VERSION = '0.1.0';
+
+/**
+ * Version of the JSON contracts (`check --format json`, `explain --format json`), written as
+ * `formatVersion`. Raised when a field is renamed or removed; additions keep it.
+ * 2: fixes say `effect` and `touchesComment` instead of `safety`.
+ */
+export const JSON_FORMAT_VERSION = 2;

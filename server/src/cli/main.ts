@@ -12,7 +12,7 @@ const USAGE = `noiselint ${VERSION}: finds noise-schedule mistakes in diffusion 
 
 Usage:
   noiselint check [paths|globs...] [--format text|json|sarif] [--max-warnings N] [--quiet]
-  noiselint fix [paths...] [--unsafe] [--dry-run]
+  noiselint fix [paths...] [--accept-retraining] [--accept-comment-edits] [--dry-run]
   noiselint explain <file...> [--format text|json]
   noiselint rules [id]
   noiselint lsp --stdio

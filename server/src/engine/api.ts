@@ -50,7 +50,7 @@ export function analyzeRead(file: FileReading, options: AnalyzeOptions): FileRes
 export function findingsAsData(findings: readonly Finding[]): Finding[] {
   return findings.map((f) => ({
     ...f,
-    fixes: f.fixes.map((x) => ({ title: x.title, safety: x.safety, preferred: x.preferred, edits: x.edits })),
+    fixes: f.fixes.map((x) => ({ title: x.title, effect: x.effect, touchesComment: x.touchesComment, preferred: x.preferred, edits: x.edits })),
   }));
 }
 

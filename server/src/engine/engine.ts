@@ -248,13 +248,12 @@ function renderFixes(fixes: ConceptFix[], parsed: ParsedFile, setup: Setup): Fix
     }
     if (!edits || edits.length === 0) continue;
     let title = fix.title.replace('{newText}', edits.length === 1 ? quoted(edits[0].newText) : 'the suggested value');
-    let safety = fix.safety;
-    // "safe" promises that no comment is touched; an edit that would drop one needs consent.
-    if (editsTouchComment(parsed, edits)) {
-      if (safety === 'safe') safety = 'unsafe';
-      title += ' (also removes a comment)';
-    }
-    rendered.push({ title, safety, preferred: false, edits, wanted: fix.preferred === true });
+    // An edit that would drop a comment the user wrote needs their consent, whatever its effect.
+    const touchesComment = editsTouchComment(parsed, edits);
+    if (touchesComment) title += ' (also removes a comment)';
+    // Anything a rule did not mark as sampling-only is treated as the stronger claim.
+    const effect = fix.effect === 'sampling-only' ? 'sampling-only' : 'needs-retraining';
+    rendered.push({ title, effect, touchesComment, preferred: false, edits, wanted: fix.preferred === true });
   }
   const preferredIndex = Math.max(0, rendered.findIndex((f) => f.wanted));
   return rendered.map(({ wanted: _wanted, ...f }, i) => {

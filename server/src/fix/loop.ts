@@ -1,15 +1,17 @@
 /**
- * Applying all fixes of one text: pick the fixes allowed by the safety level, apply their edits,
+ * Applying all fixes of one text: pick the fixes whose consequences the caller accepted, apply their edits,
  * analyse again, repeat until nothing changes, so that fixing a fixed text changes nothing.
  * The analysis is passed in (the caller owns the pipeline); this module only does text.
  */
-import type { Finding, FixProposal, FixSafety, TextEdit } from '../base/findings';
+import type { Finding, FixEffect, FixProposal, TextEdit } from '../base/findings';
 import type { ParseProblem } from '../parse/types';
 import { anyConflict, applyEdits } from './apply';
 
 export interface FixLoopOptions {
-  /** Apply unsafe fixes too (they change what the model learns or touch a comment). */
-  unsafe: boolean;
+  /** Also apply fixes that change what the model learns (the checkpoint needs fine-tuning or retraining). */
+  acceptRetraining: boolean;
+  /** Also apply fixes that replace or delete part of a comment the user wrote. */
+  acceptCommentEdits: boolean;
   /** Analyse-and-apply rounds before stopping. */
   maxPasses?: number;
 }
@@ -17,7 +19,8 @@ export interface FixLoopOptions {
 export interface AppliedFix {
   rule: string;
   title: string;
-  safety: FixSafety;
+  effect: FixEffect;
+  touchesComment: boolean;
 }
 
 export interface FixLoopResult {
@@ -30,10 +33,12 @@ export interface FixLoopResult {
   initialFindings: readonly Finding[];
   /** A round produced text that no longer parsed; its edits were dropped and the loop stopped. */
   brokeText: boolean;
-  /** Findings left with a fix at the allowed safety level (0 unless the loop ran out of rounds). */
+  /** Findings left with an accepted fix (0 unless the loop ran out of rounds). */
   remaining: number;
-  /** Findings left whose only fixes are unsafe (when unsafe fixes were not allowed). */
-  unsafeOnly: number;
+  /** Findings left whose fixes all change what the model learns, when that was not accepted. */
+  heldForRetraining: number;
+  /** Findings left that accepting comment edits would let through. */
+  heldForComments: number;
 }
 
 export const DEFAULT_MAX_PASSES = 5;
@@ -50,20 +55,26 @@ function firstParseError(result: Pick<LoopReading, 'parsed'>): ParseProblem | nu
   return result.parsed.problems.find((p) => p.severity === 'error') ?? null;
 }
 
-function allowed(fix: FixProposal, unsafe: boolean): boolean {
-  return fix.edits.length > 0 && (unsafe || fix.safety === 'safe');
+type Accepted = Pick<FixLoopOptions, 'acceptRetraining' | 'acceptCommentEdits'>;
+
+function allowed(fix: FixProposal, accepted: Accepted): boolean {
+  if (fix.edits.length === 0) return false;
+  if (fix.effect !== 'sampling-only' && !accepted.acceptRetraining) return false;
+  return !fix.touchesComment || accepted.acceptCommentEdits;
 }
 
+const EVERYTHING: Accepted = { acceptRetraining: true, acceptCommentEdits: true };
+
 /** Fixes of a finding in the order to try them: the preferred one first. */
-function candidates(fixes: readonly FixProposal[], unsafe: boolean): FixProposal[] {
-  return fixes.filter((f) => allowed(f, unsafe)).sort((a, b) => Number(b.preferred) - Number(a.preferred));
+function candidates(fixes: readonly FixProposal[], accepted: Accepted): FixProposal[] {
+  return fixes.filter((f) => allowed(f, accepted)).sort((a, b) => Number(b.preferred) - Number(a.preferred));
 }
 
 export function fixText(text: string, analyze: Analyze, options: FixLoopOptions): FixLoopResult {
   const maxPasses = Math.max(1, options.maxPasses ?? DEFAULT_MAX_PASSES);
   let result = analyze(text);
   const parseError = firstParseError(result);
-  const out: FixLoopResult = { text, applied: [], parseError, initialFindings: result.findings, brokeText: false, remaining: 0, unsafeOnly: 0 };
+  const out: FixLoopResult = { text, applied: [], parseError, initialFindings: result.findings, brokeText: false, remaining: 0, heldForRetraining: 0, heldForComments: 0 };
   if (parseError) return out;
   const seen = new Set<string>([text]);
   let current = text;
@@ -71,11 +82,11 @@ export function fixText(text: string, analyze: Analyze, options: FixLoopOptions)
     const chosen: TextEdit[] = [];
     const appliedNow: AppliedFix[] = [];
     for (const finding of result.findings) {
-      for (const fix of candidates(finding.fixes, options.unsafe)) {
+      for (const fix of candidates(finding.fixes, options)) {
         // A fix whose edits collide with one already chosen waits for the next round.
         if (anyConflict(fix.edits, chosen)) continue;
         chosen.push(...fix.edits);
-        appliedNow.push({ rule: finding.rule, title: fix.title, safety: fix.safety });
+        appliedNow.push({ rule: finding.rule, title: fix.title, effect: fix.effect, touchesComment: fix.touchesComment });
         break;
       }
     }
@@ -99,8 +110,11 @@ export function fixText(text: string, analyze: Analyze, options: FixLoopOptions)
   }
   out.text = current;
   for (const finding of result.findings) {
-    if (finding.fixes.some((f) => allowed(f, options.unsafe))) out.remaining++;
-    else if (!options.unsafe && finding.fixes.some((f) => allowed(f, true))) out.unsafeOnly++;
+    if (finding.fixes.some((f) => allowed(f, options))) out.remaining++;
+    else if (!finding.fixes.some((f) => allowed(f, EVERYTHING))) continue;
+    // Held back: name the consent that is missing (comment edits when they alone would let a fix through).
+    else if (finding.fixes.some((f) => allowed(f, { ...options, acceptCommentEdits: true }))) out.heldForComments++;
+    else out.heldForRetraining++;
   }
   return out;
 }

@@ -724,7 +724,7 @@ export function renderConceptEdits(parsed: ParsedFile, setup: Setup, edits: Conc
   }
 }
 
-/** True when an edit replaces or deletes part of a comment (the engine then marks the fix unsafe). */
+/** True when an edit replaces or deletes part of a comment (the engine then marks the fix `touchesComment`, so it is applied only on request). */
 export function editsTouchComment(parsed: ParsedFile, edits: readonly TextEdit[]): boolean {
   return edits.some((e) => rangeHasComment(parsed, e.span.start, e.span.end));
 }

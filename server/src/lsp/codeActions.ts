@@ -1,6 +1,6 @@
 /**
  * Code actions: one quick fix per fix of each noiselint diagnostic in the request, and
- * `source.fixAll.noiselint` applying every safe fix that does not overlap another (computed on the
+ * `source.fixAll.noiselint` applying every sampling-only fix that touches no comment and does not overlap another (computed on the
  * current text).
  *
  * A fix handed out here has been parsed in full: the result of each quick fix, and the combined
@@ -123,17 +123,18 @@ export function quickFixes(params: CodeActionParams, current: CurrentFindings, v
   return actions;
 }
 
-function pickSafeFix(finding: Finding, accept: (fix: FixProposal) => boolean): FixProposal | undefined {
-  const safe = finding.fixes.filter((f) => f.safety === 'safe' && f.edits.length > 0 && accept(f));
-  return safe.find((f) => f.preferred) ?? safe[0];
+/** A fix the editor may apply in bulk: it keeps the checkpoint valid and every comment intact. */
+function pickSamplingOnlyFix(finding: Finding, accept: (fix: FixProposal) => boolean): FixProposal | undefined {
+  const ok = finding.fixes.filter((f) => f.effect === 'sampling-only' && !f.touchesComment && f.edits.length > 0 && accept(f));
+  return ok.find((f) => f.preferred) ?? ok[0];
 }
 
-/** Every safe fix that `accept` lets through, in position order, skipping any that overlaps one taken. */
-export function collectSafeEdits(findings: Finding[], text: string, accept: (fix: FixProposal) => boolean = () => true): TextEdit[] {
+/** Every sampling-only, comment-keeping fix that `accept` lets through, in position order, skipping any that overlaps one taken. */
+export function collectSamplingOnlyEdits(findings: Finding[], text: string, accept: (fix: FixProposal) => boolean = () => true): TextEdit[] {
   const taken: TextEdit[] = [];
   const ordered = [...findings].sort((a, b) => a.span.start - b.span.start);
   for (const finding of ordered) {
-    const fix = pickSafeFix(finding, accept);
+    const fix = pickSamplingOnlyFix(finding, accept);
     if (!fix) continue;
     const own = sortEdits(fix.edits);
     if (own.some((e, i) => i > 0 && anyConflict([e], own.slice(0, i)))) continue;
@@ -150,10 +151,10 @@ const fixAllEdits = new WeakMap<Finding[], { text: string; edits: TextEdit[] }>(
 function checkedFixAllEdits(current: CurrentFindings): TextEdit[] {
   const known = fixAllEdits.get(current.findings);
   if (known?.text === current.text) return known.edits;
-  let edits = collectSafeEdits(current.findings, current.text);
+  let edits = collectSamplingOnlyEdits(current.findings, current.text);
   if (edits.length > 0 && !editsAreApplicable(currentParse(current), edits)) {
     // Some fix breaks the text: keep the fixes that are fine on their own, and check them together.
-    edits = collectSafeEdits(current.findings, current.text, (fix) => applicable(fix, current));
+    edits = collectSamplingOnlyEdits(current.findings, current.text, (fix) => applicable(fix, current));
     if (edits.length > 0 && !editsAreApplicable(currentParse(current), edits)) edits = [];
   }
   fixAllEdits.set(current.findings, { text: current.text, edits });
@@ -167,7 +168,7 @@ export function fixAllAction(current: CurrentFindings, versionedEdits: boolean):
   applyEdits(current.text, edits);
   const lspEdits = edits.map((e) => ({ range: spanToRange(current.mapper, e.span), newText: e.newText }));
   return {
-    title: 'Apply all safe noiselint fixes',
+    title: 'noiselint: apply every sampling-only fix (the checkpoint stays valid)',
     kind: FIX_ALL_KIND,
     edit: workspaceEdit(current.uri, current.version, lspEdits, versionedEdits),
   };

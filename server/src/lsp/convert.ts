@@ -7,7 +7,7 @@ import {
   type Range,
   type TextEdit as LspTextEdit,
 } from 'vscode-languageserver/node';
-import type { Finding, FixProposal, Severity } from '../base/findings';
+import type { Finding, FixEffect, FixProposal, Severity } from '../base/findings';
 import type { Span } from '../parse/types';
 
 export const DIAGNOSTIC_SOURCE = 'noiselint';
@@ -25,7 +25,8 @@ export interface OtherFile {
 
 export interface FixData {
   title: string;
-  safety: 'safe' | 'unsafe';
+  effect: FixEffect;
+  touchesComment: boolean;
   preferred: boolean;
   edits: LspTextEdit[];
 }
@@ -56,7 +57,8 @@ export function spanToRange(mapper: PositionMapper, span: Span): Range {
 export function fixToData(mapper: PositionMapper, fix: FixProposal): FixData {
   return {
     title: fix.title,
-    safety: fix.safety,
+    effect: fix.effect,
+    touchesComment: fix.touchesComment,
     preferred: fix.preferred,
     edits: fix.edits.map((e) => ({ range: spanToRange(mapper, e.span), newText: e.newText })),
   };

@@ -5,13 +5,31 @@
  */
 import { ALL_RULE_METAS, ENGINE_RULE_METAS } from './index';
 import { fmt } from './format';
+import type { FixEffect } from '../base/findings';
 import type { RuleMeta } from './types';
 
-const FIX_TEXT: Record<RuleMeta['fixable'], string> = {
-  always: 'yes',
-  sometimes: 'sometimes',
-  never: 'no',
+/** The headings of every rule's documentation, in order. */
+export const RULE_DOC_HEADINGS = [
+  'What triggers it',
+  'What the run loses',
+  'A flagged config',
+  'The repaired config',
+  'Effect on a trained checkpoint',
+  'Numbers you can tune',
+  'Published sources',
+] as const;
+
+const EFFECT_TEXT: Record<FixEffect, string> = {
+  'sampling-only': 'sampling only',
+  'needs-retraining': 'needs retraining',
 };
+
+/** What a rule's repairs do, in a few words: "sampling only", "needs retraining, some findings", "none". */
+export function repairLabel(meta: RuleMeta): string {
+  if (!meta.repair || meta.repair.effects.length === 0) return 'none';
+  const effects = meta.repair.effects.map((e) => EFFECT_TEXT[e]).join(' or ');
+  return meta.repair.everyFinding ? effects : `${effects}, some findings`;
+}
 
 function sourceFile(meta: RuleMeta): string {
   return `server/src/rules/${meta.id}.ts`;
@@ -31,7 +49,7 @@ export function renderRulePage(meta: RuleMeta): string {
     meta.summary,
     '',
     `- Default severity: ${meta.defaultSeverity}`,
-    `- Fix: ${FIX_TEXT[meta.fixable]}`,
+    `- Repair: ${repairLabel(meta)}`,
     options.length
       ? `- Options: ${options.map(([name, o]) => `\`${name}\` (default ${optionText(o.default)})`).join(', ')}`
       : '- Options: none',
@@ -44,7 +62,7 @@ export function renderRulePage(meta: RuleMeta): string {
 
 export function renderRuleIndex(metas: readonly RuleMeta[]): string {
   const engineIds = new Set(ENGINE_RULE_METAS.map((m) => m.id));
-  const row = (m: RuleMeta) => `| [${m.id}](${m.id}.md) | ${m.defaultSeverity} | ${FIX_TEXT[m.fixable]} | ${m.summary} |`;
+  const row = (m: RuleMeta) => `| [${m.id}](${m.id}.md) | ${m.defaultSeverity} | ${repairLabel(m)} | ${m.summary} |`;
   return [
     '<!-- Generated from server/src/rules by `npm run docs`. Do not edit by hand. -->',
     '',
@@ -55,13 +73,13 @@ export function renderRuleIndex(metas: readonly RuleMeta[]): string {
     'Thresholds are project defaults, not published values, and are rule options.',
     'A finding can be silenced with a `noiselint: allow <id>` comment.',
     '',
-    '| rule | default | fix | what it finds |',
+    '| rule | default | repair | what it finds |',
     '| --- | --- | --- | --- |',
     ...metas.filter((m) => !engineIds.has(m.id)).map(row),
     '',
     'Reported by the engine itself:',
     '',
-    '| id | default | fix | what it finds |',
+    '| id | default | repair | what it finds |',
     '| --- | --- | --- | --- |',
     ...metas.filter((m) => engineIds.has(m.id)).map(row),
     '',

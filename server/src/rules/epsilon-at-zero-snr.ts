@@ -3,12 +3,12 @@ import type { Rule, RuleMeta } from './types';
 import { RETRAIN_NOTE, assumedNote, describeSchedule, discreteSchedule } from './util';
 
 const docs = `
-## What it finds
+## What triggers it
 
 An epsilon (noise) prediction target on a discrete schedule that reaches zero SNR at its last
 step, for example with the zero-terminal-SNR rescale turned on.
 
-## Why it matters
+## What the run loses
 
 At zero SNR the noisy input is pure noise, so predicting the noise is trivial there: the input
 already is the answer, and the network learns nothing about the image at the step where sampling
@@ -17,7 +17,7 @@ x0 = (x_t - sqrt(1 - abar) * eps) / sqrt(abar), which divides by zero when abar 
 A velocity target (v = sqrt(abar) * eps - sqrt(1 - abar) * x0) stays well defined there: at zero
 SNR it asks for -x0, the mean image, which is what the model must produce first.
 
-## Example
+## A flagged config
 
 \`\`\`yaml
 # Lanternfish Pictures: high-key product stills
@@ -30,7 +30,7 @@ scheduler:
   prediction_type: epsilon
 \`\`\`
 
-## Use instead
+## The repaired config
 
 \`\`\`yaml
 scheduler:
@@ -42,16 +42,16 @@ scheduler:
   prediction_type: v_prediction
 \`\`\`
 
-## Fix safety
+## Effect on a trained checkpoint
 
-Unsafe. Switching the target to v changes what the network learns: a checkpoint trained for
+Needs fine-tuning or retraining. Switching the target to v changes what the network learns: a checkpoint trained for
 epsilon needs fine-tuning or retraining before it predicts v.
 
-## Options
+## Numbers you can tune
 
 None.
 
-## References
+## Published sources
 
 - Lin, Liu, Li and Yang 2023, "Common Diffusion Noise Schedules and Sample Steps are Flawed"
   (section 3.2: train with v prediction and v loss).
@@ -63,7 +63,7 @@ const meta: RuleMeta = {
   id: 'epsilon-at-zero-snr',
   summary: 'An epsilon target on a schedule that reaches zero SNR.',
   defaultSeverity: 'error',
-  fixable: 'always',
+  repair: { effects: ['needs-retraining'], everyFinding: true },
   options: {},
   docs,
 };
@@ -87,7 +87,7 @@ export const epsilonAtZeroSnr: Rule = {
         fixes: [
           {
             title: `Switch the prediction target to v ${RETRAIN_NOTE}`,
-            safety: 'unsafe',
+            effect: 'needs-retraining',
             edits: [{ kind: 'set', concept: 'predictionTarget', value: 'v' }],
           },
         ],

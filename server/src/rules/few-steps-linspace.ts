@@ -3,13 +3,13 @@ import type { Rule, RuleMeta } from './types';
 import { discreteSchedule, numberOption, trailingFix } from './util';
 
 const docs = `
-## What it finds
+## What triggers it
 
 The "linspace" timestep spacing with only a few sampling steps (at most \`maxSteps\`). Linspace
 always ends exactly at t = 0, so one of the few steps is spent where the image is already
 almost clean.
 
-## Why it matters
+## What the run loses
 
 Linspace picks round(linspace(0, T - 1, N)): it starts correctly at T - 1 but also lands its
 last step on t = 0, where the SNR is in the hundreds or thousands and the step barely changes
@@ -17,7 +17,7 @@ anything. With 50 steps that waste is negligible; with 4 to 10 steps one step in
 does almost nothing, and the remaining steps have to be larger. The "trailing" spacing also
 starts at T - 1 and spreads all N steps evenly, ending at T/N - 1 instead of 0.
 
-## Example
+## A flagged config
 
 \`\`\`yaml
 # Lanternfish Pictures: 6-step turntable previews
@@ -30,7 +30,7 @@ scheduler:
 num_inference_steps: 6
 \`\`\`
 
-## Use instead
+## The repaired config
 
 \`\`\`yaml
 scheduler:
@@ -42,16 +42,16 @@ scheduler:
 num_inference_steps: 6
 \`\`\`
 
-## Fix safety
+## Effect on a trained checkpoint
 
-Safe. The fix sets the spacing to trailing, which changes only how sampling picks its steps.
+Sampling only: the checkpoint stays valid. The fix sets the spacing to trailing, which changes only how sampling picks its steps.
 
-## Options
+## Numbers you can tune
 
 - \`maxSteps\` (default 10): the largest step count that is reported. A project default, not a
   published value.
 
-## References
+## Published sources
 
 - Lin, Liu, Li and Yang 2023, "Common Diffusion Noise Schedules and Sample Steps are Flawed"
   (Table 2 compares leading, linspace and trailing at 10 steps).
@@ -61,7 +61,7 @@ const meta: RuleMeta = {
   id: 'few-steps-linspace',
   summary: 'Linspace spacing with few steps spends one step at the almost clean t = 0.',
   defaultSeverity: 'info',
-  fixable: 'always',
+  repair: { effects: ['sampling-only'], everyFinding: true },
   options: {
     maxSteps: { default: 10, description: 'Largest sampling step count that is reported.' },
   },

@@ -4,14 +4,14 @@ import type { Rule, RuleContext, RuleMeta } from './types';
 import { assumedNote, discreteSchedule, numberOption, scheduleConcepts, setsSchedule } from './util';
 
 const docs = `
-## What it finds
+## What triggers it
 
 Classifier-free guidance with a scale above 1 and no guidance rescale (none set, or 0) on a
 schedule whose last-step signal amplitude is below \`nearZeroSignal\`, that is a (near)
 zero-terminal-SNR schedule. When a sampling file sets no schedule of its own, the schedule of
 its paired training file is used.
 
-## Why it matters
+## What the run loses
 
 Guidance extrapolates: x_cfg = x_neg + w (x_pos - x_neg). On a schedule that reaches zero SNR
 the first steps start from pure noise, and a large w pushes the prediction's standard deviation
@@ -20,7 +20,7 @@ images. Lin et al. 2023 rescale the guided prediction back to the standard devia
 conditional one and blend: x_out = phi * x_cfg * std(x_pos) / std(x_cfg) + (1 - phi) * x_cfg,
 with phi = 0.7 (guidance 7.5 with rescale 0.7 is common practice).
 
-## Example
+## A flagged config
 
 \`\`\`yaml
 # Lanternfish Pictures: high-key product stills, sampling
@@ -36,7 +36,7 @@ num_inference_steps: 30
 guidance_scale: 7.5
 \`\`\`
 
-## Use instead
+## The repaired config
 
 \`\`\`yaml
 scheduler:
@@ -52,17 +52,17 @@ guidance_scale: 7.5
 guidance_rescale: 0.7
 \`\`\`
 
-## Fix safety
+## Effect on a trained checkpoint
 
-Safe. The fix sets the guidance rescale to \`suggestedRescale\`; it only changes inference.
+Sampling only: the checkpoint stays valid. The fix sets the guidance rescale to \`suggestedRescale\`; it only changes inference.
 
-## Options
+## Numbers you can tune
 
 - \`nearZeroSignal\` (default 1e-3): last-step signal amplitude below which the schedule counts
   as (near) zero SNR. A project default.
 - \`suggestedRescale\` (default 0.7): the value the fix writes (Lin et al. 2023 use 0.7).
 
-## References
+## Published sources
 
 - Lin, Liu, Li and Yang 2023, "Common Diffusion Noise Schedules and Sample Steps are Flawed"
   (section 3.4, equations 13 to 16: rescaling classifier-free guidance).
@@ -73,7 +73,7 @@ const meta: RuleMeta = {
   id: 'guidance-overexposure',
   summary: 'Guidance above 1 on a (near) zero-SNR schedule without guidance rescale.',
   defaultSeverity: 'warning',
-  fixable: 'always',
+  repair: { effects: ['sampling-only'], everyFinding: true },
   options: {
     nearZeroSignal: { default: 1e-3, description: 'Last-step signal amplitude below which the schedule counts as zero SNR.' },
     suggestedRescale: { default: 0.7, description: 'Guidance rescale the fix writes.' },
@@ -118,7 +118,7 @@ export const guidanceOverexposure: Rule = {
         fixes: [
           {
             title: `Set guidance rescale to ${fmt(suggested)} (sampling only)`,
-            safety: 'safe',
+            effect: 'sampling-only',
             edits: [{ kind: 'set', concept: 'guidanceRescale', value: suggested }],
           },
         ],

@@ -3,11 +3,11 @@ import type { ConceptFix, Rule, RuleMeta } from './types';
 import { numberOption } from './util';
 
 const docs = `
-## What it finds
+## What triggers it
 
 A guidance rescale factor phi outside [0, 1] (error), or exactly 1 (information).
 
-## Why it matters
+## What the run loses
 
 Guidance rescale blends two predictions: x_out = phi * x_rescaled + (1 - phi) * x_cfg. phi is a
 mixing weight: below 0 or above 1 the blend extrapolates past both predictions and the output's
@@ -15,7 +15,7 @@ contrast is no longer controlled. At phi = 1 the output takes the standard devia
 conditional prediction exactly; Lin et al. 2023 report that this fully rescaled output looks
 flat and plain, and use 0.7 instead.
 
-## Example
+## A flagged config
 
 \`\`\`yaml
 # Lanternfish Pictures: night storyboard sampler
@@ -24,7 +24,7 @@ guidance_scale: 7.5
 guidance_rescale: 1.4
 \`\`\`
 
-## Use instead
+## The repaired config
 
 \`\`\`yaml
 num_inference_steps: 30
@@ -32,16 +32,16 @@ guidance_scale: 7.5
 guidance_rescale: 0.7
 \`\`\`
 
-## Fix safety
+## Effect on a trained checkpoint
 
-Safe. Both fixes (set \`suggestedRescale\`, preferred; or clamp into [0, 1]) only change
+Sampling only: the checkpoint stays valid. Both fixes (set \`suggestedRescale\`, preferred; or clamp into [0, 1]) only change
 inference.
 
-## Options
+## Numbers you can tune
 
 - \`suggestedRescale\` (default 0.7): the value the preferred fix writes.
 
-## References
+## Published sources
 
 - Lin, Liu, Li and Yang 2023, "Common Diffusion Noise Schedules and Sample Steps are Flawed"
   (section 3.4, equations 13 to 16, and the choice phi = 0.7).
@@ -51,7 +51,7 @@ const meta: RuleMeta = {
   id: 'guidance-rescale-range',
   summary: 'Guidance rescale outside [0, 1], or exactly 1.',
   defaultSeverity: 'error',
-  fixable: 'always',
+  repair: { effects: ['sampling-only'], everyFinding: true },
   options: {
     suggestedRescale: { default: 0.7, description: 'Guidance rescale the preferred fix writes.' },
   },
@@ -67,7 +67,7 @@ export const guidanceRescaleRange: Rule = {
     const suggested = numberOption(ctx, 'suggestedRescale', 0.7);
     const setSuggested: ConceptFix = {
       title: `Set guidance rescale to ${fmt(suggested)} (sampling only)`,
-      safety: 'safe',
+      effect: 'sampling-only',
       preferred: true,
       edits: [{ kind: 'set', concept: 'guidanceRescale', value: suggested }],
     };
@@ -92,7 +92,7 @@ export const guidanceRescaleRange: Rule = {
           setSuggested,
           {
             title: `Clamp guidance rescale to ${clamped} (sampling only)`,
-            safety: 'safe',
+            effect: 'sampling-only',
             edits: [{ kind: 'set', concept: 'guidanceRescale', value: clamped }],
           },
         ],

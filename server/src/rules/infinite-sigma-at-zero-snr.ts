@@ -4,12 +4,12 @@ import type { Rule, RuleMeta } from './types';
 import { discreteSchedule, isSet } from './util';
 
 const docs = `
-## What it finds
+## What triggers it
 
 A sigma-space sampler (Euler, Euler ancestral, Heun, DPM-Solver, LMS) or Karras sigma spacing on
 a discrete schedule that reaches zero SNR: the first sigma is infinite.
 
-## Why it matters
+## What the run loses
 
 These samplers step in sigma = sqrt((1 - abar) / abar), the noise-to-signal ratio. At the last
 step of a zero-terminal-SNR schedule abar = 0, so sigma is infinite and the first step divides
@@ -19,7 +19,7 @@ overflow). Karras et al. 2022 spacing interpolates between sigma_min and sigma_m
 undefined when sigma_max is infinite. Check that the sampling code does the clamp; without it the
 first step produces NaN or a black image.
 
-## Example
+## A flagged config
 
 \`\`\`yaml
 # Lanternfish Pictures: zero-SNR model with an Euler sampler
@@ -35,7 +35,7 @@ sampler: euler
 num_inference_steps: 30
 \`\`\`
 
-## Use instead
+## The repaired config
 
 \`\`\`yaml
 scheduler:
@@ -52,15 +52,15 @@ num_inference_steps: 30
 
 (or keep the sigma-space sampler in code that clamps abar at the last step and runs it in float32).
 
-## Fix safety
+## Effect on a trained checkpoint
 
-No fix: whether the sampling code clamps is not visible in the configuration.
+No repair offered: whether the sampling code clamps is not visible in the configuration.
 
-## Options
+## Numbers you can tune
 
 None.
 
-## References
+## Published sources
 
 - Karras, Aittala, Aila and Laine 2022, "Elucidating the Design Space of Diffusion-Based
   Generative Models" (sigma-space sampling and the sigma spacing).
@@ -72,7 +72,7 @@ const meta: RuleMeta = {
   id: 'infinite-sigma-at-zero-snr',
   summary: 'A sigma-space sampler or Karras sigmas on a zero-SNR schedule: the first sigma is infinite.',
   defaultSeverity: 'warning',
-  fixable: 'never',
+  repair: null,
   options: {},
   docs,
 };

@@ -2,7 +2,7 @@ import type { Rule, RuleMeta } from './types';
 import { assumedNote } from './util';
 
 const docs = `
-## What it finds
+## What triggers it
 
 Sample clipping or dynamic thresholding turned on for a model that denoises latents rather than
 pixels. Whether a model is latent comes from the project file's \`latentSpace\` setting, or is
@@ -10,7 +10,7 @@ inferred from the file: a scaled_linear schedule (the usual choice of latent mod
 naming an autoencoder (\`vae\`, \`autoencoder\`, \`first_stage\`, \`latent...\`). The message
 says how it was decided.
 
-## Why it matters
+## What the run loses
 
 Clipping the predicted clean sample to [-1, 1], and dynamic thresholding (Saharia et al. 2022),
 assume pixel values in a known, bounded range. Latents are not bounded that way: their scale
@@ -18,7 +18,7 @@ depends on the autoencoder and its scaling factor, and values beyond 1 carry rea
 Clipping them flattens highlights and shadows, the very detail that dark night scenes and white
 product backgrounds need.
 
-## Example
+## A flagged config
 
 \`\`\`yaml
 # Lanternfish Pictures: latent storyboard model
@@ -31,7 +31,7 @@ scheduler:
   clip_sample: true
 \`\`\`
 
-## Use instead
+## The repaired config
 
 \`\`\`yaml
 autoencoder: lanternfish-ae-f8
@@ -43,15 +43,15 @@ scheduler:
   clip_sample: false
 \`\`\`
 
-## Fix safety
+## Effect on a trained checkpoint
 
-Safe. The fix turns clipping off; it changes only sampling.
+Sampling only: the checkpoint stays valid. The fix turns clipping off; it changes only sampling.
 
-## Options
+## Numbers you can tune
 
 None.
 
-## References
+## Published sources
 
 - Saharia et al. 2022, "Photorealistic Text-to-Image Diffusion Models with Deep Language
   Understanding" (dynamic thresholding, for pixel-space models).
@@ -63,7 +63,7 @@ const meta: RuleMeta = {
   id: 'latent-thresholding',
   summary: 'Sample clipping or dynamic thresholding on a latent-space model.',
   defaultSeverity: 'warning',
-  fixable: 'always',
+  repair: { effects: ['sampling-only'], everyFinding: true },
   options: {},
   docs,
 };
@@ -85,7 +85,7 @@ export const latentThresholding: Rule = {
         fixes: [
           {
             title: 'Turn sample clipping / thresholding off (sampling only)',
-            safety: 'safe',
+            effect: 'sampling-only',
             edits: [{ kind: 'set', concept: 'thresholding', value: false }],
           },
         ],

@@ -3,19 +3,19 @@ import type { Rule, RuleMeta } from './types';
 import { RETRAIN_NOTE, assumedNote, discreteSchedule } from './util';
 
 const docs = `
-## What it finds
+## What triggers it
 
 Min-SNR loss weighting together with an epsilon target (and so an epsilon loss) on a schedule
 that reaches zero SNR.
 
-## Why it matters
+## What the run loses
 
 Min-SNR-gamma weighting (Hang et al. 2023) weights an epsilon loss by min(SNR, gamma) / SNR. At
 the last step of a zero-terminal-SNR schedule SNR = 0, so the weight is 0 / 0: training code
 produces NaN or infinity there, or silently drops the step, depending on how it guards the
 division. The v loss form, min(SNR, gamma) / (SNR + 1), is defined everywhere.
 
-## Example
+## A flagged config
 
 \`\`\`yaml
 # Lanternfish Pictures: high-key stills fine-tune
@@ -29,7 +29,7 @@ noise_scheduler:
 snr_gamma: 5.0
 \`\`\`
 
-## Use instead
+## The repaired config
 
 \`\`\`yaml
 noise_scheduler:
@@ -42,16 +42,16 @@ noise_scheduler:
 snr_gamma: 5.0
 \`\`\`
 
-## Fix safety
+## Effect on a trained checkpoint
 
-Unsafe. Switching the target to v changes what the network learns; a checkpoint trained for
+Needs fine-tuning or retraining. Switching the target to v changes what the network learns; a checkpoint trained for
 epsilon needs fine-tuning or retraining.
 
-## Options
+## Numbers you can tune
 
 None.
 
-## References
+## Published sources
 
 - Hang, Gu, Li, Bao, Chen, Hu, Geng and Guo 2023, "Efficient Diffusion Training via Min-SNR
   Weighting Strategy" (the weights for epsilon, v and x0 losses).
@@ -62,7 +62,7 @@ const meta: RuleMeta = {
   id: 'min-snr-division',
   summary: 'Min-SNR weighting with an epsilon loss divides by an SNR of zero.',
   defaultSeverity: 'error',
-  fixable: 'always',
+  repair: { effects: ['needs-retraining'], everyFinding: true },
   options: {},
   docs,
 };
@@ -88,7 +88,7 @@ export const minSnrDivision: Rule = {
         fixes: [
           {
             title: `Switch the prediction target to v ${RETRAIN_NOTE}`,
-            safety: 'unsafe',
+            effect: 'needs-retraining',
             edits: [{ kind: 'set', concept: 'predictionTarget', value: 'v' }],
           },
         ],

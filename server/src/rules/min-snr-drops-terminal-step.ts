@@ -4,12 +4,12 @@ import type { Rule, RuleMeta } from './types';
 import { assumedNote, discreteSchedule } from './util';
 
 const docs = `
-## What it finds
+## What triggers it
 
 Min-SNR loss weighting with a v or x0 target on a schedule that reaches zero SNR: the weight of
 the last step is exactly 0.
 
-## Why it matters
+## What the run loses
 
 With a v loss the min-SNR-gamma weight is min(SNR, gamma) / (SNR + 1), and with an x0 loss it is
 min(SNR, gamma). Both are 0 at SNR = 0, so the step that is pure noise, the very step that
@@ -18,7 +18,7 @@ and is never trained. The neighbouring steps get small weights too. A common rem
 on the weight (for example max(weight, a small constant)) so the terminal step keeps some
 gradient.
 
-## Example
+## A flagged config
 
 \`\`\`yaml
 # Lanternfish Pictures: night storyboard fine-tune
@@ -32,7 +32,7 @@ noise_scheduler:
 snr_gamma: 5.0
 \`\`\`
 
-## Use instead
+## The repaired config
 
 \`\`\`yaml
 noise_scheduler:
@@ -46,15 +46,15 @@ noise_scheduler:
 
 (or keep min-SNR weighting and add a floor to the weight in the training code).
 
-## Fix safety
+## Effect on a trained checkpoint
 
-No fix: the remedy lives in the training code, not in the configuration.
+No repair offered: the remedy lives in the training code, not in the configuration.
 
-## Options
+## Numbers you can tune
 
 None.
 
-## References
+## Published sources
 
 - Hang, Gu, Li, Bao, Chen, Hu, Geng and Guo 2023, "Efficient Diffusion Training via Min-SNR
   Weighting Strategy" (the weights for epsilon, v and x0 losses).
@@ -65,7 +65,7 @@ const meta: RuleMeta = {
   id: 'min-snr-drops-terminal-step',
   summary: 'Min-SNR weighting gives the pure-noise step of a zero-SNR schedule weight 0.',
   defaultSeverity: 'info',
-  fixable: 'never',
+  repair: null,
   options: {},
   docs,
 };

@@ -3,14 +3,14 @@ import type { ConceptFix, Rule, RuleMeta } from './types';
 import { RETRAIN_NOTE, discreteSchedule, zeroSnrFix } from './util';
 
 const docs = `
-## What it finds
+## What triggers it
 
 Offset noise (a per-channel constant added to the training noise) that is greater than 0:
 
 - together with a schedule that reaches zero terminal SNR: a warning, the two fight;
 - on its own: information, suggesting the principled fix instead.
 
-## Why it matters
+## What the run loses
 
 Offset noise was a workaround for the medium-brightness problem: by adding a random constant
 per image and channel, the last training step no longer leaves the mean brightness intact. But
@@ -19,7 +19,7 @@ Gaussian that sampling starts from. Rescaling the schedule to zero terminal SNR 
 cause directly (Lin et al. 2023). With both at once, the offset adds a mismatch without any
 remaining benefit.
 
-## Example
+## A flagged config
 
 \`\`\`yaml
 # Lanternfish Pictures: dark-scene fine-tune
@@ -33,7 +33,7 @@ noise_scheduler:
 noise_offset: 0.1
 \`\`\`
 
-## Use instead
+## The repaired config
 
 \`\`\`yaml
 noise_scheduler:
@@ -45,17 +45,17 @@ noise_scheduler:
   prediction_type: v_prediction
 \`\`\`
 
-## Fix safety
+## Effect on a trained checkpoint
 
-Unsafe. Removing offset noise, and (for the information finding) rescaling the schedule to
+Needs fine-tuning or retraining. Removing offset noise, and (for the information finding) rescaling the schedule to
 zero terminal SNR, change training: the model needs fine-tuning or retraining under the new
 setting.
 
-## Options
+## Numbers you can tune
 
 None.
 
-## References
+## Published sources
 
 - Lin, Liu, Li and Yang 2023, "Common Diffusion Noise Schedules and Sample Steps are Flawed"
   (section 3.1 and the discussion of offset noise).
@@ -65,7 +65,7 @@ const meta: RuleMeta = {
   id: 'offset-noise-conflict',
   summary: 'Offset noise together with (or instead of) a zero-terminal-SNR schedule.',
   defaultSeverity: 'warning',
-  fixable: 'always',
+  repair: { effects: ['needs-retraining'], everyFinding: true },
   options: {},
   docs,
 };
@@ -80,7 +80,7 @@ export const offsetNoiseConflict: Rule = {
     const zeroSnr = setup.fields.zeroTerminalSnr?.value === true || !!schedule?.reachesZeroSnr || analysis.schedule?.family === 'flow';
     const remove: ConceptFix = {
       title: `Remove offset noise ${RETRAIN_NOTE}`,
-      safety: 'unsafe',
+      effect: 'needs-retraining',
       edits: [{ kind: 'remove', concept: 'offsetNoise' }],
     };
     if (zeroSnr) {

@@ -3,7 +3,7 @@ import type { RuleMeta } from './types';
 export const PARSE_ERROR_ID = 'parse-error';
 
 const docs = `
-## What it finds
+## What triggers it
 
 Text that cannot be read as YAML, JSON, JSON with comments or TOML, in a file that looks like a
 diffusion config (a document is recognised as one, or the text names a key such as
@@ -12,13 +12,13 @@ diffusion config (a document is recognised as one, or the text names a key such 
 JSON and TOML files in a workspace are never reported. A TOML file with a syntax error is
 not read at all, as TOML loaders refuse it whole.
 
-## Why it matters
+## What the run loses
 
 A config that does not parse stops the run before it starts, or, worse, a lenient loader reads
 something other than what was written (the later of two duplicated keys wins without a word).
 Nothing else can be checked in text that cannot be read.
 
-## Example
+## A flagged config
 
 \`\`\`yaml
 # Lanternfish Pictures: half-edited training file
@@ -28,7 +28,7 @@ noise_scheduler:
   beta_start: 0.00085
 \`\`\`
 
-## Use instead
+## The repaired config
 
 \`\`\`yaml
 noise_scheduler:
@@ -37,15 +37,15 @@ noise_scheduler:
   beta_start: 0.00085
 \`\`\`
 
-## Fix safety
+## Effect on a trained checkpoint
 
-No fix.
+No repair offered.
 
-## Options
+## Numbers you can tune
 
 None. Limits on file size, nesting and list length are project settings (\`limits\`).
 
-## References
+## Published sources
 
 - Ben-Kiki, Evans and döt Net 2021, "YAML Ain't Markup Language, version 1.2.2".
 - Bray 2017, RFC 8259, "The JavaScript Object Notation (JSON) Data Interchange Format".
@@ -56,7 +56,7 @@ export const PARSE_ERROR_META: RuleMeta = {
   id: PARSE_ERROR_ID,
   summary: 'Text that cannot be read as YAML / JSON / TOML, in a file that looks like a diffusion config.',
   defaultSeverity: 'error',
-  fixable: 'never',
+  repair: null,
   options: {},
   docs,
 };

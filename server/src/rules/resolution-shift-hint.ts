@@ -4,7 +4,7 @@ import type { Rule, RuleMeta } from './types';
 import { assumedNote, numberOption } from './util';
 
 const docs = `
-## What it finds
+## What triggers it
 
 A training resolution at least \`factor\` times the resolution the schedule is usually set up
 for, with no schedule shift: for a flow-matching schedule no \`shift\` (or a shift of 1); for
@@ -15,7 +15,7 @@ The reference resolution is a project default, stated here as common practice:
 cosine schedules were commonly used) and \`latentReferenceResolution\` = 512 for latent models
 (a 64 x 64 latent at 8x downsampling, where the common latent schedules were tuned).
 
-## Why it matters
+## What the run loses
 
 At a higher resolution neighbouring pixels are more strongly correlated, so the same per-pixel
 noise hides less of the image: the schedule is effectively less noisy, and the model spends its
@@ -23,7 +23,7 @@ capacity on steps that are already easy. Hoogeboom et al. 2023 and Chen 2023 shi
 by 2 ln(r0 / r) when moving from a reference resolution r0 to r; for flow matching, a timestep
 shift s = r / r0 shifts log-SNR by the same amount (Esser et al. 2024).
 
-## Example
+## A flagged config
 
 \`\`\`yaml
 # Lanternfish Pictures: 1024 px poster fine-tune (flow model)
@@ -33,7 +33,7 @@ resolution: 1024
 num_train_timesteps: 1000
 \`\`\`
 
-## Use instead
+## The repaired config
 
 \`\`\`yaml
 prediction_type: flow
@@ -43,19 +43,19 @@ num_train_timesteps: 1000
 shift: 2.0
 \`\`\`
 
-## Fix safety
+## Effect on a trained checkpoint
 
-No fix: how to shift a schedule depends on the training code. The message gives the log-SNR
+No repair offered: how to shift a schedule depends on the training code. The message gives the log-SNR
 shift and, for flow schedules, the matching shift value.
 
-## Options
+## Numbers you can tune
 
 - \`factor\` (default 2): how many times the reference resolution triggers the hint.
 - \`pixelReferenceResolution\` (default 256): reference for pixel-space models (common practice).
 - \`latentReferenceResolution\` (default 512): reference for latent models, in pixels (common
   practice).
 
-## References
+## Published sources
 
 - Hoogeboom, Heek and Salimans 2023, "simple diffusion: End-to-end diffusion for high
   resolution images" (shifting the schedule with resolution).
@@ -68,7 +68,7 @@ const meta: RuleMeta = {
   id: 'resolution-shift-hint',
   summary: 'Training resolution well above the schedule\'s reference resolution without a shift.',
   defaultSeverity: 'info',
-  fixable: 'never',
+  repair: null,
   options: {
     factor: { default: 2, description: 'Multiple of the reference resolution that triggers the hint.' },
     pixelReferenceResolution: { default: 256, description: 'Reference resolution of pixel-space schedules (common practice).' },

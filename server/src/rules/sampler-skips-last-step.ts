@@ -3,13 +3,13 @@ import type { Rule, RuleMeta } from './types';
 import { assumedNote, discreteSchedule, isSet, trailingFix } from './util';
 
 const docs = `
-## What it finds
+## What triggers it
 
 A sampler whose first (noisiest) timestep is not the last training step T - 1. The message
 says which step it starts from and the SNR there. It is a warning, and an error when the
 schedule reaches zero SNR (then the skipped step is the only one that is pure noise).
 
-## Why it matters
+## What the run loses
 
 Sampling starts from pure Gaussian noise, so its first step should be the training step that
 is closest to pure noise: T - 1. The "leading" spacing with T = 1000 and 10 steps starts at
@@ -18,7 +18,7 @@ model is asked to denoise an input it never saw at that step, which costs contra
 brightness range. The "trailing" spacing starts exactly at T - 1 and spreads the other steps
 evenly; "linspace" also starts there.
 
-## Example
+## A flagged config
 
 \`\`\`yaml
 # Lanternfish Pictures: storyboard preview sampler
@@ -32,7 +32,7 @@ scheduler:
 num_inference_steps: 10
 \`\`\`
 
-## Use instead
+## The repaired config
 
 \`\`\`yaml
 scheduler:
@@ -45,17 +45,17 @@ scheduler:
 num_inference_steps: 10
 \`\`\`
 
-## Fix safety
+## Effect on a trained checkpoint
 
-Safe. The fix sets the spacing to trailing, which changes only how sampling picks its steps;
+Sampling only: the checkpoint stays valid. The fix sets the spacing to trailing, which changes only how sampling picks its steps;
 nothing the model learned changes. If a steps offset would push a trailing timestep outside
 0..T - 1, the fix also sets the offset to 0.
 
-## Options
+## Numbers you can tune
 
 None.
 
-## References
+## Published sources
 
 - Lin, Liu, Li and Yang 2023, "Common Diffusion Noise Schedules and Sample Steps are Flawed"
   (section 3.3 and Table 2: leading, linspace and trailing spacings).
@@ -65,7 +65,7 @@ const meta: RuleMeta = {
   id: 'sampler-skips-last-step',
   summary: 'The first sampling timestep is not the last training step T - 1.',
   defaultSeverity: 'warning',
-  fixable: 'always',
+  repair: { effects: ['sampling-only'], everyFinding: true },
   options: {},
   docs,
 };

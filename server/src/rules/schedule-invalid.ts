@@ -5,7 +5,7 @@ import type { Rule, RuleFinding, RuleMeta } from './types';
 import { assumedNote, hasProblem, problemFindings, sourceOf } from './util';
 
 const docs = `
-## What it finds
+## What triggers it
 
 Schedule values that cannot describe a valid noise schedule:
 
@@ -19,14 +19,14 @@ Schedule values that cannot describe a valid noise schedule:
 - a schedule field set twice (two sections or two spellings) with different values: a warning
   on the one that is ignored (the first in the file is used).
 
-## Why it matters
+## What the run loses
 
 Every other check rests on the schedule's numbers. A beta of 0 or below, or above 1, has no
 meaning (abar would grow, or turn negative); a 1 before the last step wipes out all signal for
 the remaining steps; a list whose length disagrees with T means the training code either
 crashes or silently uses a different schedule from the one written down.
 
-## Example
+## A flagged config
 
 \`\`\`yaml
 # Lanternfish Pictures: experimental schedule
@@ -37,7 +37,7 @@ noise_scheduler:
   beta_end: 0.0001
 \`\`\`
 
-## Use instead
+## The repaired config
 
 \`\`\`yaml
 noise_scheduler:
@@ -47,15 +47,15 @@ noise_scheduler:
   beta_end: 0.02
 \`\`\`
 
-## Fix safety
+## Effect on a trained checkpoint
 
-No fix: the intended value cannot be guessed.
+No repair offered: the intended value cannot be guessed.
 
-## Options
+## Numbers you can tune
 
 None.
 
-## References
+## Published sources
 
 - Ho, Jain and Abbeel 2020, "Denoising Diffusion Probabilistic Models" (betas in (0, 1),
   increasing: 1e-4 to 0.02 over T = 1000).
@@ -67,7 +67,7 @@ const meta: RuleMeta = {
   id: 'schedule-invalid',
   summary: 'Schedule values that cannot describe a valid noise schedule.',
   defaultSeverity: 'error',
-  fixable: 'never',
+  repair: null,
   options: {},
   docs,
 };

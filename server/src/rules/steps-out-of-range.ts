@@ -3,18 +3,18 @@ import type { Rule, RuleFinding, RuleMeta } from './types';
 import { assumedNote, problemFindings } from './util';
 
 const docs = `
-## What it finds
+## What triggers it
 
 A number of sampling steps N below 1 or above the number of training steps T, and sampling
 step counts that are not whole numbers.
 
-## Why it matters
+## What the run loses
 
 A discrete sampler visits N of the T training timesteps. With N > T some timesteps repeat or
 fall outside 0..T - 1 (trailing spacing then asks for timestep -1), and the sampler's step sizes
 are no longer what the schedule describes; with N < 1 there is nothing to sample.
 
-## Example
+## A flagged config
 
 \`\`\`yaml
 # Lanternfish Pictures: final-frame render
@@ -27,7 +27,7 @@ scheduler:
 num_inference_steps: 1200
 \`\`\`
 
-## Use instead
+## The repaired config
 
 \`\`\`yaml
 scheduler:
@@ -39,15 +39,15 @@ scheduler:
 num_inference_steps: 1000
 \`\`\`
 
-## Fix safety
+## Effect on a trained checkpoint
 
-Safe when N > T: the fix sets N = T, which only changes sampling. No fix for N < 1.
+Sampling only, when N > T: the fix sets N = T, which only changes sampling. No fix for N < 1.
 
-## Options
+## Numbers you can tune
 
 None.
 
-## References
+## Published sources
 
 - Song, Meng and Ermon 2020, "Denoising Diffusion Implicit Models" (sampling on a subsequence
   of the training timesteps).
@@ -57,7 +57,7 @@ const meta: RuleMeta = {
   id: 'steps-out-of-range',
   summary: 'The number of sampling steps is below 1 or above the number of training steps.',
   defaultSeverity: 'error',
-  fixable: 'sometimes',
+  repair: { effects: ['sampling-only'], everyFinding: false },
   options: {},
   docs,
 };
@@ -85,7 +85,7 @@ export const stepsOutOfRange: Rule = {
         fixes: [
           {
             title: `Set the number of sampling steps to ${T} (sampling only)`,
-            safety: 'safe',
+            effect: 'sampling-only',
             edits: [{ kind: 'set', concept: 'sampleSteps', value: T }],
           },
         ],

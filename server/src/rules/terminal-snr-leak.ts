@@ -3,13 +3,13 @@ import type { Rule, RuleMeta } from './types';
 import { assumedNote, describeSchedule, discreteSchedule, numberOption, scheduleConcepts, setsSchedule, zeroSnrFix } from './util';
 
 const docs = `
-## What it finds
+## What triggers it
 
 A discrete noise schedule whose last training step still carries signal: the signal amplitude
 sqrt(abar) at step T - 1 is at least \`warnSignal\` (warning) or at least \`infoSignal\`
 (information). The message gives the amplitude and the SNR there.
 
-## Why it matters
+## What the run loses
 
 Training never shows the model pure noise: at the last step some of the image survives, and
 its low frequencies (the overall brightness) leak through. Sampling, however, starts from pure
@@ -18,7 +18,7 @@ medium-bright: no true black night scenes, no pure white backgrounds. With the c
 scaled-linear schedule (8.5e-4 -> 0.012, T = 1000) the amplitude at the last step is about
 0.068 (SNR about 4.7e-3); Lin et al. 2023 rescale the schedule so that it is exactly 0.
 
-## Example
+## A flagged config
 
 \`\`\`yaml
 # Lanternfish Pictures: night storyboard fine-tune
@@ -30,7 +30,7 @@ noise_scheduler:
   prediction_type: v_prediction
 \`\`\`
 
-## Use instead
+## The repaired config
 
 \`\`\`yaml
 noise_scheduler:
@@ -42,21 +42,21 @@ noise_scheduler:
   prediction_type: v_prediction
 \`\`\`
 
-## Fix safety
+## Effect on a trained checkpoint
 
-Unsafe. The fix turns on the zero-terminal-SNR rescale (or, for an explicit beta list, writes
+Needs fine-tuning or retraining. The fix turns on the zero-terminal-SNR rescale (or, for an explicit beta list, writes
 the rescaled list). That changes the schedule the model learns, so a pretrained checkpoint
 needs fine-tuning or retraining. When the target is epsilon the same fix also switches it to v,
 because epsilon cannot be predicted usefully at zero SNR (see \`epsilon-at-zero-snr\`).
 
-## Options
+## Numbers you can tune
 
 - \`warnSignal\` (default 0.01): amplitude at or above which the finding is a warning.
 - \`infoSignal\` (default 1e-4): amplitude at or above which the finding is information.
 
 Both thresholds are project defaults, not published values.
 
-## References
+## Published sources
 
 - Lin, Liu, Li and Yang 2023, "Common Diffusion Noise Schedules and Sample Steps are Flawed"
   (section 3.1 and Algorithm 1: rescaling to zero terminal SNR).
@@ -67,7 +67,7 @@ const meta: RuleMeta = {
   id: 'terminal-snr-leak',
   summary: 'The last training step still carries signal (non-zero terminal SNR).',
   defaultSeverity: 'warning',
-  fixable: 'sometimes',
+  repair: { effects: ['needs-retraining'], everyFinding: false },
   options: {
     warnSignal: { default: 0.01, description: 'Signal amplitude at the last step at or above which to warn.' },
     infoSignal: { default: 1e-4, description: 'Signal amplitude at the last step at or above which to inform.' },

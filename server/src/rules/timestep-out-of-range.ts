@@ -4,18 +4,18 @@ import type { ConceptFix, Rule, RuleMeta } from './types';
 import { assumedNote, discreteSchedule, isSet, trailingFix } from './util';
 
 const docs = `
-## What it finds
+## What triggers it
 
 A sampling timestep outside 0..T - 1. Typical causes: leading spacing with a steps offset of 1
 and N = T steps gives timestep T; trailing spacing with more steps than training steps gives -1.
 
-## Why it matters
+## What the run loses
 
 The sampler looks up abar at each timestep. Outside 0..T - 1 there is no such entry: depending on
 the code this crashes, wraps around to the other end of the schedule (index -1 is the last,
 noisiest step), or reads past the array. None of these samples what was intended.
 
-## Example
+## A flagged config
 
 \`\`\`yaml
 # Lanternfish Pictures: full-length reference render
@@ -29,7 +29,7 @@ scheduler:
 num_inference_steps: 1000
 \`\`\`
 
-## Use instead
+## The repaired config
 
 \`\`\`yaml
 scheduler:
@@ -42,16 +42,16 @@ scheduler:
 num_inference_steps: 1000
 \`\`\`
 
-## Fix safety
+## Effect on a trained checkpoint
 
-Safe. The fixes set the steps offset to 0, or the spacing to trailing, or (with more sampling
+Sampling only: the checkpoint stays valid. The fixes set the steps offset to 0, or the spacing to trailing, or (with more sampling
 steps than training steps) the step count to T; all of them change only sampling.
 
-## Options
+## Numbers you can tune
 
 None.
 
-## References
+## Published sources
 
 - Lin, Liu, Li and Yang 2023, "Common Diffusion Noise Schedules and Sample Steps are Flawed"
   (Table 2: the three spacings in code).
@@ -61,7 +61,7 @@ const meta: RuleMeta = {
   id: 'timestep-out-of-range',
   summary: 'A sampling timestep falls outside 0..T - 1.',
   defaultSeverity: 'error',
-  fixable: 'sometimes',
+  repair: { effects: ['sampling-only'], everyFinding: false },
   options: {},
   docs,
 };
@@ -80,7 +80,7 @@ export const timestepOutOfRange: Rule = {
     if (sampling.stepsOffset !== 0 && isSet(setup, 'stepsOffset')) {
       const zero = samplingTimesteps(sampling.spacing as 'leading', T, N, 0);
       if (zero.ok && inRange(zero.value)) {
-        fixes.push({ title: 'Set the steps offset to 0 (sampling only)', safety: 'safe', edits: [{ kind: 'set', concept: 'stepsOffset', value: 0 }] });
+        fixes.push({ title: 'Set the steps offset to 0 (sampling only)', effect: 'sampling-only', edits: [{ kind: 'set', concept: 'stepsOffset', value: 0 }] });
       }
     }
     if (sampling.spacing !== 'trailing') {
@@ -88,7 +88,7 @@ export const timestepOutOfRange: Rule = {
       if (trailing) fixes.push(trailing);
     }
     if (fixes.length === 0 && N > T && isSet(setup, 'sampleSteps')) {
-      fixes.push({ title: `Set the number of sampling steps to ${T} (sampling only)`, safety: 'safe', edits: [{ kind: 'set', concept: 'sampleSteps', value: T }] });
+      fixes.push({ title: `Set the number of sampling steps to ${T} (sampling only)`, effect: 'sampling-only', edits: [{ kind: 'set', concept: 'sampleSteps', value: T }] });
     }
     const outside = Array.from(new Set(sampling.outOfRange));
     const offsetText = sampling.stepsOffset !== 0 ? ` and steps offset ${sampling.stepsOffset}` : '';

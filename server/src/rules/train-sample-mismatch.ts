@@ -5,7 +5,7 @@ import { fmt } from './format';
 import { isSet, setsGroup, showValue, sourceOf } from './util';
 
 const docs = `
-## What it finds
+## What triggers it
 
 A sampling file that disagrees with its paired training file on something the model was
 trained with: the beta schedule, the number of training steps T, beta start or end, an explicit
@@ -14,14 +14,14 @@ file (\`pairs\`) or from automatic pairing of a training and a sampling file in 
 The finding sits in the sampling file and points at the training file's field. A sampling file
 that sets no schedule field at all is taken to inherit the schedule and is not compared.
 
-## Why it matters
+## What the run loses
 
 A sampler reconstructs images with the schedule and target it is told, not the ones the model
 learned. A model trained with the zero-terminal-SNR rescale but sampled without it starts from a
 step it never saw as pure noise; a v-prediction model sampled as epsilon produces garbage. These
 mistakes produce no error, only worse images.
 
-## Example
+## A flagged config
 
 \`\`\`yaml partner
 # training file (paired)
@@ -46,7 +46,7 @@ scheduler:
 num_inference_steps: 30
 \`\`\`
 
-## Use instead
+## The repaired config
 
 \`\`\`yaml
 scheduler:
@@ -60,16 +60,16 @@ scheduler:
 num_inference_steps: 30
 \`\`\`
 
-## Fix safety
+## Effect on a trained checkpoint
 
-Safe. The fix changes only the sampling file, setting its value to the training file's. The
+Sampling only: the checkpoint stays valid. The fix changes only the sampling file, setting its value to the training file's. The
 training file is never edited from here: what the model learned is the reference.
 
-## Options
+## Numbers you can tune
 
 None.
 
-## References
+## Published sources
 
 - Lin, Liu, Li and Yang 2023, "Common Diffusion Noise Schedules and Sample Steps are Flawed"
   (sampling must use the rescaled schedule the model was trained with).
@@ -81,7 +81,7 @@ const meta: RuleMeta = {
   id: 'train-sample-mismatch',
   summary: 'Paired training and sampling files disagree on the schedule, T, betas, zero SNR or target.',
   defaultSeverity: 'error',
-  fixable: 'always',
+  repair: { effects: ['sampling-only'], everyFinding: true },
   options: {},
   docs,
 };
@@ -187,7 +187,7 @@ export const trainSampleMismatch: Rule = {
               concept === 'betas'
                 ? "Copy the training file's beta list into the sampling file (sampling only)"
                 : `Set the sampling file's ${label} to ${theirsShown}, as in training (sampling only)`,
-            safety: 'safe',
+            effect: 'sampling-only',
             edits: [edit],
           },
         ],

@@ -1,5 +1,5 @@
 import type { Analysis } from '../analysis/analysis';
-import type { Severity, FixSafety } from '../base/findings';
+import type { Severity, FixEffect } from '../base/findings';
 import type { Concept, ConceptValues } from '../fields/concepts';
 import type { FieldSource, Setup } from '../setup/types';
 
@@ -15,7 +15,7 @@ export interface ConceptFix {
    * exact spelling.
    */
   title: string;
-  safety: FixSafety;
+  effect: FixEffect;
   preferred?: boolean;
   edits: ConceptEdit[];
 }
@@ -55,17 +55,24 @@ export interface RuleOption {
   description: string;
 }
 
+export interface RepairMeta {
+  effects: readonly FixEffect[];
+  everyFinding: boolean;
+}
+
 export interface RuleMeta {
   /** Exactly as in DESIGN section 5. */
   id: string;
   /** One line for `noiselint rules`. */
   summary: string;
   defaultSeverity: Severity;
-  fixable: 'always' | 'sometimes' | 'never';
+  /** The repairs the rule offers: their effects, and whether every finding gets one; null for none. */
+  repair: RepairMeta | null;
   options: Record<string, RuleOption>;
   /**
-   * Markdown under the fixed headings: What it finds / Why it matters / Example / Use instead /
-   * Fix safety / Options / References. The Example and Use instead blocks are run as tests.
+   * Markdown under the fixed headings (RULE_DOC_HEADINGS in docs.ts): What triggers it / What the
+   * run loses / A flagged config / The repaired config / Effect on a trained checkpoint / Numbers
+   * you can tune / Published sources. The two config blocks are run as tests.
    */
   docs: string;
 }

@@ -3,7 +3,7 @@ import type { Rule, RuleFinding, RuleMeta } from './types';
 import { ruleForProblem } from './util';
 
 const docs = `
-## What it finds
+## What triggers it
 
 A value the tool cannot read: an enum value it does not recognise (a misspelt beta schedule,
 prediction target, timestep spacing or sampler) or, for fields outside the schedule, a value of
@@ -11,14 +11,14 @@ the wrong type (a word where a number belongs). When a known spelling is close, 
 names it. A field outside the schedule that is set twice with different values (two sections
 or two spellings) is a warning on the one that is ignored (the first in the file is used).
 
-## Why it matters
+## What the run loses
 
 Training and sampling code usually compares these strings exactly. A misspelt value either
 crashes at start-up, after the job has waited for its GPUs, or silently falls back to a default,
 so the run uses a schedule or target nobody chose. Every other check in this tool also needs to
 know the value, so nothing else is checked for that field.
 
-## Example
+## A flagged config
 
 \`\`\`yaml
 # Lanternfish Pictures: storyboard sampler
@@ -31,7 +31,7 @@ scheduler:
 num_inference_steps: 30
 \`\`\`
 
-## Use instead
+## The repaired config
 
 \`\`\`yaml
 scheduler:
@@ -43,16 +43,16 @@ scheduler:
 num_inference_steps: 30
 \`\`\`
 
-## Fix safety
+## Effect on a trained checkpoint
 
-Safe when a close known spelling exists: the fix writes it. The value was unusable before, so
+Sampling only, when a close known spelling exists: the fix writes it. The value was unusable before, so
 no run can have relied on it. No fix when nothing is close.
 
-## Options
+## Numbers you can tune
 
 None.
 
-## References
+## Published sources
 
 - Common practice: the spellings accepted are those found across open training code; the alias
   table of this tool lists them.
@@ -64,7 +64,7 @@ const meta: RuleMeta = {
   id: 'unknown-value',
   summary: 'An enum value the tool does not recognise, or a value of the wrong type.',
   defaultSeverity: 'error',
-  fixable: 'sometimes',
+  repair: { effects: ['sampling-only'], everyFinding: false },
   options: {},
   docs,
 };
@@ -81,7 +81,7 @@ export const unknownValue: Rule = {
           severity: problem.kind === 'duplicate' ? 'warning' : 'error',
         };
         const edit = problem.kind === 'unknown-value' && problem.suggestion ? suggestionEdit(problem.concept, problem.suggestion) : null;
-        if (edit) finding.fixes = [{ title: 'Write {newText} instead', safety: 'safe', edits: [edit] }];
+        if (edit) finding.fixes = [{ title: 'Write {newText} instead', effect: 'sampling-only', edits: [edit] }];
         return finding;
       });
   },

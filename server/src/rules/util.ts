@@ -146,7 +146,7 @@ export function zeroSnrFix(ctx: RuleContext, also?: { edits: ConceptEdit[]; titl
     parts.push(also.title);
   }
   const title = parts.length === 1 ? parts[0] : `${parts.slice(0, -1).join(', ')} and ${parts[parts.length - 1]}`;
-  return { title: `${title} ${RETRAIN_NOTE}`, safety: 'unsafe', edits };
+  return { title: `${title} ${RETRAIN_NOTE}`, effect: 'needs-retraining', edits };
 }
 
 /** Option accessors (the engine already merged defaults, but rules stay defensive). */
@@ -169,7 +169,7 @@ export function trailingFix(setup: Setup, schedule: ScheduleAnalysis, sampling: 
     if (!withoutOffset.ok || !inRange(withoutOffset.value)) return null;
     edits.push({ kind: 'set', concept: 'stepsOffset', value: 0 });
   }
-  return { title: 'Set the timestep spacing to trailing (sampling only)', safety: 'safe', edits };
+  return { title: 'Set the timestep spacing to trailing (sampling only)', effect: 'sampling-only', edits };
 }
 
 

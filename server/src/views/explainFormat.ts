@@ -6,6 +6,7 @@ import type { DocumentResult, FileReading, FileResult } from '../engine/api';
 import type { Analysis } from '../analysis/analysis';
 import { CONCEPTS, type Concept } from '../fields/concepts';
 import type { Setup } from '../setup/types';
+import { JSON_FORMAT_VERSION } from '../base/version';
 
 /** JSON numbers: exactly zero stays 0; non-finite values (log-SNR at zero SNR) become null. */
 function num(x: number): number | null {
@@ -63,6 +64,7 @@ export interface ExplainDocumentJson {
 }
 
 export interface ExplainJson {
+  formatVersion: number;
   files: { path: string; documents: ExplainDocumentJson[]; problems: string[] }[];
 }
 
@@ -118,6 +120,7 @@ export function explainDocumentJson(doc: DocumentResult): ExplainDocumentJson {
 
 export function explainJson(files: FileReading[]): ExplainJson {
   return {
+    formatVersion: JSON_FORMAT_VERSION,
     files: files.map((f) => ({
       path: f.path,
       documents: f.documents.map(explainDocumentJson),

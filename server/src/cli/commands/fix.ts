@@ -1,7 +1,8 @@
 /**
- * `noiselint fix [paths...] [--unsafe] [--dry-run]`
+ * `noiselint fix [paths...] [--accept-retraining] [--accept-comment-edits] [--dry-run]`
  *
- * Applies safe fixes (unsafe ones with --unsafe) to the files `check` would look at, repeating
+ * Applies the sampling-only fixes to the files `check` would look at (fixes that change what the
+ * model learns with --accept-retraining, fixes that touch a comment with --accept-comment-edits), repeating
  * until nothing changes. --dry-run prints a unified diff and writes nothing. A file is written
  * atomically (temporary file in the same folder, fsync, original mode, rename) and only when it
  * parsed cleanly, is writable, and did not change on disk meanwhile.
@@ -40,7 +41,8 @@ import { CheckSession } from './check';
 
 interface FixArgs {
   inputs: string[];
-  unsafe: boolean;
+  acceptRetraining: boolean;
+  acceptCommentEdits: boolean;
   dryRun: boolean;
 }
 
@@ -51,12 +53,21 @@ function parseFixArgs(args: string[]): FixArgs {
       args,
       allowPositionals: true,
       strict: true,
-      options: { unsafe: { type: 'boolean', default: false }, 'dry-run': { type: 'boolean', default: false } },
+      options: {
+        'accept-retraining': { type: 'boolean', default: false },
+        'accept-comment-edits': { type: 'boolean', default: false },
+        'dry-run': { type: 'boolean', default: false },
+      },
     });
   } catch (err) {
     throw new UsageError(err instanceof Error ? err.message : String(err));
   }
-  return { inputs: parsed.positionals, unsafe: !!parsed.values.unsafe, dryRun: !!parsed.values['dry-run'] };
+  return {
+    inputs: parsed.positionals,
+    acceptRetraining: !!parsed.values['accept-retraining'],
+    acceptCommentEdits: !!parsed.values['accept-comment-edits'],
+    dryRun: !!parsed.values['dry-run'],
+  };
 }
 
 export async function runFix(args: string[], io: CliIO): Promise<number> {
@@ -81,7 +92,8 @@ export async function runFix(args: string[], io: CliIO): Promise<number> {
   let notWritten = false;
   let filesChanged = 0;
   let fixesApplied = 0;
-  let unsafeOnly = 0;
+  let heldForRetraining = 0;
+  let heldForComments = 0;
   const session = new CheckSession();
   for (const file of found.files) {
     const name = shown(file);
@@ -98,13 +110,14 @@ export async function runFix(args: string[], io: CliIO): Promise<number> {
       const pairing = session.partnersOf(file, project);
       const analyze = (text: string): FileResult =>
         analyzeText(text, { path: file, project, partners: pairing.partners, pairRole: pairing.pairRole });
-      result = fixText(original, analyze, { unsafe: options.unsafe });
+      result = fixText(original, analyze, options);
     } catch (err) {
       io.stderr(`${name}: not fixed: internal error: ${err instanceof Error ? err.message.split('\n')[0] : String(err)}\n`);
       notWritten = true;
       continue;
     }
-    unsafeOnly += result.unsafeOnly;
+    heldForRetraining += result.heldForRetraining;
+    heldForComments += result.heldForComments;
     if (result.parseError) {
       // A broken file that is not a diffusion config (no parse-error finding) is none of our business.
       if (!result.initialFindings.some((f) => f.rule === PARSE_ERROR_ID)) continue;
@@ -138,10 +151,16 @@ export async function runFix(args: string[], io: CliIO): Promise<number> {
   const verb = options.dryRun ? 'Would apply' : 'Applied';
   const files = `${filesChanged} ${filesChanged === 1 ? 'file' : 'files'}`;
   report(`${verb} ${fixesApplied} ${fixesApplied === 1 ? 'fix' : 'fixes'} in ${files}.\n`);
-  if (unsafeOnly > 0) {
+  if (heldForRetraining > 0) {
     report(
-      `${unsafeOnly} more ${unsafeOnly === 1 ? 'finding has' : 'findings have'} only unsafe fixes (they change what the model ` +
-        'learns, so fine-tuning or retraining is needed, or they touch a comment); run with --unsafe to apply them.\n',
+      `${heldForRetraining} more ${heldForRetraining === 1 ? 'finding has a fix that changes' : 'findings have fixes that change'} what the model ` +
+        'learns (the checkpoint then needs fine-tuning or retraining); add --accept-retraining to apply them.\n',
+    );
+  }
+  if (heldForComments > 0) {
+    report(
+      `${heldForComments} more ${heldForComments === 1 ? 'finding has a fix' : 'findings have fixes'} that would rewrite a comment ` +
+        `you wrote; add --accept-comment-edits to apply ${heldForComments === 1 ? 'it' : 'them'}.\n`,
     );
   }
   if (ioError) return 2;

@@ -1,23 +1,20 @@
 /** `noiselint rules [id]`: the rule list, or one rule's documentation. */
 import { ALL_RULE_METAS, getRuleMeta } from '../../rules';
+import { repairLabel } from '../../rules/docs';
 import type { RuleMeta } from '../../rules/types';
 import type { CliIO } from '../io';
 
 function table(metas: readonly RuleMeta[]): string {
-  const rows = metas.map((m) => [m.id, m.defaultSeverity, fixLabel(m.fixable), m.summary]);
-  const head = ['rule', 'default', 'fix', 'what it finds'];
+  const rows = metas.map((m) => [m.id, m.defaultSeverity, repairLabel(m), m.summary]);
+  const head = ['rule', 'default', 'repair', 'what it finds'];
   const widths = [0, 1, 2].map((i) => Math.max(head[i].length, ...rows.map((r) => r[i].length)));
   const line = (r: string[]) => `${r.slice(0, 3).map((c, i) => c.padEnd(widths[i])).join('  ')}  ${r[3]}`.trimEnd();
   return [line(head), ...rows.map(line)].join('\n') + '\n';
 }
 
-function fixLabel(fixable: RuleMeta['fixable']): string {
-  return fixable === 'always' ? 'yes' : fixable === 'sometimes' ? 'some' : 'no';
-}
-
 /** One rule's page: a short header and its documentation. */
 export function ruleText(meta: RuleMeta): string {
-  const header = `${meta.id}: ${meta.summary}\ndefault severity: ${meta.defaultSeverity}; fix: ${fixLabel(meta.fixable)}\n`;
+  const header = `${meta.id}: ${meta.summary}\ndefault severity: ${meta.defaultSeverity}; repair: ${repairLabel(meta)}\n`;
   return `${header}${meta.docs.replace(/^\n+/, '\n').trimEnd()}\n`;
 }
 

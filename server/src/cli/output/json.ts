@@ -2,6 +2,8 @@
  * `check --format json`: the documented contract (docs/project-file.md, "JSON output").
  * Lines and characters are 0-based; characters count UTF-16 code units (as LSP does).
  */
+import type { FixEffect } from '../../base/findings';
+import { JSON_FORMAT_VERSION } from '../../base/version';
 import { displayPath, Locator, summarize, type CheckReport, type Range } from './report';
 
 export interface JsonEdit {
@@ -11,7 +13,8 @@ export interface JsonEdit {
 
 export interface JsonFix {
   title: string;
-  safety: 'safe' | 'unsafe';
+  effect: FixEffect;
+  touchesComment: boolean;
   preferred: boolean;
   edits: JsonEdit[];
 }
@@ -34,6 +37,8 @@ export interface JsonFinding {
 }
 
 export interface JsonOutput {
+  /** JSON_FORMAT_VERSION: raised when a field is renamed or removed. */
+  formatVersion: number;
   files: { path: string; findings: JsonFinding[] }[];
   /** Files that were found but not analysed (binary, not UTF-8, too large). */
   skipped: { path: string; reason: string }[];
@@ -52,7 +57,8 @@ export function toJson(report: CheckReport): JsonOutput {
       document: f.documentIndex,
       fixes: f.fixes.map((fix) => ({
         title: fix.title,
-        safety: fix.safety,
+        effect: fix.effect,
+        touchesComment: fix.touchesComment,
         preferred: fix.preferred,
         edits: fix.edits.map((e) => ({ range: locate.range(file.path, e.span), newText: e.newText })),
       })),
@@ -63,6 +69,7 @@ export function toJson(report: CheckReport): JsonOutput {
     })),
   }));
   return {
+    formatVersion: JSON_FORMAT_VERSION,
     files,
     skipped: report.skipped.map((s) => ({ path: displayPath(report.cwd, s.path), reason: s.reason })),
     summary: { ...summarize(report.files), files: report.files.length },

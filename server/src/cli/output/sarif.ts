@@ -37,9 +37,9 @@ function uriOf(displayed: string): string {
   return displayed.split('/').map(encodeURIComponent).join('/');
 }
 
-/** What a rule finds: the first paragraph under "What it finds", as plain text. */
+/** What a rule finds: the first paragraph under "What triggers it", as plain text. */
 function fullDescription(meta: RuleMeta): string {
-  const match = /##\s*What it finds\s*\n+([\s\S]*?)(\n\s*\n|\n##|$)/.exec(meta.docs);
+  const match = /##\s*What triggers it\s*\n+([\s\S]*?)(\n\s*\n|\n##|$)/.exec(meta.docs);
   const text = (match ? match[1] : meta.summary).replace(/\s*\n\s*/g, ' ').trim();
   return text || meta.summary;
 }
@@ -61,7 +61,11 @@ export function toSarif(report: CheckReport, tool: SarifToolInfo): Record<string
       help: { text: plainHelp(meta), markdown: meta.docs.trim() || meta.summary },
       helpUri: ruleDocsUrl(meta.id, '', tool.docsFolder),
       defaultConfiguration: { level: LEVEL[meta.defaultSeverity] },
-      properties: { fixable: meta.fixable, defaultSeverity: meta.defaultSeverity },
+      properties: {
+        repairEffects: meta.repair ? [...meta.repair.effects] : [],
+        repairForEveryFinding: meta.repair?.everyFinding ?? false,
+        defaultSeverity: meta.defaultSeverity,
+      },
     });
   }
   const location = (path: string, range: Range) => ({
@@ -103,7 +107,7 @@ export function toSarif(report: CheckReport, tool: SarifToolInfo): Record<string
               })),
             },
           ],
-          properties: { safety: fix.safety, preferred: fix.preferred },
+          properties: { effect: fix.effect, touchesComment: fix.touchesComment, preferred: fix.preferred },
         }));
       }
       results.push(result);
