@@ -9,7 +9,7 @@ import { removeTree } from '../workspace/helpers';
 import { runCli, tempTree } from './check-helpers';
 import { findPartners } from '../../server/src/workspace/pairing';
 import { clearProjectCache, loadProject } from '../../server/src/workspace/project';
-import { diskRoleProbe } from '../../server/src/workspace/roles';
+import { WorkspaceSession } from '../../server/src/workspace/session';
 
 const repo = join(__dirname, '..', '..');
 
@@ -74,7 +74,7 @@ describe('check examples (the Lanternfish Pictures demo workspace)', () => {
   it('pairing of the demo files: the stills pair is explicit, the night pair automatic (by content roles)', () => {
     clearProjectCache();
     const at = (p: string) => join(repo, 'examples', p);
-    const probe = diskRoleProbe();
+    const probe = new WorkspaceSession({ stableTree: true }).roleOf;
     expect(probe(at('night-storyboards/train-finetune.yaml'))).toBe('training');
     expect(probe(at('night-storyboards/sample-leading.yaml'))).toBe('sampling');
     const stills = at('product-stills-fixed/serving/sampler-trailing.yaml');

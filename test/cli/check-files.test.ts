@@ -1,7 +1,8 @@
 import { afterEach, describe, expect, it } from 'vitest';
 import { chmodSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { CheckSession, check, parseCheckArgs } from '../../server/src/cli/commands/check';
+import { check, parseCheckArgs } from '../../server/src/cli/commands/check';
+import { WorkspaceSession } from '../../server/src/workspace/session';
 import { analyzeText, findingsAsData } from '../../server/src/engine/api';
 import { originOf } from '../../server/src/fix/applicable';
 import { clearProjectCache, loadProject } from '../../server/src/workspace/project';
@@ -197,7 +198,7 @@ sampling:
     // The same findings as analysing each file on its own (fresh parse) with the partners pairing gives.
     clearProjectCache();
     const out = JSON.parse(stdout) as { files: { path: string; findings: { rule: string; severity: string; message: string }[] }[] };
-    const session = new CheckSession(nodeFs, (p) => p.slice(root.length + 1));
+    const session = new WorkspaceSession({ fs: nodeFs, stableTree: true, showPath: (p) => p.slice(root.length + 1) });
     for (const rel of Object.keys(files)) {
       const path = join(root, rel);
       const project = loadProject(path);

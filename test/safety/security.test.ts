@@ -8,7 +8,7 @@ import { join, relative } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { findPartners, resolvePairPath, validatePairs } from '../../server/src/workspace';
 import { loadProject } from '../../server/src/workspace/projectFile';
-import { diskRoleProbe } from '../../server/src/workspace/roles';
+import { WorkspaceSession } from '../../server/src/workspace/session';
 import { CLI, REPO, describeCrash, ensureCliBuilt, runCli, removeTempDirs, tempDir } from '../adversarial/helpers';
 import { LspTestClient } from '../load/lspClient';
 
@@ -70,7 +70,7 @@ describe('security', () => {
     const { pairs, warnings } = validatePairs(project);
     expect(pairs).toEqual([{ training: join(root, 'runs', 'train.yaml'), sampling: join(root, 'runs', 'sample.yaml') }]);
     expect(warnings).toHaveLength(5);
-    const match = findPartners(join(root, 'runs', 'sample.yaml'), project, { roleOf: diskRoleProbe() });
+    const match = findPartners(join(root, 'runs', 'sample.yaml'), project, { roleOf: new WorkspaceSession({ stableTree: true }).roleOf });
     expect(match?.partners).toEqual([join(root, 'runs', 'train.yaml')]);
   });
 
@@ -80,7 +80,7 @@ describe('security', () => {
     // runs/ holds sample.yaml, train.yaml and linked-train.yaml (-> outside). Without the link
     // check there would be two training files and the role rule would not pair at all.
     const project = loadProject(join(root, 'runs', 'sample.yaml'));
-    const match = findPartners(join(root, 'runs', 'sample.yaml'), project, { roleOf: diskRoleProbe() });
+    const match = findPartners(join(root, 'runs', 'sample.yaml'), project, { roleOf: new WorkspaceSession({ stableTree: true }).roleOf });
     expect(match?.partners ?? []).not.toContain(join(root, 'runs', 'linked-train.yaml'));
     for (const p of match?.partners ?? []) expect(relative(root, p).startsWith('..')).toBe(false);
   });

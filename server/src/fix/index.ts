@@ -3,3 +3,4 @@ export { renderConceptEdits, editsTouchComment, editsKeepSyntax } from './render
 export { rememberOrigin, originOf, fixKeepsSyntax, editsAreApplicable } from './applicable';
 export { applyEdits, editsConflict, anyConflict, sortEdits } from './apply';
 export { commentSpans } from './comments';
+export { allowedFix, fixCandidates, selectFixes } from './select';

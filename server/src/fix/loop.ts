@@ -5,7 +5,8 @@
  */
 import type { Finding, FixEffect, FixProposal, TextEdit } from '../base/findings';
 import type { ParseProblem } from '../parse/types';
-import { anyConflict, applyEdits } from './apply';
+import { applyEdits } from './apply';
+import { allowedFix, FULL_CONSENT, selectFixes } from './select';
 
 export interface FixLoopOptions {
   /** Also apply fixes that change what the model learns (the checkpoint needs fine-tuning or retraining). */
@@ -55,23 +56,9 @@ function firstParseError(result: Pick<LoopReading, 'parsed'>): ParseProblem | nu
   return result.parsed.problems.find((p) => p.severity === 'error') ?? null;
 }
 
-type Accepted = Pick<FixLoopOptions, 'acceptRetraining' | 'acceptCommentEdits'>;
-
-function allowed(fix: FixProposal, accepted: Accepted): boolean {
-  if (fix.edits.length === 0) return false;
-  if (fix.effect !== 'sampling-only' && !accepted.acceptRetraining) return false;
-  return !fix.touchesComment || accepted.acceptCommentEdits;
-}
-
-const EVERYTHING: Accepted = { acceptRetraining: true, acceptCommentEdits: true };
-
-/** Fixes of a finding in the order to try them: the preferred one first. */
-function candidates(fixes: readonly FixProposal[], accepted: Accepted): FixProposal[] {
-  return fixes.filter((f) => allowed(f, accepted)).sort((a, b) => Number(b.preferred) - Number(a.preferred));
-}
-
 export function fixText(text: string, analyze: Analyze, options: FixLoopOptions): FixLoopResult {
   const maxPasses = Math.max(1, options.maxPasses ?? DEFAULT_MAX_PASSES);
+  const allow = allowedFix(options);
   let result = analyze(text);
   const parseError = firstParseError(result);
   const out: FixLoopResult = { text, applied: [], parseError, initialFindings: result.findings, brokeText: false, remaining: 0, heldForRetraining: 0, heldForComments: 0 };
@@ -79,17 +66,9 @@ export function fixText(text: string, analyze: Analyze, options: FixLoopOptions)
   const seen = new Set<string>([text]);
   let current = text;
   for (let pass = 0; pass < maxPasses; pass++) {
-    const chosen: TextEdit[] = [];
-    const appliedNow: AppliedFix[] = [];
-    for (const finding of result.findings) {
-      for (const fix of candidates(finding.fixes, options)) {
-        // A fix whose edits collide with one already chosen waits for the next round.
-        if (anyConflict(fix.edits, chosen)) continue;
-        chosen.push(...fix.edits);
-        appliedNow.push({ rule: finding.rule, title: fix.title, effect: fix.effect, touchesComment: fix.touchesComment });
-        break;
-      }
-    }
+    // A fix whose edits collide with one already chosen waits for the next round.
+    const { edits: chosen, selected } = selectFixes(result.findings, current.length, allow);
+    const appliedNow: AppliedFix[] = selected.map(({ finding, fix }) => ({ rule: finding.rule, title: fix.title, effect: fix.effect, touchesComment: fix.touchesComment }));
     if (chosen.length === 0) break;
     let next: string;
     try {
@@ -110,10 +89,10 @@ export function fixText(text: string, analyze: Analyze, options: FixLoopOptions)
   }
   out.text = current;
   for (const finding of result.findings) {
-    if (finding.fixes.some((f) => allowed(f, options))) out.remaining++;
-    else if (!finding.fixes.some((f) => allowed(f, EVERYTHING))) continue;
+    if (finding.fixes.some(allow)) out.remaining++;
+    else if (!finding.fixes.some(allowedFix(FULL_CONSENT))) continue;
     // Held back: name the consent that is missing (comment edits when they alone would let a fix through).
-    else if (finding.fixes.some((f) => allowed(f, { ...options, acceptCommentEdits: true }))) out.heldForComments++;
+    else if (finding.fixes.some(allowedFix({ ...options, acceptCommentEdits: true }))) out.heldForComments++;
     else out.heldForRetraining++;
   }
   return out;

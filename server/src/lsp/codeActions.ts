@@ -18,7 +18,8 @@ import {
 } from 'vscode-languageserver/node';
 import type { Finding, FixProposal, TextEdit } from '../base/findings';
 import { editsAreApplicable, fixKeepsSyntax, originOf } from '../fix/applicable';
-import { anyConflict, applyEdits, sortEdits } from '../fix/apply';
+import { applyEdits } from '../fix/apply';
+import { allowedFix, NO_CONSENT, selectFixes } from '../fix/select';
 import { formatFromPath, parseText } from '../parse';
 import type { ParsedFile, SourceFormat } from '../parse/types';
 import { FIX_ALL_KIND } from '../base/protocol';
@@ -123,26 +124,10 @@ export function quickFixes(params: CodeActionParams, current: CurrentFindings, v
   return actions;
 }
 
-/** A fix the editor may apply in bulk: it keeps the checkpoint valid and every comment intact. */
-function pickSamplingOnlyFix(finding: Finding, accept: (fix: FixProposal) => boolean): FixProposal | undefined {
-  const ok = finding.fixes.filter((f) => f.effect === 'sampling-only' && !f.touchesComment && f.edits.length > 0 && accept(f));
-  return ok.find((f) => f.preferred) ?? ok[0];
-}
-
-/** Every sampling-only, comment-keeping fix that `accept` lets through, in position order, skipping any that overlaps one taken. */
+/** The edits fix-all applies: the shared selection policy (fix/select.ts) with no consent given, so only sampling-only fixes that keep every comment. */
 export function collectSamplingOnlyEdits(findings: Finding[], text: string, accept: (fix: FixProposal) => boolean = () => true): TextEdit[] {
-  const taken: TextEdit[] = [];
-  const ordered = [...findings].sort((a, b) => a.span.start - b.span.start);
-  for (const finding of ordered) {
-    const fix = pickSamplingOnlyFix(finding, accept);
-    if (!fix) continue;
-    const own = sortEdits(fix.edits);
-    if (own.some((e, i) => i > 0 && anyConflict([e], own.slice(0, i)))) continue;
-    if (own.some((e) => e.span.start < 0 || e.span.end > text.length || e.span.end < e.span.start)) continue;
-    if (anyConflict(own, taken)) continue;
-    taken.push(...own);
-  }
-  return sortEdits(taken);
+  const allow = allowedFix(NO_CONSENT);
+  return selectFixes(findings, text.length, (fix) => allow(fix) && accept(fix)).edits;
 }
 
 const fixAllEdits = new WeakMap<Finding[], { text: string; edits: TextEdit[] }>();

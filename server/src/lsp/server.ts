@@ -60,7 +60,6 @@ import { formatExplainText } from '../views/explainFormat';
 import type { Concept } from '../fields/concepts';
 import type { SourceFormat } from '../parse/types';
 import { LineIndex } from '../parse/lineIndex';
-import type { PartnerDocument } from '../rules/types';
 import { ALL_RULE_METAS, getRuleMeta } from '../rules';
 import {
   EXPLAIN_REQUEST,
@@ -72,11 +71,14 @@ import {
   type UriParams,
 } from '../base/protocol';
 import type { ResolvedProject } from '../workspace/types';
-import { DEFAULT_PROJECT, clearProjectCache, loadProject, setProjectRuleCatalog } from '../workspace/projectFile';
+import type { PartnerDocument } from '../rules/types';
+import { setProjectRuleCatalog } from '../workspace/projectFile';
 import { discoverFiles, isConfigFileName, isProjectFileName, projectSelects } from '../workspace/discover';
-import { nodeFs, readTextFile, type WorkspaceFs } from '../workspace/fs';
-import { findPartners, roleOfSetups, type FileRole, type PairRole } from '../workspace/pairing';
-import picomatch from 'picomatch';
+import { readTextFile, type WorkspaceFs } from '../workspace/fs';
+import { roleOfSetups, type FileRole, type PairRole } from '../workspace/pairing';
+import { overlayFs } from '../workspace/overlay';
+import { baseName, isInside, relativePosix } from '../workspace/selection';
+import { WorkspaceSession, type ProjectLookup } from '../workspace/session';
 import { findingToDiagnostic, spanToRange, type PositionMapper, type OtherFile } from './convert';
 import { fixAllAction, kindRequested, quickFixes, type CurrentFindings } from './codeActions';
 import { ruleDocsUrl } from '../workspace/ruleDocs';
@@ -94,6 +96,12 @@ const SCHEDULE_FIELDS: readonly Concept[] = ['betaSchedule', 'betas', 'trainStep
 const RECENT_READS = 8;
 /** Partner files whose documents are kept between analyses. */
 const PARTNER_CACHE_ENTRIES = 64;
+
+interface PairingFound {
+  partners: PartnerDocument[];
+  role?: PairRole;
+  paths: string[];
+}
 
 /** How an analysis read its text: enough to read it again the same way (partners only change findings). */
 type ReadOptions = Omit<AnalyzeOptions, 'partners' | 'pairRole'>;
@@ -202,15 +210,9 @@ export class NoiselintServer {
   /** Bumped when settings or project files change: every cached analysis is then stale. */
   private generation = 0;
   private analysisSeq = 0;
-  private readonly globCache = new Map<string, (path: string) => boolean>();
   private folders: { uri: string; path: string | null }[] = [];
-  /** Role of every config file seen (the workspace index). */
-  private readonly roles = new Map<string, FileRole>();
-  /** Partner documents read from a given text, reused while the text does not change. */
-  private readonly partnerCache = new LruCache<string, { text: string; project: ResolvedProject; docs: PartnerDocument[] }>(
-    PARTNER_CACHE_ENTRIES,
-    PARTNER_CACHE_ENTRIES,
-  );
+  /** Projects, selection, the role index of the workspace's config files and partner readings. */
+  private readonly session: WorkspaceSession;
   /**
    * The full reading of the most recently used analyses, by document URI, with the findings as
    * the engine made them (their fixes know the parse they came from, which spares code actions a
@@ -223,7 +225,19 @@ export class NoiselintServer {
   private shutDown = false;
 
   constructor(private readonly connection: Connection) {
-    this.fs = this.overlayFs();
+    this.fs = overlayFs({
+      textOf: (path) => {
+        const uri = this.openByPath.get(path);
+        return uri ? this.docs.get(uri)?.doc.getText() : undefined;
+      },
+      namesIn: (folder) => this.openByFolder.get(folder),
+    });
+    this.session = new WorkspaceSession({
+      fs: this.fs,
+      showPath: (abs) => this.displayPath(abs),
+      knownRole: (path) => this.openRole(path),
+      readingEntries: PARTNER_CACHE_ENTRIES,
+    });
     // Project files are checked against the real rule ids and options.
     setProjectRuleCatalog(ALL_RULE_METAS);
   }
@@ -355,7 +369,7 @@ export class NoiselintServer {
       }
       for (let i = 0; i < files.length; i++) {
         if (this.shutDown) return;
-        if (!this.openByPath.has(files[i])) this.roles.set(files[i], this.roleFromDisk(files[i]));
+        if (!this.openByPath.has(files[i])) this.session.indexFile(files[i]);
         if (i % INDEX_BATCH === INDEX_BATCH - 1) {
           progress.report(Math.round(((i + 1) / files.length) * 100), `${i + 1} of ${files.length} files`);
           await new Promise((resolve) => setImmediate(resolve));
@@ -414,8 +428,7 @@ export class NoiselintServer {
     if (od.path) {
       this.untrackOpen(od.path);
       // The disk copy speaks again for pairing.
-      this.roles.set(od.path, this.roleFromDisk(od.path));
-      this.partnerCache.delete(od.path);
+      this.session.indexFile(od.path);
       this.dependentsChanged(od.path, true);
     }
     if (!this.caps.pullDiagnostics) void this.connection.sendDiagnostics({ uri, diagnostics: [] });
@@ -443,7 +456,7 @@ export class NoiselintServer {
   /** A document's text changed: re-check it (debounced) and the files paired with it. */
   private contentChanged(od: OpenDocument, delay: number): void {
     if (od.path && isProjectFileName(baseName(od.path))) {
-      clearProjectCache(this.fs);
+      this.session.projectsChanged();
       this.invalidateAll(true);
     }
     this.schedule(od, delay);
@@ -504,13 +517,8 @@ export class NoiselintServer {
   }
 
   /** Project file for a path (editor settings are merged later); an invalid file falls back to defaults. */
-  private projectFor(path: string | null): { project: ResolvedProject; problem: string | null } {
-    if (!path) return { project: { ...DEFAULT_PROJECT, rules: {}, aliases: {}, limits: {} }, problem: null };
-    try {
-      return { project: loadProject(path, this.fs), problem: null };
-    } catch (err) {
-      return { project: { ...DEFAULT_PROJECT, root: dirname(path), rules: {}, aliases: {}, limits: {} }, problem: errorMessage(err) };
-    }
+  private projectFor(path: string | null): ProjectLookup {
+    return this.session.projectFor(path);
   }
 
   private folderOf(path: string): string | null {
@@ -524,36 +532,14 @@ export class NoiselintServer {
 
   /** The project's include / exclude, then the editor's (the project file's include takes precedence). */
   private selected(path: string | null, project: ResolvedProject, settings: EditorSettings): boolean {
-    if (!path) return true;
-    if (project.file && !projectSelects(project, path)) return false;
-    const base = this.folderOf(path) ?? project.root;
-    const rel = relativePosix(base, path);
-    if (settings.files.exclude.length && this.matcher(settings.files.exclude)(rel)) return false;
-    const projectIncludes = !!project.file && project.include.length > 0;
-    if (!projectIncludes && settings.files.include.length && !this.matcher(settings.files.include)(rel)) return false;
-    return true;
-  }
-
-  private matcher(globs: string[]): (path: string) => boolean {
-    const key = JSON.stringify(globs);
-    let m = this.globCache.get(key);
-    if (!m) {
-      try {
-        m = picomatch(globs, { dot: true });
-      } catch {
-        // A malformed glob in the settings matches nothing.
-        m = () => false;
-      }
-      if (this.globCache.size > 100) this.globCache.clear();
-      this.globCache.set(key, m);
-    }
-    return m;
+    const base = path ? this.folderOf(path) : null;
+    return this.session.selects(path, project, { base, include: settings.files.include, exclude: settings.files.exclude });
   }
 
   /** Bumps the generation and re-checks every open document (refreshing pulled diagnostics). */
   private invalidateAll(settingsChanged: boolean): void {
     this.generation++;
-    if (settingsChanged) this.partnerCache.clear();
+    if (settingsChanged) this.session.projectsChanged();
     for (const od of this.docs.values()) {
       od.cache = undefined;
       this.schedule(od, 0);
@@ -571,89 +557,19 @@ export class NoiselintServer {
 
   // ---------------------------------------------------------------- pairing
 
-  private overlayFs(): WorkspaceFs {
-    const openText = (path: string): string | undefined => {
-      const uri = this.openByPath.get(path);
-      return uri ? this.docs.get(uri)?.doc.getText() : undefined;
-    };
-    return {
-      stat: (path) => {
-        const text = openText(path);
-        if (text !== undefined) return { kind: 'file', size: Buffer.byteLength(text, 'utf8') };
-        return nodeFs.stat(path);
-      },
-      readDir: (path) => {
-        let entries: ReturnType<WorkspaceFs['readDir']> = [];
-        let failure: unknown = null;
-        try {
-          entries = nodeFs.readDir(path);
-        } catch (err) {
-          failure = err;
-        }
-        const open = this.openByFolder.get(path);
-        let added = false;
-        if (open) {
-          const names = new Set(entries.map((e) => e.name));
-          for (const name of open) {
-            if (!names.has(name)) {
-              entries.push({ name, kind: 'file', isSymlink: false });
-              added = true;
-            }
-          }
-        }
-        if (failure && !added) throw failure;
-        return entries;
-      },
-      readBytes: (path) => {
-        const text = openText(path);
-        return text !== undefined ? Buffer.from(text, 'utf8') : nodeFs.readBytes(path);
-      },
-      realpath: (path) => nodeFs.realpath(path) ?? (openText(path) !== undefined ? path : undefined),
-    };
-  }
-
-  private roleFromDisk(path: string): FileRole {
-    try {
-      const { project } = this.projectFor(path);
-      const read = readTextFile(this.fs, path, project.limits.maxFileBytes);
-      if (!read.ok) return 'none';
-      return roleOfSetups(readFile(read.text, { path, project }).documents.map((d) => d.setup));
-    } catch {
-      return 'none';
-    }
-  }
-
-  private roleOf = (path: string): FileRole => {
+  /** An open document's role: from its current analysis, else read from its open text. */
+  private openRole(path: string): FileRole | undefined {
     const uri = this.openByPath.get(path);
     const od = uri ? this.docs.get(uri) : undefined;
-    if (od?.cache?.role && od.cache.version === od.doc.version) return od.cache.role;
-    let role = od ? undefined : this.roles.get(path);
-    if (role === undefined) {
-      role = this.roleFromDisk(path);
-      if (!od) this.roles.set(path, role);
-    }
-    return role;
-  };
-
-  /** The diffusion documents of a partner file (open text wins over disk). */
-  private partnerDocuments(path: string): PartnerDocument[] {
-    const { project } = this.projectFor(path);
-    const read = readTextFile(this.fs, path, project.limits.maxFileBytes);
-    if (!read.ok) return [];
-    const cached = this.partnerCache.get(path);
-    if (cached && cached.text === read.text && cached.project === project) return cached.docs;
-    const shown = this.displayPath(path);
-    const file = readFile(read.text, { path: shown, project });
-    const docs = file.documents.filter((d) => d.setup.isDiffusionConfig).map((d) => ({ path: shown, setup: d.setup, analysis: d.analysis }));
-    this.partnerCache.set(path, { text: read.text, project, docs });
-    return docs;
+    if (!od) return undefined;
+    if (od.cache?.role && od.cache.version === od.doc.version) return od.cache.role;
+    return this.session.readRole(path);
   }
 
-  private pairingFor(path: string, project: ResolvedProject): { partners: PartnerDocument[]; role?: PairRole; paths: string[] } {
+  private pairingFor(path: string, project: ResolvedProject): PairingFound {
     try {
-      const match = findPartners(path, project, { fs: this.fs, roleOf: this.roleOf });
-      if (!match) return { partners: [], paths: [] };
-      return { partners: match.partners.flatMap((p) => this.partnerDocuments(p)), role: match.role, paths: match.partners };
+      const found = this.session.partnersOf(path, project);
+      return { partners: found.partners, role: found.pairRole, paths: found.paths };
     } catch (err) {
       this.logError('pairing', err);
       return { partners: [], paths: [] };
@@ -691,13 +607,12 @@ export class NoiselintServer {
         continue;
       }
       if (!isConfigFileName(name) || this.openByPath.has(path)) continue;
-      this.partnerCache.delete(path);
-      if (change.type === FileChangeType.Deleted) this.roles.delete(path);
-      else this.roles.set(path, this.roleFromDisk(path));
+      this.session.fileChanged(path);
+      if (change.type !== FileChangeType.Deleted) this.session.indexFile(path);
       this.dependentsChanged(path, change.type !== FileChangeType.Changed);
     }
     if (projectChanged) {
-      clearProjectCache(this.fs);
+      this.session.projectsChanged();
       this.invalidateAll(true);
     }
   }
@@ -714,8 +629,7 @@ export class NoiselintServer {
     od.cache = analyzed;
     if (od.path && analyzed.role) {
       const role = analyzed.role;
-      const before = this.roles.get(od.path);
-      this.roles.set(od.path, role);
+      const before = this.session.noteRole(od.path, role);
       // A file that became (or stopped being) a training or sampling file may change the folder's pairs.
       if (before !== undefined && before !== role) this.dependentsChanged(od.path, true);
     }
@@ -983,22 +897,6 @@ export class NoiselintServer {
 /** Rule ids (and `parse-error`) have a documentation page; internal codes do not. */
 function isRuleId(code: string): boolean {
   return getRuleMeta(code) !== undefined;
-}
-
-function baseName(path: string): string {
-  const i = Math.max(path.lastIndexOf('/'), path.lastIndexOf('\\'));
-  return i >= 0 ? path.slice(i + 1) : path;
-}
-
-function isInside(folder: string, path: string): boolean {
-  const rel = relative(folder, path);
-  return rel === '' || (rel !== '..' && !rel.startsWith(`..${sep}`) && !isAbsolute(rel));
-}
-
-/** `path` relative to `base` with forward slashes (glob matching, messages); unchanged when outside. */
-function relativePosix(base: string, path: string): string {
-  if (!isInside(base, path)) return path;
-  return relative(base, path).split(sep).join('/');
 }
 
 /**

@@ -3,4 +3,4 @@ export * from './project';
 export * from './fs';
 export * from './discover';
 export * from './pairing';
-export { diskRoleProbe } from './roles';
+export { WorkspaceSession } from './session';

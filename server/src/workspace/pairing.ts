@@ -42,7 +42,7 @@ export interface PairMatch {
 export interface PairingDeps {
   /** Ignored when `memo` is given (the memo reads through its own view). */
   fs?: WorkspaceFs;
-  /** Role of a sibling file, for automatic pairing (see roles.ts: diskRoleProbe). */
+  /** Role of a sibling file, for automatic pairing (the session's roleOf). */
   roleOf: RoleProbe;
   /**
    * File-system facts kept between calls. Pass one for a run over files that do not change

@@ -5,14 +5,12 @@
  * file, or a file or folder that could not be read (the others are still checked).
  */
 import { parseArgs } from 'node:util';
-import { LruCache } from '@noiselint/shared-math';
-import { analyzeRead, analyzeText, findingsAsData, readFile, type AnalyzeOptions, type FileReading, FileResult } from '../../engine/api';
-import type { PartnerDocument } from '../../rules/types';
+import { findingsAsData, type FileResult } from '../../engine/api';
 import { ALL_RULE_METAS } from '../../rules';
 import { discoverFiles } from '../../workspace/discover';
-import { nodeFs, readTextFile, type TextReadResult, type WorkspaceFs } from '../../workspace/fs';
-import { findPartners, MAX_AUTO_CANDIDATES, PairingMemo, roleOfSetups, type FileRole } from '../../workspace/pairing';
+import { nodeFs, type WorkspaceFs } from '../../workspace/fs';
 import { loadProject, ProjectFileError, type ResolvedProject } from '../../workspace/project';
+import { WorkspaceSession } from '../../workspace/session';
 
 import { UsageError, type CliIO } from '../io';
 import { formatJson } from '../output/json';
@@ -64,123 +62,6 @@ export function parseCheckArgs(args: string[]): CheckOptions {
   return { inputs: parsed.positionals, format, maxWarnings, quiet: parsed.values.quiet ?? false };
 }
 
-/** A file read and analysed without rules (a role probe or a partner). */
-interface Peeked {
-  text: string;
-  project: ResolvedProject;
-  result: FileReading;
-}
-
-/**
- * Files read without rules kept by a session. Automatic pairing looks within one folder (at most
- * MAX_AUTO_CANDIDATES files) and files are checked folder by folder, so twice that keeps every
- * probe until its own check and its partners' checks, and the run's memory stays flat on large
- * trees (a miss only costs a second reading).
- */
-const PEEK_CACHE_ENTRIES = 2 * MAX_AUTO_CANDIDATES;
-
-/** Analyses files the way `check` does; shared with tests and other commands. */
-export class CheckSession {
-  private readonly peeked = new LruCache<string, Peeked | null>(PEEK_CACHE_ENTRIES, PEEK_CACHE_ENTRIES);
-  private readonly roleCache = new Map<string, FileRole>();
-  /** File-system facts of pairing: the tree does not change during a run. */
-  private readonly pairing: PairingMemo;
-  readonly warnings: string[] = [];
-  private readonly warned = new Set<string>();
-  private readonly pairsChecked = new Set<ResolvedProject>();
-
-  /**
-   * `showPath` turns a partner's absolute path into the one messages name (check passes the path
-   * relative to the current folder); related locations resolve it back against the same folder.
-   */
-  constructor(
-    private readonly fs: WorkspaceFs = nodeFs,
-    private readonly showPath: (absPath: string) => string = (p) => p,
-    /** Project of each file, when the caller has already loaded them (saves a lookup per probe). */
-    private readonly projects: ReadonlyMap<string, ResolvedProject> = new Map(),
-  ) {
-    this.pairing = new PairingMemo(fs);
-  }
-
-  private warnOnce(message: string): void {
-    if (this.warned.has(message)) return;
-    this.warned.add(message);
-    this.warnings.push(message);
-  }
-
-  /** A file analysed without rules (a partner or a role probe), memoised; null when unreadable. */
-  private peek(path: string): Peeked | null {
-    const cached = this.peeked.get(path);
-    if (cached !== undefined) return cached;
-    let entry: Peeked | null = null;
-    try {
-      const project = this.projects.get(path) ?? loadProject(path, this.fs);
-      const read = readTextFile(this.fs, path, project.limits.maxFileBytes);
-      if (read.ok) entry = { text: read.text, project, result: readFile(read.text, { path, project }) };
-    } catch {
-      entry = null;
-    }
-    this.peeked.set(path, entry);
-    return entry;
-  }
-
-  roleOf = (path: string): FileRole => {
-    let role = this.roleCache.get(path);
-    if (!role) {
-      const peeked = this.peek(path);
-      role = peeked ? roleOfSetups(peeked.result.documents.map((d) => d.setup)) : 'none';
-      this.roleCache.set(path, role);
-    }
-    return role;
-  };
-
-  /** Pairing for one file: its role and the documents of its partner file(s). */
-  partnersOf(path: string, project: ResolvedProject): { pairRole?: 'training' | 'sampling'; partners: PartnerDocument[]; texts: Map<string, string> } {
-    if (!this.pairsChecked.has(project)) {
-      this.pairsChecked.add(project);
-      for (const w of this.pairing.pairs(project).warnings) this.warnOnce(w);
-    }
-    const texts = new Map<string, string>();
-    const match = findPartners(path, project, { roleOf: this.roleOf, memo: this.pairing });
-    if (!match) return { partners: [], texts };
-    const partners: PartnerDocument[] = [];
-    for (const partner of match.partners) {
-      const peeked = this.peek(partner);
-      if (!peeked) {
-        this.warnOnce(`${partner}: paired file could not be read; pair ignored`);
-        continue;
-      }
-      texts.set(partner, peeked.text);
-      for (const doc of peeked.result.documents) {
-        if (doc.setup.isDiffusionConfig) partners.push({ path: this.showPath(partner), setup: doc.setup, analysis: doc.analysis });
-      }
-    }
-    return partners.length ? { pairRole: match.role, partners, texts } : { partners: [], texts };
-  }
-
-  /**
-   * The text of a file as `check` reads it. The reading is kept (parsed, without rules) for
-   * pairing and for the file's own analysis, so each file is read and parsed once per run.
-   */
-  readText(path: string, project: ResolvedProject): TextReadResult {
-    const peeked = this.peek(path);
-    if (peeked && peeked.project === project) return { ok: true, text: peeked.text };
-    // Unreadable (the reason is read again) or governed by another project than the probe's.
-    return readTextFile(this.fs, path, project.limits.maxFileBytes);
-  }
-
-  /**
-   * The whole analysis of `path`, whose text is `text`. When pairing already read the same text
-   * under the same project (its role probe), the rules run on that reading: nothing is parsed twice.
-   */
-  analyze(path: string, text: string, options: Omit<AnalyzeOptions, 'path'> & { project: ResolvedProject }): FileResult {
-    const full: AnalyzeOptions = { ...options, path };
-    const peeked = this.peeked.get(path);
-    const reusable = peeked && peeked.text === text && peeked.project === options.project && !options.format && !options.limits;
-    return reusable ? analyzeRead(peeked.result, full) : analyzeText(text, full);
-  }
-}
-
 export async function runCheck(args: string[], io: CliIO): Promise<number> {
   const options = parseCheckArgs(args);
   return check(options, io);
@@ -209,7 +90,7 @@ export async function check(options: CheckOptions, io: CliIO, fs: WorkspaceFs = 
     throw err;
   }
 
-  const session = new CheckSession(fs, shown, projects);
+  const session = new WorkspaceSession({ fs, stableTree: true, showPath: shown, projects });
   const progress = io.isTTY && discovered.files.length >= PROGRESS_MIN_FILES;
   let done = 0;
   for (const file of discovered.files) {

@@ -37,7 +37,7 @@ import { describeFsError, nodeFs, readTextFile } from '../../workspace/fs';
 import { loadProject, ProjectFileError, type ResolvedProject } from '../../workspace/project';
 import { UsageError, type CliIO } from '../io';
 import { displayPath } from '../output/report';
-import { CheckSession } from './check';
+import { WorkspaceSession } from '../../workspace/session';
 
 interface FixArgs {
   inputs: string[];
@@ -94,7 +94,7 @@ export async function runFix(args: string[], io: CliIO): Promise<number> {
   let fixesApplied = 0;
   let heldForRetraining = 0;
   let heldForComments = 0;
-  const session = new CheckSession();
+  const session = new WorkspaceSession({ stableTree: true });
   for (const file of found.files) {
     const name = shown(file);
     const project = projects.get(file)!;
