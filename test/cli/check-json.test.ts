@@ -117,11 +117,24 @@ describe('check --format json', () => {
     expect(textAt(text, finding.range)).toMatch(/^[a-z_]/);
   });
 
-  it('--quiet leaves warnings out of the JSON too', async () => {
+  it('--show error leaves warnings out of the list, but the summary still counts them (and agrees with the exit code)', async () => {
     const root = tree({ 'leaky.yaml': LEAKY_V });
-    const out = JSON.parse((await runCli(['check', '--format', 'json', '--quiet'], root)).stdout);
+    const r = await runCli(['check', '--format', 'json', '--show', 'error', '--budget', 'warning=0'], root);
+    const out = JSON.parse(r.stdout);
     expect(out.files[0].findings).toEqual([]);
-    expect(out.summary.warnings).toBe(0);
+    expect(r.code).toBe(1);
+    expect(out.summary).toEqual({
+      errors: 0,
+      warnings: 1,
+      infos: 0,
+      hints: 0,
+      files: 1,
+      hidden: 1,
+      budgets: [
+        { severity: 'error', allowed: 0, found: 0, exceeded: false },
+        { severity: 'warning', allowed: 0, found: 1, exceeded: true },
+      ],
+    });
   });
 
   it('paths stay relative when checking from a sub-folder with ..', async () => {

@@ -55,28 +55,47 @@ describe('check: text output', () => {
     expect(findingLines(r.stdout).map((l) => [l.severity, l.rule])).toContainEqual(['error', 'epsilon-at-zero-snr']);
   });
 
-  it('--max-warnings: exit 1 only when warnings exceed N', async () => {
+  it('--budget <severity>=N: exit 1 only when more than N findings at or above it', async () => {
     const root = tree({ 'a.yaml': LEAKY_V, 'b.yaml': LEAKY_V });
-    expect((await runCli(['check', '--max-warnings', '2'], root)).code).toBe(0);
-    expect((await runCli(['check', '--max-warnings=1'], root)).code).toBe(1);
-    expect((await runCli(['check', '--max-warnings', '0'], root)).code).toBe(1);
+    expect((await runCli(['check'], root)).code).toBe(0);
+    expect((await runCli(['check', '--budget', 'warning=2'], root)).code).toBe(0);
+    const over = await runCli(['check', '--budget=warning=1'], root);
+    expect(over.code).toBe(1);
+    expect(over.stdout).toContain('Over budget: 2 findings at warning or above, 1 may pass (--budget warning=1).');
+    expect((await runCli(['check', '--budget', 'warning=0'], root)).code).toBe(1);
+    // An error budget replaces the built-in "no error passes".
+    const eps = tree({ 'eps.yaml': ZERO_SNR_EPSILON });
+    expect((await runCli(['check'], eps)).code).toBe(1);
+    expect((await runCli(['check', '--budget', 'error=1'], eps)).code).toBe(0);
+    // Errors still fail under a warning budget (the built-in error budget stays).
+    expect((await runCli(['check', '--budget', 'warning=9'], eps)).code).toBe(1);
   });
 
-  it('--quiet prints errors only, says what it left out, and warnings still count', async () => {
+  it('--show error lists errors only, says what it left out, and the others still count', async () => {
     const root = tree({ 'eps.yaml': ZERO_SNR_EPSILON, 'leaky.yaml': LEAKY_V });
-    const r = await runCli(['check', '--quiet'], root);
+    const r = await runCli(['check', '--show', 'error'], root);
     expect(r.code).toBe(1);
     const lines = findingLines(r.stdout);
     expect(lines.length).toBeGreaterThan(0);
     expect(lines.every((l) => l.severity === 'error')).toBe(true);
-    expect(r.stdout).toMatch(/1 warning[^\n]*not shown: --quiet/);
+    expect(r.stdout).toMatch(/1 warning[^\n]*not listed: --show error/);
 
     const onlyWarnings = tree({ 'leaky.yaml': LEAKY_V });
-    const q = await runCli(['check', '--quiet'], onlyWarnings);
-    expect(q).toEqual({ code: 0, stdout: '', stderr: '' });
-    const limited = await runCli(['check', '--quiet', '--max-warnings', '0'], onlyWarnings);
+    const q = await runCli(['check', '--show', 'error'], onlyWarnings);
+    expect(q.code).toBe(0);
+    expect(findingLines(q.stdout)).toEqual([]);
+    expect(q.stdout).toMatch(/^1 warning in 1 file checked \(1 warning not listed: --show error\)/m);
+    const limited = await runCli(['check', '--show', 'error', '--budget', 'warning=0'], onlyWarnings);
     expect(limited.code).toBe(1);
-    expect(limited.stdout).toMatch(/not shown: --quiet/);
+    expect(limited.stdout).toMatch(/not listed: --show error/);
+    expect(limited.stdout).toContain('Over budget: 1 finding at warning or above, 0 may pass');
+  });
+
+  it('--show warning hides infos and hints only', async () => {
+    const root = tree({ 'few.yaml': FEW_STEPS_LINSPACE, 'leaky.yaml': LEAKY_V });
+    const r = await runCli(['check', '--show', 'warning'], root);
+    expect(findingLines(r.stdout).map((l) => l.severity)).toEqual(['warning']);
+    expect(r.stdout).toMatch(/1 info not listed: --show warning/);
   });
 
   it('an info finding alone keeps exit code 0 and is shown as info', async () => {
@@ -106,7 +125,18 @@ describe('check: text output', () => {
 
   it('bad arguments are one-line usage errors with exit code 2', async () => {
     const root = tree({});
-    for (const args of [['--format', 'xml'], ['--max-warnings', '-1'], ['--max-warnings', 'many'], ['--frobnicate']]) {
+    for (const args of [
+      ['--format', 'xml'],
+      ['--budget', 'warning=-1'],
+      ['--budget', 'warning=many'],
+      ['--budget', '3'],
+      ['--budget', 'loud=3'],
+      ['--budget', 'warning=1', '--budget', 'warning=2'],
+      ['--show', 'everything'],
+      ['--max-warnings', '0'],
+      ['--quiet'],
+      ['--frobnicate'],
+    ]) {
       const r = await runCli(['check', ...args], root);
       expect(r.code).toBe(2);
       expect(r.stdout).toBe('');

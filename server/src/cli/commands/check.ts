@@ -1,8 +1,12 @@
 /**
- * `noiselint check [paths|globs...] [--format text|json|sarif] [--max-warnings N] [--quiet]`
+ * `noiselint check [paths|globs...] [--format text|json|sarif] [--show <severity>] [--budget <severity>=<N>...]`
  *
- * Exit codes: 0 no errors and at most N warnings; 1 otherwise; 2 bad arguments, an invalid project
- * file, or a file or folder that could not be read (the others are still checked).
+ * `--show` is the faintest severity listed (the others are still counted); each `--budget` lets
+ * at most N findings at or above a severity pass. Without an `error=` budget, no error may pass.
+ *
+ * Exit codes: 0 the findings fit every budget; 1 a budget is exceeded; 2 the run could not look at
+ * everything it was given (bad arguments, an invalid project file, a file or folder that could not
+ * be read; the rest is still checked and reported).
  */
 import { parseArgs } from 'node:util';
 import { findingsAsData, type FileResult } from '../../engine/api';
@@ -14,7 +18,8 @@ import { WorkspaceSession } from '../../workspace/session';
 
 import { UsageError, type CliIO } from '../io';
 import { formatJson } from '../output/json';
-import { displayPath, summarize, type CheckReport, type Summary } from '../output/report';
+import { atOrAbove, displayPath, summarize, type BudgetResult, type CheckReport, type Summary } from '../output/report';
+import { SEVERITIES, type Severity } from '../../base/findings';
 import { formatSarif } from '../output/sarif';
 import { formatText } from '../output/text';
 
@@ -29,8 +34,30 @@ export type CheckFormat = 'text' | 'json' | 'sarif';
 export interface CheckOptions {
   inputs: string[];
   format: CheckFormat;
-  maxWarnings: number;
-  quiet: boolean;
+  /** The faintest severity listed; fainter findings are counted but not listed. */
+  show: Severity;
+  /** At most `allowed` findings at or above `severity` may pass. */
+  budgets: Budget[];
+}
+
+export interface Budget {
+  severity: Severity;
+  allowed: number;
+  /** Given on the command line (not the built-in `error=0`). */
+  explicit: boolean;
+}
+
+function severityArg(flag: string, raw: string): Severity {
+  const s = raw.trim() as Severity;
+  if (!SEVERITIES.includes(s)) throw new UsageError(`${flag} takes a severity (${SEVERITIES.join(', ')}), not "${raw}"`);
+  return s;
+}
+
+/** `warning=5` -> { severity: 'warning', allowed: 5 }. */
+function budgetArg(raw: string): Budget {
+  const m = /^\s*([a-z]+)\s*=\s*(\d+)\s*$/.exec(raw);
+  if (!m) throw new UsageError(`--budget takes <severity>=<count>, e.g. warning=5, not "${raw}"`);
+  return { severity: severityArg('--budget', m[1]), allowed: Number(m[2]), explicit: true };
 }
 
 export function parseCheckArgs(args: string[]): CheckOptions {
@@ -42,8 +69,8 @@ export function parseCheckArgs(args: string[]): CheckOptions {
       strict: true,
       options: {
         format: { type: 'string', default: 'text' },
-        'max-warnings': { type: 'string' },
-        quiet: { type: 'boolean', default: false },
+        show: { type: 'string', default: 'hint' },
+        budget: { type: 'string', multiple: true, default: [] },
       },
     });
   } catch (err) {
@@ -53,13 +80,13 @@ export function parseCheckArgs(args: string[]): CheckOptions {
   if (format !== 'text' && format !== 'json' && format !== 'sarif') {
     throw new UsageError(`--format must be text, json or sarif, not "${format}"`);
   }
-  let maxWarnings = Infinity;
-  const raw = parsed.values['max-warnings'];
-  if (raw !== undefined) {
-    if (!/^\d+$/.test(raw.trim())) throw new UsageError(`--max-warnings must be a whole number >= 0, not "${raw}"`);
-    maxWarnings = Number(raw.trim());
+  const show = severityArg('--show', parsed.values.show ?? 'hint');
+  const budgets = (parsed.values.budget ?? []).map(budgetArg);
+  for (const [i, b] of budgets.entries()) {
+    if (budgets.findIndex((o) => o.severity === b.severity) !== i) throw new UsageError(`--budget ${b.severity}= is given twice`);
   }
-  return { inputs: parsed.positionals, format, maxWarnings, quiet: parsed.values.quiet ?? false };
+  if (!budgets.some((b) => b.severity === 'error')) budgets.unshift({ severity: 'error', allowed: 0, explicit: false });
+  return { inputs: parsed.positionals, format, show, budgets };
 }
 
 export async function runCheck(args: string[], io: CliIO): Promise<number> {
@@ -123,23 +150,27 @@ export async function check(options: CheckOptions, io: CliIO, fs: WorkspaceFs = 
   if (progress) io.stderr('\r\x1b[K');
   for (const w of session.warnings) notice('warning', relativizeWarning(w, io.cwd));
 
+  // Budgets and the summary count every finding; the view only decides what is listed.
   const all = summarize(report.files);
-  let hidden: Summary | undefined;
-  if (options.quiet) {
-    hidden = { errors: 0, warnings: all.warnings, infos: all.infos, hints: all.hints };
-    report.files = report.files.map((f) => ({ ...f, findings: f.findings.filter((x) => x.severity === 'error') }));
+  const budgets: BudgetResult[] = options.budgets.map((b) => {
+    const found = atOrAbove(all, b.severity);
+    return { ...b, found, exceeded: found > b.allowed };
+  });
+  const listed = (s: Severity) => SEVERITIES.indexOf(s) <= SEVERITIES.indexOf(options.show);
+  let hidden: Summary = { errors: 0, warnings: 0, infos: 0, hints: 0 };
+  if (options.show !== 'hint') {
+    report.files = report.files.map((f) => ({ ...f, findings: f.findings.filter((x) => listed(x.severity)) }));
+    const shownCount = summarize(report.files);
+    hidden = { errors: 0, warnings: all.warnings - shownCount.warnings, infos: all.infos - shownCount.infos, hints: all.hints - shownCount.hints };
   }
+  report.outcome = { counted: all, hidden, show: options.show, budgets };
 
   if (options.format === 'json') io.stdout(formatJson(report));
   else if (options.format === 'sarif') io.stdout(formatSarif(report, { version: CHECK_TOOL_VERSION, rules: ALL_RULE_METAS }));
-  else if (!options.quiet || all.errors > 0 || all.warnings > options.maxWarnings || report.notices.length) {
-    const color = io.isTTY && !io.env.NO_COLOR;
-    io.stdout(formatText(report, { color, hidden }));
-  }
+  else io.stdout(formatText(report, { color: io.isTTY && !io.env.NO_COLOR }));
 
   if (report.notices.some((n) => n.level === 'error')) return 2;
-  if (all.errors > 0 || all.warnings > options.maxWarnings) return 1;
-  return 0;
+  return budgets.some((b) => b.exceeded) ? 1 : 0;
 }
 
 /** Pairing warnings name absolute paths; show them relative to the run's folder. */

@@ -42,7 +42,15 @@ export interface JsonOutput {
   files: { path: string; findings: JsonFinding[] }[];
   /** Files that were found but not analysed (binary, not UTF-8, too large). */
   skipped: { path: string; reason: string }[];
-  summary: { errors: number; warnings: number; infos: number; hints: number; files: number };
+  /** Every finding of the run, listed or not (`hidden`: how many `--show` left out). */
+  summary: { errors: number; warnings: number; infos: number; hints: number; files: number; hidden: number; budgets: JsonBudget[] };
+}
+
+export interface JsonBudget {
+  severity: 'error' | 'warning' | 'info' | 'hint';
+  allowed: number;
+  found: number;
+  exceeded: boolean;
 }
 
 export function toJson(report: CheckReport): JsonOutput {
@@ -72,7 +80,19 @@ export function toJson(report: CheckReport): JsonOutput {
     formatVersion: JSON_FORMAT_VERSION,
     files,
     skipped: report.skipped.map((s) => ({ path: displayPath(report.cwd, s.path), reason: s.reason })),
-    summary: { ...summarize(report.files), files: report.files.length },
+    summary: summaryOf(report),
+  };
+}
+
+function summaryOf(report: CheckReport): JsonOutput['summary'] {
+  const outcome = report.outcome;
+  const counted = outcome?.counted ?? summarize(report.files);
+  const h = outcome?.hidden;
+  return {
+    ...counted,
+    files: report.files.length,
+    hidden: h ? h.errors + h.warnings + h.infos + h.hints : 0,
+    budgets: (outcome?.budgets ?? []).map((b) => ({ severity: b.severity, allowed: b.allowed, found: b.found, exceeded: b.exceeded })),
   };
 }
 

@@ -3,7 +3,7 @@
  * text of every file a location can point into (so offsets become lines and columns).
  */
 import { isAbsolute, relative, resolve, sep } from 'node:path';
-import type { Finding, Severity } from '../../base/findings';
+import { SEVERITIES, type Finding, type Severity } from '../../base/findings';
 import { LineIndex, type Position } from '../../parse/lineIndex';
 import type { Span } from '../../parse/types';
 
@@ -29,6 +29,27 @@ export interface CheckReport {
   otherTexts: Map<string, string>;
   /** One-line I/O errors and warnings of the run (also written to stderr). */
   notices: { level: 'error' | 'warning'; message: string }[];
+  /** What `check` counted and judged; `files` may list fewer findings (its `--show` view). */
+  outcome?: CheckOutcome;
+}
+
+export interface BudgetResult {
+  severity: Severity;
+  /** Findings at or above `severity` that may pass. */
+  allowed: number;
+  /** Given on the command line (not the built-in `error=0`). */
+  explicit: boolean;
+  found: number;
+  exceeded: boolean;
+}
+
+export interface CheckOutcome {
+  /** Every finding of the run, listed or not. */
+  counted: Summary;
+  /** Findings fainter than `show`, counted but not listed. */
+  hidden: Summary;
+  show: Severity;
+  budgets: BudgetResult[];
 }
 
 export interface Summary {
@@ -43,6 +64,12 @@ export function summarize(files: readonly CheckedFile[]): Summary {
   const key: Record<Severity, keyof Summary> = { error: 'errors', warning: 'warnings', info: 'infos', hint: 'hints' };
   for (const f of files) for (const finding of f.findings) s[key[finding.severity]]++;
   return s;
+}
+
+/** Findings at `severity` or more severe. */
+export function atOrAbove(s: Summary, severity: Severity): number {
+  const order: (keyof Summary)[] = ['errors', 'warnings', 'infos', 'hints'];
+  return order.slice(0, SEVERITIES.indexOf(severity) + 1).reduce((n, k) => n + s[k], 0);
 }
 
 /** Path relative to the run's folder, with forward slashes (absolute when it is on another drive). */

@@ -1,14 +1,13 @@
 /**
  * `check --format text`: one line per finding, `path:line:col severity rule message` (1-based
- * line and column, as editors and terminals jump to them), then one summary line.
+ * line and column, as editors and terminals jump to them), then one summary line, and one line
+ * per budget given on the command line that the run exceeds.
  */
 import type { Severity } from '../../base/findings';
-import { displayPath, Locator, summarize, type CheckReport, type Summary } from './report';
+import { displayPath, Locator, summarize, type CheckReport } from './report';
 
 export interface TextOptions {
   color: boolean;
-  /** Warnings and below were left out of the report (--quiet); the summary says how many. */
-  hidden?: Summary;
 }
 
 const SGR = {
@@ -41,7 +40,12 @@ export function formatText(report: CheckReport, options: TextOptions): string {
       lines.push(`${paint(SGR.bold, where)} ${paint(SEVERITY_COLOR[f.severity], f.severity)} ${paint(SGR.dim, f.rule)} ${printable(f.message)}`);
     }
   }
-  lines.push(summaryLine(report, options, paint));
+  lines.push(summaryLine(report, paint));
+  for (const b of report.outcome?.budgets ?? []) {
+    if (!b.explicit || !b.exceeded) continue;
+    const what = b.severity === 'hint' ? count(b.found, 'finding') : `${count(b.found, 'finding')} at ${b.severity} or above`;
+    lines.push(paint(SGR.red, `Over budget: ${what}, ${b.allowed} may pass (--budget ${b.severity}=${b.allowed}).`));
+  }
   return `${lines.join('\n')}\n`;
 }
 
@@ -49,16 +53,17 @@ function count(n: number, word: string): string {
   return `${n} ${word}${n === 1 ? '' : 's'}`;
 }
 
-function summaryLine(report: CheckReport, options: TextOptions, paint: (code: string, s: string) => string): string {
-  const s = summarize(report.files);
+function summaryLine(report: CheckReport, paint: (code: string, s: string) => string): string {
+  const s = report.outcome?.counted ?? summarize(report.files);
+  const h = report.outcome?.hidden;
   const checked = `${count(report.files.length, 'file')} checked`;
   const skipped = report.skipped.length ? `, ${report.skipped.length} skipped` : '';
-  const hidden = options.hidden && options.hidden.warnings + options.hidden.infos + options.hidden.hints > 0
+  const hidden = h && h.warnings + h.infos + h.hints > 0
     ? ` (${[
-        options.hidden.warnings ? count(options.hidden.warnings, 'warning') : '',
-        options.hidden.infos ? count(options.hidden.infos, 'info') : '',
-        options.hidden.hints ? count(options.hidden.hints, 'hint') : '',
-      ].filter(Boolean).join(', ')} not shown: --quiet)`
+        h.warnings ? count(h.warnings, 'warning') : '',
+        h.infos ? count(h.infos, 'info') : '',
+        h.hints ? count(h.hints, 'hint') : '',
+      ].filter(Boolean).join(', ')} not listed: --show ${report.outcome!.show})`
     : '';
   const total = s.errors + s.warnings + s.infos + s.hints;
   if (total === 0) return `${paint(SGR.green, 'No findings')} in ${checked}${skipped}${hidden}.`;
