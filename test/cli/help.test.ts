@@ -1,0 +1,30 @@
+/** The usage text names the project's own flags, and the old ones are refused. */
+import { describe, expect, it } from 'vitest';
+import { main } from '../../server/src/cli/main';
+import type { CliIO } from '../../server/src/cli/io';
+
+async function run(argv: string[]): Promise<{ code: number; out: string; err: string }> {
+  let out = '';
+  let err = '';
+  const io: CliIO = { cwd: process.cwd(), stdout: (t) => void (out += t), stderr: (t) => void (err += t), isTTY: false, env: {} };
+  const code = await main(argv, io);
+  return { code, out, err };
+}
+
+describe('noiselint --help', () => {
+  it('lists check with --show and --budget, and fix with the consents it asks for', async () => {
+    const { code, out } = await run(['--help']);
+    expect(code).toBe(0);
+    expect(out).toContain('noiselint check [paths|globs...] [--format text|json|sarif] [--show <severity>] [--budget <severity>=<N>...]');
+    expect(out).toContain('noiselint fix [paths...] [--accept-retraining] [--accept-comment-edits] [--dry-run]');
+    expect(out).not.toMatch(/--unsafe|--quiet|--max-warnings/);
+  });
+
+  it('refuses the flags it no longer has, in one line with exit code 2', async () => {
+    for (const argv of [['fix', '--unsafe', '.'], ['check', '--quiet'], ['check', '--max-warnings', '0']]) {
+      const r = await run(argv);
+      expect(r.code, argv.join(' ')).toBe(2);
+      expect(r.err.trim().split('\n'), argv.join(' ')).toHaveLength(1);
+    }
+  });
+});
