@@ -14,7 +14,7 @@ export type { AnalyzeOptions, DocumentResult, FileReading, FileResult } from './
 /** Parse, resolve and analyse without running rules (explain, hover, plot). */
 export function readFile(text: string, options: AnalyzeOptions): FileReading {
   const format = options.format ?? formatFromPath(options.path) ?? 'yaml';
-  const parsed = parseText(text, format, { ...options.project?.limits, ...options.limits });
+  const parsed = parseText(text, format, { ...options.project?.limits, ...options.limits }, options.parse);
   const documents: DocumentResult[] = parsed.documents.map((doc) => {
     const setup = buildSetup(doc, {
       extraAliases: options.project?.aliases,

@@ -3,6 +3,7 @@
  * same with its findings (`FileResult`), the options of a read, and the resolved project
  * settings the engine applies. Named once here; every stage above uses these names.
  */
+import type { ParseOptions } from '../parse/parseText';
 import type { Finding, Severity } from '../base/findings';
 import type { Concept } from '../fields/concepts';
 import type { ParsedFile, ParseLimits, SourceFormat } from '../parse/types';
@@ -53,6 +54,8 @@ export interface AnalyzeOptions {
   partners?: PartnerDocument[];
   pairRole?: 'training' | 'sampling';
   limits?: Partial<ParseLimits>;
+  /** How the text is parsed: what scalars mean, or the exact YAML reader only (tests). */
+  parse?: ParseOptions;
 }
 
 export interface DocumentResult {

@@ -7,6 +7,8 @@ import { detectLineEnding, hasBom } from './textInfo';
 import type { ParsedDocument, ParsedFile, ParseLimits, ParseProblem, SourceFormat } from './types';
 import { readToml } from './toml';
 import { readYaml } from './yaml';
+import { readYamlFast } from './fastYaml';
+import { coreScalar, type ScalarInterpreter } from './scalars';
 
 /** Format from a file name or URI: `.yaml`/`.yml`, `.json`, `.jsonc`, `.toml` (case-insensitive). */
 export function formatFromPath(path: string): SourceFormat | null {
@@ -28,7 +30,14 @@ export function formatFromPath(path: string): SourceFormat | null {
   }
 }
 
-export function parseText(text: string, format: SourceFormat, limits?: Partial<ParseLimits>): ParsedFile {
+export interface ParseOptions {
+  /** What each scalar means (default: the YAML 1.2 core schema, JSON's own types). */
+  interpret?: ScalarInterpreter;
+  /** Skip the fast YAML reader (the differential test compares both). */
+  exact?: boolean;
+}
+
+export function parseText(text: string, format: SourceFormat, limits?: Partial<ParseLimits>, options: ParseOptions = {}): ParsedFile {
   const safeText = typeof text === 'string' ? text : '';
   const bom = hasBom(safeText);
   const base = { format, text: safeText, bom, lineEnding: detectLineEnding(safeText) };
@@ -46,8 +55,13 @@ export function parseText(text: string, format: SourceFormat, limits?: Partial<P
       });
       return { ...base, documents: [], problems, suppressions: [], comments: [] };
     }
+    const interpret = options.interpret ?? coreScalar;
     const read =
-      format === 'yaml' ? readYaml(safeText, lim) : format === 'toml' ? readToml(safeText, lim, bom) : readJson(safeText, format, lim, bom);
+      format === 'yaml'
+        ? ((!options.exact && readYamlFast(safeText, lim, interpret)) || readYaml(safeText, lim, interpret))
+        : format === 'toml'
+          ? readToml(safeText, lim, bom)
+          : readJson(safeText, format, lim, bom);
     documents = read.documents;
     problems.push(...read.problems);
     comments = read.comments;

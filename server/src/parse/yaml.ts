@@ -31,6 +31,7 @@ import {
   type Cut,
   type SourceComment,
 } from './shared';
+import { coreScalar, type ScalarInterpreter } from './scalars';
 
 export interface YamlReadResult {
   documents: ParsedDocument[];
@@ -42,7 +43,7 @@ const CORE_TAGS = new Set(
   ['str', 'int', 'float', 'bool', 'null', 'map', 'seq'].map((t) => `tag:yaml.org,2002:${t}`),
 );
 
-export function readYaml(text: string, limits: ParseLimits): YamlReadResult {
+export function readYaml(text: string, limits: ParseLimits, interpret: ScalarInterpreter = coreScalar): YamlReadResult {
   const problems: ParseProblem[] = [];
   const tokens = Array.from(new Parser().parse(text));
   const { comments, cuts } = scanCst(tokens, limits.maxNesting);
@@ -67,7 +68,7 @@ export function readYaml(text: string, limits: ParseLimits): YamlReadResult {
   const documents = docs.map((doc, index) => {
     for (const e of doc.errors) problems.push(libProblem(e, 'error', text));
     for (const w of doc.warnings) problems.push(libProblem(w, 'warning', text));
-    const converter = new DocumentConverter(text, limits, cutStarts, problems);
+    const converter = new DocumentConverter(text, limits, cutStarts, problems, interpret);
     const contents = doc.contents as YamlNode | null;
     const root = contents && !isEmptyScalar(contents) ? converter.convertRoot(contents) : null;
     const [start, , end] = doc.range;
@@ -251,6 +252,7 @@ class DocumentConverter {
     private readonly limits: ParseLimits,
     private readonly cutStarts: Map<number, Cut>,
     private readonly problems: ParseProblem[],
+    private readonly interpret: ScalarInterpreter,
   ) {
     this.aliasNodeBudget = Math.max(1, limits.maxAliasCount) * 1000;
   }
@@ -317,24 +319,28 @@ class DocumentConverter {
     const cut = this.cutStarts.get(span.start);
     if (cut) return placeholderFor(this.text, cut);
     let value: ScalarValue;
-    const tag = node.tag;
     const style = scalarStyle(node.type);
-    if (tag && !CORE_TAGS.has(tag) && style === 'plain' && typeof node.source === 'string') {
-      // A custom tag is never applied: read the text as the core schema would.
-      value = resolveCorePlain(node.source);
-    } else {
-      value = toScalarValue(node.value);
-    }
-    // The yaml library builds quoted strings piece by piece: a V8 rope that costs ~30 bytes per
-    // character until something flattens it. Flatten long ones here (a 1 MB string kept 32 MB).
-    if (typeof value === 'string' && value.length > 1024) value = flatString(value);
     if (style === 'block') {
       // Keep the trailing line break out of the span (entries end at the value's last character).
       let end = span.end;
       while (end > span.start && /[\r\n \t]/.test(this.text[end - 1])) end--;
       span = { start: span.start, end };
     }
+    value = this.scalarValue(node, span);
+    // The yaml library builds quoted strings piece by piece: a V8 rope that costs ~30 bytes per
+    // character until something flattens it. Flatten long ones here (a 1 MB string kept 32 MB).
+    if (typeof value === 'string' && value.length > 1024) value = flatString(value);
     return { kind: 'scalar', value, raw: this.text.slice(span.start, span.end), style, span };
+  }
+
+  /** The scalar's value: through the interpreter, unless an explicit core tag decides the type. */
+  private scalarValue(node: Scalar, span: Span = this.spanOf(node)): ScalarValue {
+    const tag = node.tag;
+    if (tag && CORE_TAGS.has(tag)) return toScalarValue(node.value);
+    // A custom tag is never applied: the text is read as an untagged scalar would be.
+    const style = scalarStyle(node.type);
+    const decoded = style === 'plain' && typeof node.source === 'string' ? node.source : String(toScalarValue(node.value));
+    return this.interpret({ source: this.text.slice(span.start, span.end), style, decoded, ...(tag ? { tag } : {}) });
   }
 
   private convertMap(node: YAMLMap, depth: number): Converted {
@@ -414,11 +420,7 @@ class DocumentConverter {
     let target: YamlNode | undefined = keyNode;
     if (isAlias(keyNode)) target = this.lookupAnchor(keyNode.source, keyNode.range?.[0] ?? 0);
     const keySpan = this.spanOf(keyNode);
-    if (target && isScalar(target)) {
-      const v = target.value;
-      const key = typeof v === 'string' ? v : String(toScalarValue(v));
-      return { key, keySpan };
-    }
+    if (target && isScalar(target)) return { key: keyText(this.scalarValue(target)), keySpan };
     return { key: shorten(this.text.slice(keySpan.start, keySpan.end), 200), keySpan };
   }
 
@@ -516,6 +518,11 @@ function scalarStyle(type: Scalar.Type | undefined): LocatedScalar['style'] {
   }
 }
 
+/** A mapping key's text: the scalar's value as a string (`1: x` has the key "1"). */
+export function keyText(v: ScalarValue): string {
+  return typeof v === 'string' ? v : String(v);
+}
+
 function toScalarValue(v: unknown): ScalarValue {
   if (v === null || v === undefined) return null;
   if (typeof v === 'string' || typeof v === 'number' || typeof v === 'boolean') return v;
@@ -524,17 +531,4 @@ function toScalarValue(v: unknown): ScalarValue {
   return String(v);
 }
 
-/** YAML 1.2 core schema resolution of a plain scalar (used when a custom tag is ignored). */
-export function resolveCorePlain(source: string): ScalarValue {
-  const s = source.trim();
-  if (s === '' || s === '~' || /^(null|Null|NULL)$/.test(s)) return null;
-  if (/^(true|True|TRUE)$/.test(s)) return true;
-  if (/^(false|False|FALSE)$/.test(s)) return false;
-  if (/^[-+]?[0-9]+$/.test(s)) return Number(s);
-  if (/^0o[0-7]+$/.test(s)) return parseInt(s.slice(2), 8);
-  if (/^0x[0-9a-fA-F]+$/.test(s)) return parseInt(s.slice(2), 16);
-  if (/^[-+]?(\.[0-9]+|[0-9]+(\.[0-9]*)?)([eE][-+]?[0-9]+)?$/.test(s)) return Number(s);
-  if (/^[-+]?\.(inf|Inf|INF)$/.test(s)) return s.startsWith('-') ? -Infinity : Infinity;
-  if (/^\.(nan|NaN|NAN)$/.test(s)) return NaN;
-  return s;
-}
+export { resolveCorePlain } from './scalars';

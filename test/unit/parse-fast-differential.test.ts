@@ -1,0 +1,170 @@
+/**
+ * The fast YAML reader (parse/fastYaml.ts) against the exact one (parse/yaml.ts): for every YAML
+ * file of the repository's fixtures and examples, the benchmark corpus and generated configs, the
+ * two give the same tree, problems, comments and suppressions, and the same findings. The exact
+ * reader is the reference; the fast one must either agree or give up (and then the exact one
+ * reads the file).
+ */
+import { readdirSync, readFileSync, statSync } from 'node:fs';
+import { join } from 'node:path';
+import fc from 'fast-check';
+import { describe, expect, it } from 'vitest';
+import { renderConfig, samplingConfig, trainingConfig } from '../../bench/corpus';
+import { analyzeText } from '../../server/src/engine/api';
+import { parseText } from '../../server/src/parse';
+import { readYamlFast } from '../../server/src/parse/fastYaml';
+import { coreScalar } from '../../server/src/parse/scalars';
+import { resolveLimits } from '../../server/src/parse/shared';
+
+const repo = join(__dirname, '..', '..');
+
+function yamlFilesUnder(dir: string, out: string[] = []): string[] {
+  for (const name of readdirSync(dir)) {
+    if (name === 'node_modules' || name === 'corpus' || name === 'artifacts') continue;
+    const p = join(dir, name);
+    if (statSync(p).isDirectory()) yamlFilesUnder(p, out);
+    else if (/\.ya?ml$/i.test(name)) out.push(p);
+  }
+  return out;
+}
+
+const takesFastPath = (text: string) => readYamlFast(text, resolveLimits(), coreScalar) !== null;
+
+/** Everything but the text itself, with NaN made comparable. */
+function comparable(text: string, exact: boolean): unknown {
+  const parsed = parseText(text, 'yaml', undefined, { exact });
+  return JSON.parse(
+    JSON.stringify(
+      { documents: parsed.documents, problems: parsed.problems, comments: parsed.comments, suppressions: parsed.suppressions, lineEnding: parsed.lineEnding },
+      (_k, v) => (typeof v === 'number' && !Number.isFinite(v) ? `number:${v}` : v),
+    ),
+  );
+}
+
+function expectSameReading(text: string, path = 'config.yaml'): void {
+  expect(comparable(text, false)).toEqual(comparable(text, true));
+  const fast = analyzeText(text, { path });
+  const exact = analyzeText(text, { path, parse: { exact: true } });
+  expect(fast.findings).toEqual(exact.findings);
+}
+
+describe('fast YAML reader agrees with the exact reader', () => {
+  const files = [...yamlFilesUnder(join(repo, 'test')), ...yamlFilesUnder(join(repo, 'examples'))];
+
+  it('on every YAML fixture and example of the repository', () => {
+    let fast = 0;
+    for (const file of files) {
+      const text = readFileSync(file, 'utf8');
+      if (takesFastPath(text)) fast++;
+      expectSameReading(text, file);
+    }
+    // Most fixtures are ordinary configs: the fast reader must really be the one reading them.
+    expect(files.length).toBeGreaterThan(50);
+    expect(fast).toBeGreaterThan(files.length / 2);
+  });
+
+  it('on the benchmark corpus configs, all of which take the fast path', () => {
+    for (let i = 0; i < 300; i++) {
+      const text = renderConfig(i % 2 ? samplingConfig(i) : trainingConfig(i), 'yaml', i);
+      expect(takesFastPath(text)).toBe(true);
+      expectSameReading(text);
+    }
+  });
+
+  it('on hand-picked shapes: duplicates, empty values, flow collections, quoting, comments', () => {
+    const cases = [
+      'a: 1\na: 2\n',
+      'sched:\n  beta_schedule: linear\n  beta_schedule: cosine\n',
+      'a:\nb: ~\nc: null\n',
+      'a: {}\nb: []\nc: [ ]\nd: { x: 1 , }\n',
+      'a: [1, [2, 3], {b: c}]  # after\n',
+      'a: "x # y"  # real\nb: \'it\'\'s\'\n',
+      '"k": 1\n\'q\': 2\n',
+      'a: multi\n  line plain\nb: "multi\n  line quoted"\n',
+      'list:\n- 1\n- two\n-   three\n',
+      'n:\n  - a: 1\n    b: 2\n  - c: 3\n',
+      '#only\na: 1 #x\n#tail',
+      'a: 1e3\nb: 0x10\nc: .5\nd: +7\ne: 1_000\n',
+      '1: one\ntrue: yes\n~: nothing\n',
+      '[1, 2, 3]\n',
+      'plain scalar root\n',
+      'a: b\n\n\n',
+      'a: 1\r\nb:\r\n  c: 2 # x\r\n',
+    ];
+    for (const text of cases) expectSameReading(text);
+  });
+
+  it('gives up on the rare features it leaves to the exact reader', () => {
+    const rare = [
+      'a: &x 1\nb: *x\n',
+      'base: &b {x: 1}\nrun:\n  <<: *b\n',
+      'a: !!str 1\n',
+      'a: 1\n---\nb: 2\n',
+      '%YAML 1.2\n---\na: 1\n',
+      '\uFEFFa: 1\n',
+      'a: |\n  text\n',
+      'a: [1, 2\n',
+      'a:\n\t- 1\n',
+      'a: 1\rb: 2\r',
+      '- \n- 1\n',
+      '? [a]\n: 1\n',
+    ];
+    for (const text of rare) {
+      expect(takesFastPath(text), JSON.stringify(text)).toBe(false);
+      // And the result is still the exact reader's.
+      expect(comparable(text, false)).toEqual(comparable(text, true));
+    }
+  });
+
+  it('on generated configs (property)', () => {
+    const key = fc.constantFrom(
+      'num_train_timesteps', 'beta_schedule', 'beta_start', 'beta_end', 'prediction_type', 'timestep_spacing',
+      'num_inference_steps', 'guidance_scale', 'guidance_rescale', 'steps_offset', 'sampler', 'run', 'lr', 'notes',
+      'rescale_betas_zero_snr', 'noise_offset', '"quoted key"', "'single key'", 'numTrainTimesteps', 'a-b', '1', 'true',
+    );
+    const scalar = fc.oneof(
+      fc.constantFrom(
+        '1000', '0.00085', '1e-4', '1.0e-4', '.5', '-0', '+12', '0x1F', '0o17', '1_000', '.inf', '-.Inf', '.nan', '~', 'null',
+        'Null', 'true', 'False', 'yes', 'off', 'scaled_linear', 'v_prediction', 'trailing', 'euler a', '007', '1.', '12:30',
+        '"7.5"', "'it''s'", '"tab\\tand \\u00e9"', '""', "''", '"a # not a comment"', 'x#y', '"multi word"',
+      ),
+      fc.integer({ min: -5, max: 5000 }).map(String),
+      fc.double({ min: 0, max: 1, noNaN: true }).map(String),
+    );
+    const comment = fc.constantFrom('', '', '  # note', ' # noiselint: allow terminal-snr-leak', ' #');
+    type Tree = { [k: string]: Tree | string | string[] };
+    const tree: fc.Arbitrary<Tree> = fc.letrec<{ t: Tree }>((tie) => ({
+      t: fc.dictionary(key, fc.oneof({ depthSize: 'small' }, scalar, scalar, fc.array(scalar, { maxLength: 4 }), tie('t')), { minKeys: 1, maxKeys: 6 }),
+    })).t;
+    const render = (t: Tree, indent: number, comments: string[], flow: boolean): string => {
+      const pad = ' '.repeat(indent);
+      let k = 0;
+      return Object.entries(t)
+        .map(([name, v]) => {
+          const c = comments[k++ % comments.length];
+          if (typeof v === 'string') return `${pad}${name}: ${v}${c}`;
+          if (Array.isArray(v)) {
+            if (flow || v.length === 0) return `${pad}${name}: [${v.join(', ')}]${c}`;
+            return `${pad}${name}:${c}\n${v.map((x) => `${pad}  - ${x}`).join('\n')}`;
+          }
+          if (flow) return `${pad}${name}: {${Object.entries(v).map(([a, b]) => `${a}: ${typeof b === 'string' ? b : '1'}`).join(', ')}}`;
+          return `${pad}${name}:${c}\n${render(v, indent + 2, comments, flow)}`;
+        })
+        .join('\n');
+    };
+    let runs = 0;
+    let fast = 0;
+    fc.assert(
+      fc.property(tree, fc.array(comment, { minLength: 1, maxLength: 4 }), fc.boolean(), fc.boolean(), fc.boolean(), (t, comments, flow, crlf, header) => {
+        let text = `${header ? '# Lanternfish Pictures (generated)\n\n' : ''}${render(t, 0, comments, flow)}\n`;
+        if (crlf) text = text.replace(/\n/g, '\r\n');
+        runs++;
+        if (takesFastPath(text)) fast++;
+        expectSameReading(text);
+      }),
+      { numRuns: 300, seed: 12 },
+    );
+    // The property is about the fast reader: most generated configs must reach it.
+    expect(fast).toBeGreaterThan(runs * 0.6);
+  });
+});
