@@ -15,7 +15,7 @@ import { discoverFiles } from '../server/src/workspace/discover';
 import { nodeFs, readTextFile } from '../server/src/workspace/fs';
 import { clearProjectCache, loadProject } from '../server/src/workspace/projectFile';
 
-export { writeCorpus, writeMonorepo } from './corpus';
+export { writeCorpus, writeMonorepo } from '../test/load/corpus';
 export { LspTestClient } from '../test/load/lspClient';
 export { configText } from '../test/load/texts';
 

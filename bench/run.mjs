@@ -151,7 +151,7 @@ if (only.has('a')) {
   const row = (label, t) => `| ${label} | ${ms(t)} | ${perFile(t, n)} | ${ratio(t, m.plain)}x | ${ratio(t, m.ajv)}x |`;
   sections.push(`## (a) \`check\` over a corpus of ${n} diffusion configs
 
-Corpus: ${n} generated Lanternfish Pictures configs (bench/corpus.ts; 60% YAML, 30% JSON,
+Corpus: ${n} generated Lanternfish Pictures configs (test/load/corpus.ts; 60% YAML, 30% JSON,
 10% JSONC; training and sampling files in folders of 20), ${mb(bytes)} MB in total.
 Median of ${REPS} interleaved passes after one warm-up pass, all in one process.
 
@@ -196,7 +196,7 @@ if (only.has('e')) {
   const row = (label, t) => `| ${label} | ${ms(t)} | ${perFile(t, n)} | ${ratio(t, m.plain)}x | ${ratio(t, m.ajv)}x |`;
   sections.push(`## (e) \`check\` over a monorepo-like tree
 
-Tree: ${n} files (bench/corpus.ts \`writeMonorepo\`), ${mb(bytes)} MB: ${mix.diffusion} diffusion training and
+Tree: ${n} files (test/load/corpus.ts \`writeMonorepo\`), ${mb(bytes)} MB: ${mix.diffusion} diffusion training and
 sampling configs among ${mix.other} others (service manifests with two documents each, package
 manifests, CI workflows, compose files, configs of non-diffusion models with optimizer \`betas\`).
 Median of ${REPS} interleaved passes after one warm-up pass.

@@ -9,7 +9,7 @@ import { readdirSync, readFileSync, statSync } from 'node:fs';
 import { join } from 'node:path';
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import { renderConfig, samplingConfig, trainingConfig } from '../../bench/corpus';
+import { renderConfig, samplingConfig, trainingConfig } from '../load/corpus';
 import { analyzeText } from '../../server/src/engine/api';
 import { parseText } from '../../server/src/parse';
 import { readYamlFast } from '../../server/src/parse/fastYaml';
