@@ -7,7 +7,7 @@
  * quoted scalars) and gives up, returning null, on anything rarer: a parse error, anchors,
  * aliases, tags, merge keys, several documents or explicit document markers, directives, a BOM,
  * block scalars, tabs, lone CR line ends, empty list items or keys, collection keys, lists longer
- * than the limit or nesting deeper than it. The caller then reads the text with the exact reader
+ * than the limit or nesting deeper than it, texts over 512 KiB. The caller then reads the text with the exact reader
  * (yaml.ts), so the result is always the one that reader would give; a differential test keeps the
  * two identical (test/parse/fastParse.test.ts).
  */
@@ -31,6 +31,12 @@ const FLOW = 2;
 
 /** Longest implicit key the exact reader accepts without an error (YAML's 1024-character rule). */
 const MAX_KEY_LENGTH = 1000;
+
+/**
+ * Larger texts go straight to the exact reader: configs are far smaller, and a huge file that
+ * turns out to need the exact reader (a list past the limit) would otherwise be parsed twice.
+ */
+const MAX_FAST_LENGTH = 512 * 1024;
 
 /** Why the fast reader gave up (for tests and profiles); the caller only needs null. */
 class Unsupported extends Error {}
@@ -65,7 +71,7 @@ export function readYamlFast(text: string, limits: ParseLimits, interpret: Scala
 
 /** Cheap text checks for features the fast reader leaves to the exact one. */
 function quickEligible(text: string): boolean {
-  if (text.length === 0 || text.charCodeAt(0) === 0xfeff) return false;
+  if (text.length === 0 || text.length > MAX_FAST_LENGTH || text.charCodeAt(0) === 0xfeff) return false;
   if (text.indexOf('\t') !== -1) return false;
   for (let i = text.indexOf('\r'); i !== -1; i = text.indexOf('\r', i + 1)) {
     if (text.charCodeAt(i + 1) !== 10) return false;
