@@ -106,9 +106,12 @@ export async function checkCommand(dir: string, extraArgs: string[] = []): Promi
 
 /** The `summary` object at the end of a JSON report. */
 export function reportSummary(tail: string): Record<string, number> {
-  const m = /"summary"\s*:\s*(\{[^{}]*\})\s*\}\s*$/.exec(tail);
-  if (!m) throw new Error(`no summary at the end of the JSON report: ${tail.slice(-200)}`);
-  return JSON.parse(m[1]) as Record<string, number>;
+  const at = tail.lastIndexOf('"summary"');
+  const end = tail.lastIndexOf('}');
+  if (at < 0 || end < 0) throw new Error(`no summary at the end of the JSON report: ${tail.slice(-200)}`);
+  const body = tail.slice(tail.indexOf(':', at) + 1, end);
+  const summary = JSON.parse(body) as Record<string, unknown>;
+  return Object.fromEntries(Object.entries(summary).filter(([, v]) => typeof v === 'number')) as Record<string, number>;
 }
 
 /** Total findings of a report summary. */

@@ -129,6 +129,7 @@ describe('check --format json', () => {
       infos: 0,
       hints: 0,
       files: 1,
+      passedOver: 0,
       hidden: 1,
       budgets: [
         { severity: 'error', allowed: 0, found: 0, exceeded: false },

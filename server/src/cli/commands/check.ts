@@ -15,6 +15,7 @@ import { discoverFiles } from '../../workspace/discover';
 import { nodeFs, type WorkspaceFs } from '../../workspace/fs';
 import { loadProject, ProjectFileError, type ResolvedProject } from '../../workspace/project';
 import { WorkspaceSession } from '../../workspace/session';
+import { mayBeDiffusionConfig } from '../../engine/prefilter';
 
 import { UsageError, type CliIO } from '../io';
 import { formatJson } from '../output/json';
@@ -131,6 +132,11 @@ export async function check(options: CheckOptions, io: CliIO, fs: WorkspaceFs = 
         report.skipped.push({ path: file, reason: read.problem });
         io.stderr(`noiselint check: ${shown(file)}: ${read.problem}\n`);
       }
+      continue;
+    }
+    // A text that names no schedule or step-count key cannot hold a finding: not parsed at all.
+    if (!mayBeDiffusionConfig(read.text, project.aliases)) {
+      report.passedOver = (report.passedOver ?? 0) + 1;
       continue;
     }
     let result: FileResult;

@@ -43,7 +43,11 @@ export interface JsonOutput {
   /** Files that were found but not analysed (binary, not UTF-8, too large). */
   skipped: { path: string; reason: string }[];
   /** Every finding of the run, listed or not (`hidden`: how many `--show` left out). */
-  summary: { errors: number; warnings: number; infos: number; hints: number; files: number; hidden: number; budgets: JsonBudget[] };
+  /**
+   * `files`: files checked and listed; `passedOver`: files whose text names no schedule or
+   * step-count key, so they were not parsed (and are not listed).
+   */
+  summary: { errors: number; warnings: number; infos: number; hints: number; files: number; passedOver: number; hidden: number; budgets: JsonBudget[] };
 }
 
 export interface JsonBudget {
@@ -91,6 +95,7 @@ function summaryOf(report: CheckReport): JsonOutput['summary'] {
   return {
     ...counted,
     files: report.files.length,
+    passedOver: report.passedOver ?? 0,
     hidden: h ? h.errors + h.warnings + h.infos + h.hints : 0,
     budgets: (outcome?.budgets ?? []).map((b) => ({ severity: b.severity, allowed: b.allowed, found: b.found, exceeded: b.exceeded })),
   };

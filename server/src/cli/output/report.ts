@@ -29,6 +29,11 @@ export interface CheckReport {
   otherTexts: Map<string, string>;
   /** One-line I/O errors and warnings of the run (also written to stderr). */
   notices: { level: 'error' | 'warning'; message: string }[];
+  /**
+   * Files read but passed over before parsing: their text names no schedule or step-count key,
+   * so they cannot be diffusion configs (engine/prefilter.ts). Not listed in `files`.
+   */
+  passedOver?: number;
   /** What `check` counted and judged; `files` may list fewer findings (its `--show` view). */
   outcome?: CheckOutcome;
 }

@@ -57,7 +57,9 @@ function summaryLine(report: CheckReport, paint: (code: string, s: string) => st
   const s = report.outcome?.counted ?? summarize(report.files);
   const h = report.outcome?.hidden;
   const checked = `${count(report.files.length, 'file')} checked`;
-  const skipped = report.skipped.length ? `, ${report.skipped.length} skipped` : '';
+  const skipped =
+    (report.skipped.length ? `, ${report.skipped.length} skipped` : '') +
+    (report.passedOver ? `, ${count(report.passedOver, 'other file')} passed over (no schedule or step-count key)` : '');
   const hidden = h && h.warnings + h.infos + h.hints > 0
     ? ` (${[
         h.warnings ? count(h.warnings, 'warning') : '',

@@ -1,0 +1,77 @@
+/**
+ * A test on the raw text, before any parse: can this file be a diffusion config at all?
+ *
+ * A document is recognised as one only through a schedule concept or a sampling step count
+ * (setup/buildSetup.ts, "Recognition"), and every finding about a file needs that recognition
+ * (or, for a file with a syntax error, one of the key names in the engine's CONFIG_KEY_HINT,
+ * which are spellings of the same concepts). So a text in which no spelling of those concepts
+ * appears, compared the way keys are compared (lower case, separators dropped: every key
+ * segment of the alias must appear in the text normalised the same way), cannot produce a
+ * finding, and is passed over unread. Texts with a backslash are always read: an escape inside a
+ * quoted key can spell a key that the raw text does not show.
+ *
+ * The concepts that count must cover every recognition path; test/unit/prefilter.test.ts proves
+ * that no fixture or example with findings is passed over.
+ */
+import type { Concept } from '../fields/concepts';
+import { KEY_ALIASES } from '../fields/aliases';
+import { keySegments } from '../fields/normalize';
+import { SCHEDULE_CONCEPTS } from '../setup';
+
+/** Concepts whose spellings let a text through. */
+export const PREFILTER_CONCEPTS: readonly Concept[] = [...SCHEDULE_CONCEPTS, 'sampleSteps', 'stepsOffset'];
+
+type Needles = readonly (readonly string[])[];
+
+function needlesFor(extra?: Partial<Record<Concept, readonly string[]>>): Needles {
+  const seen = new Set<string>();
+  const out: string[][] = [];
+  for (const concept of PREFILTER_CONCEPTS) {
+    const spellings = [...KEY_ALIASES[concept].map((a) => a.spelling), ...(extra?.[concept] ?? [])];
+    for (const spelling of spellings) {
+      if (typeof spelling !== 'string') continue;
+      const segs = keySegments(spelling);
+      const id = segs.join('.');
+      // An alias that normalises to nothing could match any key: nothing may be passed over.
+      if (segs.length === 0) return [[]];
+      if (seen.has(id)) continue;
+      seen.add(id);
+      out.push(segs);
+    }
+  }
+  // Shorter needles first: the common spellings are found sooner.
+  return out.sort((a, b) => a.join('').length - b.join('').length);
+}
+
+const builtinNeedles = needlesFor(undefined);
+const extraCache = new WeakMap<object, Needles>();
+
+/** Lower case with every character but a-z and 0-9 dropped: the key normalisation, over a text. */
+export function normalizedText(text: string): string {
+  return text.toLowerCase().replace(/[^a-z0-9]+/g, '');
+}
+
+/**
+ * False when the text cannot hold a diffusion config: none of the recognising concepts' key
+ * spellings (built-in or the project's extra aliases) appears in it. True otherwise.
+ */
+export function mayBeDiffusionConfig(text: string, extraAliases?: Partial<Record<Concept, readonly string[]>>): boolean {
+  if (text.indexOf('\\') !== -1) return true;
+  let needles = builtinNeedles;
+  if (extraAliases && Object.values(extraAliases).some((v) => Array.isArray(v) && v.length > 0)) {
+    needles = extraCache.get(extraAliases) ?? needlesFor(extraAliases);
+    extraCache.set(extraAliases, needles);
+  }
+  const flat = normalizedText(text);
+  for (const segs of needles) {
+    let all = true;
+    for (const seg of segs) {
+      if (flat.indexOf(seg) === -1) {
+        all = false;
+        break;
+      }
+    }
+    if (all) return true;
+  }
+  return false;
+}
