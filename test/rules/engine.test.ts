@@ -52,7 +52,9 @@ describe('a failing rule', () => {
     const broken = fakeRule('broken', () => [{ message: 'x', source: {} as never }]);
     const { findings, errors } = run(LEAKY, [junk, broken, getRule('terminal-snr-leak')!]);
     expect(findings.map((f) => f.rule)).toEqual(['terminal-snr-leak']);
-    expect(errors.map(([id]) => id)).toEqual(['broken']);
+    // Neither is dropped silently: both rules are reported, the junk one with what it returned.
+    expect(errors.map(([id]) => id)).toEqual(['junk', 'broken']);
+    expect(String(errors[0]![1])).toMatch(/returned string, not a list of findings/);
   });
 
   it('a throwing logger does not stop the run either', () => {

@@ -7,7 +7,7 @@ import { CONCEPT_GROUP, type Concept } from '../fields/concepts';
 import { editsTouchComment, rememberOrigin, renderConceptEdits } from '../fix';
 import { LineIndex } from '../parse/lineIndex';
 import type { LocatedMap, LocatedNode, ParsedFile, Span } from '../parse/types';
-import { PARSE_ERROR_ID, RULES, getRuleMeta } from '../rules';
+import { PARSE_ERROR_ID, RULES } from '../rules';
 import type { ConceptFix, Rule, RuleContext, RuleFinding, RuleMeta } from '../rules/types';
 import type { FieldSource, Setup } from '../setup/types';
 import type { AnalyzeOptions, FileReading, ResolvedProject } from './types';
@@ -72,10 +72,13 @@ export function runRules(file: FileReading, options: AnalyzeOptions, hooks: Engi
           report(id, error);
           continue;
         }
-        if (!Array.isArray(results)) continue;
+        if (!Array.isArray(results)) {
+          report(id, new Error(`check returned ${results === null ? 'null' : typeof results}, not a list of findings`));
+          continue;
+        }
         for (const result of results) {
           try {
-            findings.push(toFinding(rule.meta, result, doc.setup, file.parsed, project, lines));
+            findings.push(toFinding(rule.meta, result, doc.setup, file.parsed, project, lines, (error) => report(id, error)));
           } catch (error) {
             report(id, error);
           }
@@ -121,6 +124,7 @@ function toFinding(
   parsed: ParsedFile,
   project: ResolvedProject | undefined,
   lines: LineIndex,
+  onFixFailure: (error: unknown) => void,
 ): Finding {
   const severity = configuredSeverity(meta.id, project) ?? validSeverity(result.severity) ?? meta.defaultSeverity;
   return {
@@ -130,7 +134,7 @@ function toFinding(
     span: locate(result, setup, parsed, lines),
     documentIndex: setup.documentIndex,
     related: relatedLocations(result, setup),
-    fixes: renderFixes(result.fixes ?? [], parsed, setup),
+    fixes: renderFixes(result.fixes ?? [], parsed, setup, onFixFailure),
   };
 }
 
@@ -236,14 +240,19 @@ function relatedLocations(result: RuleFinding, setup: Setup): RelatedLocation[] 
   return out;
 }
 
-function renderFixes(fixes: ConceptFix[], parsed: ParsedFile, setup: Setup): FixProposal[] {
+function renderFixes(fixes: ConceptFix[], parsed: ParsedFile, setup: Setup, onFailure: (error: unknown) => void): FixProposal[] {
   const rendered: (FixProposal & { wanted: boolean })[] = [];
   for (const fix of fixes) {
     if (!fix || !Array.isArray(fix.edits) || fix.edits.length === 0) continue;
     let edits;
     try {
-      edits = renderConceptEdits(parsed, setup, fix.edits);
-    } catch {
+      // A give-up (the text cannot say it without losing a comment or the syntax) is expected;
+      // anything else is a bug worth reporting.
+      edits = renderConceptEdits(parsed, setup, fix.edits, (reason, unexpected) => {
+        if (unexpected) onFailure(new Error(`fix rendering failed: ${reason}`));
+      });
+    } catch (error) {
+      onFailure(error);
       edits = null;
     }
     if (!edits || edits.length === 0) continue;
@@ -324,9 +333,4 @@ function finish(findings: Finding[], parsed: ParsedFile, lines: LineIndex): Find
       a.rule.localeCompare(b.rule) ||
       a.message.localeCompare(b.message),
   );
-}
-
-/** Metadata of a finding's rule id (rules and `parse-error`), for hovers and outputs. */
-export function metaOf(ruleId: string): RuleMeta | undefined {
-  return getRuleMeta(ruleId);
 }

@@ -708,7 +708,13 @@ export function editsKeepSyntax(parsed: ParsedFile, edits: readonly TextEdit[]):
  * Returns [] when the file already says what the edits ask, and null when the edits cannot be
  * written without breaking the text or losing a comment.
  */
-export function renderConceptEdits(parsed: ParsedFile, setup: Setup, edits: ConceptEdit[]): TextEdit[] | null {
+export function renderConceptEdits(
+  parsed: ParsedFile,
+  setup: Setup,
+  edits: ConceptEdit[],
+  /** Told why no edit could be rendered: an expected give-up, or an unexpected failure. */
+  onGiveUp?: (reason: string, unexpected: boolean) => void,
+): TextEdit[] | null {
   try {
     // TOML edits get their own shapes (next change); until then no TOML fix is offered.
     if (parsed.format === 'toml') return null;
@@ -718,8 +724,9 @@ export function renderConceptEdits(parsed: ParsedFile, setup: Setup, edits: Conc
     if (rendered.length > 0 && mustParse && parsed.text.length <= VALIDATE_MAX_CHARS && !editsKeepSyntax(parsed, rendered)) return null;
     return rendered;
   } catch (err) {
-    if (err instanceof GiveUp) return null;
-    // Bad input never crashes the caller: an unexpected failure is a fix not offered.
+    // Bad input never crashes the caller: either way the fix is not offered, and the caller learns why.
+    const unexpected = !(err instanceof GiveUp);
+    onGiveUp?.(err instanceof Error ? err.message : String(err), unexpected);
     return null;
   }
 }

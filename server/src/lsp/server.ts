@@ -13,23 +13,19 @@
  * Diagnostics are pushed (debounced) unless the client pulls them. Never stale: a result is only
  * published when it was computed from the document's current version, and never after a newer one.
  */
-import { dirname, isAbsolute, relative, sep } from 'node:path';
+import { dirname } from 'node:path';
 import { setFlagsFromString } from 'node:v8';
-import { fileURLToPath, pathToFileURL } from 'node:url';
 import {
   CodeActionKind,
   DidChangeConfigurationNotification,
   DidChangeWatchedFilesNotification,
   ErrorCodes,
   FileChangeType,
-  LSPErrorCodes,
   ResponseError,
   TextDocumentSyncKind,
   type CancellationToken,
   type ClientCapabilities,
-  type CodeAction,
   type CodeActionParams,
-  type CodeLens,
   type CodeLensParams,
   type Connection,
   type Diagnostic,
@@ -38,208 +34,58 @@ import {
   type DidCloseTextDocumentParams,
   type DidOpenTextDocumentParams,
   type DocumentDiagnosticParams,
-  type DocumentDiagnosticReport,
-  type Hover,
   type HoverParams,
   type InitializeParams,
   type InitializeResult,
-  type InlayHint,
   type InlayHintParams,
   type WorkspaceFolder,
 } from 'vscode-languageserver/node';
 import { TextDocument } from 'vscode-languageserver-textdocument';
 import { LruCache } from '@noiselint/shared-math';
-import { analyzeText, findingsAsData, readFile, type AnalyzeOptions, type FileReading, FileResult } from '../engine/api';
 import type { Finding } from '../base/findings';
-import { plotDataFor } from '../views/plotData';
-import { hoverAt } from '../views/hover';
-import { inlineHintsFor } from '../views/inlayHints';
-import { firstFieldOf } from '../views/fieldAt';
-import { summaryFor } from '../views/documentSummary';
-import { formatExplainText } from '../views/explainFormat';
-import type { Concept } from '../fields/concepts';
-import type { SourceFormat } from '../parse/types';
-import { LineIndex } from '../parse/lineIndex';
-import { ALL_RULE_METAS, getRuleMeta } from '../rules';
-import {
-  EXPLAIN_REQUEST,
-  FIX_ALL_KIND,
-  PLOT_CHANGED_NOTIFICATION,
-  PLOT_DATA_REQUEST,
-  SHOW_SCHEDULE_COMMAND,
-  SUMMARY_REQUEST,
-  type UriParams,
-} from '../base/protocol';
-import type { ResolvedProject } from '../workspace/types';
-import type { PartnerDocument } from '../rules/types';
-import { setProjectRuleCatalog } from '../workspace/projectFile';
-import { discoverFiles, isConfigFileName, isProjectFileName, projectSelects } from '../workspace/discover';
-import { readTextFile, type WorkspaceFs } from '../workspace/fs';
-import { roleOfSetups, type FileRole, type PairRole } from '../workspace/pairing';
-import { overlayFs } from '../workspace/overlay';
-import { baseName, isInside, relativePosix } from '../workspace/selection';
-import { WorkspaceSession, type ProjectLookup } from '../workspace/session';
-import { findingToDiagnostic, spanToRange, type PositionMapper, type OtherFile } from './convert';
-import { fixAllAction, kindRequested, quickFixes, type CurrentFindings } from './codeActions';
+import { EXPLAIN_REQUEST, FIX_ALL_KIND, PLOT_CHANGED_NOTIFICATION, PLOT_DATA_REQUEST, SUMMARY_REQUEST, type UriParams } from '../base/protocol';
+import { analyzeText, findingsAsData, readFile, type AnalyzeOptions, type FileReading, type FileResult } from '../engine/api';
+import { VERSION } from '../base/version';
+import { isConfigFileName, isProjectFileName } from '../workspace/discover';
+import { readTextFile } from '../workspace/fs';
+import { roleOfSetups } from '../workspace/pairing';
 import { ruleDocsUrl } from '../workspace/ruleDocs';
+import { baseName } from '../workspace/selection';
+import type { ProjectLookup } from '../workspace/session';
+import { NO_CAPABILITIES, readCapabilities, type Capabilities } from './capabilities';
+import { findingToDiagnostic, type PositionMapper } from './convert';
+import { OpenDocuments, type Analyzed, type OpenDocument } from './documents';
+import * as requests from './requests';
 import { DEFAULT_DEBOUNCE_MS, defaultSettings, mergeSettingsIntoProject, normalizeSettings, type EditorSettings } from './settings';
+import { errorMessage, formatOf, isRuleId, requireUri, uriToPath } from './util';
+import { WorkspaceIndex } from './workspaceIndex';
 
-const SERVER_VERSION = '0.1.0';
 const SETTINGS_SECTION = 'noiselint';
 const WATCH_GLOBS = ['**/*.{yaml,yml,json,jsonc,toml}', '**/noiselint.project.{yaml,json}'];
-/** Files indexed per workspace folder at start-up; beyond this, pairing reads files on demand. */
-const MAX_INDEXED_FILES = 20_000;
-const INDEX_BATCH = 64;
-/** Schedule fields, in the order the "Show noise schedule" lens looks for them. */
-const SCHEDULE_FIELDS: readonly Concept[] = ['betaSchedule', 'betas', 'trainSteps', 'betaStart', 'betaEnd', 'zeroTerminalSnr', 'sigmaMax', 'sigmaMin', 'flowShift'];
 /** Documents whose full reading (tree, setups, analysis) is kept for the views; others are read again. */
 const RECENT_READS = 8;
-/** Partner files whose documents are kept between analyses. */
-const PARTNER_CACHE_ENTRIES = 64;
 
-interface PairingFound {
-  partners: PartnerDocument[];
-  role?: PairRole;
-  paths: string[];
-}
-
-/** How an analysis read its text: enough to read it again the same way (partners only change findings). */
-type ReadOptions = Omit<AnalyzeOptions, 'partners' | 'pairRole'>;
-
-interface Capabilities {
-  pullDiagnostics: boolean;
-  diagnosticRefresh: boolean;
-  configuration: boolean;
-  configurationDynamic: boolean;
-  watchedFilesDynamic: boolean;
-  workspaceFolders: boolean;
-  hoverMarkdown: boolean;
-  versionedEdits: boolean;
-  inlayHintRefresh: boolean;
-  codeLensRefresh: boolean;
-}
-
-/** One analysis of an open document, tied to the version and settings generation it used. */
-interface Analyzed {
-  /** Unique per computation: the pull result id. */
-  seq: number;
-  version: number;
-  generation: number;
-  text: string;
-  /** How the text was read; null when it was not analysed (turned off, a project file, a failure). */
-  read: ReadOptions | null;
-  isDiffusionConfig: boolean;
-  /** Role of the document for pairing (from its setups); null when not analysed. */
-  role: FileRole | null;
-  /** What the user sees: rule findings plus parse and project problems, or nothing. */
-  shown: Finding[];
-  diagnostics: Diagnostic[];
-  /** Paths of paired files this analysis read. */
-  partners: string[];
-}
-
-interface OpenDocument {
-  uri: string;
-  /** File-system path for file: URIs. */
-  path: string | null;
-  format: SourceFormat;
-  doc: TextDocument;
-  timer: NodeJS.Timeout | undefined;
-  debounceMs: number;
-  lastPublishedVersion: number;
-  cache: Analyzed | undefined;
-  /** The document was a diffusion config at some point: parse problems keep showing while it is broken. */
-  wasConfig: boolean;
-}
-
-function uriToPath(uri: string): string | null {
-  if (!uri.startsWith('file:')) return null;
-  try {
-    return fileURLToPath(uri);
-  } catch {
-    return null;
-  }
-}
-
-function formatOf(languageId: string | undefined, uri: string): SourceFormat {
-  if (languageId === 'json' || languageId === 'jsonc' || languageId === 'yaml' || languageId === 'toml') return languageId;
-  const lower = uri.toLowerCase();
-  if (lower.endsWith('.toml')) return 'toml';
-  if (lower.endsWith('.jsonc')) return 'jsonc';
-  if (lower.endsWith('.json')) return 'json';
-  return 'yaml';
-}
-
-function errorMessage(err: unknown): string {
-  return (err instanceof Error ? err.message : String(err)).split('\n')[0];
-}
-
-function requireUri(params: unknown, nested: boolean): string {
-  const p = params as { textDocument?: { uri?: unknown }; uri?: unknown } | null | undefined;
-  const uri = nested ? p?.textDocument?.uri : p?.uri;
-  if (typeof uri !== 'string' || uri.length === 0) {
-    throw new ResponseError(ErrorCodes.InvalidParams, nested ? 'params.textDocument.uri must be a string' : 'params.uri must be a string');
-  }
-  return uri;
-}
-
-function isPosition(p: unknown): p is { line: number; character: number } {
-  const q = p as { line?: unknown; character?: unknown } | null | undefined;
-  return typeof q?.line === 'number' && typeof q?.character === 'number';
-}
 
 export class NoiselintServer {
-  private caps: Capabilities = {
-    pullDiagnostics: false,
-    diagnosticRefresh: false,
-    configuration: false,
-    configurationDynamic: false,
-    watchedFilesDynamic: false,
-    workspaceFolders: false,
-    hoverMarkdown: false,
-    versionedEdits: false,
-    inlayHintRefresh: false,
-    codeLensRefresh: false,
-  };
-  private readonly docs = new Map<string, OpenDocument>();
-  private readonly openByPath = new Map<string, string>();
-  /** File names of the open documents, by folder (the overlay's folder listings). */
-  private readonly openByFolder = new Map<string, Set<string>>();
+  caps: Capabilities = NO_CAPABILITIES;
+  readonly docs = new OpenDocuments();
   private readonly settingsCache = new Map<string, Promise<EditorSettings>>();
   private globalSettings: EditorSettings = defaultSettings();
   /** Bumped when settings or project files change: every cached analysis is then stale. */
   private generation = 0;
   private analysisSeq = 0;
-  private folders: { uri: string; path: string | null }[] = [];
-  /** Projects, selection, the role index of the workspace's config files and partner readings. */
-  private readonly session: WorkspaceSession;
+  /** Workspace folders, the session (projects, roles, partners) and how other files are named. */
+  private readonly workspace: WorkspaceIndex;
   /**
    * The full reading of the most recently used analyses, by document URI, with the findings as
    * the engine made them (their fixes know the parse they came from, which spares code actions a
    * parse; see fix/applicable.ts).
    */
   private readonly recentReads = new LruCache<string, { seq: number; file: FileReading; shown?: Finding[] }>(RECENT_READS, RECENT_READS);
-  private readonly fs: WorkspaceFs;
-  /** Display path (in messages) -> absolute path, for related locations in other files. */
-  private readonly displayed = new Map<string, string>();
   private shutDown = false;
 
   constructor(private readonly connection: Connection) {
-    this.fs = overlayFs({
-      textOf: (path) => {
-        const uri = this.openByPath.get(path);
-        return uri ? this.docs.get(uri)?.doc.getText() : undefined;
-      },
-      namesIn: (folder) => this.openByFolder.get(folder),
-    });
-    this.session = new WorkspaceSession({
-      fs: this.fs,
-      showPath: (abs) => this.displayPath(abs),
-      knownRole: (path) => this.openRole(path),
-      readingEntries: PARTNER_CACHE_ENTRIES,
-    });
-    // Project files are checked against the real rule ids and options.
-    setProjectRuleCatalog(ALL_RULE_METAS);
+    this.workspace = new WorkspaceIndex(this.docs);
   }
 
   listen(): void {
@@ -255,14 +101,14 @@ export class NoiselintServer {
     c.onDidCloseTextDocument((p) => this.notifyGuard('didClose', () => this.didClose(p)));
     c.onDidChangeConfiguration((p) => this.notifyGuard('didChangeConfiguration', () => this.configurationChanged(p?.settings)));
     c.onDidChangeWatchedFiles((p) => this.notifyGuard('didChangeWatchedFiles', () => this.watchedFilesChanged(p)));
-    c.onHover(this.guard('hover', (p: HoverParams) => this.hover(p)));
-    c.onCodeAction(this.guard('codeAction', (p: CodeActionParams) => this.codeActions(p)));
-    c.onCodeLens(this.guard('codeLens', (p: CodeLensParams) => this.codeLenses(p)));
-    c.languages.inlayHint.on(this.guard('inlayHint', (p: InlayHintParams) => this.inlayHints(p)));
-    c.languages.diagnostics.on(this.guard('diagnostic', (p: DocumentDiagnosticParams, token: CancellationToken) => this.pullDiagnostics(p, token)));
-    c.onRequest(PLOT_DATA_REQUEST, this.guard(PLOT_DATA_REQUEST, (p: UriParams) => this.plotData(p)));
-    c.onRequest(EXPLAIN_REQUEST, this.guard(EXPLAIN_REQUEST, (p: UriParams) => this.explain(p)));
-    c.onRequest(SUMMARY_REQUEST, this.guard(SUMMARY_REQUEST, (p: UriParams) => this.summary(p)));
+    c.onHover(this.guard('hover', (p: HoverParams) => requests.hover(this, p)));
+    c.onCodeAction(this.guard('codeAction', (p: CodeActionParams) => requests.codeActions(this, p)));
+    c.onCodeLens(this.guard('codeLens', (p: CodeLensParams) => requests.codeLenses(this, p)));
+    c.languages.inlayHint.on(this.guard('inlayHint', (p: InlayHintParams) => requests.inlayHints(this, p)));
+    c.languages.diagnostics.on(this.guard('diagnostic', (p: DocumentDiagnosticParams, token: CancellationToken) => requests.pullDiagnostics(this, p, token)));
+    c.onRequest(PLOT_DATA_REQUEST, this.guard(PLOT_DATA_REQUEST, (p: UriParams) => requests.plotData(this, p)));
+    c.onRequest(EXPLAIN_REQUEST, this.guard(EXPLAIN_REQUEST, (p: UriParams) => requests.explain(this, p)));
+    c.onRequest(SUMMARY_REQUEST, this.guard(SUMMARY_REQUEST, (p: UriParams) => requests.summary(this, p)));
     c.listen();
   }
 
@@ -298,21 +144,9 @@ export class NoiselintServer {
 
   private initialize(params: InitializeParams): InitializeResult {
     const cc: ClientCapabilities = params?.capabilities ?? {};
-    const hoverFormats = cc.textDocument?.hover?.contentFormat ?? [];
-    this.caps = {
-      pullDiagnostics: !!cc.textDocument?.diagnostic,
-      diagnosticRefresh: !!cc.workspace?.diagnostics?.refreshSupport,
-      configuration: !!cc.workspace?.configuration,
-      configurationDynamic: !!cc.workspace?.didChangeConfiguration?.dynamicRegistration,
-      watchedFilesDynamic: !!cc.workspace?.didChangeWatchedFiles?.dynamicRegistration,
-      workspaceFolders: !!cc.workspace?.workspaceFolders,
-      hoverMarkdown: hoverFormats.includes('markdown'),
-      versionedEdits: !!cc.workspace?.workspaceEdit?.documentChanges,
-      inlayHintRefresh: !!cc.workspace?.inlayHint?.refreshSupport,
-      codeLensRefresh: !!cc.workspace?.codeLens?.refreshSupport,
-    };
+    this.caps = readCapabilities(cc);
     const folders: WorkspaceFolder[] = params?.workspaceFolders ?? (params?.rootUri ? [{ uri: params.rootUri, name: 'root' }] : []);
-    this.folders = folders.filter((f) => typeof f?.uri === 'string').map((f) => ({ uri: f.uri, path: uriToPath(f.uri) }));
+    this.workspace.folders = folders.filter((f) => typeof f?.uri === 'string').map((f) => ({ uri: f.uri, path: uriToPath(f.uri) }));
     const result: InitializeResult = {
       capabilities: {
         textDocumentSync: { openClose: true, change: TextDocumentSyncKind.Incremental },
@@ -322,7 +156,7 @@ export class NoiselintServer {
         inlayHintProvider: { resolveProvider: false },
         workspace: { workspaceFolders: { supported: true, changeNotifications: true } },
       },
-      serverInfo: { name: 'noiselint', version: SERVER_VERSION },
+      serverInfo: { name: 'noiselint', version: VERSION },
     };
     if (this.caps.pullDiagnostics) {
       result.capabilities.diagnosticProvider = { identifier: 'noiselint', interFileDependencies: true, workspaceDiagnostics: false };
@@ -344,43 +178,14 @@ export class NoiselintServer {
       c.workspace.onDidChangeWorkspaceFolders((event) =>
         this.notifyGuard('didChangeWorkspaceFolders', async () => {
           const removed = new Set(event.removed.map((f) => f.uri));
-          this.folders = this.folders.filter((f) => !removed.has(f.uri));
+          this.workspace.folders = this.workspace.folders.filter((f) => !removed.has(f.uri));
           const added = event.added.map((f) => ({ uri: f.uri, path: uriToPath(f.uri) }));
-          this.folders.push(...added);
+          this.workspace.folders.push(...added);
           await this.indexFolders(added);
         }),
       );
     }
-    await this.indexFolders(this.folders);
-  }
-
-  /** Scans folders for config files and records each file's role (the pairing index). */
-  private async indexFolders(folders: { uri: string; path: string | null }[]): Promise<void> {
-    const paths = folders.map((f) => f.path).filter((p): p is string => !!p);
-    if (paths.length === 0) return;
-    const progress = await this.connection.window.createWorkDoneProgress();
-    progress.begin('noiselint: indexing configs', 0, 'finding files', false);
-    try {
-      const files: string[] = [];
-      for (const folder of paths) {
-        const found = discoverFiles([folder], folder, undefined, { fs: this.fs, maxFiles: MAX_INDEXED_FILES });
-        files.push(...found.files);
-        for (const e of found.errors) this.connection.console.warn(`noiselint: ${e}`);
-      }
-      for (let i = 0; i < files.length; i++) {
-        if (this.shutDown) return;
-        if (!this.openByPath.has(files[i])) this.session.indexFile(files[i]);
-        if (i % INDEX_BATCH === INDEX_BATCH - 1) {
-          progress.report(Math.round(((i + 1) / files.length) * 100), `${i + 1} of ${files.length} files`);
-          await new Promise((resolve) => setImmediate(resolve));
-        }
-      }
-      this.connection.console.info(`noiselint: indexed ${files.length} config files`);
-    } finally {
-      progress.done();
-    }
-    // Pairs may have appeared: re-check the open documents.
-    this.invalidateAll(false);
+    await this.indexFolders(this.workspace.folders);
   }
 
   // ---------------------------------------------------------------- documents
@@ -402,8 +207,7 @@ export class NoiselintServer {
       cache: undefined,
       wasConfig: false,
     };
-    this.docs.set(item.uri, od);
-    if (path) this.trackOpen(path, item.uri);
+    this.docs.add(od);
     this.contentChanged(od, 0);
   }
 
@@ -422,41 +226,21 @@ export class NoiselintServer {
     const od = this.docs.get(uri);
     if (!od) return;
     if (od.timer) clearTimeout(od.timer);
-    this.docs.delete(uri);
+    this.docs.remove(od);
     this.settingsCache.delete(uri);
     this.recentReads.delete(uri);
     if (od.path) {
-      this.untrackOpen(od.path);
       // The disk copy speaks again for pairing.
-      this.session.indexFile(od.path);
+      this.workspace.session.indexFile(od.path);
       this.dependentsChanged(od.path, true);
     }
     if (!this.caps.pullDiagnostics) void this.connection.sendDiagnostics({ uri, diagnostics: [] });
   }
 
-  private trackOpen(path: string, uri: string): void {
-    this.openByPath.set(path, uri);
-    const folder = dirname(path);
-    let names = this.openByFolder.get(folder);
-    if (!names) {
-      names = new Set();
-      this.openByFolder.set(folder, names);
-    }
-    names.add(baseName(path));
-  }
-
-  private untrackOpen(path: string): void {
-    this.openByPath.delete(path);
-    const folder = dirname(path);
-    const names = this.openByFolder.get(folder);
-    names?.delete(baseName(path));
-    if (names?.size === 0) this.openByFolder.delete(folder);
-  }
-
   /** A document's text changed: re-check it (debounced) and the files paired with it. */
   private contentChanged(od: OpenDocument, delay: number): void {
     if (od.path && isProjectFileName(baseName(od.path))) {
-      this.session.projectsChanged();
+      this.workspace.session.projectsChanged();
       this.invalidateAll(true);
     }
     this.schedule(od, delay);
@@ -518,28 +302,33 @@ export class NoiselintServer {
 
   /** Project file for a path (editor settings are merged later); an invalid file falls back to defaults. */
   private projectFor(path: string | null): ProjectLookup {
-    return this.session.projectFor(path);
+    return this.workspace.session.projectFor(path);
   }
 
-  private folderOf(path: string): string | null {
-    let best: string | null = null;
-    for (const f of this.folders) {
-      if (!f.path || !isInside(f.path, path)) continue;
-      if (!best || f.path.length > best.length) best = f.path;
+  /** Scans folders for config files and records each file's role, then re-checks the open documents. */
+  private async indexFolders(folders: { uri: string; path: string | null }[]): Promise<void> {
+    if (!folders.some((f) => f.path)) return;
+    const progress = await this.connection.window.createWorkDoneProgress();
+    progress.begin('noiselint: indexing configs', 0, 'finding files', false);
+    try {
+      const count = await this.workspace.scan(folders, {
+        report: (done, total) => progress.report(Math.round((done / total) * 100), `${done} of ${total} files`),
+        warn: (message) => this.connection.console.warn(`noiselint: ${message}`),
+        stopped: () => this.shutDown,
+      });
+      if (count === null) return;
+      this.connection.console.info(`noiselint: indexed ${count} config files`);
+    } finally {
+      progress.done();
     }
-    return best;
-  }
-
-  /** The project's include / exclude, then the editor's (the project file's include takes precedence). */
-  private selected(path: string | null, project: ResolvedProject, settings: EditorSettings): boolean {
-    const base = path ? this.folderOf(path) : null;
-    return this.session.selects(path, project, { base, include: settings.files.include, exclude: settings.files.exclude });
+    // Pairs may have appeared: re-check the open documents.
+    this.invalidateAll(false);
   }
 
   /** Bumps the generation and re-checks every open document (refreshing pulled diagnostics). */
   private invalidateAll(settingsChanged: boolean): void {
     this.generation++;
-    if (settingsChanged) this.session.projectsChanged();
+    if (settingsChanged) this.workspace.session.projectsChanged();
     for (const od of this.docs.values()) {
       od.cache = undefined;
       this.schedule(od, 0);
@@ -556,25 +345,6 @@ export class NoiselintServer {
   }
 
   // ---------------------------------------------------------------- pairing
-
-  /** An open document's role: from its current analysis, else read from its open text. */
-  private openRole(path: string): FileRole | undefined {
-    const uri = this.openByPath.get(path);
-    const od = uri ? this.docs.get(uri) : undefined;
-    if (!od) return undefined;
-    if (od.cache?.role && od.cache.version === od.doc.version) return od.cache.role;
-    return this.session.readRole(path);
-  }
-
-  private pairingFor(path: string, project: ResolvedProject): PairingFound {
-    try {
-      const found = this.session.partnersOf(path, project);
-      return { partners: found.partners, role: found.pairRole, paths: found.paths };
-    } catch (err) {
-      this.logError('pairing', err);
-      return { partners: [], paths: [] };
-    }
-  }
 
   /**
    * `path` changed (edited, saved, created or deleted): re-check the open documents paired with
@@ -606,20 +376,20 @@ export class NoiselintServer {
         projectChanged = true;
         continue;
       }
-      if (!isConfigFileName(name) || this.openByPath.has(path)) continue;
-      this.session.fileChanged(path);
-      if (change.type !== FileChangeType.Deleted) this.session.indexFile(path);
+      if (!isConfigFileName(name) || this.docs.isOpen(path)) continue;
+      this.workspace.session.fileChanged(path);
+      if (change.type !== FileChangeType.Deleted) this.workspace.session.indexFile(path);
       this.dependentsChanged(path, change.type !== FileChangeType.Changed);
     }
     if (projectChanged) {
-      this.session.projectsChanged();
+      this.workspace.session.projectsChanged();
       this.invalidateAll(true);
     }
   }
 
   // ---------------------------------------------------------------- analysis
 
-  private async analyze(od: OpenDocument): Promise<Analyzed | null> {
+  async analyze(od: OpenDocument): Promise<Analyzed | null> {
     const settings = await this.settingsFor(od.uri);
     if (this.docs.get(od.uri) !== od) return null;
     od.debounceMs = settings.debounceMs;
@@ -629,7 +399,7 @@ export class NoiselintServer {
     od.cache = analyzed;
     if (od.path && analyzed.role) {
       const role = analyzed.role;
-      const before = this.session.noteRole(od.path, role);
+      const before = this.workspace.session.noteRole(od.path, role);
       // A file that became (or stopped being) a training or sampling file may change the folder's pairs.
       if (before !== undefined && before !== role) this.dependentsChanged(od.path, true);
     }
@@ -645,8 +415,8 @@ export class NoiselintServer {
     if (od.path && isProjectFileName(baseName(od.path))) return this.projectFileAnalysis(od, base);
     const { project: fileProject, problem } = this.projectFor(od.path);
     const project = mergeSettingsIntoProject(fileProject, settings);
-    if (!this.selected(od.path, fileProject, settings)) return empty;
-    const pairing = od.path ? this.pairingFor(od.path, project) : { partners: [], paths: [] as string[] };
+    if (!this.workspace.selected(od.path, fileProject, settings)) return empty;
+    const pairing = od.path ? this.workspace.pairingFor(od.path, project, (err) => this.logError('pairing', err)) : { partners: [], paths: [] as string[] };
     const options: AnalyzeOptions = {
       path: od.path ?? od.uri,
       format: od.format,
@@ -714,7 +484,7 @@ export class NoiselintServer {
    * The full reading (tree, setups, analysis) behind an analysis: kept for recent ones, otherwise
    * read again from the same text with the same options (the findings are not recomputed).
    */
-  private readOf(uri: string, analyzed: Analyzed): FileReading | null {
+  readOf(uri: string, analyzed: Analyzed): FileReading | null {
     if (!analyzed.read) return null;
     const recent = this.recentReads.get(uri);
     if (recent && recent.seq === analyzed.seq) return recent.file;
@@ -724,7 +494,7 @@ export class NoiselintServer {
   }
 
   /** The findings of an analysis, as the engine made them while they are recent. */
-  private findingsOf(uri: string, analyzed: Analyzed): Finding[] {
+  findingsOf(uri: string, analyzed: Analyzed): Finding[] {
     const recent = this.recentReads.get(uri);
     return recent?.seq === analyzed.seq && recent.shown ? recent.shown : analyzed.shown;
   }
@@ -736,39 +506,14 @@ export class NoiselintServer {
         mapper,
         version,
         docsUrl: (rule) => (isRuleId(rule) ? ruleDocsUrl(rule, settings.docsBaseUrl) : null),
-        otherFile: (path) => this.otherFile(path),
+        otherFile: (path) => this.workspace.otherFile(path),
       },
       od.uri,
     );
   }
 
-  /** How messages name another file: relative to its workspace folder (remembered for links back). */
-  private displayPath(abs: string): string {
-    const folder = this.folderOf(abs);
-    const shown = folder ? relativePosix(folder, abs) : abs;
-    this.displayed.set(shown, abs);
-    return shown;
-  }
-
-  private otherFile(shown: string): OtherFile | null {
-    const path = this.displayed.get(shown) ?? (isAbsolute(shown) ? shown : null);
-    if (!path) return null;
-    const uri = this.openByPath.get(path);
-    const od = uri ? this.docs.get(uri) : undefined;
-    if (od) return { uri: od.uri, mapper: od.doc };
-    const read = readTextFile(this.fs, path);
-    if (!read.ok) return null;
-    let fileUri: string;
-    try {
-      fileUri = pathToFileURL(path).href;
-    } catch {
-      return null;
-    }
-    return { uri: fileUri, mapper: new LineIndex(read.text) };
-  }
-
   /** The analysis of an open document's current version. */
-  private async current(uri: string): Promise<{ od: OpenDocument; analyzed: Analyzed } | null> {
+  async current(uri: string): Promise<{ od: OpenDocument; analyzed: Analyzed } | null> {
     const od = this.docs.get(uri);
     if (!od) return null;
     const analyzed = await this.analyze(od);
@@ -777,7 +522,7 @@ export class NoiselintServer {
   }
 
   /** An open document's analysis, or a file on disk read (not kept) for the custom requests. */
-  private async fileFor(uri: string): Promise<{ file: FileReading | null; shown: Finding[]; version: number | null } | null> {
+  async fileFor(uri: string): Promise<{ file: FileReading | null; shown: Finding[]; version: number | null } | null> {
     const cur = await this.current(uri);
     if (cur) return { file: this.readOf(uri, cur.analyzed), shown: cur.analyzed.shown, version: cur.analyzed.version };
     const path = uriToPath(uri);
@@ -785,118 +530,14 @@ export class NoiselintServer {
     const settings = await this.settingsFor(uri);
     const { project: fileProject } = this.projectFor(path);
     const project = mergeSettingsIntoProject(fileProject, settings);
-    const read = readTextFile(this.fs, path, project.limits.maxFileBytes);
+    const read = readTextFile(this.workspace.session.fs, path, project.limits.maxFileBytes);
     if (!read.ok) return null;
-    const pairing = this.pairingFor(path, project);
+    const pairing = this.workspace.pairingFor(path, project, (err) => this.logError('pairing', err));
     const file = analyzeText(read.text, { path, project, partners: pairing.partners, pairRole: pairing.role, limits: settings.limits });
     return { file, shown: this.visibleFindings(file, null), version: null };
   }
 
-  // ---------------------------------------------------------------- requests
 
-  private async pullDiagnostics(params: DocumentDiagnosticParams, token: CancellationToken): Promise<DocumentDiagnosticReport> {
-    const uri = requireUri(params, true);
-    const od = this.docs.get(uri);
-    if (!od) return { kind: 'full', items: [] };
-    const analyzed = await this.analyze(od);
-    if (token?.isCancellationRequested) {
-      throw new ResponseError(LSPErrorCodes.ServerCancelled, 'cancelled: the document changed', { retriggerRequest: true });
-    }
-    if (!analyzed) return { kind: 'full', items: [] };
-    const resultId = `${analyzed.version}:${analyzed.seq}`;
-    if (params.previousResultId === resultId) return { kind: 'unchanged', resultId };
-    return { kind: 'full', resultId, items: analyzed.diagnostics };
-  }
-
-  private async hover(params: HoverParams): Promise<Hover | null> {
-    const uri = requireUri(params, true);
-    if (!isPosition(params.position)) throw new ResponseError(ErrorCodes.InvalidParams, 'params.position must be a position');
-    const cur = await this.current(uri);
-    const file = cur && this.readOf(uri, cur.analyzed);
-    if (!cur || !file) return null;
-    const offset = cur.od.doc.offsetAt(params.position);
-    const format = this.caps.hoverMarkdown ? 'markdown' : 'plaintext';
-    const hover = hoverAt(file, offset, format);
-    if (!hover) return null;
-    return { contents: { kind: format, value: hover.text }, range: spanToRange(cur.od.doc, hover.span) };
-  }
-
-  private async codeActions(params: CodeActionParams): Promise<CodeAction[]> {
-    const uri = requireUri(params, true);
-    const cur = await this.current(uri);
-    if (!cur) return [];
-    const current: CurrentFindings = {
-      uri,
-      version: cur.analyzed.version,
-      text: cur.analyzed.text,
-      mapper: cur.od.doc,
-      findings: this.findingsOf(uri, cur.analyzed),
-    };
-    const only = Array.isArray(params.context?.only) ? params.context.only : undefined;
-    const actions: CodeAction[] = [];
-    if (kindRequested(only, CodeActionKind.QuickFix)) actions.push(...quickFixes(params, current, this.caps.versionedEdits));
-    if (kindRequested(only, FIX_ALL_KIND)) {
-      const all = fixAllAction(current, this.caps.versionedEdits);
-      if (all) actions.push(all);
-    }
-    return actions;
-  }
-
-  private async inlayHints(params: InlayHintParams): Promise<InlayHint[]> {
-    const uri = requireUri(params, true);
-    const cur = await this.current(uri);
-    const file = cur && this.readOf(uri, cur.analyzed);
-    if (!cur || !file) return [];
-    const doc = cur.od.doc;
-    const range = params.range;
-    const from = range ? doc.offsetAt(range.start) : 0;
-    const to = range ? doc.offsetAt(range.end) : Infinity;
-    return inlineHintsFor(file)
-      .filter((h) => h.offset >= from && h.offset <= to)
-      .map((h) => ({ position: doc.positionAt(h.offset), label: h.label, tooltip: h.tooltip, paddingLeft: true }));
-  }
-
-  private async codeLenses(params: CodeLensParams): Promise<CodeLens[]> {
-    const uri = requireUri(params, true);
-    const cur = await this.current(uri);
-    if (!cur?.analyzed.isDiffusionConfig) return [];
-    const file = this.readOf(uri, cur.analyzed);
-    if (!file) return [];
-    const first = firstFieldOf(file, SCHEDULE_FIELDS);
-    if (!first) return [];
-    return [
-      {
-        range: spanToRange(cur.od.doc, first.span),
-        command: { title: 'Show noise schedule', command: SHOW_SCHEDULE_COMMAND, arguments: [uri] },
-      },
-    ];
-  }
-
-  private async plotData(params: UriParams) {
-    const uri = requireUri(params, false);
-    const found = await this.fileFor(uri);
-    if (!found?.file) return null;
-    return plotDataFor(found.file, uri, found.version);
-  }
-
-  private async explain(params: UriParams): Promise<{ text: string }> {
-    const uri = requireUri(params, false);
-    const found = await this.fileFor(uri);
-    if (!found) throw new ResponseError(ErrorCodes.InvalidParams, `${uri}: not an open document or a readable file`);
-    if (!found.file) return { text: 'noiselint is turned off for this file (setting noiselint.enable or files.include / files.exclude).\n' };
-    return { text: formatExplainText(found.file) };
-  }
-
-  private async summary(params: UriParams) {
-    const uri = requireUri(params, false);
-    const found = await this.fileFor(uri);
-    return summaryFor(found?.file ? { ...found.file, findings: found.shown } : null, uri);
-  }
-}
-
-/** Rule ids (and `parse-error`) have a documentation page; internal codes do not. */
-function isRuleId(code: string): boolean {
-  return getRuleMeta(code) !== undefined;
 }
 
 /**

@@ -8,5 +8,4 @@ export {
   loadProject,
   parseProjectFile,
   resolveProjectData,
-  setProjectRuleCatalog,
 } from './projectFile';

@@ -59,16 +59,10 @@ type Catalog = ReadonlyMap<string, RuleMeta>;
 
 /** Rule ids, option names and option types a project file may use. */
 const DEFAULT_CATALOG: Catalog = new Map(ALL_RULE_METAS.map((m) => [m.id, m]));
-let RULE_CATALOG: Catalog = DEFAULT_CATALOG;
-
-/** Replace the rule metadata project files are checked against; null restores the registry. */
-export function setProjectRuleCatalog(rules: readonly RuleMeta[] | null): void {
-  RULE_CATALOG = rules ? new Map(rules.map((r) => [r.id, r])) : DEFAULT_CATALOG;
-}
 
 /** Validates the parsed content of a project file and resolves it against its folder. */
 /** `catalog`: rule metadata to check `rules` against (default: the registry; null: accept any id). */
-export function resolveProjectData(data: unknown, file: string, catalog: Catalog | null = RULE_CATALOG): ResolvedProject {
+export function resolveProjectData(data: unknown, file: string, catalog: Catalog | null = DEFAULT_CATALOG): ResolvedProject {
   const fail = (field: string, detail: string): never => {
     throw new ProjectFileError(file, field, detail);
   };
@@ -240,7 +234,7 @@ function limitTable(value: unknown, fail: Fail): Partial<ParseLimits> {
 }
 
 /** Parses project file text (YAML or JSON by file name) and validates it. Throws ProjectFileError. */
-export function parseProjectFile(text: string, file: string, catalog: Catalog | null = RULE_CATALOG): ResolvedProject {
+export function parseProjectFile(text: string, file: string, catalog: Catalog | null = DEFAULT_CATALOG): ResolvedProject {
   let data: unknown;
   if (file.endsWith('.json')) {
     try {

@@ -1,0 +1,44 @@
+/** What the client can do, read once at initialize: the server sends only what it can show. */
+import type { ClientCapabilities } from 'vscode-languageserver/node';
+
+export interface Capabilities {
+  pullDiagnostics: boolean;
+  diagnosticRefresh: boolean;
+  configuration: boolean;
+  configurationDynamic: boolean;
+  watchedFilesDynamic: boolean;
+  workspaceFolders: boolean;
+  hoverMarkdown: boolean;
+  versionedEdits: boolean;
+  inlayHintRefresh: boolean;
+  codeLensRefresh: boolean;
+}
+
+export const NO_CAPABILITIES: Capabilities = {
+  pullDiagnostics: false,
+  diagnosticRefresh: false,
+  configuration: false,
+  configurationDynamic: false,
+  watchedFilesDynamic: false,
+  workspaceFolders: false,
+  hoverMarkdown: false,
+  versionedEdits: false,
+  inlayHintRefresh: false,
+  codeLensRefresh: false,
+};
+
+export function readCapabilities(cc: ClientCapabilities): Capabilities {
+  const hoverFormats = cc.textDocument?.hover?.contentFormat ?? [];
+  return {
+    pullDiagnostics: !!cc.textDocument?.diagnostic,
+    diagnosticRefresh: !!cc.workspace?.diagnostics?.refreshSupport,
+    configuration: !!cc.workspace?.configuration,
+    configurationDynamic: !!cc.workspace?.didChangeConfiguration?.dynamicRegistration,
+    watchedFilesDynamic: !!cc.workspace?.didChangeWatchedFiles?.dynamicRegistration,
+    workspaceFolders: !!cc.workspace?.workspaceFolders,
+    hoverMarkdown: hoverFormats.includes('markdown'),
+    versionedEdits: !!cc.workspace?.workspaceEdit?.documentChanges,
+    inlayHintRefresh: !!cc.workspace?.inlayHint?.refreshSupport,
+    codeLensRefresh: !!cc.workspace?.codeLens?.refreshSupport,
+  };
+}
