@@ -123,12 +123,13 @@ describe('check: files that are hard to read', () => {
 
 describe('check: pairing', () => {
   const training = CLEAN;
-  // The sampling file was copied from an older, leaky run: it disagrees on the rescale flag.
+  // The sampling file was copied from an older, leaky run: it writes the rescale flag off.
   const sampling = `scheduler:
   num_train_timesteps: 1000
   beta_schedule: scaled_linear
   beta_start: 0.00085
   beta_end: 0.012
+  rescale_betas_zero_snr: false
   prediction_type: v_prediction
   timestep_spacing: trailing
 sampling:

@@ -58,6 +58,8 @@ export interface PlotDocument {
   terminalSignal: number;
   /** Problems that stopped part of the computation (one line each). */
   problems: string[];
+  /** The training file the schedule and target come from, when this file does not set them. */
+  inheritedFrom?: string;
 }
 
 export interface PlotData {

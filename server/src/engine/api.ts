@@ -3,7 +3,7 @@
  * text -> located tree -> setup -> analysis -> findings. Never throws.
  */
 import { parseText, formatFromPath } from '../parse';
-import { buildSetup } from '../setup';
+import { buildSetup, inheritanceFrom, inheritSetup, type ScheduleInheritance } from '../setup';
 import { analyzeSetup } from '../analysis/analysis';
 import type { Finding } from '../base/findings';
 import { runRules } from './engine';
@@ -11,15 +11,22 @@ import type { AnalyzeOptions, DocumentResult, FileReading, FileResult } from './
 
 export type { AnalyzeOptions, DocumentResult, FileReading, FileResult } from './types';
 
+/** The inheritance `options` ask for: given, or derived from the partners. */
+export function inheritanceOf(options: AnalyzeOptions): ScheduleInheritance | null {
+  return options.inherit !== undefined ? options.inherit : inheritanceFrom(options.partners, options.pairRole);
+}
+
 /** Parse, resolve and analyse without running rules (explain, hover, plot). */
 export function readFile(text: string, options: AnalyzeOptions): FileReading {
   const format = options.format ?? formatFromPath(options.path) ?? 'yaml';
   const parsed = parseText(text, format, { ...options.project?.limits, ...options.limits }, options.parse);
+  const inheritance = inheritanceOf(options);
   const documents: DocumentResult[] = parsed.documents.map((doc) => {
-    const setup = buildSetup(doc, {
+    let setup = buildSetup(doc, {
       extraAliases: options.project?.aliases,
       latentSpaceDefault: options.project?.latentSpace,
     });
+    if (inheritance) setup = inheritSetup(setup, inheritance);
     return { index: doc.index, setup, analysis: analyzeSetup(setup) };
   });
   return {
@@ -27,18 +34,53 @@ export function readFile(text: string, options: AnalyzeOptions): FileReading {
     parsed,
     documents,
     isDiffusionConfig: documents.some((d) => d.setup.isDiffusionConfig),
+    inheritance,
   };
+}
+
+function sameInheritance(a: ScheduleInheritance | null, b: ScheduleInheritance | null): boolean {
+  if (a === b) return true;
+  if (!a || !b || a.from !== b.from || a.family !== b.family || a.values.length !== b.values.length) return false;
+  return a.values.every((v, i) => {
+    const w = b.values[i];
+    if (v.concept !== w.concept || v.key !== w.key || v.assumedThere !== w.assumedThere) return false;
+    if (Array.isArray(v.value) && Array.isArray(w.value)) return v.value.length === w.value.length && v.value.every((x, k) => x === (w.value as number[])[k]);
+    return v.value === w.value;
+  });
+}
+
+/**
+ * `file` read with the inheritance `options` ask for. A reading without partners (the check
+ * command's role probe) gets the partner's values applied to its setups; a reading with other
+ * values is resolved again from its parsed documents. Nothing is parsed twice.
+ */
+function withInheritance(file: FileReading, options: AnalyzeOptions): FileReading {
+  const wanted = inheritanceOf(options);
+  const had = file.inheritance ?? null;
+  if (sameInheritance(wanted, had)) return file;
+  const documents = file.documents.map((d, i) => {
+    let setup = d.setup;
+    if (had) {
+      const doc = file.parsed.documents[i];
+      if (!doc) return d;
+      setup = buildSetup(doc, { extraAliases: options.project?.aliases, latentSpaceDefault: options.project?.latentSpace });
+    }
+    if (wanted) setup = inheritSetup(setup, wanted);
+    return setup === d.setup ? d : { index: d.index, setup, analysis: analyzeSetup(setup) };
+  });
+  return { ...file, documents, inheritance: wanted };
 }
 
 /**
  * Rules over a file `readFile` already read, so that nothing is parsed twice (the check command
  * reads every file once to learn its role for pairing, then checks it). `options` must read the
  * text the way `file` was read (same path, format, project and limits); partners and the pair
- * role only change the findings.
+ * role change the findings and, on the sampling side, the inherited values.
  */
 export function analyzeRead(file: FileReading, options: AnalyzeOptions): FileResult {
-  const findings = runRules(file, options);
-  return { ...file, findings };
+  const read = withInheritance(file, options);
+  const findings = runRules(read, options);
+  return { ...read, findings };
 }
 
 /**
@@ -56,5 +98,6 @@ export function findingsAsData(findings: readonly Finding[]): Finding[] {
 
 /** The whole pipeline, rules included. */
 export function analyzeText(text: string, options: AnalyzeOptions): FileResult {
-  return analyzeRead(readFile(text, options), options);
+  const once = { ...options, inherit: inheritanceOf(options) };
+  return analyzeRead(readFile(text, once), once);
 }

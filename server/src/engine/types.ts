@@ -8,6 +8,7 @@ import type { Finding, Severity } from '../base/findings';
 import type { Concept } from '../fields/concepts';
 import type { ParsedFile, ParseLimits, SourceFormat } from '../parse/types';
 import type { Setup } from '../setup/types';
+import type { ScheduleInheritance } from '../setup/inherit';
 import type { Analysis } from '../analysis/analysis';
 import type { PartnerDocument } from '../rules/types';
 
@@ -53,6 +54,11 @@ export interface AnalyzeOptions {
   /** Documents of the paired training or sampling file (train-sample-mismatch). */
   partners?: PartnerDocument[];
   pairRole?: 'training' | 'sampling';
+  /**
+   * What a sampling file takes from its training partner (setup/inherit.ts). Derived from
+   * `partners` and `pairRole` when absent; pass it (or null) to read again without the partners.
+   */
+  inherit?: ScheduleInheritance | null;
   limits?: Partial<ParseLimits>;
   /** How the text is parsed: what scalars mean, or the exact YAML reader only (tests). */
   parse?: ParseOptions;
@@ -71,6 +77,8 @@ export interface FileReading {
   documents: DocumentResult[];
   /** At least one document is a diffusion config. */
   isDiffusionConfig: boolean;
+  /** The training partner's values the documents were read with, if any. */
+  inheritance?: ScheduleInheritance | null;
 }
 
 /** A reading with its findings. */

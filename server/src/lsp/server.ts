@@ -52,6 +52,7 @@ import { roleOfSetups } from '../workspace/pairing';
 import { ruleDocsUrl } from '../workspace/ruleDocs';
 import { baseName } from '../workspace/selection';
 import type { ProjectLookup } from '../workspace/session';
+import { inheritanceFrom } from '../setup/inherit';
 import { NO_CAPABILITIES, readCapabilities, type Capabilities } from './capabilities';
 import { findingToDiagnostic, type PositionMapper } from './convert';
 import { OpenDocuments, type Analyzed, type OpenDocument } from './documents';
@@ -423,6 +424,8 @@ export class NoiselintServer {
       project,
       partners: pairing.partners,
       pairRole: pairing.role,
+      // Kept with the reading: a document read again for the views takes the same partner values.
+      inherit: inheritanceFrom(pairing.partners, pairing.role),
       limits: settings.limits,
     };
     let file: FileResult;

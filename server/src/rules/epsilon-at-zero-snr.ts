@@ -1,6 +1,6 @@
 import { fmt } from './format';
 import type { Rule, RuleMeta } from './types';
-import { RETRAIN_NOTE, assumedNote, describeSchedule, discreteSchedule } from './util';
+import { RETRAIN_NOTE, assumedNote, describeSchedule, discreteSchedule, scheduleOrigin } from './util';
 
 const docs = `
 ## What triggers it
@@ -75,14 +75,16 @@ export const epsilonAtZeroSnr: Rule = {
     const schedule = discreteSchedule(analysis);
     if (!schedule || !schedule.reachesZeroSnr) return [];
     const target = setup.fields.predictionTarget;
-    if (!target || target.value !== 'epsilon') return [];
+    // An inherited target is the training file's finding: that is where it is fixed.
+    if (!target || target.value !== 'epsilon' || target.inherited) return [];
     const last = schedule.trainSteps - 1;
     return [
       {
         message:
           `the target is epsilon, but the schedule (${describeSchedule(setup, schedule)}) reaches SNR ${fmt(schedule.terminalSnr)} at step ${last}: ` +
           `there the input is pure noise, predicting it teaches nothing, and recovering the image divides by sqrt(abar) = 0` +
-          assumedNote(setup, ['predictionTarget']),
+          assumedNote(setup, ['predictionTarget']) +
+          scheduleOrigin(setup),
         at: 'predictionTarget',
         fixes: [
           {

@@ -1,7 +1,7 @@
 import type { ScheduleAnalysis } from '../analysis/analysis';
 import { fmt } from './format';
 import type { Rule, RuleContext, RuleMeta } from './types';
-import { assumedNote, discreteSchedule, numberOption, scheduleConcepts, setsSchedule } from './util';
+import { assumedNote, discreteSchedule, inheritsSchedule, numberOption, scheduleConcepts, setsSchedule } from './util';
 
 const docs = `
 ## What triggers it
@@ -84,6 +84,7 @@ const meta: RuleMeta = {
 /** The document's own schedule, or (for a sampling file that sets none) its training partner's. */
 function effectiveSchedule(ctx: RuleContext): { schedule: ScheduleAnalysis; partnerPath?: string } | null {
   const own = discreteSchedule(ctx.analysis);
+  if (own && inheritsSchedule(ctx.setup)) return { schedule: own, partnerPath: ctx.setup.inherited?.from };
   if (own && setsSchedule(ctx.setup)) return { schedule: own };
   for (const partner of ctx.partners) {
     const theirs = discreteSchedule(partner.analysis);

@@ -1,6 +1,6 @@
 import { fmt } from './format';
 import type { Rule, RuleMeta } from './types';
-import { assumedNote, describeSchedule, discreteSchedule, numberOption, scheduleConcepts, setsSchedule, zeroSnrFix } from './util';
+import { assumedNote, describeSchedule, discreteSchedule, inheritsSchedule, numberOption, scheduleConcepts, setsSchedule, zeroSnrFix } from './util';
 
 const docs = `
 ## What triggers it
@@ -80,7 +80,8 @@ export const terminalSnrLeak: Rule = {
   check(ctx) {
     const { setup, analysis } = ctx;
     const schedule = discreteSchedule(analysis);
-    if (!schedule || !setsSchedule(setup)) return [];
+    // A schedule taken from the training file leaks there, and is fixed there.
+    if (!schedule || !setsSchedule(setup) || inheritsSchedule(setup)) return [];
     const warnSignal = numberOption(ctx, 'warnSignal', 0.01);
     const infoSignal = numberOption(ctx, 'infoSignal', 1e-4);
     const signal = schedule.terminalSignal;

@@ -1,8 +1,9 @@
 import type { Concept, ConceptValues } from '../fields/concepts';
+import { trainingDocumentOf } from '../setup/inherit';
 import type { Setup } from '../setup/types';
-import type { ConceptEdit, PartnerDocument, Rule, RuleFinding, RuleMeta } from './types';
+import type { ConceptEdit, Rule, RuleFinding, RuleMeta } from './types';
 import { fmt } from './format';
-import { isSet, setsGroup, showValue, sourceOf } from './util';
+import { isSet, showValue, sourceOf } from './util';
 
 const docs = `
 ## What triggers it
@@ -11,8 +12,10 @@ A sampling file that disagrees with its paired training file on something the mo
 trained with: the beta schedule, the number of training steps T, beta start or end, an explicit
 beta list, the zero-terminal-SNR rescale, or the prediction target. Pairs come from the project
 file (\`pairs\`) or from automatic pairing of a training and a sampling file in one folder.
-The finding sits in the sampling file and points at the training file's field. A sampling file
-that sets no schedule field at all is taken to inherit the schedule and is not compared.
+The finding sits in the sampling file and points at the training file's field. Only values the
+sampling file writes itself are compared: whatever it leaves out it takes from the training file
+(the analysis of the sampling file uses the training file's schedule and target), so a value it
+does not set is never a mismatch.
 
 ## What the run loses
 
@@ -35,12 +38,13 @@ noise_scheduler:
 \`\`\`
 
 \`\`\`yaml
-# Lanternfish Pictures: sampling file for the model above
+# Lanternfish Pictures: sampling file for the model above (scheduler copied from the base model)
 scheduler:
   num_train_timesteps: 1000
   beta_schedule: scaled_linear
   beta_start: 0.00085
   beta_end: 0.012
+  rescale_betas_zero_snr: false
   prediction_type: v_prediction
   timestep_spacing: trailing
 num_inference_steps: 30
@@ -146,30 +150,25 @@ function comparable(concept: Concept, sampling: Setup, training: Setup): boolean
   return true;
 }
 
-function trainingPartner(partners: PartnerDocument[]): PartnerDocument | null {
-  return partners.find((p) => p.setup.isDiffusionConfig && p.setup.role !== 'sampling') ?? partners.find((p) => p.setup.isDiffusionConfig) ?? null;
-}
-
 export const trainSampleMismatch: Rule = {
   meta,
   check(ctx) {
     const { setup } = ctx;
     if (ctx.pairRole === 'training' || (ctx.pairRole === undefined && setup.role === 'training')) return [];
-    const partner = trainingPartner(ctx.partners);
-    // A sampling file with no schedule of its own inherits the training one.
-    if (!partner || !setsGroup(setup, 'schedule')) return [];
+    const partner = trainingDocumentOf(ctx.partners);
+    if (!partner) return [];
     const training = partner.setup;
     const out: RuleFinding[] = [];
     for (const concept of COMPARED) {
       if (!comparable(concept, setup, training)) continue;
       const mine = setup.fields[concept];
       const theirs = training.fields[concept];
-      if (!mine || !theirs) continue;
-      if (mine.assumed && theirs.assumed) continue;
+      // What the sampling file does not write it inherits: only its own values can disagree.
+      if (!mine || !theirs || mine.assumed || !mine.source || mine.inherited) continue;
       if (same(mine.value, theirs.value)) continue;
       const label = LABEL[concept] ?? concept;
       const [mineShown, theirsShown] = showPair(mine.value, theirs.value);
-      const mineText = `${mineShown}${mine.assumed ? ' (assumed: the sampling file sets none)' : ''}`;
+      const mineText = mineShown;
       const theirsText = `${theirsShown}${theirs.assumed ? ' (assumed: the training file sets none)' : ''}`;
       const theirSource = sourceOf(training, concept);
       const edit = { kind: 'set', concept, value: theirs.value } as ConceptEdit;

@@ -59,7 +59,35 @@ export function assumedNote(setup: Setup, concepts: readonly Concept[]): string 
     const how = field.note && !field.note.startsWith('not set') ? `, ${field.note}` : '';
     parts.push(`${concept} = ${showValue(field.value)}${how}`);
   }
-  return parts.length ? ` (assumed: ${parts.join('; ')})` : '';
+  const assumed = parts.length ? ` (assumed: ${parts.join('; ')})` : '';
+  return assumed + inheritedNote(setup, concepts);
+}
+
+/**
+ * " (from training file train.yaml: betaSchedule = scaled_linear; zeroTerminalSnr = true)" for
+ * those of `concepts` the document takes from its paired training file; "" when none.
+ */
+export function inheritedNote(setup: Setup, concepts: readonly Concept[]): string {
+  const parts: string[] = [];
+  let from: string | undefined;
+  for (const concept of concepts) {
+    const origin = setup.fields[concept]?.inherited;
+    if (!origin) continue;
+    from ??= origin.from;
+    parts.push(`${concept} = ${showValue(setup.fields[concept]!.value)}${origin.assumedThere ? ' (assumed there)' : ''}`);
+  }
+  return parts.length ? ` (from training file ${from}: ${parts.join('; ')})` : '';
+}
+
+/** True when the document takes its schedule (family or beta list) from its training file. */
+export function inheritsSchedule(setup: Setup): boolean {
+  return !!(setup.fields.betaSchedule?.inherited || setup.fields.betas?.inherited || setup.fields.trainSteps?.inherited);
+}
+
+/** " (schedule from training file X)" when the document takes its schedule from its partner. */
+export function scheduleOrigin(setup: Setup): string {
+  if (!inheritsSchedule(setup)) return '';
+  return ` (schedule from training file ${setup.inherited?.from ?? 'of the pair'})`;
 }
 
 /** Concepts that decide a discrete schedule's numbers (for assumedNote). */

@@ -30,6 +30,20 @@ export interface ResolvedField<C extends Concept = Concept> {
    * `linear_start` read as scaled_linear). One sentence, for hover and explain output.
    */
   note?: string;
+  /**
+   * Set when the document does not set the concept and takes it from its paired training file
+   * (source is null then, and assumed false): which file, under which key there, and whether
+   * that file itself only assumed it.
+   */
+  inherited?: InheritedOrigin;
+}
+
+export interface InheritedOrigin {
+  /** The training file as messages name it. */
+  from: string;
+  /** Dotted key path in that file; absent when that file assumes the value too. */
+  key?: string;
+  assumedThere: boolean;
 }
 
 export type ValueProblemKind =
@@ -79,6 +93,8 @@ export interface Setup {
    * as absent; a fix that sets the concept should fill this key instead of inserting a new one.
    */
   nullKeys?: { [C in Concept]?: FieldSource };
+  /** Concepts taken from the paired training file (see setup/inherit.ts), and that file. */
+  inherited?: { from: string; concepts: Concept[] };
 }
 
 /** Typed accessor; returns undefined when the concept is neither set nor assumed. */

@@ -36,7 +36,7 @@ function valueText(v: unknown): string {
 export interface ExplainDocumentJson {
   index: number;
   isDiffusionConfig: boolean;
-  setup: Record<string, unknown> & { assumed: Concept[] };
+  setup: Record<string, unknown> & { assumed: Concept[]; inherited: Concept[]; inheritedFrom?: string };
   schedule: {
     kind: string;
     family: string;
@@ -74,7 +74,8 @@ function setupJson(setup: Setup): ExplainDocumentJson['setup'] {
     const field = setup.fields[concept];
     if (field) out[concept] = field.value;
   }
-  return { ...out, assumed: [...setup.assumed] };
+  const inherited = { inherited: [...(setup.inherited?.concepts ?? [])], ...(setup.inherited ? { inheritedFrom: setup.inherited.from } : {}) };
+  return { ...out, assumed: [...setup.assumed], ...inherited };
 }
 
 function problemsOf(doc: DocumentResult): string[] {
@@ -199,7 +200,11 @@ function documentText(doc: DocumentResult, count: number): string[] {
   for (const concept of CONCEPTS) {
     const field = doc.setup.fields[concept];
     if (!field) continue;
-    const where = field.source ? `  (${field.source.path})` : '  (assumed default)';
+    const where = field.source
+      ? `  (${field.source.path})`
+      : field.inherited
+        ? `  (from training file ${field.inherited.from}${field.inherited.key ? `: ${field.inherited.key}` : ', assumed there'})`
+        : '  (assumed default)';
     lines.push(`    ${concept.padEnd(width)}  ${valueText(field.value)}${where}`);
   }
   const { schedule } = doc.analysis;

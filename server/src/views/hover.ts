@@ -179,7 +179,21 @@ function titleFor(doc: DocumentResult): string {
   if (!s) return 'noise schedule: not computable';
   const bits = [`${s.kind}`, `T = ${s.trainSteps}`];
   if (target) bits.push(`${target} target${assumed ? ' (assumed)' : ''}`);
-  return `noise schedule: ${bits.join(', ')}`;
+  const from = doc.setup.inherited ? ` (from training file ${doc.setup.inherited.from})` : '';
+  return `noise schedule: ${bits.join(', ')}${from}`;
+}
+
+/** Which values the document takes from its training file (setup/inherit.ts). */
+export function inheritedLines(doc: DocumentResult): string[] {
+  const inherited = doc.setup.inherited;
+  if (!inherited) return [];
+  const parts = inherited.concepts.map((c) => {
+    const field = doc.setup.fields[c];
+    const v = field?.value;
+    const shown = Array.isArray(v) ? `a list of ${v.length} betas` : typeof v === 'number' ? num(v, 4) : String(v);
+    return `${c} ${shown}${field?.inherited?.assumedThere ? ' (assumed there)' : ''}`;
+  });
+  return [`This file does not set them, so it takes them from training file ${inherited.from}: ${parts.join(', ')}.`];
 }
 
 /** The hover model for `offset`, or null when no schedule/target/spacing/guidance field is there. */
@@ -192,7 +206,7 @@ export function hoverModelAt(file: FileReading, offset: number): HoverModel | nu
   const { analysis } = doc;
   const { rows, rescaledColumn } = scheduleRows(analysis);
   const focus = topic === 'target' ? targetNotes(doc) : topic === 'guidance' ? guidanceNotes(doc) : [];
-  const notes: string[] = [];
+  const notes: string[] = [...inheritedLines(doc)];
   notes.push(...analysis.scheduleProblems.map((p) => `The schedule could not be computed: ${p}.`));
   notes.push(...rescaleNotes(analysis));
   const s = analysis.schedule;

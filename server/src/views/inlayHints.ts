@@ -17,18 +17,28 @@ export interface InlineHint {
 const SCHEDULE_ANCHORS: readonly Concept[] = ['betaSchedule', 'betas', 'trainSteps', 'sigmaMax', 'flowShift'];
 const SAMPLING_ANCHORS: readonly Concept[] = ['timestepSpacing', 'sampleSteps'];
 
+/** Last path segment, for a short label (messages keep the whole path). */
+function baseName(path: string): string {
+  const parts = path.split(/[\\/]/);
+  return parts[parts.length - 1] || path;
+}
+
 export function inlineHintsFor(file: FileReading): InlineHint[] {
   const hints: InlineHint[] = [];
   for (const doc of file.documents) {
     if (!doc.setup.isDiffusionConfig) continue;
     const { schedule, sampling } = doc.analysis;
+    const from = doc.setup.inherited?.from;
+    const origin = from ? ` (schedule from training file ${from})` : '';
     if (schedule) {
-      const anchor = SCHEDULE_ANCHORS.map((c) => doc.setup.fields[c]?.source).find((s) => !!s);
+      // A file that takes its schedule from its training partner shows it after its first sampling field.
+      const anchor = SCHEDULE_ANCHORS.map((c) => doc.setup.fields[c]?.source).find((s) => !!s) ??
+        (from ? SAMPLING_ANCHORS.map((c) => doc.setup.fields[c]?.source).find((s) => !!s) : undefined);
       if (anchor) {
         hints.push({
           offset: anchor.valueSpan.end,
-          label: `SNR_T ${shortNumber(schedule.terminalSnr, 2)}`,
-          tooltip: `Terminal SNR ${shortNumber(schedule.terminalSnr, 4)}; signal at the last step ${shortNumber(schedule.terminalSignal, 4)}`,
+          label: `SNR_T ${shortNumber(schedule.terminalSnr, 2)}${from ? ` from ${baseName(from)}` : ''}`,
+          tooltip: `Terminal SNR ${shortNumber(schedule.terminalSnr, 4)}; signal at the last step ${shortNumber(schedule.terminalSignal, 4)}${origin}`,
           kind: 'schedule',
         });
       }
@@ -41,7 +51,7 @@ export function inlineHintsFor(file: FileReading): InlineHint[] {
           label: `starts at ${sampling.firstTimestep}/${schedule.trainSteps - 1}`,
           tooltip:
             `First sampling timestep ${sampling.firstTimestep} of ${schedule.trainSteps - 1}` +
-            `${sampling.stepsAssumed ? ` (assuming ${sampling.steps} steps)` : ''}; SNR there ${shortNumber(sampling.snrAtFirst, 3)}`,
+            `${sampling.stepsAssumed ? ` (assuming ${sampling.steps} steps)` : ''}; SNR there ${shortNumber(sampling.snrAtFirst, 3)}${origin}`,
           kind: 'sampling',
         });
       }

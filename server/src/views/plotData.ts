@@ -63,10 +63,11 @@ function sampledSteps(schedule: ScheduleAnalysis, timesteps: number[]): PlotSamp
   });
 }
 
-function labelFor(schedule: ScheduleAnalysis, target: string | undefined): string {
+function labelFor(schedule: ScheduleAnalysis, target: string | undefined, inheritedFrom: string | undefined): string {
   const parts = [schedule.kind, `T = ${schedule.trainSteps}`];
   if (target) parts.push(target);
   if (schedule.rescaleApplied) parts.push('zero-SNR rescaled');
+  if (inheritedFrom) parts.push(`from training file ${inheritedFrom}`);
   return parts.join(', ');
 }
 
@@ -81,7 +82,8 @@ export function plotDataFor(file: FileReading, uri: string, version: number | nu
     const rescaled = analysis.rescaled && !schedule.rescaleApplied ? curveAt(analysis.rescaled.curve, indices) : null;
     documents.push({
       index: doc.index,
-      label: labelFor(schedule, valueOf(setup, 'predictionTarget')),
+      label: labelFor(schedule, valueOf(setup, 'predictionTarget'), setup.inherited?.from),
+      ...(setup.inherited ? { inheritedFrom: setup.inherited.from } : {}),
       family: schedule.family,
       trainSteps: schedule.trainSteps,
       t: xPositions(schedule, indices),

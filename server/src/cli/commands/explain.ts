@@ -6,6 +6,7 @@ import { explainJson, formatExplainText } from '../../views/explainFormat';
 import { nodeFs, readTextFile } from '../../workspace/fs';
 import { UsageError, type CliIO } from '../io';
 import { loadProject } from '../../workspace/projectFile';
+import { CheckSession } from './check';
 
 export async function runExplain(args: string[], io: CliIO): Promise<number> {
   let parsed;
@@ -19,6 +20,8 @@ export async function runExplain(args: string[], io: CliIO): Promise<number> {
   if (parsed.positionals.length === 0) throw new UsageError('name at least one file: noiselint explain <file...>');
   let failed = false;
   const results = [];
+  // Paired as check pairs them: a sampling file is explained with its training file's schedule.
+  const session = new CheckSession(nodeFs, (p) => relative(io.cwd, p) || p);
   for (const input of parsed.positionals) {
     const abs = resolve(io.cwd, input);
     const shown = relative(io.cwd, abs) || input;
@@ -29,10 +32,12 @@ export async function runExplain(args: string[], io: CliIO): Promise<number> {
       failed = true;
       continue;
     }
-    const file = readFile(read.text, { path: shown, project });
+    const pairing = session.partnersOf(abs, project);
+    const file = readFile(read.text, { path: shown, project, partners: pairing.partners, pairRole: pairing.pairRole });
     results.push(file);
     if (format === 'text') io.stdout(formatExplainText(file));
   }
+  for (const w of session.warnings) io.stderr(`noiselint explain: warning: ${w}\n`);
   if (format === 'json') io.stdout(`${JSON.stringify(explainJson(results), null, 2)}\n`);
   return failed ? 2 : 0;
 }
