@@ -118,7 +118,7 @@ class Renderer {
       if (this.setup.problems.some((p) => p.concept === edit.concept && p.kind === 'duplicate')) giveUp('duplicate keys');
     }
     // Removals first, so that an insertion never anchors on an entry that goes away.
-    for (const edit of edits) if (edit.kind === 'remove') this.remove(edit.concept);
+    for (const edit of edits) if (edit.kind === 'remove') this.remove(edit.concept, edit.keepComment === true);
     for (const edit of edits) if (edit.kind === 'set') this.set(edit.concept, edit.value);
     for (const pending of this.inserts) this.renderInsert(pending);
     return this.finish();
@@ -512,17 +512,17 @@ class Renderer {
 
   // ---- remove ------------------------------------------------------------------------------
 
-  private remove(concept: Concept): void {
+  private remove(concept: Concept, keepComment: boolean): void {
     const source = this.sourceOf(concept);
     if (!source) return;
     const { entry, parent } = source;
     if (!parent.entries.includes(entry)) giveUp('entry is not in its map');
     this.removed.add(entry);
-    if (this.isFlow(parent)) this.removeFlow(entry, parent);
-    else this.removeBlock(entry, parent);
+    if (this.isFlow(parent)) this.removeFlow(entry, parent, keepComment);
+    else this.removeBlock(entry, parent, keepComment);
   }
 
-  private removeBlock(entry: LocatedEntry, map: LocatedMap): void {
+  private removeBlock(entry: LocatedEntry, map: LocatedMap, keepComment = false): void {
     const text = this.text;
     const index = map.entries.indexOf(entry);
     if (map.entries.length === 1) giveUp('removing the only key would empty its map');
@@ -538,6 +538,15 @@ class Renderer {
     }
     // An anchor defined in the removed text may be what an alias elsewhere refers to.
     if (text.slice(keyStart, end).includes('&')) this.risky('removed text may define an anchor');
+    if (isBlank(before) && keepComment && !valueEndsLine) {
+      // `key: value  # why` -> `# why` at the key's indentation: the comment stays on its line.
+      const lineEnd = lineBreakOf(text, end);
+      const comment = commentStartingAt(this.parsed, skipSpaces(text, end));
+      if (comment && comment.end <= lineEnd) {
+        this.edits.push({ span: { start: keyStart, end: comment.start }, newText: '' });
+        return;
+      }
+    }
     if (isBlank(before)) {
       let from = lineStart;
       let to = valueEndsLine ? end : nextLineStart(text, end);
@@ -561,7 +570,7 @@ class Renderer {
     giveUp('entry shares its line');
   }
 
-  private removeFlow(entry: LocatedEntry, map: LocatedMap): void {
+  private removeFlow(entry: LocatedEntry, map: LocatedMap, keepComment = false): void {
     const text = this.text;
     if (this.format === 'yaml') this.risky('removal from a YAML flow map');
     const index = map.entries.indexOf(entry);
@@ -577,7 +586,10 @@ class Renderer {
     const lineStart = lineStartOf(text, keyStart);
     const startsLine = isBlank(text.slice(lineStart, keyStart));
     if (endsLine && startsLine) {
-      this.edits.push({ span: { start: lineStart, end: nextLineStart(text, p) }, newText: '' });
+      // Keeping a trailing comment: only the member (and its comma) goes, the comment stays.
+      const keepFrom = keepComment && comment ? comment.start : -1;
+      if (keepFrom >= 0) this.edits.push({ span: { start: keyStart, end: keepFrom }, newText: '' });
+      else this.edits.push({ span: { start: lineStart, end: nextLineStart(text, p) }, newText: '' });
       if (!hasComma && index > 0) {
         const comma = commaAfter(text, map.entries[index - 1].span.end, this.parsed);
         if (comma < 0) giveUp('no comma after the previous member');

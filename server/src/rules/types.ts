@@ -6,7 +6,12 @@ import type { FieldSource, Setup } from '../setup/types';
 /** A change stated in concepts; fix/ renders it as minimal text edits. */
 export type ConceptEdit =
   | { kind: 'set'; concept: Concept; value: ConceptValues[Concept] }
-  | { kind: 'remove'; concept: Concept };
+  | {
+      kind: 'remove';
+      concept: Concept;
+      /** Keep a comment that shares the removed key's line, on a line of its own (the run operation). */
+      keepComment?: boolean;
+    };
 
 export interface ConceptFix {
   /**

@@ -296,3 +296,25 @@ function autoMatch(file: string, project: ResolvedProject, memo: PairingMemo, ro
   if (sameKey.length === 1 && otherKey.length === 1) return { role, partners: [otherKey[0]], how: 'auto-name' };
   return null;
 }
+
+/** The files of one run: its training file and that file's sampling partners. */
+export interface RunFiles {
+  training: string | null;
+  sampling: string[];
+}
+
+/**
+ * The run `file` belongs to: a training file with its sampling partners, a sampling file with its
+ * training file and that file's other sampling partners, or the file alone. Never throws.
+ */
+export function runFilesOf(file: string, project: ResolvedProject, deps: PairingDeps): RunFiles {
+  const abs = resolve(file);
+  const match = findPartners(abs, project, deps);
+  if (!match) return { training: null, sampling: [] };
+  if (match.role === 'training') return { training: abs, sampling: [...match.partners] };
+  const training = match.partners[0];
+  const back = findPartners(training, project, deps);
+  const sampling = back && back.role === 'training' ? [...back.partners] : [];
+  if (!sampling.some((s) => (deps.memo ?? new PairingMemo(deps.fs ?? nodeFs)).samePath(s, abs))) sampling.unshift(abs);
+  return { training, sampling };
+}
