@@ -28,7 +28,8 @@ import {
 import type { TextEdit } from '../base/findings';
 import { isSigmaSpaceSampler } from '../analysis/analysis';
 import type { Concept, ConceptValues } from '../fields/concepts';
-import type { FileReading, DocumentResult } from '../engine/types';
+import type { Analysis } from '../analysis/analysis';
+import type { ParsedFile } from '../parse/types';
 import type { ConceptEdit } from '../rules/types';
 import { fmtValue } from '../rules/format';
 import { readerAnswersFor, type ReaderAnswers } from '../setup/readerAnswers';
@@ -109,6 +110,19 @@ export interface RunPlan {
 }
 
 type Params = Omit<ScheduleParams, 'rescaleZeroSnr'>;
+
+/** What the plan reads of one document (the engine's DocumentResult has this shape). */
+export interface DocumentResult {
+  index: number;
+  setup: Setup;
+  analysis: Analysis;
+}
+
+/** What the plan reads of one file (the engine's FileReading has this shape). */
+export interface FileReading {
+  parsed: ParsedFile;
+  documents: DocumentResult[];
+}
 
 /** Schedule parameters of a discrete setup (inherited values included), or null. */
 function paramsOf(setup: Setup): Params | null {

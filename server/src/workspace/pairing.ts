@@ -297,24 +297,24 @@ function autoMatch(file: string, project: ResolvedProject, memo: PairingMemo, ro
   return null;
 }
 
-/** The files of one run: its training file and that file's sampling partners. */
+/** The files of one run: its training file and that file's sampling partners (absolute paths). */
 export interface RunFiles {
   training: string | null;
   sampling: string[];
 }
 
 /**
- * The run `file` belongs to: a training file with its sampling partners, a sampling file with its
- * training file and that file's other sampling partners, or the file alone. Never throws.
+ * The run `file` belongs to, from a pairing lookup: a training file with its sampling partners,
+ * a sampling file with its training file and that file's other sampling partners, or the file
+ * alone (training null, sampling empty).
  */
-export function runFilesOf(file: string, project: ResolvedProject, deps: PairingDeps): RunFiles {
-  const abs = resolve(file);
-  const match = findPartners(abs, project, deps);
-  if (!match) return { training: null, sampling: [] };
-  if (match.role === 'training') return { training: abs, sampling: [...match.partners] };
-  const training = match.partners[0];
-  const back = findPartners(training, project, deps);
-  const sampling = back && back.role === 'training' ? [...back.partners] : [];
-  if (!sampling.some((s) => (deps.memo ?? new PairingMemo(deps.fs ?? nodeFs)).samePath(s, abs))) sampling.unshift(abs);
+export function runFilesOf(file: string, pairsOf: (path: string) => { pairRole?: PairRole; paths: string[] }): RunFiles {
+  const own = pairsOf(file);
+  if (!own.pairRole || own.paths.length === 0) return { training: null, sampling: [] };
+  if (own.pairRole === 'training') return { training: file, sampling: [...own.paths] };
+  const training = own.paths[0];
+  const back = pairsOf(training);
+  const sampling = back.pairRole === 'training' ? [...back.paths] : [];
+  if (!sampling.includes(file)) sampling.unshift(file);
   return { training, sampling };
 }

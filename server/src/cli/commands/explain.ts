@@ -6,7 +6,7 @@ import { explainJson, formatExplainText } from '../../views/explainFormat';
 import { nodeFs, readTextFile } from '../../workspace/fs';
 import { UsageError, type CliIO } from '../io';
 import { loadProject } from '../../workspace/projectFile';
-import { CheckSession } from './check';
+import { WorkspaceSession } from '../../workspace/session';
 
 export async function runExplain(args: string[], io: CliIO): Promise<number> {
   let parsed;
@@ -21,7 +21,7 @@ export async function runExplain(args: string[], io: CliIO): Promise<number> {
   let failed = false;
   const results = [];
   // Paired as check pairs them: a sampling file is explained with its training file's schedule.
-  const session = new CheckSession(nodeFs, (p) => relative(io.cwd, p) || p);
+  const session = new WorkspaceSession({ stableTree: true, showPath: (p: string) => relative(io.cwd, p) || p });
   for (const input of parsed.positionals) {
     const abs = resolve(io.cwd, input);
     const shown = relative(io.cwd, abs) || input;
