@@ -72,7 +72,12 @@ describe('check --format json', () => {
           expect(['sampling-only', 'needs-retraining']).toContain(fix.effect);
           expect(typeof fix.touchesComment).toBe('boolean');
           expect(fix.edits.length).toBeGreaterThan(0);
-          for (const e of fix.edits) expect(typeof e.newText).toBe('string');
+          // Compact by default: [startLine, startCharacter, endLine, endCharacter, newText].
+          for (const e of fix.edits) {
+            expect(e).toHaveLength(5);
+            expect(e.slice(0, 4).every((n: unknown) => Number.isInteger(n))).toBe(true);
+            expect(typeof e[4]).toBe('string');
+          }
         }
         if (f.severity === 'error') errors++;
         if (f.severity === 'warning') warnings++;
@@ -82,14 +87,14 @@ describe('check --format json', () => {
       }
     }
     expect(out.summary).toMatchObject({ errors, warnings, infos, files: 3 });
-    expect(out.formatVersion).toBe(2);
+    expect(out.formatVersion).toBe(3);
     expect(Object.keys(out)).toEqual(['formatVersion', 'files', 'skipped', 'summary']);
     expect(errors).toBeGreaterThan(0);
   });
 
   it('a range points at the field that causes the finding, and the fix edits apply to the file', async () => {
     const root = tree({ 'eps.yaml': ZERO_SNR_EPSILON });
-    const out = JSON.parse((await runCli(['check', '--format=json'], root)).stdout);
+    const out = JSON.parse((await runCli(['check', '--format=json', '--fix-edits', 'full'], root)).stdout);
     const finding = out.files[0].findings.find((f: { rule: string }) => f.rule === 'epsilon-at-zero-snr');
     expect(finding.severity).toBe('error');
     // The target field (line 6, 0-based) is what the finding marks.
@@ -105,6 +110,35 @@ describe('check --format json', () => {
     expect(fixed).toContain('prediction_type: v_prediction');
     expect(fixed).not.toContain('epsilon');
     expect(fixed.split('\n').length).toBe(ZERO_SNR_EPSILON.split('\n').length);
+  });
+
+  it('compact fix edits (the default) say the same as the full form; none leaves them out', async () => {
+    const root = tree({ 'eps.yaml': ZERO_SNR_EPSILON, 'leaky.yaml': LEAKY_V });
+    const full = JSON.parse((await runCli(['check', '--format', 'json', '--fix-edits', 'full'], root)).stdout);
+    const compactText = (await runCli(['check', '--format', 'json'], root)).stdout;
+    const compact = JSON.parse(compactText);
+    const none = JSON.parse((await runCli(['check', '--format', 'json', '--fix-edits', 'none'], root)).stdout);
+    // Compact separators: no indentation, one line.
+    expect(compactText.trim().split('\n')).toHaveLength(1);
+    let edits = 0;
+    full.files.forEach((file: { findings: { fixes: { edits: { range: JsonRange; newText: string }[] }[] }[] }, i: number) => {
+      file.findings.forEach((finding, j) => {
+        finding.fixes.forEach((fix, k) => {
+          const short = compact.files[i].findings[j].fixes[k].edits;
+          expect(short).toEqual(fix.edits.map((e) => [e.range.start.line, e.range.start.character, e.range.end.line, e.range.end.character, e.newText]));
+          expect(none.files[i].findings[j].fixes[k]).not.toHaveProperty('edits');
+          edits += short.length;
+        });
+      });
+    });
+    expect(edits).toBeGreaterThan(0);
+    expect(compact.summary).toEqual(full.summary);
+  });
+
+  it('refuses an unknown --fix-edits form', async () => {
+    const r = await runCli(['check', '--format', 'json', '--fix-edits', 'tiny'], tree({ 'leaky.yaml': LEAKY_V }));
+    expect(r.code).toBe(2);
+    expect(r.stderr).toMatch(/--fix-edits must be compact, full, none/);
   });
 
   it('characters count UTF-16 code units, after a BOM and non-ASCII text', async () => {

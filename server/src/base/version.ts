@@ -5,5 +5,7 @@ export const VERSION = '0.1.0';
  * Version of the JSON contracts (`check --format json`, `explain --format json`), written as
  * `formatVersion`. Raised when a field is renamed or removed; additions keep it.
  * 2: fixes say `effect` and `touchesComment` instead of `safety`.
+ * 3: check writes fix edits as compact arrays by default (`--fix-edits full` for the objects)
+ *    and one line without indentation; the summary adds `passedOver`.
  */
-export const JSON_FORMAT_VERSION = 2;
+export const JSON_FORMAT_VERSION = 3;

@@ -11,7 +11,7 @@ import { VERSION } from '../base/version';
 const USAGE = `noiselint ${VERSION}: finds noise-schedule mistakes in diffusion configs
 
 Usage:
-  noiselint check [paths|globs...] [--format text|json|sarif] [--show <severity>] [--budget <severity>=<N>...]
+  noiselint check [paths|globs...] [--format text|json|sarif] [--show <severity>] [--budget <severity>=<N>...] [--fix-edits compact|full|none]
   noiselint fix [paths...] [--accept-retraining] [--accept-comment-edits] [--dry-run]
   noiselint explain <file...> [--format text|json]
   noiselint rules [id]

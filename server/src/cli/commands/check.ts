@@ -14,11 +14,11 @@ import { ALL_RULE_METAS } from '../../rules';
 import { discoverFiles } from '../../workspace/discover';
 import { nodeFs, type WorkspaceFs } from '../../workspace/fs';
 import { loadProject, ProjectFileError, type ResolvedProject } from '../../workspace/project';
-import { WorkspaceSession } from '../../workspace/session';
+import { WorkspaceSession, type Pairing } from '../../workspace/session';
 import { mayBeDiffusionConfig } from '../../engine/prefilter';
 
 import { UsageError, type CliIO } from '../io';
-import { formatJson } from '../output/json';
+import { EDIT_FORMS, JsonReportWriter, type EditForm } from '../output/json';
 import { atOrAbove, displayPath, summarize, type BudgetResult, type CheckReport, type Summary } from '../output/report';
 import { SEVERITIES, type Severity } from '../../base/findings';
 import { formatSarif } from '../output/sarif';
@@ -39,6 +39,8 @@ export interface CheckOptions {
   show: Severity;
   /** At most `allowed` findings at or above `severity` may pass. */
   budgets: Budget[];
+  /** How the JSON report writes fix edits (default compact). */
+  fixEdits?: EditForm;
 }
 
 export interface Budget {
@@ -72,6 +74,7 @@ export function parseCheckArgs(args: string[]): CheckOptions {
         format: { type: 'string', default: 'text' },
         show: { type: 'string', default: 'hint' },
         budget: { type: 'string', multiple: true, default: [] },
+        'fix-edits': { type: 'string', default: 'compact' },
       },
     });
   } catch (err) {
@@ -87,7 +90,9 @@ export function parseCheckArgs(args: string[]): CheckOptions {
     if (budgets.findIndex((o) => o.severity === b.severity) !== i) throw new UsageError(`--budget ${b.severity}= is given twice`);
   }
   if (!budgets.some((b) => b.severity === 'error')) budgets.unshift({ severity: 'error', allowed: 0, explicit: false });
-  return { inputs: parsed.positionals, format, show, budgets };
+  const fixEdits = parsed.values['fix-edits'] as EditForm;
+  if (!EDIT_FORMS.includes(fixEdits)) throw new UsageError(`--fix-edits must be ${EDIT_FORMS.join(', ')}, not "${fixEdits}"`);
+  return { inputs: parsed.positionals, format, show, budgets, fixEdits };
 }
 
 export async function runCheck(args: string[], io: CliIO): Promise<number> {
@@ -119,6 +124,11 @@ export async function check(options: CheckOptions, io: CliIO, fs: WorkspaceFs = 
   }
 
   const session = new WorkspaceSession({ fs, stableTree: true, showPath: shown, projects });
+  const listed = (s: Severity) => SEVERITIES.indexOf(s) <= SEVERITIES.indexOf(options.show);
+  // JSON is written file by file as the run goes; text and SARIF are written from the whole report.
+  const stream = options.format === 'json' ? new JsonReportWriter(io.stdout, io.cwd, options.fixEdits ?? 'compact') : null;
+  const counted: Summary = { errors: 0, warnings: 0, infos: 0, hints: 0 };
+  const countedListed: Summary = { errors: 0, warnings: 0, infos: 0, hints: 0 };
   const progress = io.isTTY && discovered.files.length >= PROGRESS_MIN_FILES;
   let done = 0;
   for (const file of discovered.files) {
@@ -140,10 +150,10 @@ export async function check(options: CheckOptions, io: CliIO, fs: WorkspaceFs = 
       continue;
     }
     let result: FileResult;
+    let pairing: Pairing;
     try {
       // Pairing reads the folder's files (their roles); the file's own check reuses that reading.
-      const pairing = session.partnersOf(file, project);
-      for (const [p, t] of pairing.texts) report.otherTexts.set(p, t);
+      pairing = session.partnersOf(file, project);
       result = session.analyze(file, read.text, { project, partners: pairing.partners, pairRole: pairing.pairRole });
     } catch (err) {
       // The core never throws by contract; if it does, one file's failure must not end the run.
@@ -151,32 +161,51 @@ export async function check(options: CheckOptions, io: CliIO, fs: WorkspaceFs = 
       continue;
     }
     // As data: the report outlives every file's tree.
-    report.files.push({ path: file, text: read.text, findings: findingsAsData(result.findings), isDiffusionConfig: result.isDiffusionConfig });
+    const checked = { path: file, text: read.text, findings: findingsAsData(result.findings), isDiffusionConfig: result.isDiffusionConfig };
+    if (stream) {
+      addCounts(counted, checked.findings);
+      if (options.show !== 'hint') checked.findings = checked.findings.filter((x) => listed(x.severity));
+      addCounts(countedListed, checked.findings);
+      stream.file(checked, pairing.texts);
+    } else {
+      for (const [p, t] of pairing.texts) report.otherTexts.set(p, t);
+      report.files.push(checked);
+    }
   }
   if (progress) io.stderr('\r\x1b[K');
   for (const w of session.warnings) notice('warning', relativizeWarning(w, io.cwd));
 
   // Budgets and the summary count every finding; the view only decides what is listed.
-  const all = summarize(report.files);
+  const all = stream ? counted : summarize(report.files);
   const budgets: BudgetResult[] = options.budgets.map((b) => {
     const found = atOrAbove(all, b.severity);
     return { ...b, found, exceeded: found > b.allowed };
   });
-  const listed = (s: Severity) => SEVERITIES.indexOf(s) <= SEVERITIES.indexOf(options.show);
   let hidden: Summary = { errors: 0, warnings: 0, infos: 0, hints: 0 };
-  if (options.show !== 'hint') {
+  if (stream) {
+    hidden = { errors: 0, warnings: all.warnings - countedListed.warnings, infos: all.infos - countedListed.infos, hints: all.hints - countedListed.hints };
+  } else if (options.show !== 'hint') {
     report.files = report.files.map((f) => ({ ...f, findings: f.findings.filter((x) => listed(x.severity)) }));
     const shownCount = summarize(report.files);
     hidden = { errors: 0, warnings: all.warnings - shownCount.warnings, infos: all.infos - shownCount.infos, hints: all.hints - shownCount.hints };
   }
   report.outcome = { counted: all, hidden, show: options.show, budgets };
 
-  if (options.format === 'json') io.stdout(formatJson(report));
+  if (stream) stream.finish(report);
   else if (options.format === 'sarif') io.stdout(formatSarif(report, { version: CHECK_TOOL_VERSION, rules: ALL_RULE_METAS }));
   else io.stdout(formatText(report, { color: io.isTTY && !io.env.NO_COLOR }));
 
   if (report.notices.some((n) => n.level === 'error')) return 2;
   return budgets.some((b) => b.exceeded) ? 1 : 0;
+}
+
+function addCounts(s: Summary, findings: readonly { severity: Severity }[]): void {
+  for (const f of findings) {
+    if (f.severity === 'error') s.errors++;
+    else if (f.severity === 'warning') s.warnings++;
+    else if (f.severity === 'info') s.infos++;
+    else s.hints++;
+  }
 }
 
 /** Pairing warnings name absolute paths; show them relative to the run's folder. */

@@ -4,7 +4,7 @@
  */
 import type { FixEffect } from '../../base/findings';
 import { JSON_FORMAT_VERSION } from '../../base/version';
-import { displayPath, Locator, summarize, type CheckReport, type Range } from './report';
+import { displayPath, Locator, summarize, type CheckedFile, type CheckReport, type Range } from './report';
 
 export interface JsonEdit {
   range: Range;
@@ -16,6 +16,7 @@ export interface JsonFix {
   effect: FixEffect;
   touchesComment: boolean;
   preferred: boolean;
+  /** `--fix-edits full`; the default writes CompactEdit arrays, `none` leaves the field out. */
   edits: JsonEdit[];
 }
 
@@ -57,50 +58,114 @@ export interface JsonBudget {
   exceeded: boolean;
 }
 
-export function toJson(report: CheckReport): JsonOutput {
-  const locate = new Locator(report);
-  const files = report.files.map((file) => ({
-    path: displayPath(report.cwd, file.path),
+/**
+ * How fix edits are written: `compact` (default) as `[startLine, startCharacter, endLine,
+ * endCharacter, newText]` arrays, `full` as `{ range, newText }` objects, `none` left out (the
+ * fix's title, effect and flags stay).
+ */
+export type EditForm = 'compact' | 'full' | 'none';
+export const EDIT_FORMS: readonly EditForm[] = ['compact', 'full', 'none'];
+
+export type CompactEdit = [number, number, number, number, string];
+
+export interface JsonFileEntry {
+  path: string;
+  findings: JsonFinding[];
+}
+
+/** One checked file as the contract writes it. */
+export function fileEntry(file: CheckedFile, locate: Locator, cwd: string, edits: EditForm = 'full'): JsonFileEntry {
+  return {
+    path: displayPath(cwd, file.path),
     findings: file.findings.map((f): JsonFinding => ({
       rule: f.rule,
       severity: f.severity,
       message: f.message,
       range: locate.range(file.path, f.span),
       document: f.documentIndex,
-      fixes: f.fixes.map((fix) => ({
-        title: fix.title,
-        effect: fix.effect,
-        touchesComment: fix.touchesComment,
-        preferred: fix.preferred,
-        edits: fix.edits.map((e) => ({ range: locate.range(file.path, e.span), newText: e.newText })),
-      })),
+      fixes: f.fixes.map((fix) => {
+        const out: JsonFix = { title: fix.title, effect: fix.effect, touchesComment: fix.touchesComment, preferred: fix.preferred, edits: [] };
+        if (edits === 'none') delete (out as Partial<JsonFix>).edits;
+        else if (edits === 'full') out.edits = fix.edits.map((e) => ({ range: locate.range(file.path, e.span), newText: e.newText }));
+        else
+          (out as unknown as { edits: CompactEdit[] }).edits = fix.edits.map((e) => {
+            const r = locate.range(file.path, e.span);
+            return [r.start.line, r.start.character, r.end.line, r.end.character, e.newText];
+          });
+        return out;
+      }),
       related: f.related.map((r) => {
         const path = locate.resolvePath(file.path, r.path);
-        return { path: displayPath(report.cwd, path), range: locate.range(path, r.span), message: r.message };
+        return { path: displayPath(cwd, path), range: locate.range(path, r.span), message: r.message };
       }),
     })),
-  }));
+  };
+}
+
+/** The whole report at once (small runs, tests); `check` streams it with JsonReportWriter. */
+export function toJson(report: CheckReport, edits: EditForm = 'full'): JsonOutput {
+  const locate = new Locator(report);
   return {
     formatVersion: JSON_FORMAT_VERSION,
-    files,
+    files: report.files.map((file) => fileEntry(file, locate, report.cwd, edits)),
     skipped: report.skipped.map((s) => ({ path: displayPath(report.cwd, s.path), reason: s.reason })),
     summary: summaryOf(report),
   };
 }
 
-function summaryOf(report: CheckReport): JsonOutput['summary'] {
+function summaryOf(report: CheckReport, listedFiles = report.files.length): JsonOutput['summary'] {
   const outcome = report.outcome;
   const counted = outcome?.counted ?? summarize(report.files);
   const h = outcome?.hidden;
   return {
     ...counted,
-    files: report.files.length,
+    files: listedFiles,
     passedOver: report.passedOver ?? 0,
     hidden: h ? h.errors + h.warnings + h.infos + h.hints : 0,
     budgets: (outcome?.budgets ?? []).map((b) => ({ severity: b.severity, allowed: b.allowed, found: b.found, exceeded: b.exceeded })),
   };
 }
 
-export function formatJson(report: CheckReport): string {
-  return `${JSON.stringify(toJson(report), null, 2)}\n`;
+export function formatJson(report: CheckReport, edits: EditForm = 'compact'): string {
+  return `${JSON.stringify(toJson(report, edits))}\n`;
+}
+
+/** Text is handed to the output in pieces of about this size. */
+const FLUSH_CHARS = 64 * 1024;
+
+/**
+ * The check report written as it goes: one file entry at a time, compact separators, nothing
+ * kept of a file once it is written (memory stays flat in the number of files, and no string
+ * ever holds the whole report). The result is the same document `formatJson` gives.
+ */
+export class JsonReportWriter {
+  private buffer = '';
+  private files = 0;
+
+  constructor(
+    private readonly write: (text: string) => void,
+    private readonly cwd: string,
+    private readonly edits: EditForm = 'compact',
+  ) {
+    this.buffer = `{"formatVersion":${JSON_FORMAT_VERSION},"files":[`;
+  }
+
+  /** Writes one checked file; `otherTexts` are the texts its related locations point into. */
+  file(file: CheckedFile, otherTexts: ReadonlyMap<string, string>): void {
+    const locate = new Locator({ cwd: this.cwd, files: [file], skipped: [], otherTexts: otherTexts as Map<string, string>, notices: [] });
+    this.buffer += (this.files++ === 0 ? '' : ',') + JSON.stringify(fileEntry(file, locate, this.cwd, this.edits));
+    if (this.buffer.length >= FLUSH_CHARS) this.flush();
+  }
+
+  /** Writes the skipped files and the summary (the report's `files` are not read again). */
+  finish(report: CheckReport): void {
+    const skipped = report.skipped.map((s) => ({ path: displayPath(this.cwd, s.path), reason: s.reason }));
+    this.buffer += `],"skipped":${JSON.stringify(skipped)},"summary":${JSON.stringify(summaryOf(report, this.files))}}\n`;
+    this.flush();
+  }
+
+  private flush(): void {
+    if (this.buffer.length) this.write(this.buffer);
+    this.buffer = '';
+  }
 }
