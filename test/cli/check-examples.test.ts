@@ -45,11 +45,13 @@ describe('check examples (the Lanternfish Pictures demo workspace)', () => {
     expect(rulesOf('broken/too-many-steps.yaml')).toEqual(['steps-out-of-range:error']);
     expect(rulesOf('broken/offset-past-the-end.yaml')).toEqual(['terminal-snr-leak:info', 'timestep-out-of-range:error']);
     expect(rulesOf('broken/explicit-betas.yaml')).toEqual(['schedule-invalid:error']);
+    // Both findings of the archive re-render are marked deliberate in the file.
+    expect(rulesOf('archive-renders/reproduce-2025-storyboards.yaml')).toEqual([]);
     expect(rulesOf('launcher-args/stills-args.toml')).toEqual([]);
     expect(rulesOf('launcher-args/night-args.toml')).toEqual(['offset-noise-conflict:warning', 'terminal-snr-leak:warning']);
     // The project file itself is never checked as a config; the README is not a config file.
     expect(out.files.map((f) => f.path)).not.toContain('examples/noiselint.project.yaml');
-    expect(out.files).toHaveLength(14);
+    expect(out.files).toHaveLength(15);
   });
 
   it('the night pair is found automatically and the mismatch points into the training file', async () => {

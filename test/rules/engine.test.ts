@@ -217,13 +217,33 @@ describe('fixes', () => {
 });
 
 describe('suppressions, order and duplicates', () => {
-  it('drops findings on the line after an allow comment, and everywhere with allow-file', () => {
-    const text = LEAKY.replace('  beta_schedule:', '  # noiselint: allow terminal-snr-leak -- base checkpoint, cannot change\n  beta_schedule:');
-    expect(run(text, RULES).findings.map((f) => f.rule)).not.toContain('terminal-snr-leak');
-    const other = LEAKY.replace('  beta_schedule:', '  # noiselint: allow sampler-skips-last-step\n  beta_schedule:');
-    expect(run(other, RULES).findings.map((f) => f.rule)).toContain('terminal-snr-leak');
-    const whole = `# noiselint: allow-file all\n${LEAKY}`;
+  it('drops findings on the line after a deliberate comment, and everywhere with deliberate throughout', () => {
+    const text = LEAKY.replace('  beta_schedule:', '  # noiselint: deliberate terminal-snr-leak because the base checkpoint cannot change\n  beta_schedule:');
+    expect(run(text, RULES).findings.map((f) => f.rule)).toEqual([]);
+    const other = LEAKY.replace('  beta_schedule:', '  # noiselint: deliberate sampler-skips-last-step\n  beta_schedule:');
+    expect(run(other, RULES).findings.map((f) => f.rule)).toEqual(['terminal-snr-leak']);
+    const whole = `# noiselint: deliberate throughout all because an archived run\n${LEAKY}`;
     expect(run(whole, RULES).findings).toEqual([]);
+    // The old spelling of the comment is no directive: nothing is kept quiet, and the comment is named.
+    const old = LEAKY.replace('  beta_schedule:', '  # noiselint: allow terminal-snr-leak -- base checkpoint\n  beta_schedule:');
+    const oldFindings = run(old, RULES).findings;
+    expect(oldFindings.map((f) => f.rule).sort()).toEqual(['parse-error', 'terminal-snr-leak']);
+    expect(oldFindings.find((f) => f.rule === 'parse-error')!.message).toContain('"noiselint: allow" is not a noiselint comment');
+  });
+
+  it('reports a misspelled rule id in a deliberate comment at the id, with the closest id', () => {
+    const text = LEAKY.replace('  beta_schedule:', '  # noiselint: deliberate terminal-snr-leek, sampler-skips-last-step because kept\n  beta_schedule:');
+    const { findings } = run(text, RULES);
+    // Nothing is kept quiet by the misspelled id: the leak is still reported.
+    expect(findings.map((f) => f.rule)).toEqual(['unknown-rule-in-comment', 'terminal-snr-leak']);
+    const typo = findings[0];
+    expect(slice(text, typo)).toBe('terminal-snr-leek');
+    expect(typo.severity).toBe('warning');
+    expect(typo.message).toBe('"terminal-snr-leek" in this noiselint comment names no rule, so it keeps nothing quiet (did you mean "terminal-snr-leak"?)');
+    const far = run(LEAKY.replace('  beta_schedule:', '  # noiselint: deliberate brightness\n  beta_schedule:'), RULES).findings;
+    expect(far[0].message).toContain('`noiselint rules` lists the rule ids');
+    // Not in files that hold no diffusion config.
+    expect(run('title: notes\n# noiselint: deliberate terminal-snr-leek\n', RULES).findings).toEqual([]);
   });
 
   it('sorts by position and removes exact duplicates', () => {

@@ -12,14 +12,14 @@ async function run(args: string[]): Promise<{ code: number; out: string; err: st
 }
 
 describe('noiselint rules', () => {
-  it('lists the 17 rules and parse-error with default severity and what their repair does', async () => {
+  it('lists the 17 rules and the engine ids with default severity and what their repair does', async () => {
     const { code, out, err } = await run([]);
     expect(code).toBe(0);
     expect(err).toBe('');
     const lines = out.trimEnd().split('\n');
-    expect(lines).toHaveLength(1 + RULE_IDS.length + 1);
+    expect(lines).toHaveLength(1 + RULE_IDS.length + 2);
     expect(lines[0]).toMatch(/^rule\s+default\s+repair\s+what it finds$/);
-    for (const id of [...RULE_IDS, 'parse-error']) {
+    for (const id of [...RULE_IDS, 'parse-error', 'unknown-rule-in-comment']) {
       const meta = getRuleMeta(id)!;
       const line = lines.find((l) => l.startsWith(`${id} `));
       expect(line, id).toBeDefined();

@@ -14,7 +14,7 @@ noise_scheduler: &ns
   trained_betas: [0.00085, 0.0009, 0.001]
 sampling:
   <<: *ns
-  num_inference_steps: 30   # noiselint: allow sampler-skips-last-step
+  num_inference_steps: 30   # noiselint: deliberate sampler-skips-last-step because old renders
   guidance_scale: 7.5
   notes: |
     white backgrounds

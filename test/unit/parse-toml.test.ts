@@ -223,9 +223,19 @@ describe('TOML problems as data', () => {
 });
 
 describe('TOML suppression comments', () => {
-  it('reads `# noiselint: allow` directives like YAML', () => {
-    const text = '# noiselint: allow terminal-snr-leak -- stock schedule on purpose\nbeta_schedule = "scaled_linear"\n';
+  it('reads `# noiselint: deliberate` comments like YAML', () => {
+    const text = '# noiselint: deliberate terminal-snr-leak because stock schedule on purpose\nbeta_schedule = "scaled_linear"\n';
     const f = parseText(text, 'toml');
-    expect(f.suppressions).toEqual([{ scope: 'next-line', line: 0, targetLine: 1, rules: ['terminal-snr-leak'] }]);
+    const at = text.indexOf('terminal-snr-leak');
+    expect(f.suppressions).toEqual([
+      {
+        scope: 'next-line',
+        line: 0,
+        targetLine: 1,
+        rules: ['terminal-snr-leak'],
+        ids: [{ id: 'terminal-snr-leak', span: { start: at, end: at + 'terminal-snr-leak'.length } }],
+        reason: 'stock schedule on purpose',
+      },
+    ]);
   });
 });

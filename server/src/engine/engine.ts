@@ -7,7 +7,8 @@ import { CONCEPT_GROUP, type Concept } from '../fields/concepts';
 import { editsTouchComment, rememberOrigin, renderConceptEdits } from '../fix';
 import { LineIndex } from '../parse/lineIndex';
 import type { LocatedMap, LocatedNode, ParsedFile, Span } from '../parse/types';
-import { PARSE_ERROR_ID, RULES } from '../rules';
+import { ALL_RULE_METAS, PARSE_ERROR_ID, RULES, UNKNOWN_RULE_IN_COMMENT_ID } from '../rules';
+import { nearestName } from '../base/nearest';
 import type { ConceptFix, Rule, RuleContext, RuleFinding, RuleMeta } from '../rules/types';
 import type { FieldSource, Setup } from '../setup/types';
 import type { AnalyzeOptions, FileReading, ResolvedProject } from './types';
@@ -49,6 +50,14 @@ export function runRules(file: FileReading, options: AnalyzeOptions, hooks: Engi
         findings.push(...parseFindings(file, project));
       } catch (error) {
         report(PARSE_ERROR_ID, error);
+      }
+    }
+
+    if (enabled(UNKNOWN_RULE_IN_COMMENT_ID)) {
+      try {
+        findings.push(...unknownIdFindings(file, project));
+      } catch (error) {
+        report(UNKNOWN_RULE_IN_COMMENT_ID, error);
       }
     }
 
@@ -301,6 +310,36 @@ function parseFindings(file: FileReading, project: ResolvedProject | undefined):
       fixes: [],
     };
   });
+}
+
+// ---- deliberate-comments naming no rule --------------------------------------------------------
+
+const KNOWN_IDS = ALL_RULE_METAS.map((m) => m.id);
+
+/** A misspelled id keeps nothing quiet; say so where it is written (diffusion configs only). */
+function unknownIdFindings(file: FileReading, project: ResolvedProject | undefined): Finding[] {
+  const suppressions = file.parsed.suppressions ?? [];
+  if (suppressions.length === 0 || !file.documents.some((d) => d.setup.isDiffusionConfig)) return [];
+  const severity = configuredSeverity(UNKNOWN_RULE_IN_COMMENT_ID, project) ?? 'warning';
+  const out: Finding[] = [];
+  for (const s of suppressions) {
+    for (const { id, span } of s.ids ?? []) {
+      if (KNOWN_IDS.includes(id)) continue;
+      const near = nearestName(id, KNOWN_IDS);
+      const hint = near ? ` (did you mean "${near}"?)` : '; `noiselint rules` lists the rule ids';
+      const doc = file.parsed.documents.find((d) => d.span.start <= span.start && span.start <= d.span.end);
+      out.push({
+        rule: UNKNOWN_RULE_IN_COMMENT_ID,
+        severity,
+        message: `"${id}" in this noiselint comment names no rule, so it keeps nothing quiet${hint}`,
+        span: { ...span },
+        documentIndex: doc?.index ?? 0,
+        related: [],
+        fixes: [],
+      });
+    }
+  }
+  return out;
 }
 
 // ---- suppressions, order -------------------------------------------------------------------

@@ -1,19 +1,28 @@
 /**
- * `noiselint: allow <rule-id>[, <rule-id>...]` comments.
+ * `noiselint: deliberate <rule-id>[, <rule-id>...] [because <reason>]` comments: the config
+ * does this on purpose, so the named rules keep quiet about it.
  *
- * - On a line of its own, `allow` applies to the next line that is not a comment line (so several
- *   comment lines may stand between it and the field). At the end of a line of content it applies
- *   to that line.
- * - `allow-file` applies to the whole file wherever it appears.
- * - `all` (or `*`) allows every rule. Rule ids are separated by commas or spaces; text after ` -- `
- *   is a free-form reason.
+ * - On a line of its own, the comment covers the next line that is not a comment line (so several
+ *   comment lines may stand between it and the field). At the end of a line of content it covers
+ *   that line.
+ * - `noiselint: deliberate throughout <ids>` covers the whole file wherever it appears.
+ * - `all` covers every rule. Rule ids are separated by commas or spaces; everything after the
+ *   word `because` (or `because:`) is the reason, kept with the suppression.
+ * - A `noiselint:` comment with another word is reported (`bad-suppression`), so a misspelled
+ *   directive does not silently keep nothing quiet. Whether the ids name rules is the engine's
+ *   check: this layer does not know the rules.
  */
 import type { LineIndex } from './lineIndex';
 import type { ParseProblem, Suppression } from './types';
 import type { SourceComment } from './shared';
 
-const DIRECTIVE = /^\s*noiselint\s*:\s*(allow-file|allow)\b(.*)$/is;
+export const DIRECTIVE_WORD = 'deliberate';
+export const WHOLE_FILE_WORD = 'throughout';
+export const REASON_WORD = 'because';
+
+const PREFIX = /^(\s*noiselint\s*:\s*)(\S*)/i;
 const RULE_ID = /^[a-z0-9][a-z0-9-]*$/i;
+const USAGE = `write "noiselint: ${DIRECTIVE_WORD} <rule ids> ${REASON_WORD} <reason>"`;
 
 export function readSuppressions(
   text: string,
@@ -37,48 +46,68 @@ export function readSuppressions(
 
   const out: Suppression[] = [];
   comments.forEach((c, i) => {
-    const m = DIRECTIVE.exec(c.text);
-    if (!m) return;
-    const scope = m[1].toLowerCase() === 'allow-file' ? 'file' : 'next-line';
-    const list = m[2].split(/\s--\s|\s--$/)[0];
-    const tokens = list
-      .split(/[\s,]+/)
-      .map((t) => t.trim())
-      .filter((t) => t.length > 0);
+    const head = PREFIX.exec(c.text);
+    if (!head) return;
     const span = { start: c.start, end: c.end };
-    if (tokens.length === 0) {
+    const word = head[2].toLowerCase();
+    if (word !== DIRECTIVE_WORD) {
       problems.push({
         code: 'bad-suppression',
         severity: 'warning',
         span,
-        message: `"noiselint: ${m[1]}" names no rule: list rule ids or write "all".`,
+        message: `"noiselint: ${head[2]}" is not a noiselint comment; ${USAGE}.`,
       });
       return;
     }
+    // Offset of the comment's text in the document, to place each rule id exactly.
+    const at = text.slice(c.start, c.end).indexOf(c.text);
+    const textStart = at >= 0 ? c.start + at : -1;
+    let scope: Suppression['scope'] = 'next-line';
+    let reason: string | undefined;
     const rules: string[] = [];
-    for (const t of tokens) {
-      if (t.toLowerCase() === 'all' || t === '*') {
-        rules.length = 0;
-        rules.push('*');
+    const ids: Suppression['ids'] = [];
+    const tokens = /[^\s,]+/g;
+    tokens.lastIndex = head[0].length;
+    for (let m = tokens.exec(c.text); m; m = tokens.exec(c.text)) {
+      const t = m[0];
+      const lower = t.toLowerCase();
+      if (lower === REASON_WORD || lower === `${REASON_WORD}:`) {
+        reason = c.text.slice(m.index + t.length).trim() || undefined;
         break;
       }
-      if (RULE_ID.test(t)) rules.push(t.toLowerCase());
-      else
-        problems.push({
-          code: 'bad-suppression',
-          severity: 'warning',
-          span,
-          message: `"${t}" is not a rule id; it is ignored.`,
-        });
+      if (lower === WHOLE_FILE_WORD && rules.length === 0 && scope === 'next-line') {
+        scope = 'file';
+        continue;
+      }
+      if (lower === 'all') {
+        rules.push('*');
+        continue;
+      }
+      if (!RULE_ID.test(t)) {
+        problems.push({ code: 'bad-suppression', severity: 'warning', span, message: `"${t}" is not a rule id; it is ignored.` });
+        continue;
+      }
+      rules.push(lower);
+      ids.push({ id: lower, span: textStart >= 0 ? { start: textStart + m.index, end: textStart + m.index + t.length } : span });
     }
-    if (rules.length === 0) return;
+    if (rules.length === 0) {
+      problems.push({
+        code: 'bad-suppression',
+        severity: 'warning',
+        span,
+        message: `"noiselint: ${DIRECTIVE_WORD}" names no rule: list rule ids or write "all"; ${USAGE}.`,
+      });
+      return;
+    }
     const line = lines.lineAt(c.start);
     let targetLine = line;
     if (ownLine[i]) {
       targetLine = lines.lineAt(c.end) + 1;
       while (targetLine < lines.lineCount && commentLines.has(targetLine)) targetLine++;
     }
-    out.push({ scope, line, targetLine, rules });
+    const suppression: Suppression = { scope, line, targetLine, rules: rules.includes('*') ? ['*'] : rules, ids };
+    if (reason) suppression.reason = reason;
+    out.push(suppression);
   });
   return out;
 }

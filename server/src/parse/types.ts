@@ -73,7 +73,7 @@ export interface ParseProblem {
   code: string;
 }
 
-/** A `noiselint: allow ...` comment. */
+/** A `noiselint: deliberate ...` comment (see suppressions.ts). */
 export interface Suppression {
   /**
    * 'next-line' suppresses findings that start on `targetLine`; 'file' suppresses everywhere.
@@ -87,6 +87,10 @@ export interface Suppression {
   targetLine: number;
   /** Rule ids (lower case), or ['*'] for all rules. */
   rules: string[];
+  /** Each rule id as written, with its place in the text (the engine reports ids that name no rule). */
+  ids: { id: string; span: Span }[];
+  /** The text after `because`, when given. */
+  reason?: string;
 }
 
 export interface ParsedFile {

@@ -18,6 +18,7 @@ import { timestepOutOfRange } from './timestep-out-of-range';
 import { trainSampleMismatch } from './train-sample-mismatch';
 import type { Rule, RuleMeta } from './types';
 import { unknownValue } from './unknown-value';
+import { UNKNOWN_RULE_IN_COMMENT_META } from './unknown-rule-in-comment';
 
 export const RULES: readonly Rule[] = [
   terminalSnrLeak,
@@ -41,8 +42,11 @@ export const RULES: readonly Rule[] = [
 
 export const RULE_IDS: readonly string[] = RULES.map((r) => r.meta.id);
 
-/** Rule ids the engine reports besides the rules: `parse-error` for text that cannot be read. */
-export const ENGINE_RULE_METAS: readonly RuleMeta[] = [PARSE_ERROR_META];
+/**
+ * Rule ids the engine reports besides the rules: `parse-error` for text that cannot be read,
+ * `unknown-rule-in-comment` for a `noiselint: deliberate` comment naming no rule.
+ */
+export const ENGINE_RULE_METAS: readonly RuleMeta[] = [PARSE_ERROR_META, UNKNOWN_RULE_IN_COMMENT_META];
 
 /** Metadata of every id a finding can carry (rules, then engine ids). */
 export const ALL_RULE_METAS: readonly RuleMeta[] = [...RULES.map((r) => r.meta), ...ENGINE_RULE_METAS];
@@ -61,6 +65,7 @@ export function ruleDocPath(id: string): string {
 }
 
 export { PARSE_ERROR_ID } from './parse-error';
+export { UNKNOWN_RULE_IN_COMMENT_ID } from './unknown-rule-in-comment';
 export { assumedNote } from './util';
 export { fmt } from './format';
 export type { Rule, RuleMeta, RuleContext, RuleFinding, ConceptEdit, ConceptFix, PartnerDocument } from './types';

@@ -13,6 +13,7 @@ import { ALL_RULE_METAS } from '../rules';
 import type { RuleMeta } from '../rules/types';
 import { nodeFs, readTextFile, type WorkspaceFs } from './fs';
 import type { FilePair, ResolvedProject, RuleSetting } from './types';
+import { nearestName } from '../base/nearest';
 
 export const PROJECT_FILE_NAMES = ['noiselint.project.yaml', 'noiselint.project.json'] as const;
 
@@ -344,27 +345,6 @@ function firstLine(err: unknown): string {
 
 /** ` (did you mean "x"?)` for a near miss (edit distance <= 2), else ''. */
 function closest(word: string, candidates: readonly string[]): string {
-  let best = '';
-  let bestDistance = 3;
-  for (const c of candidates) {
-    const d = editDistance(word.toLowerCase(), c.toLowerCase());
-    if (d < bestDistance) {
-      best = c;
-      bestDistance = d;
-    }
-  }
+  const best = nearestName(word, candidates);
   return best ? ` (did you mean "${best}"?)` : '';
-}
-
-function editDistance(a: string, b: string): number {
-  if (Math.abs(a.length - b.length) > 2) return 3;
-  let prev = Array.from({ length: b.length + 1 }, (_, j) => j);
-  for (let i = 1; i <= a.length; i++) {
-    const row = [i];
-    for (let j = 1; j <= b.length; j++) {
-      row[j] = Math.min(prev[j] + 1, row[j - 1] + 1, prev[j - 1] + (a[i - 1] === b[j - 1] ? 0 : 1));
-    }
-    prev = row;
-  }
-  return prev[b.length];
 }
