@@ -9,7 +9,7 @@
 import type { LocatedEntry, LocatedMap, LocatedNode, Span } from '../parse/types';
 import { CONCEPTS, type Concept, type ConceptValues } from './concepts';
 import { FOREIGN_SECTION, KEY_ALIASES, type KeyAlias } from './aliases';
-import { isCamelCase, keySegments, normalizeKeySegment, type KeySpellingStyle } from './normalize';
+import { isCamelCase, keySegments, keySegmentsOf, normalizedKeyOf, type KeySpellingStyle } from './normalize';
 import { readValue, type ReadProblemKind } from './values';
 
 /** Where a concept was found (structurally the same as setup's FieldSource). */
@@ -85,7 +85,7 @@ function buildIndex(extra: Partial<Record<Concept, string[]>> | undefined): Map<
   return index;
 }
 
-function endsWith(path: string[], suffix: string[]): boolean {
+function endsWith(path: readonly string[], suffix: readonly string[]): boolean {
   if (suffix.length > path.length) return false;
   const off = path.length - suffix.length;
   for (let i = 0; i < suffix.length; i++) if (path[off + i] !== suffix[i]) return false;
@@ -110,7 +110,7 @@ export function effectiveEntries(map: LocatedMap): EffectiveEntry[] {
         if (entry.value) merges.push(entry.value);
         continue;
       }
-      const k = entry.key.split('.').map(normalizeKeySegment).join('.');
+      const k = normalizedKeyOf(entry.key);
       if (seen.has(k)) continue;
       seen.add(k);
       out.push({ entry, parent: m });
@@ -127,9 +127,12 @@ export function effectiveEntries(map: LocatedMap): EffectiveEntry[] {
 
 interface MapFrame {
   kind: 'map';
-  entries: EffectiveEntry[];
+  entries: readonly LocatedEntry[];
+  /** The map each entry belongs to; null when all belong to `map` (no merge keys). */
+  parents: readonly LocatedMap[] | null;
+  map: LocatedMap;
   i: number;
-  segs: string[];
+  segs: readonly string[];
   path: string;
   foreign: boolean;
 }
@@ -137,7 +140,7 @@ interface ListFrame {
   kind: 'list';
   items: LocatedNode[];
   i: number;
-  segs: string[];
+  segs: readonly string[];
   path: string;
   foreign: boolean;
 }
@@ -151,7 +154,7 @@ export function findConcepts(
   const hasExtra = extraAliases && Object.values(extraAliases).some((v) => Array.isArray(v) && v.length > 0);
   const index = hasExtra ? buildIndex(extraAliases) : builtinIndex;
 
-  const stack: (MapFrame | ListFrame)[] = [frameFor(root, [], '', false)];
+  const stack: (MapFrame | ListFrame)[] = [frameFor(root, NO_SEGMENTS, '', false)];
   let steps = 0;
   while (stack.length > 0 && steps < MAX_WALK_STEPS) {
     const top = stack[stack.length - 1];
@@ -170,13 +173,20 @@ export function findConcepts(
       stack.pop();
       continue;
     }
-    const { entry, parent } = top.entries[top.i++];
-    const ownSegs = keySegments(entry.key);
-    const segs = top.segs.concat(ownSegs);
-    const path = top.path === '' ? entry.key : `${top.path}.${entry.key}`;
-    const matched = segs.length > 0 && matchEntry(index, segs, entry, parent, path, top.foreign, hits);
+    const entry = top.entries[top.i];
+    const parent = top.parents ? top.parents[top.i] : top.map;
+    top.i++;
+    // The common case, a key that names no concept and holds a scalar, allocates nothing.
+    const ownSegs = keySegmentsOf(entry.key);
     const value = entry.value;
-    if (!matched && value && value.kind !== 'scalar') {
+    const last = ownSegs.length > 0 ? ownSegs[ownSegs.length - 1] : top.segs[top.segs.length - 1];
+    const candidates = last === undefined ? undefined : index.get(last);
+    const isCollection = value !== null && value.kind !== 'scalar';
+    if (!candidates && !isCollection) continue;
+    const segs = ownSegs.length > 0 ? top.segs.concat(ownSegs) : top.segs;
+    const path = top.path === '' ? entry.key : `${top.path}.${entry.key}`;
+    const matched = candidates !== undefined && matchEntry(candidates, segs, entry, parent, path, top.foreign, hits);
+    if (!matched && isCollection) {
       const foreign = top.foreign || ownSegs.some((s) => FOREIGN_SECTION.test(s));
       stack.push(frameFor(value, segs, path, foreign));
     }
@@ -184,23 +194,51 @@ export function findConcepts(
   return hits;
 }
 
-function frameFor(node: LocatedNode, segs: string[], path: string, foreign: boolean): MapFrame | ListFrame {
-  if (node.kind === 'map') return { kind: 'map', entries: effectiveEntries(node), i: 0, segs, path, foreign };
+const NO_SEGMENTS: readonly string[] = [];
+
+function frameFor(node: LocatedNode, segs: readonly string[], path: string, foreign: boolean): MapFrame | ListFrame {
+  if (node.kind === 'map') {
+    if (ownEntriesSuffice(node)) return { kind: 'map', entries: node.entries, parents: null, map: node, i: 0, segs, path, foreign };
+    const effective = effectiveEntries(node);
+    return { kind: 'map', entries: effective.map((e) => e.entry), parents: effective.map((e) => e.parent), map: node, i: 0, segs, path, foreign };
+  }
   if (node.kind === 'list') return { kind: 'list', items: node.items, i: 0, segs, path, foreign };
   return { kind: 'list', items: [], i: 0, segs, path, foreign };
 }
 
+/**
+ * True when effectiveEntries(map) would be the map's own entries in order: no merge key and no
+ * two keys that compare equal. Checked without allocating for ordinary maps.
+ */
+function ownEntriesSuffice(map: LocatedMap): boolean {
+  const entries = map.entries;
+  const n = entries.length;
+  for (let i = 0; i < n; i++) if (entries[i].key === '<<') return false;
+  if (n <= 16) {
+    for (let i = 1; i < n; i++) {
+      const k = normalizedKeyOf(entries[i].key);
+      for (let j = 0; j < i; j++) if (normalizedKeyOf(entries[j].key) === k) return false;
+    }
+    return true;
+  }
+  const seen = new Set<string>();
+  for (const e of entries) {
+    const k = normalizedKeyOf(e.key);
+    if (seen.has(k)) return false;
+    seen.add(k);
+  }
+  return true;
+}
+
 function matchEntry(
-  index: Map<string, Candidate[]>,
-  segs: string[],
+  candidates: readonly Candidate[],
+  segs: readonly string[],
   entry: LocatedEntry,
   parent: LocatedMap,
   path: string,
   foreign: boolean,
   hits: ConceptHit[],
 ): boolean {
-  const candidates = index.get(segs[segs.length - 1]);
-  if (!candidates) return false;
   for (const c of candidates) {
     if (!endsWith(segs, c.segs)) continue;
     if (foreign && c.alias.kind !== 'key') continue;

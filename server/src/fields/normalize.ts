@@ -17,6 +17,35 @@ export function keySegments(key: string): string[] {
     .filter((s) => s.length > 0);
 }
 
+/**
+ * keySegments, memoised: the same few hundred keys recur in every config, so a run normalises
+ * each spelling once. The result is shared: callers must not change it. The memo is emptied when
+ * it grows past its bound (a file of random keys cannot make it grow without limit).
+ */
+export function keySegmentsOf(key: string): readonly string[] {
+  let segs = SEGMENTS_MEMO.get(key);
+  if (segs === undefined) {
+    if (SEGMENTS_MEMO.size >= SEGMENTS_MEMO_ENTRIES) SEGMENTS_MEMO.clear();
+    segs = keySegments(key);
+    SEGMENTS_MEMO.set(key, segs);
+  }
+  return segs;
+}
+const SEGMENTS_MEMO_ENTRIES = 20_000;
+const SEGMENTS_MEMO = new Map<string, readonly string[]>();
+
+/** The whole key in comparable form (segments joined by dots), memoised like keySegmentsOf. */
+export function normalizedKeyOf(key: string): string {
+  let k = NORMALIZED_MEMO.get(key);
+  if (k === undefined) {
+    if (NORMALIZED_MEMO.size >= SEGMENTS_MEMO_ENTRIES) NORMALIZED_MEMO.clear();
+    k = key.split('.').map(normalizeKeySegment).join('.');
+    NORMALIZED_MEMO.set(key, k);
+  }
+  return k;
+}
+const NORMALIZED_MEMO = new Map<string, string>();
+
 /** An enum value in comparable form: lower case, `++` read as `pp`, separators dropped. */
 export function normalizeValue(value: string): string {
   return value.toLowerCase().replace(/\+\+/g, 'pp').replace(/[^a-z0-9]/g, '');
