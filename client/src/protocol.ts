@@ -18,4 +18,4 @@ export type {
 } from '@noiselint/server/src/base/protocol';
 
 /** Languages the extension checks. */
-export const LANGUAGES = ['yaml', 'json', 'jsonc'] as const;
+export const LANGUAGES = ['yaml', 'json', 'jsonc', 'toml'] as const;

@@ -10,7 +10,7 @@ import {
 import { LANGUAGES, PLOT_CHANGED_NOTIFICATION, type UriParams } from './protocol';
 
 /**
- * Documents we check: YAML / JSON / JSONC on disk or unsaved, plus the schemes of virtual workspace
+ * Documents we check: YAML / JSON / JSONC / TOML on disk or unsaved, plus the schemes of virtual workspace
  * folders (the server gets their text through didOpen, so it needs no file system for them).
  * Other schemes (git diffs, output, ...) are left alone so old versions do not show up as problems.
  */

@@ -15,9 +15,9 @@ import type { PartnerDocument } from '../../server/src/rules/types';
 import type { ResolvedProject } from '../../server/src/workspace/types';
 
 export const FIXTURE_ROOT = join(__dirname, 'fixtures');
-const INPUT_EXTENSIONS: Record<string, SourceFormat> = { '.yaml': 'yaml', '.yml': 'yaml', '.json': 'json', '.jsonc': 'jsonc' };
+const INPUT_EXTENSIONS: Record<string, SourceFormat> = { '.yaml': 'yaml', '.yml': 'yaml', '.json': 'json', '.jsonc': 'jsonc', '.toml': 'toml' };
 /** Expected text after a fix: <name>.after-<k>.<ext>; partner files live in partners/. */
-const AFTER_FILE = /\.after-\d+\.(yaml|yml|json|jsonc)$/;
+const AFTER_FILE = /\.after-\d+\.(yaml|yml|json|jsonc|toml)$/;
 
 /** A message expectation: plain text, or a number-bearing substring with its source. */
 export type MessagePart = string | { text: string; source: string };

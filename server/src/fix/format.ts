@@ -70,13 +70,15 @@ export function isPlainSafe(s: string): boolean {
 
 /** A string in the requested quoting (plain falls back to double quotes when it must). */
 export function formatString(s: string, format: SourceFormat, quote: QuoteStyle): string {
+  // A TOML literal string has no escapes: it cannot hold a quote or a control character.
+  if (format === 'toml') return quote === 'single' && /^[^'\u0000-\u001f\u007f]*$/.test(s) ? `'${s}'` : JSON.stringify(s);
   if (format !== 'yaml') return JSON.stringify(s);
   if (quote === 'single') return `'${s.replace(/'/g, "''")}'`;
   if (quote === 'plain' && isPlainSafe(s)) return s;
   return JSON.stringify(s);
 }
 
-/** Wraps already formatted text in the quotes of the value it replaces (YAML and JSON). */
+/** Wraps already formatted text in the quotes of the value it replaces (YAML, JSON, TOML). */
 export function requote(text: string, quote: QuoteStyle): string {
   if (quote === 'double') return JSON.stringify(text);
   if (quote === 'single') return `'${text.replace(/'/g, "''")}'`;

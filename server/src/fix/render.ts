@@ -52,10 +52,17 @@ const JSON_STRING = /^"(?:[^"\\\u0000-\u001f\u0080-\u009f\u2028\u2029\ufeff]|\\(
 /** YAML plain words: no indicator, no `: ` or ` #`, nothing a flow collection stops at. */
 const YAML_WORD = /^[A-Za-z_][A-Za-z0-9_.+-]*$/;
 const YAML_SINGLE = /^'(?:[^'\r\n]|'')*'$/;
+/** TOML v1.0.0 tokens: numbers (no leading zeros, digits on both sides of a dot), one-line strings. */
+const TOML_NUMBER = /^[-+]?(?:0|[1-9]\d*)(?:\.\d+)?(?:[eE][-+]?\d+)?$/;
+const TOML_BASIC = /^"(?:[^"\\\u0000-\u001f\u007f]|\\(?:["\\bfnrt]|u[0-9a-fA-F]{4}))*"$/;
+const TOML_LITERAL = /^'[^'\u0000-\u0008\u000a-\u001f\u007f]*'$/;
+const TOML_BARE_KEY = /^[A-Za-z0-9_-]+$/;
+/** The leading segments of a dotted TOML key (`scheduler.`, `"a b" . c.`), up to the last one. */
+const TOML_KEY_PREFIX = /^(?:(?:[A-Za-z0-9_-]+|"(?:[^"\\\r\n]|\\.)*"|'[^'\r\n]*')[ \t]*\.[ \t]*)*$/;
 
 /** True when `text` is a number token that YAML and (for JSON files) JSON read as written. */
 function isNumberToken(text: string, format: SourceFormat): boolean {
-  return (format === 'yaml' ? YAML_NUMBER : JSON_NUMBER).test(text);
+  return (format === 'yaml' ? YAML_NUMBER : format === 'toml' ? TOML_NUMBER : JSON_NUMBER).test(text);
 }
 
 /**
@@ -63,6 +70,7 @@ function isNumberToken(text: string, format: SourceFormat): boolean {
  * written in block and flow context alike.
  */
 export function isScalarToken(text: string, format: SourceFormat): boolean {
+  if (format === 'toml') return TOML_BASIC.test(text) || TOML_LITERAL.test(text) || TOML_NUMBER.test(text) || text === 'true' || text === 'false';
   if (JSON_STRING.test(text) || isNumberToken(text, format)) return true;
   if (format !== 'yaml') return text === 'true' || text === 'false' || text === 'null';
   return YAML_WORD.test(text) || YAML_SINGLE.test(text);
@@ -137,7 +145,7 @@ class Renderer {
   }
 
   private isFlow(map: LocatedMap): boolean {
-    return this.format !== 'yaml' || map.style === 'flow';
+    return this.format === 'json' || this.format === 'jsonc' || map.style === 'flow';
   }
 
   // ---- set ---------------------------------------------------------------------------------
@@ -157,6 +165,8 @@ class Renderer {
    * value to go: an empty entry whose key is a spelling of the concept.
    */
   private emptyEntryFor(concept: Concept): { entry: LocatedEntry; key: string; parent: LocatedMap } | null {
+    // TOML has no key without a value.
+    if (this.format === 'toml') return null;
     const spellings = new Set<string>();
     for (const alias of KEY_ALIASES[concept] ?? []) {
       if (alias.kind === 'key' && !alias.spelling.includes('.')) spellings.add(normalizeKeySegment(alias.spelling));
@@ -197,7 +207,7 @@ class Renderer {
     }
     // The value must sit right after `key:` (no anchor, tag, or alias resolved from elsewhere).
     const between = text.slice(keySpan.end, node.span.start);
-    const separator = this.format === 'yaml' ? /^[ \t]*:[ \t]*(\r?\n[ \t]*)?$/ : /^\s*:\s*$/;
+    const separator = this.format === 'yaml' ? /^[ \t]*:[ \t]*(\r?\n[ \t]*)?$/ : this.format === 'toml' ? /^[ \t]*=[ \t]*$/ : /^\s*:\s*$/;
     if (!separator.test(between)) giveUp('value is not written right after its key');
     if (node.kind === 'scalar') {
       if (node.style === 'block') giveUp('block scalar');
@@ -409,6 +419,7 @@ class Renderer {
   }
 
   private keyText(key: string, like: LocatedEntry | null): string {
+    if (this.format === 'toml') return this.tomlDottedPrefix(like) + (TOML_BARE_KEY.test(key) ? key : JSON.stringify(key));
     if (this.format !== 'yaml') return JSON.stringify(key);
     if (like) {
       const q = this.text[keySpanWithQuotes(this.text, like.keySpan).start];
@@ -418,8 +429,21 @@ class Renderer {
     return key;
   }
 
+  /**
+   * The leading segments of a sibling's dotted key (`noise_scheduler.` for
+   * `noise_scheduler.beta_schedule = ...`): a key written with them lands in the same table.
+   */
+  private tomlDottedPrefix(like: LocatedEntry | null): string {
+    if (!like) return '';
+    if (!like.tomlKey) giveUp('sibling is not written by a key/value line');
+    const prefix = this.text.slice(like.tomlKey.start, keySpanWithQuotes(this.text, like.keySpan).start);
+    if (!TOML_KEY_PREFIX.test(prefix)) giveUp('unusual dotted key');
+    return prefix;
+  }
+
   private renderInsert(p: PendingInsert): void {
-    if (this.isFlow(p.map)) this.renderFlowInsert(p);
+    if (this.format === 'toml' && !this.isFlow(p.map)) this.renderTomlInsert(p);
+    else if (this.isFlow(p.map)) this.renderFlowInsert(p);
     else this.renderBlockInsert(p);
   }
 
@@ -469,8 +493,11 @@ class Renderer {
     if (text[open] !== '{' || text[close] !== '}') giveUp('flow map without braces');
     if (this.format === 'yaml' && rangeHasComment(this.parsed, map.span.start, map.span.end)) giveUp('comments inside a YAML flow map');
     if (this.format === 'yaml') this.risky('insert into a YAML flow map');
+    // TOML v1.0.0 inline tables stay on one line and have no trailing comma: the result is parsed.
+    if (this.format === 'toml') this.risky('insert into a TOML inline table');
     const anchor = p.anchor;
     const members = (colon: string) => p.members.map((m) => `${this.keyText(m.key, anchor)}${colon}${m.value}`);
+    if (!anchor && this.format === 'toml') giveUp('empty TOML inline table');
     for (const m of p.members) if (!isScalarToken(this.keyText(m.key, anchor), this.format)) this.risky('key text outside the token grammar');
     if (!anchor) {
       if (!isBlank(text.slice(open + 1, close))) giveUp('empty flow map with content');
@@ -480,7 +507,7 @@ class Renderer {
     const keySpan = keySpanWithQuotes(text, anchor.keySpan);
     const valueStart = anchor.value ? anchor.value.span.start : keySpan.end;
     const colonText = text.slice(keySpan.end, valueStart);
-    const colon = /^[ \t]*:[ \t]*$/.test(colonText) ? colonText : ': ';
+    const colon = this.format === 'toml' ? (/^[ \t]*=[ \t]*$/.test(colonText) ? colonText : ' = ') : /^[ \t]*:[ \t]*$/.test(colonText) ? colonText : ': ';
     const after = anchor.span.end;
     // What follows the sibling on its line: an optional comma, then maybe a comment.
     let p1 = skipSpaces(text, after);
@@ -510,6 +537,68 @@ class Renderer {
     this.edits.push({ span: { start: after, end: after }, newText: inline });
   }
 
+  /**
+   * A `key = value` line after the sibling's line, in its table: same indentation and dotted
+   * prefix, `=` aligned when the sibling aligns it. Valid by construction: the key is new in that
+   * table (queueInsert checks) and the value is one token.
+   */
+  private renderTomlInsert(p: PendingInsert): void {
+    const text = this.text;
+    const anchor = p.anchor;
+    if (!anchor?.tomlKey || !anchor.value) giveUp('no key/value line to insert after');
+    const keyStart = anchor.tomlKey.start;
+    const lineStart = lineStartOf(text, keyStart);
+    const indent = text.slice(lineStart, keyStart);
+    if (!isBlank(indent)) giveUp('sibling does not start its line');
+    const keyEnd = keySpanWithQuotes(text, anchor.keySpan).end;
+    const separator = text.slice(keyEnd, anchor.value.span.start);
+    const m = /^([ \t]*)=([ \t]*)$/.exec(separator);
+    if (!m) giveUp('unusual separator after the sibling key');
+    const eqColumn = keyEnd + m[1].length - lineStart;
+    const lines = p.members.map((member) => {
+      const key = this.keyText(member.key, anchor);
+      const pad = m[1].length > 1 ? Math.max(1, eqColumn - (indent.length + key.length)) : m[1].length;
+      return `${indent}${key}${' '.repeat(pad)}=${m[2]}${member.value}`;
+    });
+    const end = anchor.span.end;
+    const rest = text.slice(end, lineBreakOf(text, end));
+    if (!/^[ \t]*(#.*)?$/.test(rest)) giveUp('text after the sibling entry');
+    const at = nextLineStart(text, end);
+    const atEndWithoutBreak = at === text.length && !text.endsWith('\n');
+    const newText = atEndWithoutBreak ? lines.map((l) => this.eol + l).join('') : lines.map((l) => l + this.eol).join('');
+    this.edits.push({ span: { start: at, end: at }, newText });
+  }
+
+  /**
+   * Removes a `key = value` line. With `keepComment`, a comment at the end of the line stays where
+   * it was (the line keeps the comment alone); otherwise the whole line goes. An emptied table is
+   * valid TOML.
+   */
+  private removeTomlLine(entry: LocatedEntry, keepComment: boolean): void {
+    const text = this.text;
+    if (!entry.tomlKey) giveUp('entry is a table, not a key/value line');
+    const keyStart = entry.tomlKey.start;
+    const lineStart = lineStartOf(text, keyStart);
+    if (!isBlank(text.slice(lineStart, keyStart))) giveUp('entry shares its line');
+    const end = entry.span.end;
+    const lineEnd = lineBreakOf(text, end);
+    const rest = text.slice(end, lineEnd);
+    const m = /^([ \t]*)(#.*)?$/.exec(rest);
+    if (!m) giveUp('text after the entry on its line');
+    if (m[2] && keepComment) {
+      this.edits.push({ span: { start: keyStart, end: end + m[1].length }, newText: '' });
+      return;
+    }
+    let from = lineStart;
+    const to = nextLineStart(text, end);
+    if (to === text.length && !text.endsWith('\n') && lineStart > 0) {
+      // Last line without a line break: take the break before it instead, keeping the ending.
+      from = lineStart - 1;
+      if (from > 0 && text[from - 1] === '\r') from--;
+    }
+    this.edits.push({ span: { start: from, end: to }, newText: '' });
+  }
+
   // ---- remove ------------------------------------------------------------------------------
 
   private remove(concept: Concept, keepComment: boolean): void {
@@ -518,7 +607,8 @@ class Renderer {
     const { entry, parent } = source;
     if (!parent.entries.includes(entry)) giveUp('entry is not in its map');
     this.removed.add(entry);
-    if (this.isFlow(parent)) this.removeFlow(entry, parent, keepComment);
+    if (this.format === 'toml' && !this.isFlow(parent)) this.removeTomlLine(entry, keepComment);
+    else if (this.isFlow(parent)) this.removeFlow(entry, parent, keepComment);
     else this.removeBlock(entry, parent, keepComment);
   }
 
@@ -573,8 +663,9 @@ class Renderer {
   private removeFlow(entry: LocatedEntry, map: LocatedMap, keepComment = false): void {
     const text = this.text;
     if (this.format === 'yaml') this.risky('removal from a YAML flow map');
+    if (this.format === 'toml') this.risky('removal from a TOML inline table');
     const index = map.entries.indexOf(entry);
-    const keyStart = keySpanWithQuotes(text, entry.keySpan).start;
+    const keyStart = entry.tomlKey?.start ?? keySpanWithQuotes(text, entry.keySpan).start;
     const after = entry.span.end;
     let p = skipSpaces(text, after);
     const hasComma = text[p] === ',';
@@ -728,8 +819,6 @@ export function renderConceptEdits(
   onGiveUp?: (reason: string, unexpected: boolean) => void,
 ): TextEdit[] | null {
   try {
-    // TOML edits get their own shapes (next change); until then no TOML fix is offered.
-    if (parsed.format === 'toml') return null;
     const renderer = new Renderer(parsed, setup);
     const rendered = renderer.run(edits);
     const mustParse = renderer.riskyBecause !== null || !parsed.problems.every((p) => HARMLESS_PROBLEMS.has(p.code));
