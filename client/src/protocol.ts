@@ -14,6 +14,8 @@ export type {
   PlotDataParams,
   PlotDocument,
   PlotSampledStep,
+  PlotSkippedRange,
+  PlotTailWindow,
   UriParams,
 } from '@noiselint/server/src/base/protocol';
 

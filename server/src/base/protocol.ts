@@ -56,10 +56,34 @@ export interface PlotDocument {
   sampled: PlotSampledStep[];
   terminalSnr: number;
   terminalSignal: number;
+  /**
+   * The noisy end the sampler never reaches: every training step above `lastVisited` (the
+   * highest sampled step) up to `lastStep` = T - 1. Null when the sampler starts at T - 1 or
+   * nothing is sampled.
+   */
+  skipped: PlotSkippedRange | null;
+  /**
+   * The tail window both plot views zoom into, where a terminal leak shows: x from `from` to the
+   * last x, signal amplitude from 0 to `signalMax`.
+   */
+  tail: PlotTailWindow;
   /** Problems that stopped part of the computation (one line each). */
   problems: string[];
   /** The training file the schedule and target come from, when this file does not set them. */
   inheritedFrom?: string;
+}
+
+export interface PlotSkippedRange {
+  lastVisited: number;
+  lastStep: number;
+  /** Training steps skipped: lastStep - lastVisited. */
+  count: number;
+}
+
+export interface PlotTailWindow {
+  from: number;
+  to: number;
+  signalMax: number;
 }
 
 export interface PlotData {
