@@ -41,6 +41,9 @@ export interface StartOptions {
   capabilities?: ClientCapabilities;
   /** Absolute folder paths. */
   workspaceFolders?: string[];
+  /** Sent as `clientInfo` in initialize (the server decides on hover images by it). */
+  clientInfo?: { name: string; version?: string };
+  initializationOptions?: unknown;
   /** The `noiselint` settings section the client answers workspace/configuration with. */
   settings?: (scopeUri: string | undefined) => unknown;
 }
@@ -122,6 +125,8 @@ export class LspClient {
       processId: process.pid,
       rootUri: folders[0] ? fileUri(folders[0]) : null,
       capabilities: options.capabilities ?? DEFAULT_CAPABILITIES,
+      ...(options.clientInfo ? { clientInfo: options.clientInfo } : {}),
+      ...(options.initializationOptions !== undefined ? { initializationOptions: options.initializationOptions } : {}),
       workspaceFolders: folders.map((f, i) => ({ uri: fileUri(f), name: `folder${i}` })),
     })]);
     died.catch(() => undefined);

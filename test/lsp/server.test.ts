@@ -33,6 +33,8 @@ let client: LspClient;
 
 beforeAll(async () => {
   client = await LspClient.start({
+    // A VS Code family client: hovers carry the embedded chart (lsp/hoverImages.ts).
+    clientInfo: { name: 'Visual Studio Code', version: '1.99.0' },
     settings: (scopeUri) => {
       if (scopeUri?.endsWith('strict-train.yaml')) return { rules: { 'terminal-snr-leak': 'error' } };
       if (scopeUri?.endsWith('quiet-train.yaml')) return { rules: { 'terminal-snr-leak': 'off' } };

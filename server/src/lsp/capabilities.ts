@@ -1,5 +1,6 @@
 /** What the client can do, read once at initialize: the server sends only what it can show. */
-import type { ClientCapabilities } from 'vscode-languageserver/node';
+import type { ClientCapabilities, InitializeParams } from 'vscode-languageserver/node';
+import { clientShowsHoverImages } from './hoverImages';
 
 export interface Capabilities {
   pullDiagnostics: boolean;
@@ -9,6 +10,8 @@ export interface Capabilities {
   watchedFilesDynamic: boolean;
   workspaceFolders: boolean;
   hoverMarkdown: boolean;
+  /** The client's default for the hover chart (lsp/hoverImages.ts). */
+  hoverImages: boolean;
   versionedEdits: boolean;
   inlayHintRefresh: boolean;
   codeLensRefresh: boolean;
@@ -22,12 +25,13 @@ export const NO_CAPABILITIES: Capabilities = {
   watchedFilesDynamic: false,
   workspaceFolders: false,
   hoverMarkdown: false,
+  hoverImages: false,
   versionedEdits: false,
   inlayHintRefresh: false,
   codeLensRefresh: false,
 };
 
-export function readCapabilities(cc: ClientCapabilities): Capabilities {
+export function readCapabilities(cc: ClientCapabilities, init?: Pick<InitializeParams, 'clientInfo' | 'initializationOptions'>): Capabilities {
   const hoverFormats = cc.textDocument?.hover?.contentFormat ?? [];
   return {
     pullDiagnostics: !!cc.textDocument?.diagnostic,
@@ -37,6 +41,7 @@ export function readCapabilities(cc: ClientCapabilities): Capabilities {
     watchedFilesDynamic: !!cc.workspace?.didChangeWatchedFiles?.dynamicRegistration,
     workspaceFolders: !!cc.workspace?.workspaceFolders,
     hoverMarkdown: hoverFormats.includes('markdown'),
+    hoverImages: clientShowsHoverImages({ capabilities: cc, clientInfo: init?.clientInfo, initializationOptions: init?.initializationOptions }),
     versionedEdits: !!cc.workspace?.workspaceEdit?.documentChanges,
     inlayHintRefresh: !!cc.workspace?.inlayHint?.refreshSupport,
     codeLensRefresh: !!cc.workspace?.codeLens?.refreshSupport,

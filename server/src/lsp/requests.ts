@@ -27,6 +27,8 @@ import { summaryFor } from '../views/documentSummary';
 import { formatExplainText } from '../views/explainFormat';
 import { firstFieldOf } from '../views/fieldAt';
 import { hoverAt } from '../views/hover';
+import { hoverImages } from './hoverImages';
+import type { EditorSettings } from './settings';
 import { inlineHintsFor } from '../views/inlayHints';
 import { plotDataFor } from '../views/plotData';
 import type { Capabilities } from './capabilities';
@@ -47,6 +49,7 @@ export interface ViewContext {
   readOf(uri: string, analyzed: Analyzed): FileReading | null;
   findingsOf(uri: string, analyzed: Analyzed): Finding[];
   fileFor(uri: string): Promise<{ file: FileReading | null; shown: Finding[]; version: number | null } | null>;
+  settingsFor(uri: string): Promise<EditorSettings>;
 }
 
 export async function pullDiagnostics(ctx: ViewContext, params: DocumentDiagnosticParams, token: CancellationToken): Promise<DocumentDiagnosticReport> {
@@ -71,7 +74,8 @@ export async function hover(ctx: ViewContext, params: HoverParams): Promise<Hove
   if (!cur || !file) return null;
   const offset = cur.od.doc.offsetAt(params.position);
   const format = ctx.caps.hoverMarkdown ? 'markdown' : 'plaintext';
-  const hover = hoverAt(file, offset, format);
+  const images = hoverImages((await ctx.settingsFor(uri)).hover.images, ctx.caps.hoverImages, ctx.caps.hoverMarkdown);
+  const hover = hoverAt(file, offset, format, { images });
   if (!hover) return null;
   return { contents: { kind: format, value: hover.text }, range: spanToRange(cur.od.doc, hover.span) };
 }

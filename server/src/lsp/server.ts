@@ -145,7 +145,7 @@ export class NoiselintServer {
 
   private initialize(params: InitializeParams): InitializeResult {
     const cc: ClientCapabilities = params?.capabilities ?? {};
-    this.caps = readCapabilities(cc);
+    this.caps = readCapabilities(cc, params);
     const folders: WorkspaceFolder[] = params?.workspaceFolders ?? (params?.rootUri ? [{ uri: params.rootUri, name: 'root' }] : []);
     this.workspace.folders = folders.filter((f) => typeof f?.uri === 'string').map((f) => ({ uri: f.uri, path: uriToPath(f.uri) }));
     const result: InitializeResult = {
@@ -276,7 +276,7 @@ export class NoiselintServer {
 
   // ---------------------------------------------------------------- settings and projects
 
-  private settingsFor(uri: string): Promise<EditorSettings> {
+  settingsFor(uri: string): Promise<EditorSettings> {
     if (!this.caps.configuration) return Promise.resolve(this.globalSettings);
     let pending = this.settingsCache.get(uri);
     if (!pending) {

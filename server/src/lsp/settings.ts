@@ -18,13 +18,15 @@ export interface EditorSettings {
   debounceMs: number;
   /** Base URL of the rule pages (`<base><id>.md`); empty: the bundled docs or the repository. */
   docsBaseUrl: string;
+  /** Embedded chart in hovers: 'auto' follows the client (lsp/hoverImages.ts). */
+  hover: { images: boolean | 'auto' };
 }
 
 export const DEFAULT_DEBOUNCE_MS = 150;
 const MAX_DEBOUNCE_MS = 10_000;
 
 export function defaultSettings(): EditorSettings {
-  return { enable: true, rules: {}, thresholds: {}, files: { include: [], exclude: [] }, limits: {}, debounceMs: DEFAULT_DEBOUNCE_MS, docsBaseUrl: '' };
+  return { enable: true, rules: {}, thresholds: {}, files: { include: [], exclude: [] }, limits: {}, debounceMs: DEFAULT_DEBOUNCE_MS, docsBaseUrl: '', hover: { images: 'auto' } };
 }
 
 function isRecord(v: unknown): v is Record<string, unknown> {
@@ -85,6 +87,8 @@ export function normalizeSettings(raw: unknown): EditorSettings {
   if (typeof debounce === 'number' && Number.isFinite(debounce) && debounce >= 0) out.debounceMs = Math.min(debounce, MAX_DEBOUNCE_MS);
   const docs = get('docsBaseUrl');
   if (typeof docs === 'string') out.docsBaseUrl = docs.trim();
+  const images = get('hover.images');
+  if (typeof images === 'boolean' || images === 'auto') out.hover.images = images;
   return out;
 }
 

@@ -230,7 +230,7 @@ function escapeCell(text: string): string {
   return text.replace(/\|/g, '\\|');
 }
 
-export function renderHoverMarkdown(model: HoverModel): string {
+export function renderHoverMarkdown(model: HoverModel, options: { images?: boolean } = {}): string {
   const out: string[] = [`**${model.title}**`, ''];
   for (const line of model.focus) out.push(line, '');
   if (model.rows.length > 0) {
@@ -247,7 +247,7 @@ export function renderHoverMarkdown(model: HoverModel): string {
     out.push(`**sampling**: ${model.sampling.join(' ')}`, '');
   }
   for (const note of model.notes) out.push(note, '');
-  if (model.chart) {
+  if (model.chart && options.images !== false) {
     const svg = logSnrSparkline(model.chart.current, model.chart.rescaled);
     const caption = model.chart.rescaled ? 'log-SNR over t: solid current, dashed rescaled' : 'log-SNR over t';
     out.push(`![${caption}](${svgDataUri(svg)})`, '', `*${caption}*`);
@@ -275,8 +275,9 @@ export interface HoverText {
   format: 'markdown' | 'plaintext';
 }
 
-export function hoverAt(file: FileReading, offset: number, format: 'markdown' | 'plaintext'): HoverText | null {
+/** `images: false` leaves the embedded chart out of markdown (clients that show it as text). */
+export function hoverAt(file: FileReading, offset: number, format: 'markdown' | 'plaintext', options: { images?: boolean } = {}): HoverText | null {
   const model = hoverModelAt(file, offset);
   if (!model) return null;
-  return { span: model.span, format, text: format === 'markdown' ? renderHoverMarkdown(model) : renderHoverPlainText(model) };
+  return { span: model.span, format, text: format === 'markdown' ? renderHoverMarkdown(model, { images: options.images ?? true }) : renderHoverPlainText(model) };
 }
