@@ -54,7 +54,7 @@ describe('check examples (the Lanternfish Pictures demo workspace)', () => {
     expect(out.files).toHaveLength(15);
   });
 
-  it('the TOML launcher arguments: exact findings, and `fix --unsafe` writes the fixes keeping the comment', async () => {
+  it('the TOML launcher arguments: exact findings, and `fix --accept-retraining` writes the fixes keeping the comment', async () => {
     const rel = 'examples/launcher-args/night-args.toml';
     const text = readFileSync(join(repo, rel), 'utf8');
     const out = JSON.parse((await runCli(['check', '--format', 'json', rel], repo)).stdout) as {
@@ -77,7 +77,7 @@ describe('check examples (the Lanternfish Pictures demo workspace)', () => {
 
     const root = tempTree({ 'night-args.toml': text });
     try {
-      const r = await runCli(['fix', '--unsafe', 'night-args.toml'], root);
+      const r = await runCli(['fix', '--accept-retraining', 'night-args.toml'], root);
       expect(r.stderr).toBe('');
       const fixed = readFileSync(join(root, 'night-args.toml'), 'utf8');
       expect(fixed).toBe(
