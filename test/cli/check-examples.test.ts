@@ -54,7 +54,7 @@ describe('check examples (the Lanternfish Pictures demo workspace)', () => {
     expect(out.files).toHaveLength(15);
   });
 
-  it('the TOML launcher arguments: exact findings, and `fix --accept-retraining` writes the fixes keeping the comment', async () => {
+  it('the TOML launcher arguments: exact findings, and `fix` writes both fixes as minimal edits', async () => {
     const rel = 'examples/launcher-args/night-args.toml';
     const text = readFileSync(join(repo, rel), 'utf8');
     const out = JSON.parse((await runCli(['check', '--format', 'json', rel], repo)).stdout) as {
@@ -77,13 +77,13 @@ describe('check examples (the Lanternfish Pictures demo workspace)', () => {
 
     const root = tempTree({ 'night-args.toml': text });
     try {
-      const r = await runCli(['fix', '--accept-retraining', 'night-args.toml'], root);
+      const r = await runCli(['fix', '--accept-retraining', '--accept-comment-edits', 'night-args.toml'], root);
       expect(r.stderr).toBe('');
       const fixed = readFileSync(join(root, 'night-args.toml'), 'utf8');
       expect(fixed).toBe(
         text
           .replace('noise_scheduler.prediction_type = "epsilon"\n', 'noise_scheduler.prediction_type = "v_prediction"\nnoise_scheduler.rescale_betas_zero_snr = true\n')
-          .replace('noise_offset = 0.05  # brighter skies, as in run 011', '# brighter skies, as in run 011'),
+          .replace('noise_offset = 0.05  # brighter skies, as in run 011\n', ''),
       );
       const again = JSON.parse((await runCli(['check', '--format', 'json', 'night-args.toml'], root)).stdout) as { files: { findings: unknown[] }[] };
       expect(again.files[0].findings).toEqual([]);

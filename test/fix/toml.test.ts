@@ -92,10 +92,17 @@ const cases: FixCase[] = [
     after: lines('sampling = { guidance_scale = 7.5, num_inference_steps = 30, guidance_rescale = 0.7 }', ''),
   },
   {
-    name: 'remove a key: a comment at the end of its line stays',
+    name: 'remove a key asked to keep its comment: the comment at the end of its line stays',
     before: lines('[train]', 'noise_offset = 0.05  # brighter skies', 'learning_rate = 2e-6', ''),
-    edits: [{ kind: 'remove', concept: 'offsetNoise' }],
+    edits: [{ kind: 'remove', concept: 'offsetNoise', keepComment: true }],
     after: lines('[train]', '# brighter skies', 'learning_rate = 2e-6', ''),
+  },
+  {
+    name: 'remove a key: its line goes with the comment at its end, and the edit says it touches a comment',
+    before: lines('[train]', '# above: stays', 'noise_offset = 0.05  # brighter skies', 'learning_rate = 2e-6', ''),
+    edits: [{ kind: 'remove', concept: 'offsetNoise' }],
+    after: lines('[train]', '# above: stays', 'learning_rate = 2e-6', ''),
+    touchesComment: true,
   },
   {
     name: 'remove a key without a comment: its whole line goes; an emptied table is valid TOML',
@@ -146,7 +153,7 @@ describe('TOML fixes', () => {
 
   it('a fixed file keeps every byte outside the edited lines', () => {
     const before = lines('# top', '[noise_scheduler]  # stock', "beta_schedule = 'scaled_linear'", 'num_train_timesteps = 1000', '', '[train]', 'noise_offset = 0.1 # x', '');
-    const edits = render(before, [{ kind: 'set', concept: 'zeroTerminalSnr', value: true }, { kind: 'remove', concept: 'offsetNoise' }], 'toml');
+    const edits = render(before, [{ kind: 'set', concept: 'zeroTerminalSnr', value: true }, { kind: 'remove', concept: 'offsetNoise', keepComment: true }], 'toml');
     expect(edits).not.toBeNull();
     const after = applyEdits(before, edits!);
     expect(after).toBe(lines('# top', '[noise_scheduler]  # stock', "beta_schedule = 'scaled_linear'", 'num_train_timesteps = 1000', 'rescale_betas_zero_snr = true', '', '[train]', '# x', ''));
