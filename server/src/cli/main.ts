@@ -5,6 +5,7 @@ import { runCheck } from './commands/check';
 import { runFix } from './commands/fix';
 import { runRulesCommand } from './commands/rules';
 import { runLsp } from './commands/lsp';
+import { runRescaleRun } from './commands/rescaleRun';
 
 import { VERSION } from '../base/version';
 
@@ -14,6 +15,7 @@ Usage:
   noiselint check [paths|globs...] [--format text|json|sarif] [--show <severity>] [--budget <severity>=<N>...] [--fix-edits compact|full|none]
   noiselint fix [paths...] [--accept-retraining] [--accept-comment-edits] [--dry-run]
   noiselint explain <file...> [--format text|json]
+  noiselint rescale-run <file...> [--sampling-only] [--write [--accept-retraining]]
   noiselint rules [id]
   noiselint lsp --stdio
 `;
@@ -24,6 +26,7 @@ const COMMANDS: Record<string, Command> = {
   explain: runExplain,
   rules: runRulesCommand,
   lsp: runLsp,
+  'rescale-run': runRescaleRun,
 };
 
 export async function main(argv: string[], io: CliIO): Promise<number> {
@@ -38,7 +41,7 @@ export async function main(argv: string[], io: CliIO): Promise<number> {
   }
   const command = COMMANDS[name];
   if (!command) {
-    io.stderr(`noiselint: unknown command "${name}" (try: check, fix, explain, rules, lsp)\n`);
+    io.stderr(`noiselint: unknown command "${name}" (try: check, fix, explain, rescale-run, rules, lsp)\n`);
     return 2;
   }
   try {

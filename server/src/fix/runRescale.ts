@@ -40,6 +40,18 @@ import { sortEdits } from './apply';
 /** Guidance rescale written where guidance > 1 (Lin et al. 2023 use 0.7; common practice). */
 export const RUN_GUIDANCE_RESCALE = 0.7;
 
+/** The rules whose findings the operation removes (check reports none of them afterwards). */
+export const RUN_FIXED_RULES: readonly string[] = [
+  'terminal-snr-leak',
+  'epsilon-at-zero-snr',
+  'sampler-skips-last-step',
+  'few-steps-linspace',
+  'guidance-overexposure',
+  'offset-noise-conflict',
+  'train-sample-mismatch',
+  'min-snr-division',
+];
+
 /** Stated in the preview, the command output, the LSP annotation and the docs. */
 export const RUN_CAUTIONS: readonly string[] = [
   'A pretrained checkpoint must be fine-tuned after the schedule or target change (Lin et al. 2023 fine-tune for this). Until then, sampling with the new schedule gives worse images, not better ones.',
