@@ -29,7 +29,7 @@ function applied(plan: RunPlan, path: string, text: string): string {
 
 function comments(text: string, format: SourceFormat): string[] {
   const parsed = parseText(text, format);
-  return parsed.comments.map((c) => text.slice(c.start, c.end).trim());
+  return (parsed.comments ?? []).map((c) => text.slice(c.start, c.end).trim());
 }
 
 describe.each(RUN_PAIRS)('run rescale: $name', (pair) => {

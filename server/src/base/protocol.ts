@@ -20,6 +20,37 @@ export interface UriParams {
   uri: string;
 }
 
+/**
+ * Request: the run rescale of the run `uri` belongs to, as one workspace edit across its files
+ * (each edit annotated: needs confirmation, the model needs fine-tuning). Result: RunRescaleResult
+ * or null when the document is not part of a diffusion run.
+ */
+export const RUN_RESCALE_REQUEST = 'noiselint/runRescale';
+
+export interface RunRescaleParams {
+  uri: string;
+  /** Only what changes how the model is sampled (spacing, guidance rescale, alignment). */
+  samplingOnly?: boolean;
+}
+
+export interface RunRescaleResult {
+  /** An LSP WorkspaceEdit (documentChanges with change annotations when the client has them). */
+  edit: unknown;
+  title: string;
+  /** URIs of the files the edit changes. */
+  uris: string[];
+  /** One line per change, with the file it is in. */
+  changes: string[];
+  /** The before/after table (plain text). */
+  numbers: string;
+  /** What no file can express (the sampling code must do it). */
+  notes: string[];
+  cautions: string[];
+  /** The edit changes what the model learns. */
+  needsRetraining: boolean;
+  empty: boolean;
+}
+
 export type PlotDataParams = UriParams;
 
 export interface PlotCurve {

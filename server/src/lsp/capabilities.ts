@@ -15,6 +15,8 @@ export interface Capabilities {
   versionedEdits: boolean;
   inlayHintRefresh: boolean;
   codeLensRefresh: boolean;
+  /** WorkspaceEdit change annotations (needsConfirmation). */
+  changeAnnotations: boolean;
 }
 
 export const NO_CAPABILITIES: Capabilities = {
@@ -29,6 +31,7 @@ export const NO_CAPABILITIES: Capabilities = {
   versionedEdits: false,
   inlayHintRefresh: false,
   codeLensRefresh: false,
+  changeAnnotations: false,
 };
 
 export function readCapabilities(cc: ClientCapabilities, init?: Pick<InitializeParams, 'clientInfo' | 'initializationOptions'>): Capabilities {
@@ -45,5 +48,6 @@ export function readCapabilities(cc: ClientCapabilities, init?: Pick<InitializeP
     versionedEdits: !!cc.workspace?.workspaceEdit?.documentChanges,
     inlayHintRefresh: !!cc.workspace?.inlayHint?.refreshSupport,
     codeLensRefresh: !!cc.workspace?.codeLens?.refreshSupport,
+    changeAnnotations: !!cc.workspace?.workspaceEdit?.changeAnnotationSupport,
   };
 }

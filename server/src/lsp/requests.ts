@@ -36,12 +36,13 @@ import { fixAllAction, kindRequested, quickFixes, type CurrentFindings } from '.
 import { spanToRange } from './convert';
 import type { Analyzed, OpenDocument, OpenDocuments } from './documents';
 import { isPosition, requireUri } from './util';
+import { runCodeActions, type RunContext } from './runAction';
 
 /** Schedule fields, in the order the "Show noise schedule" lens looks for them. */
 const SCHEDULE_FIELDS: readonly Concept[] = ['betaSchedule', 'betas', 'trainSteps', 'betaStart', 'betaEnd', 'zeroTerminalSnr', 'sigmaMax', 'sigmaMin', 'flowShift'];
 
 /** What the handlers need of the server. */
-export interface ViewContext {
+export interface ViewContext extends RunContext {
   readonly caps: Capabilities;
   readonly docs: OpenDocuments;
   analyze(od: OpenDocument): Promise<Analyzed | null>;
@@ -94,6 +95,7 @@ export async function codeActions(ctx: ViewContext, params: CodeActionParams): P
   const only = Array.isArray(params.context?.only) ? params.context.only : undefined;
   const actions: CodeAction[] = [];
   if (kindRequested(only, CodeActionKind.QuickFix)) actions.push(...quickFixes(params, current, ctx.caps.versionedEdits));
+  if (kindRequested(only, CodeActionKind.QuickFix)) actions.push(...runCodeActions(ctx, params));
   if (kindRequested(only, FIX_ALL_KIND)) {
     const all = fixAllAction(current, ctx.caps.versionedEdits);
     if (all) actions.push(all);

@@ -43,7 +43,7 @@ import {
 import { TextDocument } from 'vscode-languageserver-textdocument';
 import { LruCache } from '@noiselint/shared-math';
 import type { Finding } from '../base/findings';
-import { EXPLAIN_REQUEST, FIX_ALL_KIND, PLOT_CHANGED_NOTIFICATION, PLOT_DATA_REQUEST, SUMMARY_REQUEST, type UriParams } from '../base/protocol';
+import { EXPLAIN_REQUEST, FIX_ALL_KIND, PLOT_CHANGED_NOTIFICATION, PLOT_DATA_REQUEST, SUMMARY_REQUEST, RUN_RESCALE_REQUEST, type RunRescaleParams, type UriParams } from '../base/protocol';
 import { analyzeText, findingsAsData, readFile, type AnalyzeOptions, type FileReading, type FileResult } from '../engine/api';
 import { VERSION } from '../base/version';
 import { isConfigFileName, isProjectFileName } from '../workspace/discover';
@@ -53,6 +53,8 @@ import { ruleDocsUrl } from '../workspace/ruleDocs';
 import { baseName } from '../workspace/selection';
 import type { ProjectLookup } from '../workspace/session';
 import { inheritanceFrom } from '../setup/inherit';
+import { readRun, type RunRead } from '../workspace/run';
+import { runRescaleRequest } from './runAction';
 import { NO_CAPABILITIES, readCapabilities, type Capabilities } from './capabilities';
 import { findingToDiagnostic, type PositionMapper } from './convert';
 import { OpenDocuments, type Analyzed, type OpenDocument } from './documents';
@@ -110,6 +112,7 @@ export class NoiselintServer {
     c.onRequest(PLOT_DATA_REQUEST, this.guard(PLOT_DATA_REQUEST, (p: UriParams) => requests.plotData(this, p)));
     c.onRequest(EXPLAIN_REQUEST, this.guard(EXPLAIN_REQUEST, (p: UriParams) => requests.explain(this, p)));
     c.onRequest(SUMMARY_REQUEST, this.guard(SUMMARY_REQUEST, (p: UriParams) => requests.summary(this, p)));
+    c.onRequest(RUN_RESCALE_REQUEST, this.guard(RUN_RESCALE_REQUEST, (p: RunRescaleParams) => runRescaleRequest(this, p)));
     c.listen();
   }
 
@@ -513,6 +516,11 @@ export class NoiselintServer {
       },
       od.uri,
     );
+  }
+
+  /** The run of these files for the run rescale, read through the session (open documents' text). */
+  readRun(paths: string[]): RunRead {
+    return readRun(paths, this.workspace.session, (p) => this.workspace.displayPath(p));
   }
 
   /** The analysis of an open document's current version. */

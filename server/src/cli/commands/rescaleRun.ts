@@ -15,13 +15,13 @@
 import { parseArgs } from 'node:util';
 import { resolve } from 'node:path';
 import { createTwoFilesPatch } from 'diff';
-import { analyzeText, readFile, type FileReading } from '../../engine/api';
+import { analyzeText, readFile } from '../../engine/api';
 import { applyEdits } from '../../fix/apply';
-import { planRunRescale, RUN_FIXED_RULES, type BeforeAfter, type RunFileInput, type RunPlan } from '../../fix/runRescale';
+import { planRunRescale, RUN_FIXED_RULES } from '../../fix/runRescale';
+import { formatRunNumbers } from '../../views/runRescale';
 import type { PartnerDocument } from '../../rules/types';
-import { runFilesOf } from '../../workspace/pairing';
+import { readRun, type RunFileRead } from '../../workspace/run';
 import { WorkspaceSession } from '../../workspace/session';
-import type { ResolvedProject } from '../../workspace/types';
 import { UsageError, type CliIO } from '../io';
 import { displayPath } from '../output/report';
 import { writeAtomically } from './fix';
@@ -58,88 +58,7 @@ function parseRescaleArgs(args: string[]): RescaleArgs {
   };
 }
 
-interface LoadedFile {
-  abs: string;
-  shown: string;
-  text: string;
-  project: ResolvedProject;
-  side: RunFileInput['side'];
-  reading: FileReading;
-}
-
-/** The files of the runs the inputs belong to, each once, training files first. */
-function loadRun(inputs: string[], io: CliIO, session: WorkspaceSession): { files: LoadedFile[]; failed: boolean } {
-  const shown = (p: string) => displayPath(io.cwd, p);
-  const sides = new Map<string, RunFileInput['side']>();
-  for (const input of inputs) {
-    const abs = resolve(io.cwd, input);
-    const run = runFilesOf(abs, (p) => {
-      const found = session.partnersOf(p, session.projectFor(p).project);
-      return { pairRole: found.pairRole, paths: found.paths };
-    });
-    if (!run.training) {
-      if (!sides.has(abs)) sides.set(abs, 'alone');
-      continue;
-    }
-    sides.set(run.training, 'training');
-    for (const s of run.sampling) if (sides.get(s) !== 'training') sides.set(s, 'sampling');
-  }
-  const files: LoadedFile[] = [];
-  let failed = false;
-  const order = [...sides].sort((a, b) => (a[1] === 'sampling' ? 1 : 0) - (b[1] === 'sampling' ? 1 : 0));
-  for (const [abs, side] of order) {
-    const { project } = session.projectFor(abs);
-    const read = session.readText(abs, project);
-    if (!read.ok) {
-      io.stderr(`noiselint rescale-run: ${shown(abs)}: ${read.problem}\n`);
-      failed = true;
-      continue;
-    }
-    const pairing = side === 'sampling' ? session.partnersOf(abs, project) : null;
-    const reading = readFile(read.text, {
-      path: shown(abs),
-      project,
-      partners: pairing?.partners,
-      pairRole: pairing?.pairRole,
-    });
-    files.push({ abs, shown: shown(abs), text: read.text, project, side, reading });
-  }
-  return { files, failed };
-}
-
-function cell(x: number | null, digits = 4): string {
-  if (x === null) return '-';
-  if (x === 0) return '0';
-  if (!Number.isFinite(x)) return x > 0 ? 'inf' : '-inf';
-  if (Number.isInteger(x)) return String(x);
-  const abs = Math.abs(x);
-  return abs >= 1e-3 && abs < 1e5 ? String(Number(x.toPrecision(digits))) : x.toExponential(digits - 1).replace(/\.?0+e/, 'e');
-}
-
-function pair(v: BeforeAfter): [string, string] {
-  return [cell(v.before), cell(v.after)];
-}
-
-/** The before/after table, one block of rows per document with a discrete schedule. */
-export function formatRunNumbers(plan: RunPlan): string {
-  const lines: string[] = [];
-  for (const row of plan.numbers) {
-    lines.push(`${row.path}${row.documentIndex > 0 ? ` (document ${row.documentIndex + 1})` : ''}:`);
-    const rows: [string, [string, string]][] = [
-      ['terminal SNR (SNR_T)', pair(row.terminalSnr)],
-      ['signal amplitude at the last step sqrt(abar_T)', pair(row.terminalSignal)],
-      ['first sampled timestep', pair(row.firstTimestep)],
-      ['SNR at the first sampled timestep', pair(row.snrAtFirst)],
-      ['guidance rescale', pair(row.guidanceRescale)],
-    ];
-    if (row.firstSigma) rows.push(['sigma at the first sampled timestep', pair(row.firstSigma)]);
-    const w0 = Math.max(...rows.map((r) => r[0].length));
-    const w1 = Math.max('before'.length, ...rows.map((r) => r[1][0].length));
-    lines.push(`  ${''.padEnd(w0)}  ${'before'.padEnd(w1)}  after`);
-    for (const [label, [b, a]] of rows) lines.push(`  ${label.padEnd(w0)}  ${b.padEnd(w1)}  ${a}`);
-  }
-  return lines.length ? `${lines.join('\n')}\n` : '';
-}
+type LoadedFile = RunFileRead;
 
 /** What `check` reports of the fixed rules once the new texts are read as a pair. */
 function remainingAfter(files: LoadedFile[], texts: Map<string, string>): string[] {
@@ -164,7 +83,13 @@ function remainingAfter(files: LoadedFile[], texts: Map<string, string>): string
 export async function runRescaleRun(args: string[], io: CliIO): Promise<number> {
   const options = parseRescaleArgs(args);
   const session = new WorkspaceSession({ stableTree: true, showPath: (p) => displayPath(io.cwd, p) });
-  const { files, failed } = loadRun(options.inputs, io, session);
+  const { files, problems } = readRun(
+    options.inputs.map((i) => resolve(io.cwd, i)),
+    session,
+    (p) => displayPath(io.cwd, p),
+  );
+  for (const p of problems) io.stderr(`noiselint rescale-run: ${p}\n`);
+  const failed = problems.length > 0;
   for (const w of session.warnings) io.stderr(`noiselint rescale-run: warning: ${w.split(`${io.cwd}/`).join('')}\n`);
   if (failed) return 2;
   const plan = planRunRescale(
