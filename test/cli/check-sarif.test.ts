@@ -1,5 +1,6 @@
 import { afterEach, describe, expect, it } from 'vitest';
 import Ajv from 'ajv';
+import { ruleDocs } from '../../server/src/rules/docs';
 import { ALL_RULE_METAS } from '../../server/src/rules';
 import { removeTree } from '../workspace/helpers';
 import { LEAKY_V, ZERO_SNR_EPSILON, runCli, tempTree } from './check-helpers';
@@ -186,7 +187,8 @@ describe('check --format sarif', () => {
       expect(d.shortDescription.text).toBe(meta.summary);
       expect(d.defaultConfiguration.level).toBe(level[meta.defaultSeverity]);
       expect(d.helpUri.endsWith(`docs/rules/${meta.id}.md`)).toBe(true);
-      expect(d.help.markdown).toBe(meta.docs.trim() || meta.summary);
+      // The same text as the rule's page, option list included.
+      expect(d.help.markdown).toBe(ruleDocs(meta));
       expect(d.fullDescription.text.length).toBeGreaterThan(0);
       expect(d.properties).toEqual({
         repairEffects: meta.repair ? [...meta.repair.effects] : [],

@@ -8,7 +8,7 @@ import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { readFile } from '../../server/src/engine/api';
 import { ALL_RULE_METAS, RULES } from '../../server/src/rules';
-import { RULE_DOC_HEADINGS, renderRuleDocPages } from '../../server/src/rules/docs';
+import { RULE_DOC_HEADINGS, renderRuleDocPages, ruleDocs } from '../../server/src/rules/docs';
 import type { RuleMeta } from '../../server/src/rules/types';
 import { runOnly } from './harness';
 
@@ -53,11 +53,18 @@ function partnersOf(meta: RuleMeta) {
 }
 
 describe.each(ALL_RULE_METAS.map((m) => [m.id, m] as const))('docs of %s', (id, meta) => {
-  const byHeading = sections(meta.docs);
+  const byHeading = sections(ruleDocs(meta));
 
   it('has the fixed headings, in order, and nothing else', () => {
     expect([...byHeading.keys()]).toEqual(HEADINGS);
     for (const h of HEADINGS) expect(byHeading.get(h)!.trim().length, h).toBeGreaterThan(0);
+  });
+
+  it('states each default once, in the metadata: the rule text never repeats one', () => {
+    expect(sections(meta.docs).get('Numbers you can tune') ?? '').not.toMatch(/\(default /);
+    // The rule's own note under the heading survives next to the generated list.
+    const own = (sections(meta.docs).get('Numbers you can tune') ?? '').trim();
+    if (own) expect(byHeading.get('Numbers you can tune')!).toContain(own);
   });
 
   it('names every option with its default, and cites a source with a year', () => {

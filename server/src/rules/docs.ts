@@ -39,6 +39,28 @@ function optionText(value: number | string | boolean): string {
   return typeof value === 'string' ? JSON.stringify(value) : typeof value === 'number' ? fmt(value) : String(value);
 }
 
+const OPTIONS_HEADING = '## Numbers you can tune';
+
+/**
+ * A rule's documentation with its option list written from the metadata, so each default is
+ * stated once (in `meta.options`). The rule's own text under "Numbers you can tune" follows the
+ * list as a note.
+ */
+export function ruleDocs(meta: RuleMeta): string {
+  const docs = meta.docs.trim();
+  const at = docs.indexOf(OPTIONS_HEADING);
+  if (at < 0) return docs;
+  const bodyStart = at + OPTIONS_HEADING.length;
+  const next = docs.indexOf('\n## ', bodyStart);
+  const note = docs.slice(bodyStart, next < 0 ? docs.length : next).trim();
+  const options = Object.entries(meta.options);
+  const list = options.length
+    ? options.map(([name, o]) => `- \`${name}\` (default ${optionText(o.default)}): ${o.description}`).join('\n')
+    : 'None.';
+  const section = [OPTIONS_HEADING, '', list, ...(note ? ['', note] : [])].join('\n');
+  return `${docs.slice(0, at)}${section}${next < 0 ? '' : `\n${docs.slice(next)}`}`;
+}
+
 export function renderRulePage(meta: RuleMeta): string {
   const options = Object.entries(meta.options);
   const lines = [
@@ -54,7 +76,7 @@ export function renderRulePage(meta: RuleMeta): string {
       ? `- Options: ${options.map(([name, o]) => `\`${name}\` (default ${optionText(o.default)})`).join(', ')}`
       : '- Options: none',
     '',
-    meta.docs.trim(),
+    ruleDocs(meta),
     '',
   ];
   return lines.join('\n');

@@ -1,5 +1,5 @@
 import { fmt } from './format';
-import type { Rule, RuleMeta } from './types';
+import { defineRule, type RuleMeta } from './types';
 import { RETRAIN_NOTE, assumedNote, describeSchedule, discreteSchedule, scheduleOrigin } from './util';
 
 const docs = `
@@ -49,7 +49,6 @@ epsilon needs fine-tuning or retraining before it predicts v.
 
 ## Numbers you can tune
 
-None.
 
 ## Published sources
 
@@ -59,16 +58,16 @@ None.
   (the v parameterisation).
 `;
 
-const meta: RuleMeta = {
+const meta = {
   id: 'epsilon-at-zero-snr',
   summary: 'An epsilon target on a schedule that reaches zero SNR.',
   defaultSeverity: 'error',
   repair: { effects: ['needs-retraining'], everyFinding: true },
   options: {},
   docs,
-};
+} satisfies RuleMeta;
 
-export const epsilonAtZeroSnr: Rule = {
+export const epsilonAtZeroSnr = defineRule({
   meta,
   check(ctx) {
     const { setup, analysis } = ctx;
@@ -96,4 +95,4 @@ export const epsilonAtZeroSnr: Rule = {
       },
     ];
   },
-};
+});

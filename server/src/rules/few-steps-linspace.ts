@@ -1,6 +1,6 @@
 import { fmt, fmtList } from './format';
-import type { Rule, RuleMeta } from './types';
-import { discreteSchedule, numberOption, trailingFix } from './util';
+import { defineRule, type RuleMeta } from './types';
+import { discreteSchedule, trailingFix } from './util';
 
 const docs = `
 ## What triggers it
@@ -48,8 +48,6 @@ Sampling only: the checkpoint stays valid. The fix sets the spacing to trailing,
 
 ## Numbers you can tune
 
-- \`maxSteps\` (default 10): the largest step count that is reported. A project default, not a
-  published value.
 
 ## Published sources
 
@@ -57,25 +55,25 @@ Sampling only: the checkpoint stays valid. The fix sets the spacing to trailing,
   (Table 2 compares leading, linspace and trailing at 10 steps).
 `;
 
-const meta: RuleMeta = {
+const meta = {
   id: 'few-steps-linspace',
   summary: 'Linspace spacing with few steps spends one step at the almost clean t = 0.',
   defaultSeverity: 'info',
   repair: { effects: ['sampling-only'], everyFinding: true },
   options: {
-    maxSteps: { default: 10, description: 'Largest sampling step count that is reported.' },
+    maxSteps: { default: 10, description: 'The largest step count that is reported. A project default, not a published value.' },
   },
   docs,
-};
+} satisfies RuleMeta;
 
-export const fewStepsLinspace: Rule = {
+export const fewStepsLinspace = defineRule({
   meta,
   check(ctx) {
     const { setup, analysis } = ctx;
     const schedule = discreteSchedule(analysis);
     const sampling = analysis.sampling;
     if (!schedule || !sampling || sampling.spacing !== 'linspace' || sampling.stepsAssumed) return [];
-    const maxSteps = numberOption(ctx, 'maxSteps', 10);
+    const maxSteps = ctx.options.maxSteps;
     const N = sampling.steps;
     if (N < 2 || N > maxSteps || N > schedule.trainSteps) return [];
     const last = sampling.timesteps[sampling.timesteps.length - 1];
@@ -94,4 +92,4 @@ export const fewStepsLinspace: Rule = {
       },
     ];
   },
-};
+});

@@ -1,7 +1,7 @@
 import type { ScheduleAnalysis } from '../analysis/analysis';
 import { fmt } from './format';
-import type { Rule, RuleContext, RuleMeta } from './types';
-import { assumedNote, discreteSchedule, inheritsSchedule, numberOption, scheduleConcepts, setsSchedule } from './util';
+import { defineRule, type RuleContext, type RuleMeta } from './types';
+import { assumedNote, discreteSchedule, inheritsSchedule, scheduleConcepts, setsSchedule } from './util';
 
 const docs = `
 ## What triggers it
@@ -58,9 +58,6 @@ Sampling only: the checkpoint stays valid. The fix sets the guidance rescale to 
 
 ## Numbers you can tune
 
-- \`nearZeroSignal\` (default 1e-3): last-step signal amplitude below which the schedule counts
-  as (near) zero SNR. A project default.
-- \`suggestedRescale\` (default 0.7): the value the fix writes (Lin et al. 2023 use 0.7).
 
 ## Published sources
 
@@ -69,17 +66,17 @@ Sampling only: the checkpoint stays valid. The fix sets the guidance rescale to 
 - Ho and Salimans 2022, "Classifier-Free Diffusion Guidance".
 `;
 
-const meta: RuleMeta = {
+const meta = {
   id: 'guidance-overexposure',
   summary: 'Guidance above 1 on a (near) zero-SNR schedule without guidance rescale.',
   defaultSeverity: 'warning',
   repair: { effects: ['sampling-only'], everyFinding: true },
   options: {
-    nearZeroSignal: { default: 1e-3, description: 'Last-step signal amplitude below which the schedule counts as zero SNR.' },
-    suggestedRescale: { default: 0.7, description: 'Guidance rescale the fix writes.' },
+    nearZeroSignal: { default: 1e-3, description: 'Last-step signal amplitude below which the schedule counts as (near) zero SNR. A project default.' },
+    suggestedRescale: { default: 0.7, description: 'The guidance rescale the fix writes (Lin et al. 2023 use 0.7).' },
   },
   docs,
-};
+} satisfies RuleMeta;
 
 /** The document's own schedule, or (for a sampling file that sets none) its training partner's. */
 function effectiveSchedule(ctx: RuleContext): { schedule: ScheduleAnalysis; partnerPath?: string } | null {
@@ -93,7 +90,7 @@ function effectiveSchedule(ctx: RuleContext): { schedule: ScheduleAnalysis; part
   return null;
 }
 
-export const guidanceOverexposure: Rule = {
+export const guidanceOverexposure = defineRule({
   meta,
   check(ctx) {
     const { setup } = ctx;
@@ -103,8 +100,8 @@ export const guidanceOverexposure: Rule = {
     if (rescale && !rescale.assumed && rescale.value !== 0) return [];
     const found = effectiveSchedule(ctx);
     if (!found) return [];
-    const nearZero = numberOption(ctx, 'nearZeroSignal', 1e-3);
-    const suggested = numberOption(ctx, 'suggestedRescale', 0.7);
+    const nearZero = ctx.options.nearZeroSignal;
+    const suggested = ctx.options.suggestedRescale;
     const { schedule, partnerPath } = found;
     if (!(schedule.terminalSignal < nearZero)) return [];
     const whose = partnerPath ? `the paired training file's schedule (${partnerPath})` : 'the schedule';
@@ -126,4 +123,4 @@ export const guidanceOverexposure: Rule = {
       },
     ];
   },
-};
+});

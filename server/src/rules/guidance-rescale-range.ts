@@ -1,6 +1,5 @@
 import { fmt } from './format';
-import type { ConceptFix, Rule, RuleMeta } from './types';
-import { numberOption } from './util';
+import { defineRule, type ConceptFix, type RuleMeta } from './types';
 
 const docs = `
 ## What triggers it
@@ -39,7 +38,6 @@ inference.
 
 ## Numbers you can tune
 
-- \`suggestedRescale\` (default 0.7): the value the preferred fix writes.
 
 ## Published sources
 
@@ -47,24 +45,24 @@ inference.
   (section 3.4, equations 13 to 16, and the choice phi = 0.7).
 `;
 
-const meta: RuleMeta = {
+const meta = {
   id: 'guidance-rescale-range',
   summary: 'Guidance rescale outside [0, 1], or exactly 1.',
   defaultSeverity: 'error',
   repair: { effects: ['sampling-only'], everyFinding: true },
   options: {
-    suggestedRescale: { default: 0.7, description: 'Guidance rescale the preferred fix writes.' },
+    suggestedRescale: { default: 0.7, description: 'The guidance rescale the preferred fix writes.' },
   },
   docs,
-};
+} satisfies RuleMeta;
 
-export const guidanceRescaleRange: Rule = {
+export const guidanceRescaleRange = defineRule({
   meta,
   check(ctx) {
     const field = ctx.setup.fields.guidanceRescale;
     if (!field || field.assumed || !Number.isFinite(field.value)) return [];
     const phi = field.value;
-    const suggested = numberOption(ctx, 'suggestedRescale', 0.7);
+    const suggested = ctx.options.suggestedRescale;
     const setSuggested: ConceptFix = {
       title: `Set guidance rescale to ${fmt(suggested)} (sampling only)`,
       effect: 'sampling-only',
@@ -99,4 +97,4 @@ export const guidanceRescaleRange: Rule = {
       },
     ];
   },
-};
+});

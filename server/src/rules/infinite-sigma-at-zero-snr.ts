@@ -1,6 +1,6 @@
 import { ZERO_SNR_ALPHA_BAR_CLAMP, sigmaFromAlphaBar } from '@noiselint/shared-math';
 import { fmt } from './format';
-import type { Rule, RuleMeta } from './types';
+import { defineRule, type RuleMeta } from './types';
 import { discreteSchedule, isSet, scheduleOrigin } from './util';
 
 const docs = `
@@ -58,7 +58,6 @@ No repair offered: whether the sampling code clamps is not visible in the config
 
 ## Numbers you can tune
 
-None.
 
 ## Published sources
 
@@ -68,16 +67,16 @@ None.
   (zero terminal SNR).
 `;
 
-const meta: RuleMeta = {
+const meta = {
   id: 'infinite-sigma-at-zero-snr',
   summary: 'A sigma-space sampler or Karras sigmas on a zero-SNR schedule: the first sigma is infinite.',
   defaultSeverity: 'warning',
   repair: null,
   options: {},
   docs,
-};
+} satisfies RuleMeta;
 
-export const infiniteSigmaAtZeroSnr: Rule = {
+export const infiniteSigmaAtZeroSnr = defineRule({
   meta,
   check(ctx) {
     const { setup, analysis } = ctx;
@@ -99,4 +98,4 @@ export const infiniteSigmaAtZeroSnr: Rule = {
       },
     ];
   },
-};
+});

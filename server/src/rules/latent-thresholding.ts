@@ -1,4 +1,4 @@
-import type { Rule, RuleMeta } from './types';
+import { defineRule, type RuleMeta } from './types';
 import { assumedNote } from './util';
 
 const docs = `
@@ -49,7 +49,6 @@ Sampling only: the checkpoint stays valid. The fix turns clipping off; it change
 
 ## Numbers you can tune
 
-None.
 
 ## Published sources
 
@@ -59,16 +58,16 @@ None.
   Diffusion Models" (latents and their scaling).
 `;
 
-const meta: RuleMeta = {
+const meta = {
   id: 'latent-thresholding',
   summary: 'Sample clipping or dynamic thresholding on a latent-space model.',
   defaultSeverity: 'warning',
   repair: { effects: ['sampling-only'], everyFinding: true },
   options: {},
   docs,
-};
+} satisfies RuleMeta;
 
-export const latentThresholding: Rule = {
+export const latentThresholding = defineRule({
   meta,
   check(ctx) {
     const { setup } = ctx;
@@ -92,4 +91,4 @@ export const latentThresholding: Rule = {
       },
     ];
   },
-};
+});

@@ -1,5 +1,5 @@
 import { fmt } from './format';
-import type { Rule, RuleMeta } from './types';
+import { defineRule, type RuleMeta } from './types';
 import { RETRAIN_NOTE, assumedNote, discreteSchedule } from './util';
 
 const docs = `
@@ -49,7 +49,6 @@ epsilon needs fine-tuning or retraining.
 
 ## Numbers you can tune
 
-None.
 
 ## Published sources
 
@@ -58,16 +57,16 @@ None.
 - Lin, Liu, Li and Yang 2023, "Common Diffusion Noise Schedules and Sample Steps are Flawed".
 `;
 
-const meta: RuleMeta = {
+const meta = {
   id: 'min-snr-division',
   summary: 'Min-SNR weighting with an epsilon loss divides by an SNR of zero.',
   defaultSeverity: 'error',
   repair: { effects: ['needs-retraining'], everyFinding: true },
   options: {},
   docs,
-};
+} satisfies RuleMeta;
 
-export const minSnrDivision: Rule = {
+export const minSnrDivision = defineRule({
   meta,
   check(ctx) {
     const { setup, analysis } = ctx;
@@ -95,4 +94,4 @@ export const minSnrDivision: Rule = {
       },
     ];
   },
-};
+});

@@ -1,6 +1,6 @@
 import { minSnrWeight } from '@noiselint/shared-math';
 import { fmt } from './format';
-import type { Rule, RuleMeta } from './types';
+import { defineRule, type RuleMeta } from './types';
 import { assumedNote, discreteSchedule } from './util';
 
 const docs = `
@@ -52,7 +52,6 @@ No repair offered: the remedy lives in the training code, not in the configurati
 
 ## Numbers you can tune
 
-None.
 
 ## Published sources
 
@@ -61,16 +60,16 @@ None.
 - Lin, Liu, Li and Yang 2023, "Common Diffusion Noise Schedules and Sample Steps are Flawed".
 `;
 
-const meta: RuleMeta = {
+const meta = {
   id: 'min-snr-drops-terminal-step',
   summary: 'Min-SNR weighting gives the pure-noise step of a zero-SNR schedule weight 0.',
   defaultSeverity: 'info',
   repair: null,
   options: {},
   docs,
-};
+} satisfies RuleMeta;
 
-export const minSnrDropsTerminalStep: Rule = {
+export const minSnrDropsTerminalStep = defineRule({
   meta,
   check(ctx) {
     const { setup, analysis } = ctx;
@@ -94,4 +93,4 @@ export const minSnrDropsTerminalStep: Rule = {
       },
     ];
   },
-};
+});

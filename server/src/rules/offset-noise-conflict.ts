@@ -1,5 +1,5 @@
 import { fmt } from './format';
-import type { ConceptFix, Rule, RuleMeta } from './types';
+import { defineRule, type ConceptFix, type RuleMeta } from './types';
 import { RETRAIN_NOTE, discreteSchedule, zeroSnrFix } from './util';
 
 const docs = `
@@ -53,7 +53,6 @@ setting.
 
 ## Numbers you can tune
 
-None.
 
 ## Published sources
 
@@ -61,16 +60,16 @@ None.
   (section 3.1 and the discussion of offset noise).
 `;
 
-const meta: RuleMeta = {
+const meta = {
   id: 'offset-noise-conflict',
   summary: 'Offset noise together with (or instead of) a zero-terminal-SNR schedule.',
   defaultSeverity: 'warning',
   repair: { effects: ['needs-retraining'], everyFinding: true },
   options: {},
   docs,
-};
+} satisfies RuleMeta;
 
-export const offsetNoiseConflict: Rule = {
+export const offsetNoiseConflict = defineRule({
   meta,
   check(ctx) {
     const { setup, analysis } = ctx;
@@ -104,4 +103,4 @@ export const offsetNoiseConflict: Rule = {
       },
     ];
   },
-};
+});

@@ -43,7 +43,7 @@ No repair offered.
 
 ## Numbers you can tune
 
-None. Limits on file size, nesting and list length are project settings (\`limits\`).
+Limits on file size, nesting and list length are project settings (\`limits\`).
 
 ## Published sources
 

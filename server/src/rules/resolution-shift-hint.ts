@@ -1,7 +1,7 @@
 import { resolutionLogSnrShift } from '@noiselint/shared-math';
 import { fmt } from './format';
-import type { Rule, RuleMeta } from './types';
-import { assumedNote, numberOption } from './util';
+import { defineRule, type RuleMeta } from './types';
+import { assumedNote } from './util';
 
 const docs = `
 ## What triggers it
@@ -50,10 +50,6 @@ shift and, for flow schedules, the matching shift value.
 
 ## Numbers you can tune
 
-- \`factor\` (default 2): how many times the reference resolution triggers the hint.
-- \`pixelReferenceResolution\` (default 256): reference for pixel-space models (common practice).
-- \`latentReferenceResolution\` (default 512): reference for latent models, in pixels (common
-  practice).
 
 ## Published sources
 
@@ -64,20 +60,20 @@ shift and, for flow schedules, the matching shift value.
   (resolution-dependent timestep shift).
 `;
 
-const meta: RuleMeta = {
+const meta = {
   id: 'resolution-shift-hint',
   summary: 'Training resolution well above the schedule\'s reference resolution without a shift.',
   defaultSeverity: 'info',
   repair: null,
   options: {
-    factor: { default: 2, description: 'Multiple of the reference resolution that triggers the hint.' },
-    pixelReferenceResolution: { default: 256, description: 'Reference resolution of pixel-space schedules (common practice).' },
-    latentReferenceResolution: { default: 512, description: 'Reference resolution of latent schedules, in pixels (common practice).' },
+    factor: { default: 2, description: 'How many times the reference resolution triggers the hint.' },
+    pixelReferenceResolution: { default: 256, description: 'Reference resolution of pixel-space models (common practice).' },
+    latentReferenceResolution: { default: 512, description: 'Reference resolution of latent models, in pixels (common practice).' },
   },
   docs,
-};
+} satisfies RuleMeta;
 
-export const resolutionShiftHint: Rule = {
+export const resolutionShiftHint = defineRule({
   meta,
   check(ctx) {
     const { setup, analysis } = ctx;
@@ -89,9 +85,9 @@ export const resolutionShiftHint: Rule = {
     if (family === 'flow' && shift && !shift.assumed && shift.value !== 1) return [];
     const latent = setup.fields.latentSpace?.value === true;
     const reference = latent
-      ? numberOption(ctx, 'latentReferenceResolution', 512)
-      : numberOption(ctx, 'pixelReferenceResolution', 256);
-    const factor = numberOption(ctx, 'factor', 2);
+      ? ctx.options.latentReferenceResolution
+      : ctx.options.pixelReferenceResolution;
+    const factor = ctx.options.factor;
     const r = resolution.value;
     if (!(reference > 0) || r < factor * reference) return [];
     const logShift = resolutionLogSnrShift(reference, r);
@@ -110,4 +106,4 @@ export const resolutionShiftHint: Rule = {
       },
     ];
   },
-};
+});

@@ -1,5 +1,5 @@
 import { fmt, fmtList } from './format';
-import type { Rule, RuleMeta } from './types';
+import { defineRule, type RuleMeta } from './types';
 import { assumedNote, discreteSchedule, isSet, scheduleOrigin, trailingFix } from './util';
 
 const docs = `
@@ -53,7 +53,6 @@ nothing the model learned changes. If a steps offset would push a trailing times
 
 ## Numbers you can tune
 
-None.
 
 ## Published sources
 
@@ -61,16 +60,16 @@ None.
   (section 3.3 and Table 2: leading, linspace and trailing spacings).
 `;
 
-const meta: RuleMeta = {
+const meta = {
   id: 'sampler-skips-last-step',
   summary: 'The first sampling timestep is not the last training step T - 1.',
   defaultSeverity: 'warning',
   repair: { effects: ['sampling-only'], everyFinding: true },
   options: {},
   docs,
-};
+} satisfies RuleMeta;
 
-export const samplerSkipsLastStep: Rule = {
+export const samplerSkipsLastStep = defineRule({
   meta,
   check(ctx) {
     const { setup, analysis } = ctx;
@@ -102,4 +101,4 @@ export const samplerSkipsLastStep: Rule = {
       },
     ];
   },
-};
+});

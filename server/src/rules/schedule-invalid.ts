@@ -1,7 +1,7 @@
 import { TRAIN_STEPS_MAX, TRAIN_STEPS_MIN, checkBetas } from '@noiselint/shared-math';
 import { CONCEPT_GROUP, type Concept } from '../fields/concepts';
 import { fmt } from './format';
-import type { Rule, RuleFinding, RuleMeta } from './types';
+import { defineRule, type RuleFinding, type RuleMeta } from './types';
 import { assumedNote, hasProblem, problemFindings, sourceOf } from './util';
 
 const docs = `
@@ -53,7 +53,6 @@ No repair offered: the intended value cannot be guessed.
 
 ## Numbers you can tune
 
-None.
 
 ## Published sources
 
@@ -63,14 +62,14 @@ None.
   (a last beta of exactly 1 gives zero terminal SNR).
 `;
 
-const meta: RuleMeta = {
+const meta = {
   id: 'schedule-invalid',
   summary: 'Schedule values that cannot describe a valid noise schedule.',
   defaultSeverity: 'error',
   repair: null,
   options: {},
   docs,
-};
+} satisfies RuleMeta;
 
 /** Up to three bad entries of a beta list, in one line; null when the list is fine. */
 function badBetas(betas: readonly number[]): string | null {
@@ -94,7 +93,7 @@ function badBetas(betas: readonly number[]): string | null {
 
 const POSITIVE: readonly Concept[] = ['sigmaMin', 'sigmaMax', 'rho', 'flowShift'];
 
-export const scheduleInvalid: Rule = {
+export const scheduleInvalid = defineRule({
   meta,
   check(ctx) {
     const { setup, analysis } = ctx;
@@ -168,4 +167,4 @@ export const scheduleInvalid: Rule = {
     }
     return out;
   },
-};
+});

@@ -1,5 +1,5 @@
 import { fmt } from './format';
-import type { Rule, RuleFinding, RuleMeta } from './types';
+import { defineRule, type RuleFinding, type RuleMeta } from './types';
 import { assumedNote, problemFindings } from './util';
 
 const docs = `
@@ -45,7 +45,6 @@ Sampling only, when N > T: the fix sets N = T, which only changes sampling. No f
 
 ## Numbers you can tune
 
-None.
 
 ## Published sources
 
@@ -53,16 +52,16 @@ None.
   of the training timesteps).
 `;
 
-const meta: RuleMeta = {
+const meta = {
   id: 'steps-out-of-range',
   summary: 'The number of sampling steps is below 1 or above the number of training steps.',
   defaultSeverity: 'error',
   repair: { effects: ['sampling-only'], everyFinding: false },
   options: {},
   docs,
-};
+} satisfies RuleMeta;
 
-export const stepsOutOfRange: Rule = {
+export const stepsOutOfRange = defineRule({
   meta,
   check(ctx) {
     const { setup, analysis } = ctx;
@@ -93,4 +92,4 @@ export const stepsOutOfRange: Rule = {
     }
     return out;
   },
-};
+});

@@ -1,6 +1,6 @@
 import { fmt } from './format';
-import type { Rule, RuleMeta } from './types';
-import { assumedNote, describeSchedule, discreteSchedule, inheritsSchedule, numberOption, scheduleConcepts, setsSchedule, zeroSnrFix } from './util';
+import { defineRule, type RuleMeta } from './types';
+import { assumedNote, describeSchedule, discreteSchedule, inheritsSchedule, scheduleConcepts, setsSchedule, zeroSnrFix } from './util';
 
 const docs = `
 ## What triggers it
@@ -51,9 +51,6 @@ because epsilon cannot be predicted usefully at zero SNR (see \`epsilon-at-zero-
 
 ## Numbers you can tune
 
-- \`warnSignal\` (default 0.01): amplitude at or above which the finding is a warning.
-- \`infoSignal\` (default 1e-4): amplitude at or above which the finding is information.
-
 Both thresholds are project defaults, not published values.
 
 ## Published sources
@@ -63,27 +60,27 @@ Both thresholds are project defaults, not published values.
 - Ho, Jain and Abbeel 2020, "Denoising Diffusion Probabilistic Models" (the linear schedule).
 `;
 
-const meta: RuleMeta = {
+const meta = {
   id: 'terminal-snr-leak',
   summary: 'The last training step still carries signal (non-zero terminal SNR).',
   defaultSeverity: 'warning',
   repair: { effects: ['needs-retraining'], everyFinding: false },
   options: {
-    warnSignal: { default: 0.01, description: 'Signal amplitude at the last step at or above which to warn.' },
-    infoSignal: { default: 1e-4, description: 'Signal amplitude at the last step at or above which to inform.' },
+    warnSignal: { default: 0.01, description: 'Last-step signal amplitude at or above which the finding is a warning.' },
+    infoSignal: { default: 1e-4, description: 'Last-step signal amplitude at or above which the finding is information.' },
   },
   docs,
-};
+} satisfies RuleMeta;
 
-export const terminalSnrLeak: Rule = {
+export const terminalSnrLeak = defineRule({
   meta,
   check(ctx) {
     const { setup, analysis } = ctx;
     const schedule = discreteSchedule(analysis);
     // A schedule taken from the training file leaks there, and is fixed there.
     if (!schedule || !setsSchedule(setup) || inheritsSchedule(setup)) return [];
-    const warnSignal = numberOption(ctx, 'warnSignal', 0.01);
-    const infoSignal = numberOption(ctx, 'infoSignal', 1e-4);
+    const warnSignal = ctx.options.warnSignal;
+    const infoSignal = ctx.options.infoSignal;
     const signal = schedule.terminalSignal;
     if (!(signal >= infoSignal)) return [];
     const severity = signal >= warnSignal ? 'warning' : 'info';
@@ -105,4 +102,4 @@ export const terminalSnrLeak: Rule = {
       },
     ];
   },
-};
+});

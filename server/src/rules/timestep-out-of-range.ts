@@ -1,6 +1,6 @@
 import { samplingTimesteps } from '@noiselint/shared-math';
 import { fmt, fmtList } from './format';
-import type { ConceptFix, Rule, RuleMeta } from './types';
+import { defineRule, type ConceptFix, type RuleMeta } from './types';
 import { assumedNote, discreteSchedule, isSet, trailingFix } from './util';
 
 const docs = `
@@ -49,7 +49,6 @@ steps than training steps) the step count to T; all of them change only sampling
 
 ## Numbers you can tune
 
-None.
 
 ## Published sources
 
@@ -57,16 +56,16 @@ None.
   (Table 2: the three spacings in code).
 `;
 
-const meta: RuleMeta = {
+const meta = {
   id: 'timestep-out-of-range',
   summary: 'A sampling timestep falls outside 0..T - 1.',
   defaultSeverity: 'error',
   repair: { effects: ['sampling-only'], everyFinding: false },
   options: {},
   docs,
-};
+} satisfies RuleMeta;
 
-export const timestepOutOfRange: Rule = {
+export const timestepOutOfRange = defineRule({
   meta,
   check(ctx) {
     const { setup, analysis } = ctx;
@@ -111,4 +110,4 @@ export const timestepOutOfRange: Rule = {
       },
     ];
   },
-};
+});

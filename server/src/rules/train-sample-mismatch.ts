@@ -1,7 +1,7 @@
 import type { Concept, ConceptValues } from '../fields/concepts';
 import { trainingDocumentOf } from '../setup/inherit';
 import type { Setup } from '../setup/types';
-import type { ConceptEdit, Rule, RuleFinding, RuleMeta } from './types';
+import { defineRule, type ConceptEdit, type PartnerDocument, type RuleFinding, type RuleMeta } from './types';
 import { fmt } from './format';
 import { isSet, showValue, sourceOf } from './util';
 
@@ -71,7 +71,6 @@ training file is never edited from here: what the model learned is the reference
 
 ## Numbers you can tune
 
-None.
 
 ## Published sources
 
@@ -81,14 +80,14 @@ None.
   (converting between epsilon and v needs the same abar on both sides).
 `;
 
-const meta: RuleMeta = {
+const meta = {
   id: 'train-sample-mismatch',
   summary: 'Paired training and sampling files disagree on the schedule, T, betas, zero SNR or target.',
   defaultSeverity: 'error',
   repair: { effects: ['sampling-only'], everyFinding: true },
   options: {},
   docs,
-};
+} satisfies RuleMeta;
 
 const COMPARED: readonly Concept[] = ['betaSchedule', 'trainSteps', 'betaStart', 'betaEnd', 'betas', 'zeroTerminalSnr', 'predictionTarget'];
 
@@ -150,7 +149,7 @@ function comparable(concept: Concept, sampling: Setup, training: Setup): boolean
   return true;
 }
 
-export const trainSampleMismatch: Rule = {
+export const trainSampleMismatch = defineRule({
   meta,
   check(ctx) {
     const { setup } = ctx;
@@ -194,4 +193,4 @@ export const trainSampleMismatch: Rule = {
     }
     return out;
   },
-};
+});

@@ -44,28 +44,39 @@ export interface PartnerDocument {
   analysis: Analysis;
 }
 
-export interface RuleContext {
+export type OptionValue = number | string | boolean;
+
+/** A rule option: its default decides its type (a project value of another type is ignored). */
+export interface RuleOption<V extends OptionValue = OptionValue> {
+  default: V;
+  description: string;
+}
+
+export type RuleOptions = Record<string, RuleOption>;
+
+/** The values a rule sees for its options, typed from the defaults in its metadata. */
+export type OptionValues<O extends RuleOptions> = { [K in keyof O]: Widen<O[K]['default']> };
+
+type Widen<V> = V extends number ? number : V extends string ? string : V extends boolean ? boolean : never;
+
+export interface RuleContext<V = Record<string, OptionValue>> {
   setup: Setup;
   analysis: Analysis;
-  /** Rule options merged over the rule's defaults (project file / settings). */
-  options: Record<string, number | string | boolean>;
+  /** Rule options merged over the rule's defaults (project file / settings), each of its default's type. */
+  options: V;
   /** For train-sample-mismatch: the paired file's documents, when pairing found one. */
   partners: PartnerDocument[];
   /** Role of this file in a pair, if any. */
   pairRole?: 'training' | 'sampling';
 }
 
-export interface RuleOption {
-  default: number | string | boolean;
-  description: string;
-}
 
 export interface RepairMeta {
   effects: readonly FixEffect[];
   everyFinding: boolean;
 }
 
-export interface RuleMeta {
+export interface RuleMeta<O extends RuleOptions = RuleOptions> {
   /** Exactly as in DESIGN section 5. */
   id: string;
   /** One line for `noiselint rules`. */
@@ -73,7 +84,8 @@ export interface RuleMeta {
   defaultSeverity: Severity;
   /** The repairs the rule offers: their effects, and whether every finding gets one; null for none. */
   repair: RepairMeta | null;
-  options: Record<string, RuleOption>;
+  /** Each option once, with its default and description; the docs list them from here. */
+  options: O;
   /**
    * Markdown under the fixed headings (RULE_DOC_HEADINGS in docs.ts): What triggers it / What the
    * run loses / A flagged config / The repaired config / Effect on a trained checkpoint / Numbers
@@ -82,7 +94,16 @@ export interface RuleMeta {
   docs: string;
 }
 
-export interface Rule {
-  meta: RuleMeta;
-  check(ctx: RuleContext): RuleFinding[];
+export interface Rule<O extends RuleOptions = RuleOptions> {
+  meta: RuleMeta<O>;
+  check(ctx: RuleContext<OptionValues<O>>): RuleFinding[];
+}
+
+/**
+ * A rule whose check sees its options typed from its metadata (`ctx.options.warnSignal` is a
+ * number because its default is). The engine merges the project's values over the defaults and
+ * drops any of the wrong type, so the check needs no fallback of its own.
+ */
+export function defineRule<O extends RuleOptions>(rule: Rule<O>): Rule {
+  return rule as unknown as Rule;
 }

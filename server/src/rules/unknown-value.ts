@@ -1,5 +1,5 @@
 import { suggestionEdit } from './suggest';
-import type { Rule, RuleFinding, RuleMeta } from './types';
+import { defineRule, type RuleFinding, type RuleMeta } from './types';
 import { ruleForProblem } from './util';
 
 const docs = `
@@ -50,7 +50,6 @@ no run can have relied on it. No fix when nothing is close.
 
 ## Numbers you can tune
 
-None.
 
 ## Published sources
 
@@ -60,16 +59,16 @@ None.
   suggested spelling.
 `;
 
-const meta: RuleMeta = {
+const meta = {
   id: 'unknown-value',
   summary: 'An enum value the tool does not recognise, or a value of the wrong type.',
   defaultSeverity: 'error',
   repair: { effects: ['sampling-only'], everyFinding: false },
   options: {},
   docs,
-};
+} satisfies RuleMeta;
 
-export const unknownValue: Rule = {
+export const unknownValue = defineRule({
   meta,
   check(ctx) {
     return ctx.setup.problems
@@ -85,4 +84,4 @@ export const unknownValue: Rule = {
         return finding;
       });
   },
-};
+});

@@ -177,12 +177,6 @@ export function zeroSnrFix(ctx: RuleContext, also?: { edits: ConceptEdit[]; titl
   return { title: `${title} ${RETRAIN_NOTE}`, effect: 'needs-retraining', edits };
 }
 
-/** Option accessors (the engine already merged defaults, but rules stay defensive). */
-export function numberOption(ctx: RuleContext, name: string, fallback: number): number {
-  const v = ctx.options[name];
-  return typeof v === 'number' && Number.isFinite(v) ? v : fallback;
-}
-
 /** Spacing -> trailing (plus offset 0 when the offset would push trailing out of range). */
 export function trailingFix(setup: Setup, schedule: ScheduleAnalysis, sampling: SamplingAnalysis): ConceptFix | null {
   const T = schedule.trainSteps;

@@ -1,4 +1,5 @@
 /** `noiselint rules [id]`: the rule list, or one rule's documentation. */
+import { ruleDocs } from '../../rules/docs';
 import { ALL_RULE_METAS, getRuleMeta } from '../../rules';
 import { repairLabel } from '../../rules/docs';
 import type { RuleMeta } from '../../rules/types';
@@ -15,7 +16,7 @@ function table(metas: readonly RuleMeta[]): string {
 /** One rule's page: a short header and its documentation. */
 export function ruleText(meta: RuleMeta): string {
   const header = `${meta.id}: ${meta.summary}\ndefault severity: ${meta.defaultSeverity}; repair: ${repairLabel(meta)}\n`;
-  return `${header}${meta.docs.replace(/^\n+/, '\n').trimEnd()}\n`;
+  return `${header}${ruleDocs(meta).replace(/^\n+/, '\n').trimEnd()}\n`;
 }
 
 export async function runRulesCommand(args: string[], io: CliIO): Promise<number> {

@@ -2,6 +2,7 @@
  * `check --format sarif`: SARIF 2.1.0 (OASIS). One run; the driver lists every rule with its
  * documentation; lines and columns are 1-based, columns count UTF-16 code units.
  */
+import { ruleDocs } from '../../rules/docs';
 import { pathToFileURL } from 'node:url';
 import { ruleDocsUrl } from '../../workspace/ruleDocs';
 import type { Severity } from '../../base/findings';
@@ -45,7 +46,7 @@ function fullDescription(meta: RuleMeta): string {
 }
 
 function plainHelp(meta: RuleMeta): string {
-  return `${meta.summary}\n\n${meta.docs.replace(/^#+\s*/gm, '').trim()}`;
+  return `${meta.summary}\n\n${ruleDocs(meta).replace(/^#+\s*/gm, '').trim()}`;
 }
 
 export function toSarif(report: CheckReport, tool: SarifToolInfo): Record<string, unknown> {
@@ -58,7 +59,7 @@ export function toSarif(report: CheckReport, tool: SarifToolInfo): Record<string
       id: meta.id,
       shortDescription: { text: meta.summary },
       fullDescription: { text: fullDescription(meta) },
-      help: { text: plainHelp(meta), markdown: meta.docs.trim() || meta.summary },
+      help: { text: plainHelp(meta), markdown: ruleDocs(meta) || meta.summary },
       helpUri: ruleDocsUrl(meta.id, '', tool.docsFolder),
       defaultConfiguration: { level: LEVEL[meta.defaultSeverity] },
       properties: {
