@@ -1,3 +1,5 @@
+import { readFileSync } from 'node:fs';
+import { join } from 'node:path';
 import { afterEach, describe, expect, it } from 'vitest';
 import { formatText } from '../../server/src/cli/output/text';
 import { removeTree } from '../workspace/helpers';
@@ -17,9 +19,9 @@ afterEach(() => {
 function findingLines(stdout: string): { path: string; line: number; col: number; severity: string; rule: string; message: string }[] {
   return stdout
     .split('\n')
-    .map((l) => /^(\S+?):(\d+):(\d+) (error|warning|info|hint) (\S+) (.+)$/.exec(l))
+    .map((l) => /^(\S+?):(\d+):(\d+): (error|warning|info|hint): (.+) \(noiselint rules ([a-z0-9-]+)\)$/.exec(l))
     .filter((m): m is RegExpExecArray => m !== null)
-    .map((m) => ({ path: m[1], line: Number(m[2]), col: Number(m[3]), severity: m[4], rule: m[5], message: m[6] }));
+    .map((m) => ({ path: m[1], line: Number(m[2]), col: Number(m[3]), severity: m[4], message: m[5], rule: m[6] }));
 }
 
 describe('check: text output', () => {
@@ -38,6 +40,22 @@ describe('check: text output', () => {
     const summary = r.stdout.trim().split('\n').at(-1)!;
     expect(summary).toMatch(/^1 warning in 2 files checked/);
     expect(r.stderr).toBe('');
+    // The whole line, GNU style, the rule id closing it inside the command that explains it.
+    const [first] = r.stdout.split('\n');
+    expect(first).toBe(`runs/leaky.yaml:${lines[0].line}:${lines[0].col}: warning: ${lines[0].message} (noiselint rules terminal-snr-leak)`);
+  });
+
+  it('the extension\'s problem matcher reads every finding line', async () => {
+    const pkg = JSON.parse(readFileSync(join(__dirname, '..', '..', 'client', 'package.json'), 'utf8'));
+    const matcher = pkg.contributes.problemMatchers.find((m: { name: string }) => m.name === 'noiselint');
+    const { regexp, file, line, column, severity, message, code } = matcher.pattern;
+    const root = tree({ 'runs/leaky.yaml': LEAKY_V, 'eps.yaml': ZERO_SNR_EPSILON, 'few.yaml': FEW_STEPS_LINSPACE });
+    const r = await runCli(['check'], root);
+    const expected = findingLines(r.stdout);
+    expect(expected.length).toBeGreaterThan(2);
+    const re = new RegExp(regexp);
+    const matched = r.stdout.split('\n').map((l) => re.exec(l)).filter((m): m is RegExpExecArray => m !== null);
+    expect(matched.map((m) => ({ path: m[file], line: Number(m[line]), col: Number(m[column]), severity: m[severity], message: m[message], rule: m[code] }))).toEqual(expected);
   });
 
   it('reports no findings on clean files and exits 0', async () => {
@@ -168,7 +186,7 @@ describe('check: text output', () => {
       },
       { color: false },
     );
-    expect(out.split('\n')[0]).toBe('odd?name.yaml:1:1 error unknown-value value "x?[31my" is not known');
+    expect(out.split('\n')[0]).toBe('odd?name.yaml:1:1: error: value "x?[31my" is not known (noiselint rules unknown-value)');
     // eslint-disable-next-line no-control-regex
     expect(out).not.toMatch(/[\u0000-\u0008\u000b-\u001f]/);
   });

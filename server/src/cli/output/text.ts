@@ -1,7 +1,8 @@
 /**
- * `check --format text`: one line per finding, `path:line:col severity rule message` (1-based
- * line and column, as editors and terminals jump to them), then one summary line, and one line
- * per budget given on the command line that the run exceeds.
+ * `check --format text`: one line per finding, `path:line:col: severity: message (noiselint rules
+ * <rule-id>)`: 1-based line and column, as editors, terminals and problem matchers read them; the
+ * rule id closes the line inside the command that explains it. Then one summary line, and one
+ * line per budget given on the command line that the run exceeds.
  */
 import type { Severity } from '../../base/findings';
 import { displayPath, Locator, summarize, type CheckReport } from './report';
@@ -37,7 +38,7 @@ export function formatText(report: CheckReport, options: TextOptions): string {
     for (const f of file.findings) {
       const { start } = locate.range(file.path, f.span);
       const where = `${path}:${start.line + 1}:${start.character + 1}`;
-      lines.push(`${paint(SGR.bold, where)} ${paint(SEVERITY_COLOR[f.severity], f.severity)} ${paint(SGR.dim, f.rule)} ${printable(f.message)}`);
+      lines.push(`${paint(SGR.bold, `${where}:`)} ${paint(SEVERITY_COLOR[f.severity], `${f.severity}:`)} ${printable(f.message)} ${paint(SGR.dim, `(noiselint rules ${f.rule})`)}`);
     }
   }
   lines.push(summaryLine(report, paint));
