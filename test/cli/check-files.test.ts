@@ -75,7 +75,7 @@ describe('check: files that are hard to read', () => {
       'noiselint check: binary.json: skipped: looks binary (contains NUL bytes)',
       'noiselint check: latin1.yaml: skipped: not valid UTF-8',
     ]);
-    expect(r.stdout).toMatch(/leaky\.yaml:\d+:\d+ warning terminal-snr-leak/);
+    expect(r.stdout).toMatch(/leaky\.yaml:\d+:\d+: warning: .*\(noiselint rules terminal-snr-leak\)$/m);
     // The empty file names no schedule key: passed over without a parse.
     expect(r.stdout).toMatch(/in 1 file checked, 2 skipped, 1 other file passed over \(no schedule or step-count key\)/);
 
@@ -98,7 +98,7 @@ describe('check: files that are hard to read', () => {
     const r = await runCli(['check', 'nope.yaml', 'runs/**/*.yaml', 'leaky.yaml'], root);
     expect(r.code).toBe(2);
     expect(r.stderr).toBe('noiselint check: nope.yaml: no such file or folder\nnoiselint check: runs/**/*.yaml: no files match\n');
-    expect(r.stdout).toMatch(/leaky\.yaml:\d+:\d+ warning terminal-snr-leak/);
+    expect(r.stdout).toMatch(/leaky\.yaml:\d+:\d+: warning: .*\(noiselint rules terminal-snr-leak\)$/m);
   });
 
   it('an invalid project file stops the run with one line naming the field (exit 2)', async () => {
@@ -115,7 +115,7 @@ describe('check: files that are hard to read', () => {
     const root = tree({ 'noiselint.project.yaml': 'rules:\n  terminal-snr-leak: error\n', 'leaky.yaml': LEAKY_V });
     const raised = await runCli(['check'], root);
     expect(raised.code).toBe(1);
-    expect(raised.stdout).toMatch(/leaky\.yaml:\d+:\d+ error terminal-snr-leak/);
+    expect(raised.stdout).toMatch(/leaky\.yaml:\d+:\d+: error: .*\(noiselint rules terminal-snr-leak\)$/m);
     const off = tree({ 'noiselint.project.yaml': 'rules:\n  terminal-snr-leak: off\n', 'leaky.yaml': LEAKY_V });
     expect((await runCli(['check'], off)).stdout).toBe('No findings in 1 file checked.\n');
   });
