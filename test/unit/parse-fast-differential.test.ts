@@ -11,19 +11,20 @@ import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
 import { renderConfig, samplingConfig, trainingConfig } from '../load/corpus';
 import { analyzeText } from '../../server/src/engine/api';
-import { parseText } from '../../server/src/parse';
+import { formatFromPath, parseText, type SourceFormat } from '../../server/src/parse';
+import { readJsonFast } from '../../server/src/parse/fastJson';
 import { readYamlFast } from '../../server/src/parse/fastYaml';
 import { coreScalar } from '../../server/src/parse/scalars';
 import { resolveLimits } from '../../server/src/parse/shared';
 
 const repo = join(__dirname, '..', '..');
 
-function yamlFilesUnder(dir: string, out: string[] = []): string[] {
+function filesUnder(dir: string, exts: string, out: string[] = []): string[] {
   for (const name of readdirSync(dir)) {
     if (name === 'node_modules' || name === 'corpus' || name === 'artifacts') continue;
     const p = join(dir, name);
-    if (statSync(p).isDirectory()) yamlFilesUnder(p, out);
-    else if (/\.ya?ml$/i.test(name)) out.push(p);
+    if (statSync(p).isDirectory()) filesUnder(p, exts, out);
+    else if (new RegExp(`\\.(${exts})$`, 'i').test(name)) out.push(p);
   }
   return out;
 }
@@ -31,8 +32,8 @@ function yamlFilesUnder(dir: string, out: string[] = []): string[] {
 const takesFastPath = (text: string) => readYamlFast(text, resolveLimits(), coreScalar) !== null;
 
 /** Everything but the text itself, with NaN made comparable. */
-function comparable(text: string, exact: boolean): unknown {
-  const parsed = parseText(text, 'yaml', undefined, { exact });
+function comparable(text: string, exact: boolean, format: SourceFormat = 'yaml'): unknown {
+  const parsed = parseText(text, format, undefined, { exact });
   return JSON.parse(
     JSON.stringify(
       { documents: parsed.documents, problems: parsed.problems, comments: parsed.comments, suppressions: parsed.suppressions, lineEnding: parsed.lineEnding },
@@ -42,14 +43,15 @@ function comparable(text: string, exact: boolean): unknown {
 }
 
 function expectSameReading(text: string, path = 'config.yaml'): void {
-  expect(comparable(text, false)).toEqual(comparable(text, true));
+  const format = formatFromPath(path) ?? 'yaml';
+  expect(comparable(text, false, format)).toEqual(comparable(text, true, format));
   const fast = analyzeText(text, { path });
   const exact = analyzeText(text, { path, parse: { exact: true } });
   expect(fast.findings).toEqual(exact.findings);
 }
 
 describe('fast YAML reader agrees with the exact reader', () => {
-  const files = [...yamlFilesUnder(join(repo, 'test')), ...yamlFilesUnder(join(repo, 'examples'))];
+  const files = [...filesUnder(join(repo, 'test'), 'ya?ml'), ...filesUnder(join(repo, 'examples'), 'ya?ml')];
 
   it('on every YAML fixture and example of the repository', () => {
     let fast = 0;
@@ -166,5 +168,90 @@ describe('fast YAML reader agrees with the exact reader', () => {
     );
     // The property is about the fast reader: most generated configs must reach it.
     expect(fast).toBeGreaterThan(runs * 0.6);
+  });
+});
+
+describe('fast JSON reader agrees with the exact reader', () => {
+  const takesFastJson = (text: string, format: SourceFormat) => readJsonFast(text, format, resolveLimits()) !== null;
+
+  it('on every JSON and JSONC fixture and example of the repository', () => {
+    const files = [...filesUnder(join(repo, 'test'), 'jsonc?'), ...filesUnder(join(repo, 'examples'), 'jsonc?')].filter((f) => !f.endsWith('.expected.json'));
+    let fast = 0;
+    for (const file of files) {
+      const text = readFileSync(file, 'utf8');
+      if (takesFastJson(text, formatFromPath(file)!)) fast++;
+      expectSameReading(text, file);
+    }
+    expect(files.length).toBeGreaterThan(10);
+    expect(fast).toBeGreaterThan(files.length / 2);
+  });
+
+  it('on the benchmark corpus configs, all of which take the fast path', () => {
+    for (let i = 0; i < 200; i++) {
+      const format = i % 3 === 0 ? 'jsonc' : 'json';
+      const text = renderConfig(i % 2 ? samplingConfig(i) : trainingConfig(i), format, i);
+      expect(takesFastJson(text, format)).toBe(true);
+      expectSameReading(text, `config.${format}`);
+    }
+  });
+
+  it('on hand-picked shapes, and gives up where the exact reader has something to say', () => {
+    const same: [string, SourceFormat][] = [
+      ['{"a": 1, "a": 2}', 'json'],
+      ['{"k": "esc \\u00e9 \\n \\"q\\""}', 'json'],
+      ['[1, -0, 1.5e-4, 1E3, true, false, null, "x"]', 'json'],
+      ['{}', 'json'],
+      ['[]', 'json'],
+      ['  {"a": {"b": [ ]}}  \r\n', 'json'],
+      ['// c\n{"a": 1, /* b */ "b": [1,],}\n', 'jsonc'],
+      ['"just a string"', 'json'],
+    ];
+    for (const [text, format] of same) expectSameReading(text, `x.${format}`);
+    const rare: [string, SourceFormat][] = [
+      ['{"a": 1,}', 'json'],
+      ['// c\n{"a": 1}', 'json'],
+      ['{"a": NaN}', 'json'],
+      ['{"a": 01}', 'json'],
+      ['{"a" 1}', 'json'],
+      ['{"a": 1', 'json'],
+      ['\uFEFF{"a": 1}', 'json'],
+      ['{"a":\u00a01}', 'json'],
+      ['{"a": "tab\there"}', 'json'],
+      ['', 'json'],
+      ['{"a": 1} {"b": 2}', 'json'],
+      ['[1 2]', 'json'],
+      ['{"a": tru}', 'json'],
+    ];
+    for (const [text, format] of rare) {
+      expect(takesFastJson(text, format), JSON.stringify(text)).toBe(false);
+      expectSameReading(text, `x.${format}`);
+    }
+  });
+
+  it('on generated JSON and JSONC (property)', () => {
+    const value: fc.Arbitrary<unknown> = fc.letrec<{ v: unknown }>((tie) => ({
+      v: fc.oneof(
+        { depthSize: 'small' },
+        fc.constantFrom(1000, 0.00085, 1e-4, -0, 7.5, 'scaled_linear', 'trailing', 'é ✓ "q"', '', true, false, null),
+        fc.double({ noNaN: true, noDefaultInfinity: true }),
+        fc.string({ maxLength: 8 }),
+        fc.array(tie('v'), { maxLength: 4 }),
+        fc.dictionary(fc.constantFrom('num_train_timesteps', 'beta_schedule', 'guidance_scale', 'run', 'a', 'A', 'x y'), tie('v'), { maxKeys: 5 }),
+      ),
+    })).v;
+    let fast = 0;
+    let runs = 0;
+    fc.assert(
+      fc.property(value, fc.constantFrom(0, 2, '\t'), fc.boolean(), (v, indent, jsonc) => {
+        let text = JSON.stringify(v, null, indent);
+        if (jsonc) text = `// generated\n${text.replace(/\n/, ' /* note */\n')}`;
+        const format: SourceFormat = jsonc ? 'jsonc' : 'json';
+        runs++;
+        if (takesFastJson(text, format)) fast++;
+        expectSameReading(text, `gen.${format}`);
+      }),
+      { numRuns: 300, seed: 21 },
+    );
+    expect(fast).toBeGreaterThan(runs * 0.5);
   });
 });

@@ -8,6 +8,7 @@ import type { ParsedDocument, ParsedFile, ParseLimits, ParseProblem, SourceForma
 import { readToml } from './toml';
 import { readYaml } from './yaml';
 import { readYamlFast } from './fastYaml';
+import { readJsonFast } from './fastJson';
 import { coreScalar, type ScalarInterpreter } from './scalars';
 
 /** Format from a file name or URI: `.yaml`/`.yml`, `.json`, `.jsonc`, `.toml` (case-insensitive). */
@@ -33,7 +34,7 @@ export function formatFromPath(path: string): SourceFormat | null {
 export interface ParseOptions {
   /** What each scalar means (default: the YAML 1.2 core schema, JSON's own types). */
   interpret?: ScalarInterpreter;
-  /** Skip the fast YAML reader (the differential test compares both). */
+  /** Skip the fast YAML and JSON readers (the differential test compares both). */
   exact?: boolean;
 }
 
@@ -61,7 +62,7 @@ export function parseText(text: string, format: SourceFormat, limits?: Partial<P
         ? ((!options.exact && readYamlFast(safeText, lim, interpret)) || readYaml(safeText, lim, interpret))
         : format === 'toml'
           ? readToml(safeText, lim, bom)
-          : readJson(safeText, format, lim, bom);
+          : (!options.exact && readJsonFast(safeText, format, lim)) || readJson(safeText, format, lim, bom);
     documents = read.documents;
     problems.push(...read.problems);
     comments = read.comments;
