@@ -186,7 +186,7 @@ describe('check: text output', () => {
       },
       { color: false },
     );
-    expect(out.split('\n')[0]).toBe('odd?name.yaml:1:1: error: value "x?[31my" is not known (noiselint rules unknown-value)');
+    expect(out.split('\n')[0]).toBe('odd\\u0007name.yaml:1:1: error: value "x\\u001B[31my" is not known (noiselint rules unknown-value)');
     // eslint-disable-next-line no-control-regex
     expect(out).not.toMatch(/[\u0000-\u0008\u000b-\u001f]/);
   });

@@ -166,7 +166,7 @@ describe('project file validation', () => {
     ['pairs: { training: a.yaml }', 'pairs: must be a list'],
     ['pairs: [{ training: a.yaml }]', 'pairs[0].sampling: must be a path'],
     ['pairs: [{ training: a.yaml, sampling: b.yaml, extra: 1 }]', 'pairs[0].extra: unknown field'],
-    ['limits: { maxNesting: 0 }', 'limits.maxNesting: must be an integer in [1, 10000], not 0'],
+    ['limits: { maxNesting: 0 }', 'limits.maxNesting: must be an integer in [1, 500], not 0'],
     ['limits: { maxFileBytes: 1.5 }', 'limits.maxFileBytes: must be an integer'],
     ['limits: { maxDepth: 3 }', 'limits.maxDepth: unknown limit'],
     ['- just\n- a list', 'must be a mapping of fields'],

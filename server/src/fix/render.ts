@@ -28,6 +28,7 @@ import type { ConceptEdit } from '../rules/types';
 import type { FieldSource, Setup } from '../setup/types';
 import { applyEdits, editsConflict, sortEdits } from './apply';
 import { parseText } from '../parse';
+import { withLoneCrAsLf } from '../parse/yaml';
 import { commentStartingAt, rangeHasComment } from './comments';
 import { formatBoolean, formatNumber, formatString, requote, type QuoteStyle } from './format';
 import { KEY_ALIASES } from '../fields/aliases';
@@ -82,6 +83,27 @@ function isNumberList(text: string, format: SourceFormat): boolean {
   return m !== null && m[1].split(', ').every((n) => isNumberToken(n, format));
 }
 
+interface LineView {
+  /** The text the line computations run on: a lone CR reads as LF (same length, same offsets). */
+  text: string;
+  /** Line break written inside rendered edits (before `crOut`). */
+  eol: '\n' | '\r\n';
+  crOut: boolean;
+}
+
+/** Per parsed file, computed once: scanning the whole text per fix made many-document files quadratic. */
+const lineViews = new WeakMap<ParsedFile, LineView>();
+
+function lineView(parsed: ParsedFile): LineView {
+  let view = lineViews.get(parsed);
+  if (!view) {
+    const ending = parsed.lineEnding;
+    view = { text: withLoneCrAsLf(parsed.text), eol: ending === '\r' ? '\n' : ending, crOut: ending === '\r' };
+    lineViews.set(parsed, view);
+  }
+  return view;
+}
+
 interface PendingInsert {
   map: LocatedMap;
   anchor: LocatedEntry | null;
@@ -101,14 +123,18 @@ class Renderer {
   private insertQuote: QuoteStyle | undefined;
   /** Why the edits need a parse of the result before they are offered (see the module comment). */
   riskyBecause: string | null = null;
+  /** The file breaks its lines with lone CRs: new line breaks are written as CR too. */
+  private readonly crOut: boolean;
 
   constructor(
     readonly parsed: ParsedFile,
     readonly setup: Setup,
   ) {
-    this.text = parsed.text;
+    const view = lineView(parsed);
+    this.text = view.text;
     this.format = parsed.format;
-    this.eol = parsed.lineEnding;
+    this.eol = view.eol;
+    this.crOut = view.crOut;
   }
 
   /** Marks the rendered edits as outside the shapes that keep the syntax by construction. */
@@ -117,8 +143,6 @@ class Renderer {
   }
 
   run(edits: readonly ConceptEdit[]): TextEdit[] {
-    // A lone CR line break would defeat every line computation below.
-    if (/\r(?!\n)/.test(this.text)) giveUp('lone carriage returns');
     const seen = new Set<Concept>();
     for (const edit of edits) {
       if (seen.has(edit.concept)) giveUp(`two edits of ${edit.concept}`);
@@ -720,6 +744,7 @@ class Renderer {
         if (editsConflict(merged[i], merged[j])) giveUp('edits overlap');
       }
     }
+    if (this.crOut) for (const e of merged) e.newText = e.newText.replace(/\n/g, '\r');
     return merged;
   }
 }

@@ -68,7 +68,7 @@ export interface ParseProblem {
   /**
    * Short machine-readable code: 'yaml-syntax', 'yaml-warning', 'json-syntax', 'json-comment',
    * 'json-trailing-comma', 'toml-syntax', 'too-large', 'too-deep', 'too-long', 'alias-limit', 'alias-cycle',
-   * 'custom-tag', 'duplicate-key', 'bad-suppression', 'internal-error'.
+   * 'custom-tag', 'tag-mismatch', 'duplicate-key', 'bad-suppression', 'internal-error'.
    */
   code: string;
 }
@@ -98,7 +98,7 @@ export interface ParsedFile {
   text: string;
   documents: ParsedDocument[];
   problems: ParseProblem[];
-  lineEnding: '\n' | '\r\n';
+  lineEnding: '\n' | '\r\n' | '\r';
   /** True when the text starts with U+FEFF. Offsets still count it. */
   bom: boolean;
   suppressions: Suppression[];

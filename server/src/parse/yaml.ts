@@ -7,7 +7,7 @@
  * composed nodes are then copied into our located tree with their ranges.
  */
 import { Composer, Parser, isAlias, isMap, isPair, isScalar, isSeq } from 'yaml';
-import type { CST, Node as YamlNode, Scalar, YAMLMap, YAMLSeq } from 'yaml';
+import type { CST, Node as YamlNode, Scalar, ScalarTag, YAMLMap, YAMLSeq } from 'yaml';
 import type {
   LocatedEntry,
   LocatedList,
@@ -31,7 +31,7 @@ import {
   type Cut,
   type SourceComment,
 } from './shared';
-import { coreScalar, type ScalarInterpreter } from './scalars';
+import { coreScalar, resolveCorePlain, type ScalarInterpreter } from './scalars';
 
 export interface YamlReadResult {
   documents: ParsedDocument[];
@@ -45,17 +45,21 @@ const CORE_TAGS = new Set(
 
 export function readYaml(text: string, limits: ParseLimits, interpret: ScalarInterpreter = coreScalar): YamlReadResult {
   const problems: ParseProblem[] = [];
-  const tokens = Array.from(new Parser().parse(text));
+  // YAML 1.2 counts a lone CR as a line break; the library does not. The same text with each lone
+  // CR as LF has the same length, so every offset the library reports holds for the original.
+  const source = withLoneCrAsLf(text);
+  const tokens = Array.from(new Parser().parse(source));
   const { comments, cuts } = scanCst(tokens, limits.maxNesting);
   for (const cut of cuts) problems.push(tooDeepProblem(cut, limits.maxNesting));
 
-  const composeTokens = cuts.length === 0 ? tokens : Array.from(new Parser().parse(blankRegions(text, cuts, '~')));
+  const composeTokens = cuts.length === 0 ? tokens : Array.from(new Parser().parse(blankRegions(source, cuts, '~')));
   const composer = new Composer({
     prettyErrors: false,
     uniqueKeys: false,
     merge: false,
     intAsBigInt: false,
     keepSourceTokens: false,
+    customTags: (tags) => [...EXPLICIT_CORE_TAGS, ...tags],
   });
   const docs = Array.from(composer.compose(composeTokens, false, text.length));
   if (docs.length === 0) {
@@ -77,6 +81,37 @@ export function readYaml(text: string, limits: ParseLimits, interpret: ScalarInt
   return { documents, problems, comments };
 }
 
+/** `text` with every CR that is not followed by LF replaced by LF (same length). */
+export function withLoneCrAsLf(text: string): string {
+  return text.includes('\r') ? text.replace(/\r(?!\n)/g, '\n') : text;
+}
+
+const CORE_TAG_MISMATCH = 'core-tag: ';
+
+/**
+ * The core schema's own tags, when written explicitly (`!!float 1`, `!!int "12"`), apply to the
+ * scalar's text as YAML 1.2 section 10.3 resolves it; the library's versions refuse some valid
+ * spellings (`!!float 1`). A text that does not fit the tag keeps its string value with a
+ * `tag-mismatch` warning. These tags have no `test`, so untagged scalars never reach them.
+ */
+const EXPLICIT_CORE_TAGS: ScalarTag[] = (
+  [
+    ['int', (s: string) => (typeof resolveCorePlain(s) === 'number' && /^[-+]?(0o[0-7]+|0x[0-9a-fA-F]+|[0-9]+)$/.test(s.trim()) ? resolveCorePlain(s) : undefined)],
+    ['float', (s: string) => (typeof resolveCorePlain(s) === 'number' ? resolveCorePlain(s) : undefined)],
+    ['bool', (s: string) => (typeof resolveCorePlain(s) === 'boolean' ? resolveCorePlain(s) : undefined)],
+    ['null', (s: string) => (resolveCorePlain(s) === null ? null : undefined)],
+  ] as const
+).map(([name, apply]) => ({
+  tag: `tag:yaml.org,2002:${name}`,
+  default: false,
+  resolve(str: string, onError: (message: string) => void) {
+    const value = apply(str);
+    if (value !== undefined) return value;
+    onError(`${CORE_TAG_MISMATCH}${shorten(JSON.stringify(str), 60)} is not a valid !!${name} value; it is read as a string.`);
+    return str;
+  },
+}));
+
 /** A value that is not written at all (`key:`, an empty document), as opposed to `~` or `null`. */
 function isEmptyScalar(n: YamlNode): boolean {
   return isScalar(n) && n.value === null && !!n.range && n.range[0] === n.range[1] && !n.tag;
@@ -90,6 +125,9 @@ interface LibError {
 
 function libProblem(e: LibError, severity: 'error' | 'warning', text: string): ParseProblem {
   const span = { start: e.pos[0], end: Math.max(e.pos[0], e.pos[1]) };
+  if (e.code === 'TAG_RESOLVE_FAILED' && e.message.startsWith(CORE_TAG_MISMATCH)) {
+    return { code: 'tag-mismatch', severity: 'warning', span, message: shorten(e.message.slice(CORE_TAG_MISMATCH.length), 200) };
+  }
   if (e.code === 'TAG_RESOLVE_FAILED') {
     const tag = text.slice(span.start, span.end).split(/\s/, 1)[0] || 'tag';
     return {

@@ -8,6 +8,7 @@ import picomatch from 'picomatch';
 import { LineCounter, parseDocument } from 'yaml';
 import { SEVERITIES, type Severity } from '../base/findings';
 import { CONCEPTS, type Concept } from '../fields/concepts';
+import { HARD_NESTING_CAP } from '../parse/shared';
 import type { ParseLimits } from '../parse/types';
 import { ALL_RULE_METAS } from '../rules';
 import type { RuleMeta } from '../rules/types';
@@ -49,7 +50,8 @@ const MAX_PROJECT_FILE_BYTES = 256 * 1024;
 
 const LIMIT_RANGES: Record<keyof ParseLimits, [number, number]> = {
   maxFileBytes: [1, 1024 * 1024 * 1024],
-  maxNesting: [1, 10_000],
+  // The parser cannot honour more (see parse/shared.ts): accept exactly what is enforced.
+  maxNesting: [1, HARD_NESTING_CAP],
   maxListLength: [1, 10_000_000],
   maxAliasCount: [0, 1_000_000],
 };

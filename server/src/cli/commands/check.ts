@@ -21,6 +21,7 @@ import { UsageError, type CliIO } from '../io';
 import { EDIT_FORMS, JsonReportWriter, type EditForm } from '../output/json';
 import { atOrAbove, displayPath, summarize, type BudgetResult, type CheckReport, type Summary } from '../output/report';
 import { SEVERITIES, type Severity } from '../../base/findings';
+import { printableLine } from '../output/printable';
 import { formatSarif } from '../output/sarif';
 import { formatText } from '../output/text';
 
@@ -104,7 +105,7 @@ export async function check(options: CheckOptions, io: CliIO, fs: WorkspaceFs = 
   const report: CheckReport = { cwd: io.cwd, files: [], skipped: [], otherTexts: new Map(), notices: [] };
   const notice = (level: 'error' | 'warning', message: string) => {
     report.notices.push({ level, message });
-    io.stderr(`noiselint check: ${level === 'warning' ? 'warning: ' : ''}${message}\n`);
+    io.stderr(`noiselint check: ${level === 'warning' ? 'warning: ' : ''}${printableLine(message)}\n`);
   };
   const shown = (p: string) => displayPath(io.cwd, p);
 
@@ -117,7 +118,7 @@ export async function check(options: CheckOptions, io: CliIO, fs: WorkspaceFs = 
     for (const file of discovered.files) projects.set(file, loadProject(file, fs));
   } catch (err) {
     if (err instanceof ProjectFileError) {
-      io.stderr(`noiselint check: ${shown(err.file)}: ${err.field ? `${err.field}: ` : ''}${err.detail}\n`);
+      io.stderr(`noiselint check: ${printableLine(`${shown(err.file)}: ${err.field ? `${err.field}: ` : ''}${err.detail}`)}\n`);
       return 2;
     }
     throw err;
@@ -140,7 +141,7 @@ export async function check(options: CheckOptions, io: CliIO, fs: WorkspaceFs = 
       if (read.kind === 'io') notice('error', `${shown(file)}: ${read.problem}`);
       else {
         report.skipped.push({ path: file, reason: read.problem });
-        io.stderr(`noiselint check: ${shown(file)}: ${read.problem}\n`);
+        io.stderr(`noiselint check: ${printableLine(`${shown(file)}: ${read.problem}`)}\n`);
       }
       continue;
     }

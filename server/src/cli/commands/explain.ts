@@ -6,6 +6,7 @@ import { readFile } from '../../engine/api';
 import { explainJson, formatExplainText } from '../../views/explainFormat';
 import { nodeFs, readTextFile } from '../../workspace/fs';
 import { UsageError, type CliIO } from '../io';
+import { printable, printableLine } from '../output/printable';
 import { loadProject } from '../../workspace/projectFile';
 import { WorkspaceSession } from '../../workspace/session';
 import { plotDataFor } from '../../views/plotData';
@@ -33,14 +34,15 @@ export async function runExplain(args: string[], io: CliIO): Promise<number> {
     const project = loadProject(abs);
     const read = readTextFile(nodeFs, abs, project.limits.maxFileBytes);
     if (!read.ok) {
-      io.stderr(`noiselint explain: ${shown}: ${read.problem}\n`);
+      io.stderr(`noiselint explain: ${printableLine(`${shown}: ${read.problem}`)}\n`);
       failed = true;
       continue;
     }
     const pairing = session.partnersOf(abs, project);
     const file = readFile(read.text, { path: shown, project, partners: pairing.partners, pairRole: pairing.pairRole });
     results.push(file);
-    if (format === 'text') io.stdout(formatExplainText(file));
+    // Names and keys from the file are escaped line by line (control and bidi characters).
+    if (format === 'text') io.stdout(formatExplainText(file).split('\n').map(printable).join('\n'));
     if (svgPath !== undefined) {
       const out = resolve(io.cwd, svgPath);
       const problem = writeAtomically(out, plotSvg(plotDataFor(file, shown, null), shown));

@@ -36,6 +36,7 @@ import { discoverFiles } from '../../workspace/discover';
 import { describeFsError, nodeFs, readTextFile } from '../../workspace/fs';
 import { loadProject, ProjectFileError, type ResolvedProject } from '../../workspace/project';
 import { UsageError, type CliIO } from '../io';
+import { printable, printableLine } from '../output/printable';
 import { displayPath } from '../output/report';
 import { WorkspaceSession } from '../../workspace/session';
 
@@ -72,17 +73,18 @@ function parseFixArgs(args: string[]): FixArgs {
 
 export async function runFix(args: string[], io: CliIO): Promise<number> {
   const options = parseFixArgs(args);
-  const shown = (p: string) => displayPath(io.cwd, p);
+  // Every name printed for a person is escaped (control and bidi characters in file names).
+  const shown = (p: string) => printable(displayPath(io.cwd, p));
   // The same files `check` looks at.
   const found = discoverFiles(options.inputs, io.cwd);
   let ioError = found.errors.length > 0;
-  for (const e of found.errors) io.stderr(`noiselint fix: ${e}\n`);
+  for (const e of found.errors) io.stderr(`noiselint fix: ${printableLine(e)}\n`);
   const projects = new Map<string, ResolvedProject>();
   try {
     for (const file of found.files) projects.set(file, loadProject(file));
   } catch (err) {
     if (err instanceof ProjectFileError) {
-      io.stderr(`noiselint fix: ${shown(err.file)}: ${err.field ? `${err.field}: ` : ''}${err.detail}\n`);
+      io.stderr(`noiselint fix: ${shown(err.file)}: ${printableLine(`${err.field ? `${err.field}: ` : ''}${err.detail}`)}\n`);
       return 2;
     }
     throw err;
@@ -147,7 +149,7 @@ export async function runFix(args: string[], io: CliIO): Promise<number> {
     filesChanged++;
     fixesApplied += count;
   }
-  for (const w of session.warnings) io.stderr(`noiselint fix: warning: ${w.split(`${io.cwd}/`).join('')}\n`);
+  for (const w of session.warnings) io.stderr(`noiselint fix: warning: ${printableLine(w.split(`${io.cwd}/`).join(''))}\n`);
   const verb = options.dryRun ? 'Would apply' : 'Applied';
   const files = `${filesChanged} ${filesChanged === 1 ? 'file' : 'files'}`;
   report(`${verb} ${fixesApplied} ${fixesApplied === 1 ? 'fix' : 'fixes'} in ${files}.\n`);

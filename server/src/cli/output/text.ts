@@ -6,6 +6,7 @@
  */
 import type { Severity } from '../../base/findings';
 import { displayPath, Locator, summarize, type CheckReport } from './report';
+import { printable, printableLine } from './printable';
 
 export interface TextOptions {
   color: boolean;
@@ -23,11 +24,6 @@ const SGR = {
 
 const SEVERITY_COLOR: Record<Severity, string> = { error: SGR.red, warning: SGR.yellow, info: SGR.blue, hint: SGR.dim };
 
-/** Control characters in a message or path would let a config file drive the terminal. */
-function printable(s: string): string {
-  // eslint-disable-next-line no-control-regex
-  return s.replace(/[\u0000-\u0008\u000b-\u001f\u007f-\u009f]/g, '?').replace(/\r?\n/g, ' ');
-}
 
 export function formatText(report: CheckReport, options: TextOptions): string {
   const paint = (code: string, s: string) => (options.color ? `${code}${s}${SGR.reset}` : s);
@@ -38,7 +34,7 @@ export function formatText(report: CheckReport, options: TextOptions): string {
     for (const f of file.findings) {
       const { start } = locate.range(file.path, f.span);
       const where = `${path}:${start.line + 1}:${start.character + 1}`;
-      lines.push(`${paint(SGR.bold, `${where}:`)} ${paint(SEVERITY_COLOR[f.severity], `${f.severity}:`)} ${printable(f.message)} ${paint(SGR.dim, `(noiselint rules ${f.rule})`)}`);
+      lines.push(`${paint(SGR.bold, `${where}:`)} ${paint(SEVERITY_COLOR[f.severity], `${f.severity}:`)} ${printableLine(f.message)} ${paint(SGR.dim, `(noiselint rules ${f.rule})`)}`);
     }
   }
   lines.push(summaryLine(report, paint));
