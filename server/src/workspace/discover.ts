@@ -190,7 +190,9 @@ function loadIgnoreLayer(dir: string, fs: WorkspaceFs): IgnoreLayer | null {
   const st = fs.stat(path);
   if (!st || st.kind !== 'file' || st.size > MAX_GITIGNORE_BYTES) return null;
   try {
-    const text = new TextDecoder('utf-8').decode(fs.readBytes(path));
+    const bytes = fs.readBytes(path, MAX_GITIGNORE_BYTES);
+    if (bytes.length > MAX_GITIGNORE_BYTES) return null;
+    const text = new TextDecoder('utf-8').decode(bytes);
     return { base: dir, rules: ignore().add(text) };
   } catch {
     return null;

@@ -2,7 +2,7 @@
  * The file-system view the workspace code reads through. The CLI uses the real disk; the language
  * server passes its own view so that open, unsaved documents win over the disk copy.
  */
-import { readdirSync, readFileSync, realpathSync, statSync } from 'node:fs';
+import { closeSync, constants as fsConstants, fstatSync, openSync, readSync, readdirSync, realpathSync, statSync } from 'node:fs';
 import { DEFAULT_PARSE_LIMITS } from '../parse/types';
 
 export type EntryKind = 'file' | 'dir' | 'other';
@@ -19,8 +19,11 @@ export interface WorkspaceFs {
   stat(path: string): { kind: EntryKind; size: number } | undefined;
   /** Entries of a folder. Throws (with a Node error code) when the folder cannot be read. */
   readDir(path: string): DirEntry[];
-  /** Raw bytes of a file. Throws (with a Node error code) when it cannot be read. */
-  readBytes(path: string): Uint8Array;
+  /**
+   * Raw bytes of a file; past `maxBytes` the read stops (more than `maxBytes` bytes back tells the
+   * caller it is too large). Throws (with a Node error code) when it cannot be read.
+   */
+  readBytes(path: string, maxBytes?: number): Uint8Array;
   /** Canonical path with symlinks resolved, or undefined when the path does not exist. */
   realpath(path: string): string | undefined;
 }
@@ -57,8 +60,8 @@ export const nodeFs: WorkspaceFs = {
     }
     return out;
   },
-  readBytes(path) {
-    return readFileSync(path);
+  readBytes(path, maxBytes = Number.MAX_SAFE_INTEGER) {
+    return readBounded(path, maxBytes);
   },
   realpath(path) {
     try {
@@ -68,6 +71,36 @@ export const nodeFs: WorkspaceFs = {
     }
   },
 };
+
+/** Thrown by readBounded for anything but a regular file (after the link is resolved). */
+export class NotRegularFileError extends Error {
+  readonly code = 'ENOTREG';
+}
+
+/**
+ * Reads until past `maxBytes` at most (64 KiB more), whatever `stat` says: files such as /proc/self/pagemap
+ * report size 0 and never end. Opened without blocking (a FIFO swapped in after a stat would
+ * block an ordinary open), then only a regular file is read.
+ */
+export function readBounded(path: string, maxBytes: number): Buffer {
+  const fd = openSync(path, fsConstants.O_RDONLY | fsConstants.O_NONBLOCK);
+  try {
+    if (!fstatSync(fd).isFile()) throw new NotRegularFileError('not a regular file');
+    // Whole 64 KiB reads (some special files refuse odd sizes), stopping once past the limit.
+    const chunks: Buffer[] = [];
+    let total = 0;
+    while (total <= maxBytes) {
+      const chunk = Buffer.allocUnsafe(64 * 1024);
+      const n = readSync(fd, chunk, 0, chunk.length, null);
+      if (n <= 0) break;
+      chunks.push(n === chunk.length ? chunk : chunk.subarray(0, n));
+      total += n;
+    }
+    return chunks.length === 1 ? chunks[0] : Buffer.concat(chunks, total);
+  } finally {
+    closeSync(fd);
+  }
+}
 
 export type TextReadResult =
   | { ok: true; text: string }
@@ -94,13 +127,14 @@ export function readTextFile(fs: WorkspaceFs, path: string, maxBytes: number = D
   }
   let bytes: Uint8Array;
   try {
-    bytes = fs.readBytes(path);
+    bytes = fs.readBytes(path, maxBytes);
   } catch (err) {
+    if (err instanceof NotRegularFileError) return { ok: false, kind: 'io', problem: 'not a regular file (a pipe, socket or device)' };
     return { ok: false, kind: 'io', problem: `cannot read: ${describeFsError(err)}` };
   }
-  // The size can change between stat and read (a growing file): keep the bound.
+  // The size can change between stat and read, and some files report 0: keep the bound.
   if (bytes.length > maxBytes) {
-    return { ok: false, kind: 'skipped', problem: `skipped: ${formatBytes(bytes.length)} is above the ${formatBytes(maxBytes)} limit (limits.maxFileBytes)` };
+    return { ok: false, kind: 'skipped', problem: `skipped: above the ${formatBytes(maxBytes)} limit (limits.maxFileBytes)` };
   }
   if (bytes.includes(0)) return { ok: false, kind: 'skipped', problem: 'skipped: looks binary (contains NUL bytes)' };
   try {

@@ -40,9 +40,9 @@ export function overlayFs(open: OpenTexts, base: WorkspaceFs = nodeFs): Workspac
       if (failure && !added) throw failure;
       return entries;
     },
-    readBytes: (path) => {
+    readBytes: (path, maxBytes) => {
       const text = open.textOf(path);
-      return text !== undefined ? Buffer.from(text, 'utf8') : base.readBytes(path);
+      return text !== undefined ? Buffer.from(text, 'utf8') : base.readBytes(path, maxBytes);
     },
     realpath: (path) => base.realpath(path) ?? (open.textOf(path) !== undefined ? path : undefined),
   };

@@ -17,16 +17,19 @@ import {
   chownSync,
   closeSync,
   constants as fsConstants,
+  fstatSync,
   fsyncSync,
+  ftruncateSync,
   openSync,
-  readFileSync,
+  readSync,
   realpathSync,
   renameSync,
   statSync,
   unlinkSync,
   writeSync,
+  type BigIntStats,
 } from 'node:fs';
-import { basename, dirname, join } from 'node:path';
+import { basename, dirname, join, resolve, sep } from 'node:path';
 import { createTwoFilesPatch } from 'diff';
 import { analyzeText, type FileResult } from '../../engine/api';
 import { fixText, type FixLoopResult } from '../../fix/loop';
@@ -77,6 +80,7 @@ export async function runFix(args: string[], io: CliIO): Promise<number> {
   const shown = (p: string) => printable(displayPath(io.cwd, p));
   // The same files `check` looks at.
   const found = discoverFiles(options.inputs, io.cwd);
+  const scope = checkedScope(options.inputs, io.cwd);
   let ioError = found.errors.length > 0;
   for (const e of found.errors) io.stderr(`noiselint fix: ${printableLine(e)}\n`);
   const projects = new Map<string, ResolvedProject>();
@@ -132,6 +136,12 @@ export async function runFix(args: string[], io: CliIO): Promise<number> {
     if (result.text === original) continue;
     const count = result.applied.length;
     const what = `${count} ${count === 1 ? 'fix' : 'fixes'} (${summariseRules(result)})`;
+    const outside = scope.explicit.has(file) ? null : linkedOutside(file, scope.roots, project);
+    if (outside) {
+      io.stderr(`${name}: not written: it links to ${shown(outside.target)}, outside ${outside.where}; name the link itself to fix it\n`);
+      notWritten = true;
+      continue;
+    }
     if (options.dryRun) {
       io.stdout(createTwoFilesPatch(`a/${name}`, `b/${name}`, original, result.text));
       report(`${name}: would apply ${what}\n`);
@@ -169,83 +179,113 @@ export async function runFix(args: string[], io: CliIO): Promise<number> {
   return notWritten ? 1 : 0;
 }
 
+interface Scope {
+  /** Files named on the command line: written through a symlink, wherever it points. */
+  explicit: Set<string>;
+  /** Folders the run was asked to check (links resolved). */
+  roots: string[];
+}
+
+function checkedScope(inputs: string[], cwd: string): Scope {
+  const explicit = new Set<string>();
+  const roots: string[] = [];
+  for (const input of inputs.length ? inputs : ['.']) {
+    const abs = resolve(cwd, input);
+    const st = nodeFs.stat(abs);
+    if (st?.kind === 'file') explicit.add(abs);
+    else {
+      const base = st?.kind === 'dir' ? abs : resolve(cwd, globBase(input));
+      roots.push(nodeFs.realpath(base) ?? base);
+    }
+  }
+  return { explicit, roots };
+}
+
+/** The folders of a glob before its first segment with a wildcard (`configs/**\/*.yaml` -> `configs`). */
+function globBase(pattern: string): string {
+  const segments = pattern.replace(/\\/g, '/').split('/');
+  const first = segments.findIndex((s) => /[*?[\]{}()!]/.test(s));
+  return first < 0 ? pattern : segments.slice(0, first).join('/') || '.';
+}
+
+const isInside = (path: string, folder: string) => path === folder || path.startsWith(folder.endsWith(sep) ? folder : folder + sep);
+
+/**
+ * Where a found file really lives when that is outside the checked folders (or outside the
+ * project, when there is a project file): `fix .` must not rewrite a file elsewhere on the disk
+ * through a link planted in the tree.
+ */
+function linkedOutside(file: string, roots: string[], project: ResolvedProject): { target: string; where: string } | null {
+  const target = nodeFs.realpath(file);
+  if (!target) return null;
+  if (!roots.some((r) => isInside(target, r))) return { target, where: 'the checked folders' };
+  if (project.file !== null) {
+    const root = nodeFs.realpath(project.root) ?? project.root;
+    if (!isInside(target, root)) return { target, where: 'the project folder' };
+  }
+  return null;
+}
+
 function summariseRules(result: FixLoopResult): string {
   const counts = new Map<string, number>();
   for (const a of result.applied) counts.set(a.rule, (counts.get(a.rule) ?? 0) + 1);
   return [...counts].map(([rule, n]) => (n > 1 ? `${rule} x${n}` : rule)).join(', ');
 }
 
-type WriteResult = { ok: true } | { ok: false; problem: string };
+type WriteResult = { ok: true; inPlace?: boolean } | { ok: false; problem: string };
 
-/**
- * Replaces the file's content in one step: a temporary file in the same folder gets the new text,
- * is flushed to disk, takes the original's mode (and owner, where allowed) and is renamed over the
- * original. A read-only file, or one that changed since it was read, is left alone.
- */
-export function writeAtomically(path: string, expected: string, text: string): WriteResult {
-  let target: string;
-  let mode: number;
-  let uid: number;
-  let gid: number;
-  try {
-    target = realpathSync(path);
-    const st = statSync(target);
-    if (!st.isFile()) return { ok: false, problem: 'not a regular file' };
-    mode = st.mode & 0o7777;
-    uid = st.uid;
-    gid = st.gid;
-  } catch (err) {
-    return { ok: false, problem: describeFsError(err) };
+const CHANGED = 'the file changed on disk while it was being fixed';
+
+/** Identity and content stamp of an open file: an edit changes the size or the mtime (ns). */
+function sameStamp(a: BigIntStats, b: BigIntStats): boolean {
+  return a.dev === b.dev && a.ino === b.ino && a.size === b.size && a.mtimeNs === b.mtimeNs && a.ctimeNs === b.ctimeNs;
+}
+
+/** The whole content behind `fd`, read from offset 0 (bounded by the size the caller expects). */
+function contentOf(fd: number, max: number): Buffer {
+  const out = Buffer.allocUnsafe(max + 1);
+  let total = 0;
+  while (total < out.length) {
+    const n = readSync(fd, out, total, out.length - total, total);
+    if (n <= 0) break;
+    total += n;
   }
-  // Mode bits first: the superuser passes access() even for a file marked read-only.
-  if ((mode & 0o222) === 0) return { ok: false, problem: 'the file is read-only' };
+  return out.subarray(0, total);
+}
+
+function writeAll(fd: number, bytes: Buffer, at: number | null = null): void {
+  let off = 0;
+  while (off < bytes.length) off += writeSync(fd, bytes, off, bytes.length - off, at === null ? null : at + off);
+}
+
+function removeQuietly(path: string): void {
   try {
-    accessSync(target, fsConstants.W_OK);
+    unlinkSync(path);
   } catch {
-    return { ok: false, problem: 'the file is read-only' };
+    // never created, or already renamed
   }
+}
+
+/** A new file in `dir` named after `name` (hidden, random, clearly ours) holding `bytes`, flushed. */
+function writeSibling(dir: string, name: string, suffix: string, bytes: Buffer, mode: number): string {
+  const path = join(dir, `.${name}.${randomBytes(6).toString('hex')}.${suffix}`);
+  const fd = openSync(path, 'wx', mode);
   try {
-    if (!readFileSync(target).equals(Buffer.from(expected, 'utf8'))) return { ok: false, problem: 'the file changed on disk while it was being fixed' };
-  } catch (err) {
-    return { ok: false, problem: describeFsError(err) };
-  }
-  const temp = join(dirname(target), `.${basename(target)}.${randomBytes(6).toString('hex')}.noiselint-tmp`);
-  let fd: number | null = null;
-  try {
-    fd = openSync(temp, 'wx', mode);
-    const bytes = Buffer.from(text, 'utf8');
-    let off = 0;
-    while (off < bytes.length) off += writeSync(fd, bytes, off, bytes.length - off);
+    writeAll(fd, bytes);
     fsyncSync(fd);
-    closeSync(fd);
-    fd = null;
-    chmodSync(temp, mode);
-    if (typeof process.getuid === 'function' && process.getuid() === 0) {
-      try {
-        chownSync(temp, uid, gid);
-      } catch {
-        // Keeping the owner is best effort.
-      }
-    }
-    renameSync(temp, target);
   } catch (err) {
-    if (fd !== null) {
-      try {
-        closeSync(fd);
-      } catch {
-        // already closed
-      }
-    }
-    try {
-      unlinkSync(temp);
-    } catch {
-      // never created, or already renamed
-    }
-    return { ok: false, problem: `cannot write: ${describeFsError(err)}` };
+    closeSync(fd);
+    removeQuietly(path);
+    throw err;
   }
+  closeSync(fd);
+  return path;
+}
+
+function syncFolder(dir: string): void {
   try {
-    // Make the rename itself durable (best effort: not every platform can fsync a folder).
-    const dirFd = openSync(dirname(target), 'r');
+    // Make a rename durable (best effort: not every platform can fsync a folder).
+    const dirFd = openSync(dir, 'r');
     try {
       fsyncSync(dirFd);
     } finally {
@@ -254,5 +294,119 @@ export function writeAtomically(path: string, expected: string, text: string): W
   } catch {
     // ignored
   }
+}
+
+/**
+ * Replaces the file's content in one step: a temporary file in the same folder gets the new text,
+ * is flushed to disk, takes the original's mode (and owner, where allowed) and is renamed over the
+ * original. A read-only file, or one that changed since it was read, is left alone.
+ *
+ * An edit saved while the fix is written is never lost: identity (device, inode, size, mtime,
+ * ctime) and content are compared once more right before the rename, and the original stays open
+ * so that an edit that lands in the old file between that check and the rename is seen after it;
+ * the edited file is then put back (its bytes win over the fix).
+ *
+ * A file with more than one hard link is written in place so that every name sees the fix (a
+ * rename would give this name a new file and leave the others on the old text). That write is
+ * not atomic; a flushed copy of the original (`.<name>.<random>.noiselint-backup`) is kept until
+ * the new content is on disk, so a crash in between leaves the original's bytes beside the file.
+ */
+export function writeAtomically(path: string, expected: string, text: string): WriteResult {
+  let target: string;
+  let fd: number;
+  try {
+    target = realpathSync(path);
+    fd = openSync(target, fsConstants.O_RDONLY | fsConstants.O_NONBLOCK);
+  } catch (err) {
+    return { ok: false, problem: describeFsError(err) };
+  }
+  try {
+    return writeOpened(target, fd, Buffer.from(expected, 'utf8'), Buffer.from(text, 'utf8'));
+  } catch (err) {
+    return { ok: false, problem: `cannot write: ${describeFsError(err)}` };
+  } finally {
+    closeSync(fd);
+  }
+}
+
+function writeOpened(target: string, fd: number, expected: Buffer, bytes: Buffer): WriteResult {
+  const st = fstatSync(fd, { bigint: true });
+  if (!st.isFile()) return { ok: false, problem: 'not a regular file' };
+  const mode = Number(st.mode & 0o7777n);
+  // Mode bits first: the superuser passes access() even for a file marked read-only.
+  if ((mode & 0o222) === 0) return { ok: false, problem: 'the file is read-only' };
+  try {
+    accessSync(target, fsConstants.W_OK);
+  } catch {
+    return { ok: false, problem: 'the file is read-only' };
+  }
+  if (!contentOf(fd, expected.length).equals(expected)) return { ok: false, problem: CHANGED };
+  if (st.nlink > 1n) return writeInPlace(target, st, expected, bytes, mode);
+
+  const dir = dirname(target);
+  const temp = writeSibling(dir, basename(target), 'noiselint-tmp', bytes, mode);
+  try {
+    chmodSync(temp, mode);
+    if (typeof process.getuid === 'function' && process.getuid() === 0) {
+      try {
+        chownSync(temp, Number(st.uid), Number(st.gid));
+      } catch {
+        // Keeping the owner is best effort.
+      }
+    }
+    // Right before the rename: the same file (by path and by the open descriptor), the same bytes.
+    const byPath = statSync(target, { bigint: true });
+    if (!sameStamp(st, byPath) || !sameStamp(st, fstatSync(fd, { bigint: true })) || !contentOf(fd, expected.length).equals(expected)) {
+      removeQuietly(temp);
+      return { ok: false, problem: CHANGED };
+    }
+    renameSync(temp, target);
+  } catch (err) {
+    removeQuietly(temp);
+    throw err;
+  }
+  // An edit written into the old file after the check above went to the file the rename just
+  // replaced; the open descriptor still reaches it. Put the user's bytes back.
+  // (Size and mtime only: the rename itself changes the old file's link count and ctime.)
+  const after = fstatSync(fd, { bigint: true });
+  if (after.size !== st.size || after.mtimeNs !== st.mtimeNs) {
+    const theirs = contentOf(fd, Math.max(expected.length, bytes.length) * 4 + 1024 * 1024);
+    const back = writeSibling(dir, basename(target), 'noiselint-tmp', theirs, mode);
+    renameSync(back, target);
+    syncFolder(dir);
+    return { ok: false, problem: `${CHANGED}; the edited file is kept` };
+  }
+  syncFolder(dir);
   return { ok: true };
+}
+
+/** Writes the new bytes into the file itself (hard links keep sharing it), with a backup first. */
+function writeInPlace(target: string, st: BigIntStats, expected: Buffer, bytes: Buffer, mode: number): WriteResult {
+  const dir = dirname(target);
+  const backup = writeSibling(dir, basename(target), 'noiselint-backup', expected, mode & 0o600);
+  syncFolder(dir);
+  let fd: number | null = null;
+  try {
+    fd = openSync(target, fsConstants.O_RDWR | fsConstants.O_NONBLOCK);
+    if (!sameStamp(st, fstatSync(fd, { bigint: true })) || !contentOf(fd, expected.length).equals(expected)) {
+      removeQuietly(backup);
+      return { ok: false, problem: CHANGED };
+    }
+    try {
+      writeAll(fd, bytes, 0);
+      ftruncateSync(fd, bytes.length);
+      fsyncSync(fd);
+    } catch (err) {
+      // Put the original bytes back; the backup stays if even that fails.
+      writeAll(fd, expected, 0);
+      ftruncateSync(fd, expected.length);
+      fsyncSync(fd);
+      removeQuietly(backup);
+      throw err;
+    }
+  } finally {
+    if (fd !== null) closeSync(fd);
+  }
+  removeQuietly(backup);
+  return { ok: true, inPlace: true };
 }
