@@ -41,8 +41,14 @@ export interface OpenDocument {
   path: string | null;
   format: SourceFormat;
   doc: TextDocument;
-  timer: NodeJS.Timeout | undefined;
+  /** The pending check: a timer, or an immediate when the debounce is 0. */
+  timer: NodeJS.Timeout | NodeJS.Immediate | undefined;
   debounceMs: number;
+  /**
+   * The role read from this version's own text at the start of its analysis, so that pairing
+   * takes it from there instead of reading the document once more.
+   */
+  ownRole?: { version: number; role: FileRole };
   lastPublishedVersion: number;
   cache: Analyzed | undefined;
   /** The document was a diffusion config at some point: parse problems keep showing while it is broken. */
@@ -108,4 +114,11 @@ export class OpenDocuments implements OpenTexts {
     names?.delete(baseName(path));
     if (names?.size === 0) this.byFolder.delete(folder);
   }
+}
+
+/** Cancels a pending check (a timer or an immediate). */
+export function cancelPending(t: NodeJS.Timeout | NodeJS.Immediate | undefined): void {
+  if (!t) return;
+  if (t.constructor?.name === 'Immediate') clearImmediate(t as NodeJS.Immediate);
+  else clearTimeout(t as NodeJS.Timeout);
 }

@@ -44,7 +44,7 @@ import { TextDocument } from 'vscode-languageserver-textdocument';
 import { LruCache } from '@noiselint/shared-math';
 import type { Finding } from '../base/findings';
 import { EXPLAIN_REQUEST, FIX_ALL_KIND, PLOT_CHANGED_NOTIFICATION, PLOT_DATA_REQUEST, SUMMARY_REQUEST, RUN_RESCALE_REQUEST, type RunRescaleParams, type UriParams } from '../base/protocol';
-import { analyzeText, findingsAsData, readFile, type AnalyzeOptions, type FileReading, type FileResult } from '../engine/api';
+import { analyzeRead, analyzeText, findingsAsData, readFile, type AnalyzeOptions, type FileReading, type FileResult } from '../engine/api';
 import { VERSION } from '../base/version';
 import { isConfigFileName, isProjectFileName } from '../workspace/discover';
 import { readTextFile } from '../workspace/fs';
@@ -57,7 +57,7 @@ import { readRun, type RunRead } from '../workspace/run';
 import { runRescaleRequest } from './runAction';
 import { NO_CAPABILITIES, readCapabilities, type Capabilities } from './capabilities';
 import { findingToDiagnostic, type PositionMapper } from './convert';
-import { OpenDocuments, type Analyzed, type OpenDocument } from './documents';
+import { cancelPending, OpenDocuments, type Analyzed, type OpenDocument } from './documents';
 import * as requests from './requests';
 import { DEFAULT_DEBOUNCE_MS, defaultSettings, mergeSettingsIntoProject, normalizeSettings, type EditorSettings } from './settings';
 import { errorMessage, formatOf, isRuleId, requireUri, uriToPath } from './util';
@@ -97,7 +97,7 @@ export class NoiselintServer {
     c.onInitialized(() => this.notifyGuard('initialized', () => this.initialized()));
     c.onShutdown(() => {
       this.shutDown = true;
-      for (const od of this.docs.values()) if (od.timer) clearTimeout(od.timer);
+      for (const od of this.docs.values()) cancelPending(od.timer);
     });
     c.onDidOpenTextDocument((p) => this.notifyGuard('didOpen', () => this.didOpen(p)));
     c.onDidChangeTextDocument((p) => this.notifyGuard('didChange', () => this.didChange(p)));
@@ -198,7 +198,7 @@ export class NoiselintServer {
     const item = params?.textDocument;
     if (!item || typeof item.uri !== 'string' || typeof item.text !== 'string') throw new Error('didOpen: malformed textDocument');
     const previous = this.docs.get(item.uri);
-    if (previous?.timer) clearTimeout(previous.timer);
+    cancelPending(previous?.timer);
     const path = uriToPath(item.uri);
     const od: OpenDocument = {
       uri: item.uri,
@@ -229,7 +229,7 @@ export class NoiselintServer {
     const uri = requireUri(params, true);
     const od = this.docs.get(uri);
     if (!od) return;
-    if (od.timer) clearTimeout(od.timer);
+    cancelPending(od.timer);
     this.docs.remove(od);
     this.settingsCache.delete(uri);
     this.recentReads.delete(uri);
@@ -252,11 +252,13 @@ export class NoiselintServer {
   }
 
   private schedule(od: OpenDocument, delay: number): void {
-    if (od.timer) clearTimeout(od.timer);
-    od.timer = setTimeout(() => {
+    cancelPending(od.timer);
+    const run = () => {
       od.timer = undefined;
       this.notifyGuard('validate', () => this.validate(od));
-    }, delay);
+    };
+    // No quiet period wanted: run after the pending I/O, without a timer's minimum delay.
+    od.timer = delay <= 0 ? setImmediate(run) : setTimeout(run, delay);
   }
 
   /** Analyses the current version; publishes it unless a newer version arrived meanwhile. */
@@ -420,6 +422,16 @@ export class NoiselintServer {
     const { project: fileProject, problem } = this.projectFor(od.path);
     const project = mergeSettingsIntoProject(fileProject, settings);
     if (!this.workspace.selected(od.path, fileProject, settings)) return empty;
+    // Read this version once, without partners: its role feeds pairing (instead of pairing
+    // reading the document again), then the rules run on the same reading.
+    const readOptions: AnalyzeOptions = { path: od.path ?? od.uri, format: od.format, project, limits: settings.limits };
+    let reading: FileReading | null = null;
+    try {
+      reading = readFile(text, readOptions);
+      if (od.path) od.ownRole = { version: base.version, role: roleOfSetups(reading.documents.map((d) => d.setup)) };
+    } catch {
+      reading = null; // analyzeText below reports it
+    }
     const pairing = od.path ? this.workspace.pairingFor(od.path, project, (err) => this.logError('pairing', err)) : { partners: [], paths: [] as string[] };
     const options: AnalyzeOptions = {
       path: od.path ?? od.uri,
@@ -433,7 +445,7 @@ export class NoiselintServer {
     };
     let file: FileResult;
     try {
-      file = analyzeText(text, options);
+      file = reading ? analyzeRead(reading, options) : analyzeText(text, options);
     } catch (err) {
       this.logError('analysis', err);
       const finding: Finding = {

@@ -77,6 +77,8 @@ export class WorkspaceIndex {
     const od = this.docs.atPath(path);
     if (!od) return undefined;
     if (od.cache?.role && od.cache.version === od.doc.version) return od.cache.role;
+    // The version being analysed read its own role first (server.ts compute).
+    if (od.ownRole && od.ownRole.version === od.doc.version) return od.ownRole.role;
     return this.session.readRole(path);
   }
 
