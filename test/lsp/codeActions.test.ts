@@ -70,7 +70,7 @@ describe('code actions parse the result of what they hand out', () => {
     expect(actions.map((a) => a.title)).toEqual(['Set the timestep spacing to trailing (sampling only)']);
   });
 
-  it('fix-all leaves a breaking safe fix out and still applies the good ones', () => {
+  it('fix-all leaves a breaking sampling-only fix out and still applies the good ones', () => {
     const { current: cur, skip } = current();
     // Make the breaking fix the one fix-all would pick for the finding.
     skip.fixes.forEach((f) => (f.preferred = f.title.startsWith('Write "[')));
@@ -83,7 +83,7 @@ describe('code actions parse the result of what they hand out', () => {
     expect(syntaxErrors(fixed)).toEqual([]);
   });
 
-  it('fix-all offers nothing when the only safe fix would break the text', () => {
+  it('fix-all offers nothing when the only sampling-only fix would break the text', () => {
     const { current: cur, skip } = current();
     skip.fixes = skip.fixes.filter((f) => f.title.startsWith('Write "['));
     expect(fixAllAction(cur, false)).toBeNull();

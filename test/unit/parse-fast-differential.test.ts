@@ -133,7 +133,7 @@ describe('fast YAML reader agrees with the exact reader', () => {
       fc.integer({ min: -5, max: 5000 }).map(String),
       fc.double({ min: 0, max: 1, noNaN: true }).map(String),
     );
-    const comment = fc.constantFrom('', '', '  # note', ' # noiselint: allow terminal-snr-leak', ' #');
+    const comment = fc.constantFrom('', '', '  # note', ' # noiselint: deliberate terminal-snr-leak because kept', ' #');
     type Tree = { [k: string]: Tree | string | string[] };
     const tree: fc.Arbitrary<Tree> = fc.letrec<{ t: Tree }>((tie) => ({
       t: fc.dictionary(key, fc.oneof({ depthSize: 'small' }, scalar, scalar, fc.array(scalar, { maxLength: 4 }), tie('t')), { minKeys: 1, maxKeys: 6 }),

@@ -13,7 +13,7 @@ export const SUMMARY_REQUEST = 'noiselint/summary';
 export const PLOT_CHANGED_NOTIFICATION = 'noiselint/plotChanged';
 /** Client command run by the "Show noise schedule" code lens; argument: the document uri string. */
 export const SHOW_SCHEDULE_COMMAND = 'noiselint.showSchedule';
-/** Code action kind that applies every safe fix. */
+/** Code action kind that applies every sampling-only fix that touches no comment. */
 export const FIX_ALL_KIND = 'source.fixAll.noiselint';
 
 export interface UriParams {
