@@ -48,7 +48,7 @@ learns or how it is sampled; it only decides which findings are shown.
 
 ## Numbers you can tune
 
-None.
+The suggestion looks two edits far at most; that distance is fixed.
 
 ## Published sources
 
