@@ -163,6 +163,10 @@ export class PlotPanel implements vscode.Disposable {
   <h2 id="signal-heading">Signal amplitude √ᾱ over training timestep t</h2>
   <div class="chart-box"><canvas id="chart-signal" data-testid="noiselint-plot-signal" role="img" aria-label="signal amplitude over t"></canvas></div>
 </section>
+<section class="chart tail" aria-labelledby="tail-heading">
+  <h2 id="tail-heading">Signal amplitude at the noisy end (zoomed)</h2>
+  <div class="chart-box tail-box"><canvas id="chart-tail" data-testid="noiselint-plot-tail" role="img" aria-label="signal amplitude over the last steps, zoomed"></canvas></div>
+</section>
 <p class="note" id="plot-note"></p>
 <div id="plot-status" hidden data-state="loading" data-points="0" data-sampled="0" data-documents="0" data-document-index="0"></div>
 <script nonce="${nonce}" src="${media('plot.js')}"></script>

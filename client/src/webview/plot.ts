@@ -10,6 +10,7 @@ import {
   PointElement,
   ScatterController,
   Tooltip,
+  type Plugin,
   type ChartConfiguration,
   type ChartDataset,
   type TooltipItem,
@@ -52,12 +53,39 @@ const selectEl = element<HTMLSelectElement>('doc-select');
 const statusEl = element<HTMLDivElement>('plot-status');
 const logSnrCanvas = element<HTMLCanvasElement>('chart-logsnr');
 const signalCanvas = element<HTMLCanvasElement>('chart-signal');
+const tailCanvas = element<HTMLCanvasElement>('chart-tail');
 
 let data: PlotData | null = null;
 let fileName = '';
 let documentIndex = (vscode.getState() as SavedState | undefined)?.documentIndex ?? 0;
 let logSnrChart: Chart | undefined;
 let signalChart: Chart | undefined;
+let tailChart: Chart | undefined;
+
+/**
+ * Shades the training steps the sampler never visits (the plot data's `skipped` range: above the
+ * highest sampled step up to T - 1), behind the curves.
+ */
+function skippedBand(doc: PlotDocument, colour: string): Plugin<'line' | 'scatter'> {
+  return {
+    id: 'noiselintSkippedBand',
+    beforeDatasetsDraw(chart) {
+      const s = doc.skipped;
+      const x = chart.scales.x;
+      if (!s || !x) return;
+      const { top, bottom, left, right } = chart.chartArea;
+      const x0 = Math.max(left, x.getPixelForValue(s.lastVisited));
+      const x1 = Math.min(right, x.getPixelForValue(s.lastStep));
+      if (!(x1 > x0)) return;
+      const ctx = chart.ctx;
+      ctx.save();
+      ctx.globalAlpha = 0.16;
+      ctx.fillStyle = colour;
+      ctx.fillRect(x0, top, x1 - x0, bottom - top);
+      ctx.restore();
+    },
+  };
+}
 
 interface Palette {
   foreground: string;
@@ -170,11 +198,13 @@ function chartConfig(
   yTitle: string,
   colors: Palette,
   yRange?: { min?: number; max?: number },
+  xRange?: { min: number; max: number },
 ): ChartConfiguration<'line' | 'scatter', PlotPoint[]> {
   const lastT = doc.t.length > 0 ? doc.t[doc.t.length - 1] : doc.trainSteps - 1;
   return {
     type: 'line',
     data: { datasets },
+    plugins: [skippedBand(doc, colors.sampled)],
     options: {
       animation: false,
       responsive: true,
@@ -185,8 +215,8 @@ function chartConfig(
       scales: {
         x: {
           type: 'linear',
-          min: Math.min(0, doc.t[0] ?? 0),
-          max: Math.max(lastT, ...doc.sampled.map((s) => s.t)),
+          min: xRange?.min ?? Math.min(0, doc.t[0] ?? 0),
+          max: xRange?.max ?? Math.max(lastT, ...doc.sampled.map((s) => s.t)),
           title: { display: true, text: doc.family === 'discrete' ? 't (training timestep, 0 = clean)' : 't', color: colors.muted },
           ticks: { color: colors.muted },
           grid: { color: colors.grid },
@@ -247,8 +277,10 @@ function render(): void {
   const colors = palette();
   logSnrChart?.destroy();
   signalChart?.destroy();
+  tailChart?.destroy();
   logSnrChart = undefined;
   signalChart = undefined;
+  tailChart = undefined;
   problemsEl.replaceChildren();
   problemsEl.hidden = true;
   noteEl.textContent = '';
@@ -274,6 +306,9 @@ function render(): void {
       `The sampler visits ${plural(doc.sampled.length, 'step')}, starting at t = ${first.t}` +
         (first.t === doc.trainSteps - 1 ? ' (the last training step).' : ` (not the last training step, t = ${doc.trainSteps - 1}).`),
     );
+  }
+  if (doc.skipped) {
+    parts.push(`Shaded: t = ${doc.skipped.lastVisited + 1} to ${doc.skipped.lastStep}, ${plural(doc.skipped.count, 'training step')} the sampler never visits.`);
   }
   summaryEl.textContent = parts.join(' ');
   if (doc.problems.length > 0) {
@@ -316,10 +351,26 @@ function render(): void {
   );
   signalChart = new Chart(signalCanvas, chartConfig(doc, signalSets, 'signal amplitude √ᾱ', colors, { min: 0, max: 1 }));
 
+  // The noisy end, zoomed (the plot data's tail window): a leak of a few hundredths fills it.
+  const tail = doc.tail;
+  const inTail = (points: PlotPoint[]) => points.filter((p) => p.x >= tail.from);
+  const tailSets: ChartDataset<'line' | 'scatter', PlotPoint[]>[] = [
+    lineDataset('current schedule', inTail(curvePoints(doc.t, doc.current.signal)), colors.current, false),
+  ];
+  if (doc.rescaled) tailSets.push(lineDataset('zero terminal SNR rescale', inTail(curvePoints(doc.t, doc.rescaled.signal)), colors.rescaled, true));
+  const tailSteps = doc.sampled.filter((s) => s.t >= tail.from);
+  if (tailSteps.length > 0) tailSets.push(sampledDataset(sampledPoints(tailSteps, (s) => s.signal, 0), colors));
+  tailChart = new Chart(
+    tailCanvas,
+    chartConfig(doc, tailSets, `√ᾱ, t ≥ ${tail.from} (0 to ${formatNumber(tail.signalMax)})`, colors, { min: 0, max: tail.signalMax }, { min: tail.from, max: Math.max(tail.to, ...tailSteps.map((s) => s.t)) }),
+  );
+
   const drawn = doc.current.signal.length;
   setStatus('ready', drawn, doc.sampled.length);
   // Which theme colour the charts were drawn with (lets a test see the redraw on a theme change).
   statusEl.dataset.foreground = colors.foreground;
+  statusEl.dataset.skipped = doc.skipped ? `${doc.skipped.lastVisited + 1}-${doc.skipped.lastStep}` : '';
+  statusEl.dataset.tailMax = String(tail.signalMax);
 }
 
 function renderPicker(): void {
@@ -352,8 +403,10 @@ function setStatus(state: string, points: number, sampled: number, message = '')
 function showError(message: string): void {
   logSnrChart?.destroy();
   signalChart?.destroy();
+  tailChart?.destroy();
   logSnrChart = undefined;
   signalChart = undefined;
+  tailChart = undefined;
   document.body.classList.add('empty');
   summaryEl.textContent = `The plot could not be computed: ${message}`;
   setStatus('error', 0, 0, message);
