@@ -493,7 +493,10 @@ const steps = [
       expect(Number(info.points) > 0, `the plot should draw points, data-points = ${info.points}`);
       // Leading spacing with 10 steps: 10 sampled timesteps are marked.
       expect(Number(info.sampled) === 10, `the plot should mark the 10 sampled timesteps, data-sampled = ${info.sampled}`);
-      for (const id of ['chart-logsnr', 'chart-signal']) {
+      // Leading spacing never reaches T - 1: the skipped range is shaded (plot data's `skipped`).
+      expect(/^\d+-\d+$/.test(info.skipped ?? ''), `the plot should shade the steps the sampler skips, data-skipped = ${info.skipped}`);
+      expect(Number(info.tailMax) > 0 && Number(info.tailMax) < 1, `the tail chart should zoom below 1, data-tail-max = ${info.tailMax}`);
+      for (const id of ['chart-logsnr', 'chart-signal', 'chart-tail']) {
         const painted = await frame.locator(`#${id}`).evaluate((canvas) => {
           const context = canvas.getContext('2d');
           if (!context || canvas.width === 0 || canvas.height === 0) return 0;
