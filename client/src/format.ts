@@ -1,19 +1,11 @@
 // Number formatting shared by the status item and the plot view (no VS Code imports: the webview
-// bundle uses it too).
+// bundle uses it too). The spelling itself is the server's one number formatter.
+import { fmtDigits } from '@noiselint/server/src/base/numbers';
 
-/** SNR-like quantities: exact zero stays "0", small values go to exponent notation. */
+/** SNR-like quantities: exact zero stays "0", small values go to exponent notation; no value is "n/a". */
 export function formatNumber(value: number | null | undefined): string {
-  if (value === null || value === undefined || Number.isNaN(value)) return 'n/a';
-  if (value === 0) return '0';
-  if (value === Infinity) return '∞';
-  if (value === -Infinity) return '−∞';
-  const magnitude = Math.abs(value);
-  if (magnitude >= 0.01 && magnitude < 10000) return trimZeros(value.toPrecision(3));
-  return value.toExponential(2);
-}
-
-function trimZeros(text: string): string {
-  return text.includes('.') && !text.includes('e') ? text.replace(/\.?0+$/, '') : text;
+  if (value === null || value === undefined) return 'n/a';
+  return fmtDigits(value, 3, 0.01, 10000);
 }
 
 export function plural(count: number, word: string): string {

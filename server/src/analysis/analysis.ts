@@ -8,6 +8,7 @@
  * hold one copy of its 1,000-point curves between them. Every array in an Analysis is read only
  * (ReadonlyFloat64Array); copy it with `.slice()` before changing it.
  */
+import { DEFAULT_FLOW_SHIFT, DEFAULT_KARRAS, DEFAULT_SPACING, DEFAULT_STEPS_OFFSET, DEFAULT_TRAIN_STEPS } from '../setup/defaults';
 import {
   checkSampleSteps,
   checkTrainSteps,
@@ -198,7 +199,7 @@ function analyzeDiscrete(setup: Setup, out: Analysis): void {
   if (isSigmaSpaceSampler(setup)) {
     let karras: number[] | null = null;
     if (valueOf(setup, 'karrasSigmas') === true && out.sampling && Number.isFinite(sigmaMax)) {
-      const k = karrasSigmas(out.sampling.steps, sigmaMin, sigmaMax, valueOf(setup, 'rho') ?? 7);
+      const k = karrasSigmas(out.sampling.steps, sigmaMin, sigmaMax, valueOf(setup, 'rho') ?? DEFAULT_KARRAS.rho);
       if (k.ok) karras = Array.from(k.value);
     }
     out.sigmas = { sigmaMax, sigmaMin, karras };
@@ -213,8 +214,8 @@ function analyzeDiscreteSampling(setup: Setup, out: Analysis): void {
   const spacingExplicit = !!spacingField?.source;
   if (!stepsField && !spacingExplicit) return;
   const steps = stepsField ? stepsField.value : ASSUMED_SAMPLE_STEPS;
-  const spacing = spacingField?.value ?? 'leading';
-  const stepsOffset = valueOf(setup, 'stepsOffset') ?? 0;
+  const spacing = spacingField?.value ?? DEFAULT_SPACING;
+  const stepsOffset = valueOf(setup, 'stepsOffset') ?? DEFAULT_STEPS_OFFSET;
   const T = schedule.trainSteps;
   const ts = samplingTimesteps(spacing, T, steps, stepsOffset);
   if (!ts.ok) {
@@ -240,13 +241,13 @@ function analyzeDiscreteSampling(setup: Setup, out: Analysis): void {
 }
 
 function analyzeFlow(setup: Setup, out: Analysis): void {
-  const T = valueOf(setup, 'trainSteps') ?? 1000;
+  const T = valueOf(setup, 'trainSteps') ?? DEFAULT_TRAIN_STEPS;
   const badT = checkTrainSteps(T);
   if (badT) {
     out.scheduleProblems.push(badT);
     return;
   }
-  const shift = valueOf(setup, 'flowShift') ?? 1;
+  const shift = valueOf(setup, 'flowShift') ?? DEFAULT_FLOW_SHIFT;
   if (!(shift > 0) || !Number.isFinite(shift)) {
     out.scheduleProblems.push(`flow shift ${shift} must be a positive number`);
     return;
@@ -342,9 +343,9 @@ function karrasCurve(sigmaMin: number, sigmaMax: number, rho: number): KarrasCur
 }
 
 function analyzeKarras(setup: Setup, out: Analysis): void {
-  const sigmaMin = valueOf(setup, 'sigmaMin') ?? 0.002;
-  const sigmaMax = valueOf(setup, 'sigmaMax') ?? 80;
-  const rho = valueOf(setup, 'rho') ?? 7;
+  const sigmaMin = valueOf(setup, 'sigmaMin') ?? DEFAULT_KARRAS.sigmaMin;
+  const sigmaMax = valueOf(setup, 'sigmaMax') ?? DEFAULT_KARRAS.sigmaMax;
+  const rho = valueOf(setup, 'rho') ?? DEFAULT_KARRAS.rho;
   const dense = karrasCurve(sigmaMin, sigmaMax, rho);
   if (typeof dense === 'string') {
     out.scheduleProblems.push(dense);

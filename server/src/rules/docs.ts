@@ -52,7 +52,8 @@ export function ruleDocs(meta: RuleMeta): string {
   if (at < 0) return docs;
   const bodyStart = at + OPTIONS_HEADING.length;
   const next = docs.indexOf('\n## ', bodyStart);
-  const note = docs.slice(bodyStart, next < 0 ? docs.length : next).trim();
+  // "None." is what the generated list says for a rule without options; a note never repeats it.
+  const note = docs.slice(bodyStart, next < 0 ? docs.length : next).trim().replace(/^None\.\s*/, '');
   const options = Object.entries(meta.options);
   const list = options.length
     ? options.map(([name, o]) => `- \`${name}\` (default ${optionText(o.default)}): ${o.description}`).join('\n')

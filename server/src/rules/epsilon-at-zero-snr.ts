@@ -1,6 +1,7 @@
 import { fmt } from './format';
 import { defineRule, type RuleMeta } from './types';
-import { RETRAIN_NOTE, assumedNote, describeSchedule, discreteSchedule, scheduleOrigin } from './util';
+import { velocityTargetFix } from './fixes';
+import { assumedNote, describeSchedule, discreteSchedule, scheduleOrigin } from './util';
 
 const docs = `
 ## What triggers it
@@ -86,11 +87,7 @@ export const epsilonAtZeroSnr = defineRule({
           scheduleOrigin(setup),
         at: 'predictionTarget',
         fixes: [
-          {
-            title: `Switch the prediction target to v ${RETRAIN_NOTE}`,
-            effect: 'needs-retraining',
-            edits: [{ kind: 'set', concept: 'predictionTarget', value: 'v' }],
-          },
+          velocityTargetFix(),
         ],
       },
     ];

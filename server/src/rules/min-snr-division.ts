@@ -1,6 +1,7 @@
 import { fmt } from './format';
 import { defineRule, type RuleMeta } from './types';
-import { RETRAIN_NOTE, assumedNote, discreteSchedule } from './util';
+import { velocityTargetFix } from './fixes';
+import { assumedNote, discreteSchedule } from './util';
 
 const docs = `
 ## What triggers it
@@ -85,11 +86,7 @@ export const minSnrDivision = defineRule({
         at: 'minSnrGamma',
         related: [{ concept: 'predictionTarget', message: 'the epsilon target is set here' }],
         fixes: [
-          {
-            title: `Switch the prediction target to v ${RETRAIN_NOTE}`,
-            effect: 'needs-retraining',
-            edits: [{ kind: 'set', concept: 'predictionTarget', value: 'v' }],
-          },
+          velocityTargetFix(),
         ],
       },
     ];

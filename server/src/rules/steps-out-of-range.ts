@@ -1,5 +1,6 @@
 import { fmt } from './format';
 import { defineRule, type RuleFinding, type RuleMeta } from './types';
+import { stepsToTrainStepsFix } from './fixes';
 import { assumedNote, problemFindings } from './util';
 
 const docs = `
@@ -82,11 +83,7 @@ export const stepsOutOfRange = defineRule({
           assumedNote(setup, ['trainSteps']),
         at: 'sampleSteps',
         fixes: [
-          {
-            title: `Set the number of sampling steps to ${T} (sampling only)`,
-            effect: 'sampling-only',
-            edits: [{ kind: 'set', concept: 'sampleSteps', value: T }],
-          },
+          stepsToTrainStepsFix(T),
         ],
       });
     }

@@ -1,6 +1,7 @@
 import { samplingTimesteps } from '@noiselint/shared-math';
 import { fmt, fmtList } from './format';
 import { defineRule, type ConceptFix, type RuleMeta } from './types';
+import { stepsToTrainStepsFix } from './fixes';
 import { assumedNote, discreteSchedule, isSet, trailingFix } from './util';
 
 const docs = `
@@ -87,7 +88,7 @@ export const timestepOutOfRange = defineRule({
       if (trailing) fixes.push(trailing);
     }
     if (fixes.length === 0 && N > T && isSet(setup, 'sampleSteps')) {
-      fixes.push({ title: `Set the number of sampling steps to ${T} (sampling only)`, effect: 'sampling-only', edits: [{ kind: 'set', concept: 'sampleSteps', value: T }] });
+      fixes.push(stepsToTrainStepsFix(T));
     }
     const outside = Array.from(new Set(sampling.outOfRange));
     const offsetText = sampling.stepsOffset !== 0 ? ` and steps offset ${sampling.stepsOffset}` : '';

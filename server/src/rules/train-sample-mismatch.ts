@@ -1,8 +1,8 @@
 import type { Concept, ConceptValues } from '../fields/concepts';
 import { trainingDocumentOf } from '../setup/inherit';
 import type { Setup } from '../setup/types';
-import { defineRule, type ConceptEdit, type PartnerDocument, type RuleFinding, type RuleMeta } from './types';
-import { fmt } from './format';
+import { defineRule, type ConceptEdit, type RuleFinding, type RuleMeta } from './types';
+import { fmt, fmtDigits } from './format';
 import { isSet, showValue, sourceOf } from './util';
 
 const docs = `
@@ -117,8 +117,8 @@ function showPair(a: ConceptValues[Concept], b: ConceptValues[Concept]): [string
     let x = fmt(a);
     let y = fmt(b);
     for (let digits = 4; x === y && digits <= 12; digits++) {
-      x = String(Number(a.toPrecision(digits)));
-      y = String(Number(b.toPrecision(digits)));
+      x = fmtDigits(a, digits);
+      y = fmtDigits(b, digits);
     }
     return [x, y];
   }

@@ -33,6 +33,12 @@ import {
   GUIDANCE_RESCALE_NOTE,
   LATENT_KEY_HINTS,
   OFFSET_NOTE,
+  DEFAULT_FLOW_SHIFT,
+  DEFAULT_SPACING,
+  DEFAULT_STEPS_OFFSET,
+  DEFAULT_KARRAS,
+  FLOW_SHIFT_NOTE,
+  KARRAS_NOTE,
   SHORT_FAMILY_DEFAULT_NOTE,
   SHORT_FAMILY_LINEAR_NOTE,
   SHORT_FAMILY_RANGE,
@@ -304,11 +310,17 @@ function assumeDefaults(setup: Setup, decided: Map<Concept, Decided>, root: Loca
 
   assume('predictionTarget', isFlow ? 'flow' : 'epsilon', isFlow ? TARGET_NOTE_FLOW : TARGET_NOTE_EPSILON);
   if (!isFlow) {
-    assume('timestepSpacing', 'leading', SPACING_NOTE);
-    assume('stepsOffset', 0, OFFSET_NOTE);
+    assume('timestepSpacing', DEFAULT_SPACING, SPACING_NOTE);
+    assume('stepsOffset', DEFAULT_STEPS_OFFSET, OFFSET_NOTE);
     assume('zeroTerminalSnr', false, ZERO_SNR_NOTE);
   }
   if (fields.guidanceScale && !fields.guidanceScale.assumed) assume('guidanceRescale', 0, GUIDANCE_RESCALE_NOTE);
+  if (isFlow) assume('flowShift', DEFAULT_FLOW_SHIFT, FLOW_SHIFT_NOTE);
+  if (isSigma) {
+    assume('sigmaMin', DEFAULT_KARRAS.sigmaMin, KARRAS_NOTE);
+    assume('sigmaMax', DEFAULT_KARRAS.sigmaMax, KARRAS_NOTE);
+  }
+  if (isSigma || fields.karrasSigmas?.value === true) assume('rho', DEFAULT_KARRAS.rho, KARRAS_NOTE);
 
   if (!present('latentSpace')) {
     const inferred =

@@ -35,10 +35,21 @@ export const SHORT_FAMILY_DEFAULT_NOTE =
 
 export const TARGET_NOTE_EPSILON = 'not set: assumed an epsilon (noise) target, the usual default';
 export const TARGET_NOTE_FLOW = 'not set: assumed a flow-velocity target (the file sets a flow shift or a flow sampler)';
+/** Spacing and offset of discrete samplers when the file sets neither (see SPACING_NOTE, OFFSET_NOTE). */
+export const DEFAULT_SPACING = 'leading' as const;
+export const DEFAULT_STEPS_OFFSET = 0;
 export const SPACING_NOTE = 'not set: assumed leading spacing, the usual default of discrete samplers';
 export const OFFSET_NOTE = 'not set: assumed steps offset 0';
 export const ZERO_SNR_NOTE = 'not set: assumed the schedule is not rescaled to zero terminal SNR';
 export const GUIDANCE_RESCALE_NOTE = 'not set: assumed no guidance rescale (0)';
+
+/** Continuous sigma schedule (Karras et al. 2022, their defaults). */
+export const DEFAULT_KARRAS = { sigmaMin: 0.002, sigmaMax: 80, rho: 7 } as const;
+export const KARRAS_NOTE = 'not set: assumed the default of Karras et al. 2022';
+
+/** Flow matching without a timestep shift (s = 1 leaves t unchanged; Esser et al. 2024). */
+export const DEFAULT_FLOW_SHIFT = 1;
+export const FLOW_SHIFT_NOTE = 'not set: assumed no timestep shift (1)';
 
 /** Keys that suggest a latent (autoencoder) model; compared against normalised key segments. */
 export const LATENT_KEY_HINTS = ['vae', 'latent', 'autoencoder', 'firststage'];

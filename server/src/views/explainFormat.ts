@@ -2,6 +2,7 @@
  * `explain`: what a config resolves to and the numbers behind it, as readable text or as the
  * documented JSON contract (docs/explain-json.md). Pure: file result in, text or data out.
  */
+import { fmtDigits } from '../base/numbers';
 import type { DocumentResult, FileReading, FileResult } from '../engine/api';
 import type { Analysis } from '../analysis/analysis';
 import { CONCEPTS, type Concept } from '../fields/concepts';
@@ -16,13 +17,7 @@ function num(x: number): number | null {
 
 /** 6 significant digits, exponent form for small values: 0.068265, 4.68206e-3, 0. */
 export function sig(x: number, digits = 6): string {
-  if (x === 0) return '0';
-  if (Number.isNaN(x)) return 'undefined';
-  if (!Number.isFinite(x)) return x > 0 ? 'inf' : '-inf';
-  const abs = Math.abs(x);
-  if (abs >= 1e-3 && abs < 1e6) return String(Number(x.toPrecision(digits)));
-  const [mantissa, exp] = x.toExponential(digits - 1).split('e');
-  return `${String(Number(mantissa))}e${Number(exp)}`;
+  return fmtDigits(x, digits, 1e-3, 1e6);
 }
 
 function valueText(v: unknown): string {
