@@ -17,7 +17,7 @@ export const SVG_WIDTH = 880;
 const LEFT = 78;
 const RIGHT = 24;
 const PANEL_HEIGHT = 230;
-const HEADER = 74;
+const HEADER = 96;
 const GAP = 58;
 const FOOTER = 64;
 export const DOCUMENT_HEIGHT = HEADER + PANEL_HEIGHT + GAP + PANEL_HEIGHT + FOOTER;
@@ -280,21 +280,21 @@ function legend(doc: PlotDocument, y: number): string {
   return `<g class="legend">\n${items.join('\n')}\n</g>`;
 }
 
-function headerLines(doc: PlotDocument, fileName: string): string[] {
-  const lines = [`${fileName}${doc.index > 0 ? ` (document ${doc.index + 1})` : ''}: ${doc.label}`];
-  const tail = `signal amplitude at the last step √ᾱ = ${shortNumber(doc.terminalSignal)}, SNR ${shortNumber(doc.terminalSnr)}`;
+/** Title (the file), the schedule with its last-step numbers, the sampler: three short lines. */
+function headerLines(doc: PlotDocument, fileName: string): [string, string, string] {
+  const title = `${fileName}${doc.index > 0 ? ` (document ${doc.index + 1})` : ''}`;
+  const schedule = `${doc.label}; at the last step √ᾱ = ${shortNumber(doc.terminalSignal)}, SNR ${shortNumber(doc.terminalSnr)}`;
   const first = doc.sampled[0];
-  let sampler = '';
+  let sampler = 'no sampling steps in this file';
   if (first) {
-    sampler = `; the sampler visits ${doc.sampled.length} step${doc.sampled.length === 1 ? '' : 's'} from t = ${first.t}`;
+    sampler = `the sampler visits ${doc.sampled.length} step${doc.sampled.length === 1 ? '' : 's'} from t = ${first.t}`;
     if (doc.skipped) sampler += `, never t = ${doc.skipped.lastVisited + 1}..${doc.skipped.lastStep} (${doc.skipped.count} step${doc.skipped.count === 1 ? '' : 's'})`;
   }
-  lines.push(tail + sampler);
-  return lines;
+  return [title, schedule, sampler];
 }
 
 function documentSvg(doc: PlotDocument, fileName: string, top: number): string {
-  const [title, subtitle] = headerLines(doc, fileName);
+  const [title, schedule, sampler] = headerLines(doc, fileName);
   const log = logSnrPanel(doc, top + HEADER);
   const signal = signalPanel(doc, top + HEADER + PANEL_HEIGHT + GAP);
   const xLabel = doc.family === 'discrete' ? 't (training timestep, 0 = clean)' : 't';
@@ -303,14 +303,15 @@ function documentSvg(doc: PlotDocument, fileName: string, top: number): string {
   const parts = [
     `<g class="document" data-index="${doc.index}">`,
     `<text class="title" x="${LEFT}" y="${n(top + 26)}" font-size="16" font-weight="bold" fill="${COLOURS.text}" ${FONT}>${esc(title)}</text>`,
-    `<text class="subtitle" x="${LEFT}" y="${n(top + 48)}" font-size="12" fill="${COLOURS.muted}" ${FONT}>${esc(subtitle)}</text>`,
+    `<text class="subtitle" x="${LEFT}" y="${n(top + 48)}" font-size="12.5" fill="${COLOURS.text}" ${FONT}>${esc(schedule)}</text>`,
+    `<text class="subtitle" x="${LEFT}" y="${n(top + 67)}" font-size="12.5" fill="${COLOURS.muted}" ${FONT}>${esc(sampler)}</text>`,
     log.svg,
     xLabelAt(top + HEADER),
     signal.svg,
     xLabelAt(top + HEADER + PANEL_HEIGHT + GAP),
     legend(doc, top + HEADER + 2 * PANEL_HEIGHT + GAP + 52),
   ];
-  for (const problem of doc.problems.slice(0, 3)) parts.push(`<text x="${LEFT}" y="${n(top + 62)}" font-size="11" fill="${COLOURS.sampled}" ${FONT}>${esc(problem)}</text>`);
+  doc.problems.slice(0, 1).forEach((problem) => parts.push(`<text x="${LEFT}" y="${n(top + 85)}" font-size="11" fill="${COLOURS.sampled}" ${FONT}>${esc(problem)}</text>`));
   parts.push('</g>');
   return parts.join('\n');
 }
