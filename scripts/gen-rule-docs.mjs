@@ -1,4 +1,5 @@
-// Writes docs/rules/<id>.md and docs/rules/README.md from the rules' metadata
+// Writes docs/rules/<id>.md, docs/rules/README.md and the per-rule settings of client/package.json
+// from the rules' metadata
 // (server/src/rules/docs.ts, bundled in memory with esbuild). `npm run docs`.
 // With --check, writes nothing and exits 1 when a page differs.
 import { build } from 'esbuild';
@@ -20,7 +21,7 @@ const bundle = await build({
   logLevel: 'warning',
 });
 const code = bundle.outputFiles[0].text;
-const { renderRuleDocPages } = await import(`data:text/javascript;base64,${Buffer.from(code).toString('base64')}`);
+const { renderRuleDocPages, ruleSettingsSchema } = await import(`data:text/javascript;base64,${Buffer.from(code).toString('base64')}`);
 const pages = renderRuleDocPages();
 
 let stale = 0;
@@ -42,6 +43,20 @@ if (existsSync(outDir)) {
       else rmSync(join(outDir, name));
     }
   }
+}
+// The per-rule editor settings of the extension's manifest.
+const manifestPath = join(root, 'client', 'package.json');
+const manifestText = readFileSync(manifestPath, 'utf8');
+const manifest = JSON.parse(manifestText);
+const settings = manifest.contributes.configuration.properties;
+const schema = ruleSettingsSchema();
+settings['noiselint.rules'].properties = schema.severities;
+settings['noiselint.thresholds'].properties = schema.thresholds;
+const manifestOut = `${JSON.stringify(manifest, null, 2)}\n`;
+if (manifestOut !== manifestText) {
+  stale++;
+  if (check) console.error('client/package.json: the rule settings are out of date');
+  else writeFileSync(manifestPath, manifestOut);
 }
 if (check && stale > 0) {
   console.error('run `npm run docs` to regenerate');

@@ -116,3 +116,38 @@ export function renderRuleDocPages(): Record<string, string> {
   for (const meta of ALL_RULE_METAS) pages[`${meta.id}.md`] = renderRulePage(meta);
   return pages;
 }
+
+const SEVERITY_CHOICES = ['error', 'warning', 'info', 'hint', 'off'] as const;
+const SEVERITY_DESCRIPTIONS = [
+  'Report as an error',
+  'Report as a warning',
+  'Report as information',
+  'Show as a hint only (dotted underline)',
+  'Do not run this rule',
+];
+
+/**
+ * The per-rule parts of the editor settings (`noiselint.rules` and `noiselint.thresholds` in
+ * client/package.json), written from the registry by `npm run docs` so that a new rule or option
+ * cannot be left out. A test compares the manifest with this.
+ */
+export function ruleSettingsSchema(): { severities: Record<string, unknown>; thresholds: Record<string, unknown> } {
+  const severities: Record<string, unknown> = {};
+  const thresholds: Record<string, unknown> = {};
+  for (const meta of ALL_RULE_METAS) {
+    severities[meta.id] = {
+      type: 'string',
+      enum: [...SEVERITY_CHOICES],
+      enumDescriptions: SEVERITY_DESCRIPTIONS,
+      markdownDescription: `${meta.summary} Default: ${meta.defaultSeverity}.`,
+    };
+    const options = Object.entries(meta.options);
+    if (options.length === 0) continue;
+    const properties: Record<string, unknown> = {};
+    for (const [name, option] of options) {
+      properties[name] = { type: typeof option.default, default: option.default, description: option.description };
+    }
+    thresholds[meta.id] = { type: 'object', additionalProperties: false, properties };
+  }
+  return { severities, thresholds };
+}
