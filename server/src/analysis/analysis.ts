@@ -25,6 +25,7 @@ import {
   type ReadonlyFloat64Array,
   type ScheduleParams,
 } from '@noiselint/shared-math';
+import { consumerTimesteps, karrasTimesteps } from '../consumers/timesteps';
 import type { BetaScheduleKind, TimestepSpacing } from '../fields/concepts';
 import { valueOf, type Setup } from '../setup/types';
 
@@ -217,17 +218,24 @@ function analyzeDiscreteSampling(setup: Setup, out: Analysis): void {
   const spacing = spacingField?.value ?? DEFAULT_SPACING;
   const stepsOffset = valueOf(setup, 'stepsOffset') ?? DEFAULT_STEPS_OFFSET;
   const T = schedule.trainSteps;
-  const ts = samplingTimesteps(spacing, T, steps, stepsOffset);
+  const consumer = setup.consumer;
+  // A Karras-sigma sampler starts at the largest training sigma whatever the spacing says.
+  const karras = consumer?.karrasStartsAtMax === true && valueOf(setup, 'karrasSigmas') === true;
+  const ts = karras
+    ? karrasTimesteps(schedule.curve.alphaBar, steps, valueOf(setup, 'rho') ?? 7)
+    : consumer
+      ? consumerTimesteps(consumer.timesteps, spacing, T, steps, stepsOffset)
+      : samplingTimesteps(spacing, T, steps, stepsOffset);
   if (!ts.ok) {
     out.samplingProblems.push(ts.problem);
     return;
   }
-  const timesteps = ts.value;
+  const timesteps = Array.from(ts.value);
   const first = timesteps[0];
   const inRange = (t: number) => Number.isInteger(t) && t >= 0 && t <= T - 1;
   const abarFirst = inRange(first) ? schedule.curve.alphaBar[first] : NaN;
   out.sampling = {
-    spacing,
+    spacing: karras ? 'karras' : spacing,
     steps,
     stepsAssumed: !stepsField,
     stepsOffset,

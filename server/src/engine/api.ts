@@ -2,8 +2,10 @@
  * The analysis core's front door, shared by the CLI and the language server:
  * text -> located tree -> setup -> analysis -> findings. Never throws.
  */
+import { problemsForLoader, readDocument } from '../consumers';
 import { parseText, formatFromPath } from '../parse';
 import { buildSetup, inheritanceFrom, inheritSetup, type ScheduleInheritance } from '../setup';
+import { consumerChoiceFor } from '../consumers/choice';
 import { analyzeSetup } from '../analysis/analysis';
 import type { Finding } from '../base/findings';
 import { runRules } from './engine';
@@ -21,10 +23,15 @@ export function readFile(text: string, options: AnalyzeOptions): FileReading {
   const format = options.format ?? formatFromPath(options.path) ?? 'yaml';
   const parsed = parseText(text, format, { ...options.project?.limits, ...options.limits }, options.parse);
   const inheritance = inheritanceOf(options);
-  const documents: DocumentResult[] = parsed.documents.map((doc) => {
+  const choice = consumerChoiceFor(options.project, options.path);
+  const readings = parsed.documents.map((doc) => readDocument(doc, parsed, options.path, choice));
+  parsed.problems = problemsForLoader(parsed.problems, readings);
+  const documents: DocumentResult[] = parsed.documents.map((doc, i) => {
     let setup = buildSetup(doc, {
       extraAliases: options.project?.aliases,
       latentSpaceDefault: options.project?.latentSpace,
+      consumer: readings[i].reading,
+      loaderReadings: readings[i].loaderReadings,
     });
     if (inheritance) setup = inheritSetup(setup, inheritance);
     return { index: doc.index, setup, analysis: analyzeSetup(setup) };

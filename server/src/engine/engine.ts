@@ -4,6 +4,7 @@
  * that fails yields no findings (and is reported through `onRuleError`), the run goes on.
  */
 import { CONCEPT_GROUP, type Concept } from '../fields/concepts';
+import { gateFixes } from '../consumers/gate';
 import { editsTouchComment, rememberOrigin, renderConceptEdits } from '../fix';
 import { LineIndex } from '../parse/lineIndex';
 import type { LocatedMap, LocatedNode, ParsedFile, Span } from '../parse/types';
@@ -136,14 +137,18 @@ function toFinding(
   onFixFailure: (error: unknown) => void,
 ): Finding {
   const severity = configuredSeverity(meta.id, project) ?? validSeverity(result.severity) ?? meta.defaultSeverity;
+  const gated = gateFixes(setup, result.fixes ?? []);
+  const fixes = renderFixes(gated.fixes, parsed, setup, onFixFailure);
+  // Only when nothing else is offered: the consumer cannot express the change, so say what to change.
+  const hints = fixes.length === 0 && gated.hints.length > 0 ? `; no fix offered: ${gated.hints.join('; ')}` : '';
   return {
     rule: meta.id,
     severity,
-    message: String(result.message),
+    message: String(result.message) + hints,
     span: locate(result, setup, parsed, lines),
     documentIndex: setup.documentIndex,
     related: relatedLocations(result, setup),
-    fixes: renderFixes(result.fixes ?? [], parsed, setup, onFixFailure),
+    fixes,
   };
 }
 

@@ -5,6 +5,7 @@
  */
 import type { ParseOptions } from '../parse/parseText';
 import type { Finding, Severity } from '../base/findings';
+import type { ConsumerSetting } from '../consumers/types';
 import type { Concept } from '../fields/concepts';
 import type { ParsedFile, ParseLimits, SourceFormat } from '../parse/types';
 import type { Setup } from '../setup/types';
@@ -43,6 +44,8 @@ export interface ResolvedProject {
   /** Pair a training and a sampling file in the same folder automatically. */
   autoPair: boolean;
   limits: Partial<ParseLimits>;
+  /** Consumer and loader per glob (consumer profile stage); the first matching entry decides. */
+  consumers?: ConsumerSetting[];
 }
 
 export interface AnalyzeOptions {

@@ -388,7 +388,9 @@ class Renderer {
   private queueInsert(concept: Concept, value: ConceptValues[Concept]): void {
     const { map, anchor } = this.insertionPlace(concept);
     const keys = map.entries.map((e) => e.key);
-    const key = insertKeyFor(concept, this.setup.keyStyle, keys);
+    // A consuming class with a profile takes its own spellings only (consumer profile stage).
+    const consumerKeys = this.setup.consumer?.insertKeys;
+    const key = consumerKeys ? (consumerKeys[concept] ?? null) : insertKeyFor(concept, this.setup.keyStyle, keys);
     if (key === null) giveUp(`no key to write ${concept}`);
     const squash = (s: string) => s.toLowerCase().replace(/[_\-]/g, '');
     if (keys.some((k) => squash(k) === squash(key))) giveUp(`the map already has a key like ${key}`);

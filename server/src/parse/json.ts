@@ -59,8 +59,16 @@ export function readJson(text: string, format: SourceFormat, limits: ParseLimits
   const problems: ParseProblem[] = [];
   // The scanner does not know U+FEFF: a space of the same length keeps every offset.
   const source = bom ? ` ${text.slice(1)}` : text;
-  const { comments, cuts, trailingCommas } = scanJson(source, limits.maxNesting);
+  const { comments, cuts, trailingCommas, nonFinite } = scanJson(source, limits.maxNesting);
   for (const cut of cuts) problems.push(tooDeepProblem(cut, limits.maxNesting));
+  for (const t of nonFinite) {
+    problems.push({
+      code: 'json-non-finite',
+      severity: 'warning',
+      span: { ...t },
+      message: `${text.slice(t.start, t.end)} is not a JSON value (Python's json module reads and writes it as a float).`,
+    });
+  }
   if (format === 'json') {
     for (const c of comments) {
       problems.push({
@@ -81,7 +89,9 @@ export function readJson(text: string, format: SourceFormat, limits: ParseLimits
   }
 
   const errors: ParseError[] = [];
-  const tree = parseTree(blankRegions(source, cuts, '0'), errors, {
+  // Non-finite tokens read as a one-character number placeholder; the converter restores them.
+  const blanked = [...cuts, ...nonFinite].sort((a, b) => a.start - b.start);
+  const tree = parseTree(blankRegions(source, blanked, '0'), errors, {
     allowTrailingComma: true,
     disallowComments: false,
     allowEmptyContent: false,
@@ -95,12 +105,21 @@ export function readJson(text: string, format: SourceFormat, limits: ParseLimits
       message: ERROR_MESSAGES[name] ?? name,
     });
   }
-  const converter = new JsonConverter(text, limits, new Map(cuts.map((c) => [c.start, c])), problems);
+  const converter = new JsonConverter(text, limits, new Map(cuts.map((c) => [c.start, c])), problems, new Map(nonFinite.map((c) => [c.start, c])));
   const root = tree ? converter.convert(tree, 0) : null;
   return { documents: [{ index: 0, root, span: { start: 0, end: text.length } }], problems, comments };
 }
 
-function scanJson(text: string, maxNesting: number): { comments: SourceComment[]; cuts: Cut[]; trailingCommas: number[] } {
+const NON_FINITE_TOKEN = /-?(?:NaN|Infinity)(?![A-Za-z0-9_$])/y;
+/** jsonc-parser's SyntaxKind.Unknown: a token outside the JSON grammar. */
+const UNKNOWN = 16;
+
+function scanJson(
+  text: string,
+  maxNesting: number,
+): { comments: SourceComment[]; cuts: Cut[]; trailingCommas: number[]; nonFinite: Cut[] } {
+  const nonFinite: Cut[] = [];
+  let nonFiniteEnd = -1;
   const comments: SourceComment[] = [];
   const cuts: Cut[] = [];
   const trailingCommas: number[] = [];
@@ -111,6 +130,17 @@ function scanJson(text: string, maxNesting: number): { comments: SourceComment[]
   let lastComma = -1;
   for (let kind = scanner.scan(); kind !== EOF; kind = scanner.scan()) {
     const offset = scanner.getTokenOffset();
+    if (offset < nonFiniteEnd) continue;
+    if (kind === UNKNOWN && cutStart < 0) {
+      NON_FINITE_TOKEN.lastIndex = offset;
+      const m = NON_FINITE_TOKEN.exec(text);
+      if (m) {
+        nonFinite.push({ start: offset, end: offset + m[0].length });
+        nonFiniteEnd = offset + m[0].length;
+        lastComma = -1;
+        continue;
+      }
+    }
     switch (kind) {
       case LINE_COMMENT:
       case BLOCK_COMMENT: {
@@ -145,7 +175,7 @@ function scanJson(text: string, maxNesting: number): { comments: SourceComment[]
     lastComma = kind === COMMA ? offset : -1;
   }
   if (cutStart >= 0) cuts.push({ start: cutStart, end: text.length });
-  return { comments, cuts, trailingCommas };
+  return { comments, cuts, trailingCommas, nonFinite };
 }
 
 class JsonConverter {
@@ -154,6 +184,8 @@ class JsonConverter {
     private readonly limits: ParseLimits,
     private readonly cutStarts: Map<number, Cut>,
     private readonly problems: ParseProblem[],
+    /** NaN / Infinity / -Infinity tokens, by start offset. */
+    private readonly nonFinite: Map<number, Cut> = new Map(),
   ) {}
 
   private spanOf(n: JsonNode): Span {
@@ -193,6 +225,13 @@ class JsonConverter {
         this.problems.push(tooLongProblem({ start: kids[count].offset, end: span.end }, kids.length, this.limits.maxListLength));
       }
       return { kind: 'list', items, style: 'flow', span };
+    }
+    const token = n.type === 'number' ? this.nonFinite.get(span.start) : undefined;
+    if (token) {
+      const tokenRaw = this.text.slice(token.start, token.end);
+      // Typed as the generic reading does; the consumer stage's loader dialect decides whether it is valid.
+      const value = tokenRaw === 'NaN' ? NaN : tokenRaw.startsWith('-') ? -Infinity : Infinity;
+      return { kind: 'scalar', value, raw: tokenRaw, style: 'plain', span: { start: token.start, end: token.end } };
     }
     const raw = this.text.slice(span.start, span.end);
     const value = n.type === 'string' || n.type === 'number' || n.type === 'boolean' ? (n.value as string | number | boolean) : null;

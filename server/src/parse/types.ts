@@ -68,7 +68,7 @@ export interface ParseProblem {
   /**
    * Short machine-readable code: 'yaml-syntax', 'yaml-warning', 'json-syntax', 'json-comment',
    * 'json-trailing-comma', 'toml-syntax', 'too-large', 'too-deep', 'too-long', 'alias-limit', 'alias-cycle',
-   * 'custom-tag', 'tag-mismatch', 'duplicate-key', 'bad-suppression', 'internal-error'.
+   * 'custom-tag', 'tag-mismatch', 'duplicate-key', 'bad-suppression', 'internal-error', 'json-non-finite'.
    */
   code: string;
 }

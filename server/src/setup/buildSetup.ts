@@ -20,6 +20,9 @@
  * Duplicates: a concept found twice (two sections, or two spellings) keeps the first in document
  * order; a 'duplicate' problem marks the later one when the values differ.
  */
+import type { ConsumerReading } from '../consumers/decide';
+import { classDefaults, consumerTakes, ignoredKeysOf, insertKeysOf } from '../consumers/forSetup';
+import type { LoaderReading } from '../consumers/readAs';
 import type { Concept, ConceptValues } from '../fields/concepts';
 import { findConcepts, type ConceptHit } from '../fields/findConcepts';
 import { keySegments, normalizeKeySegment } from '../fields/normalize';
@@ -55,6 +58,10 @@ export interface BuildSetupOptions {
   extraAliases?: Partial<Record<Concept, string[]>>;
   /** Project setting for latentSpace; when absent it is inferred (see inferLatentSpace). */
   latentSpaceDefault?: boolean;
+  /** The consumer profile's reading of this document (consumer profile stage). */
+  consumer?: ConsumerReading;
+  /** Scalars the document's loader reads differently from how they look. */
+  loaderReadings?: LoaderReading[];
 }
 
 export const SCHEDULE_CONCEPTS: readonly Concept[] = [
@@ -100,8 +107,12 @@ interface Decided {
   signature: string;
 }
 
+/** Keys that stand for one concept in the alias table but are separate settings (clip vs dynamic thresholding). */
+const SEPARATE_SETTING_CONCEPTS = new Set<Concept>(['thresholding']);
+
 function build(doc: ParsedDocument, opts: BuildSetupOptions, setup: Setup): Setup {
-  const hits = findConcepts(doc.root, opts.extraAliases);
+  const reading = opts.consumer;
+  const hits = findConcepts(doc.root, opts.extraAliases).filter((h) => consumerTakes(reading, h.source.entry, h.source.parent));
   const fields: SetupFields = {};
   const problems: ValueProblem[] = [];
   const decided = new Map<Concept, Decided>();
@@ -126,6 +137,14 @@ function build(doc: ParsedDocument, opts: BuildSetupOptions, setup: Setup): Setu
       continue;
     }
     if (first.hit.source.entry === hit.source.entry || first.signature === signature) continue;
+    if (SEPARATE_SETTING_CONCEPTS.has(hit.concept) && normalizeKeySegment(hit.source.key) !== normalizeKeySegment(first.hit.source.key)) {
+      // Two different settings (clip_sample, thresholding): on when either is on; never a duplicate.
+      if (hit.status === 'ok' && hit.value === true && fields[hit.concept]?.value !== true) {
+        decided.set(hit.concept, { hit, signature });
+        setField(fields, hit.concept, true, toSource(hit), hit.note);
+      }
+      continue;
+    }
     problems.push({
       concept: hit.concept,
       kind: 'duplicate',
@@ -159,8 +178,53 @@ function build(doc: ParsedDocument, opts: BuildSetupOptions, setup: Setup): Setu
   setup.problems = problems;
   setup.keyStyle = keyStyleOf(hits);
   if (Object.keys(nullKeys).length > 0) setup.nullKeys = nullKeys;
-  if (isDiffusionConfig) assumeDefaults(setup, decided, doc.root, opts);
+  if (reading) setup.consumer = consumerSummary(reading, opts.loaderReadings ?? []);
+  if (isDiffusionConfig) {
+    if (reading?.cls) assumeClassDefaults(setup, decided, reading);
+    assumeDefaults(setup, decided, doc.root, opts);
+  }
   return setup;
+}
+
+function consumerSummary(reading: ConsumerReading, loaderReadings: LoaderReading[]): NonNullable<Setup['consumer']> {
+  const cls = reading.cls;
+  const out: NonNullable<Setup['consumer']> = {
+    decision: reading.decision,
+    ignoredKeys: ignoredKeysOf(reading),
+    loaderReadings,
+    timesteps: cls?.timesteps ?? 'standard',
+    karrasStartsAtMax: cls?.karrasStartsAtMax === true,
+    cannotExpress: { ...(cls?.cannotExpress ?? {}) },
+  };
+  if (cls?.fixedSpacing) out.fixedSpacing = cls.fixedSpacing;
+  if (cls) out.insertKeys = insertKeysOf(cls);
+  return out;
+}
+
+/**
+ * The consuming class's own defaults, recorded as assumed with the sentence that names the class
+ * (they win over the generic defaults). A setting the class reads from two separate keys (clip
+ * and dynamic thresholding) is on when either key, or the default of an absent one, is on.
+ */
+function assumeClassDefaults(setup: Setup, decided: Map<Concept, Decided>, reading: ConsumerReading): void {
+  const cls = reading.cls!;
+  const fields = setup.fields;
+  for (const d of classDefaults(cls)) {
+    if (decided.has(d.concept) || fields[d.concept]) continue;
+    setField(fields, d.concept, d.value, null, d.note);
+    setup.assumed.push(d.concept);
+  }
+  const section = reading.section;
+  if (!section || !cls.keyDefaults) return;
+  const thresholding = fields.thresholding;
+  if (thresholding?.value === true) return;
+  for (const [key, value] of Object.entries(cls.keyDefaults)) {
+    if (value !== true || section.entries.some((e) => e.key === key)) continue;
+    const note = `not set: ${cls.name} uses ${key} = true when the key is absent (${cls.source.split(' (')[0]})`;
+    setField(fields, 'thresholding', true, null, note);
+    if (!setup.assumed.includes('thresholding')) setup.assumed.push('thresholding');
+    return;
+  }
 }
 
 function toSource(hit: ConceptHit): FieldSource {

@@ -1,4 +1,6 @@
-import type { Concept, ConceptValues } from '../fields/concepts';
+import type { LoaderReading } from '../consumers/readAs';
+import type { ConsumerDecision, TimestepRule } from '../consumers/types';
+import type { Concept, ConceptValues, TimestepSpacing } from '../fields/concepts';
 import type { LocatedEntry, LocatedMap, Span } from '../parse/types';
 
 /** Where a concept was found in the located tree. */
@@ -65,6 +67,29 @@ export interface ValueProblem {
   suggestion?: string;
 }
 
+/** A key of the consumer's section that the consumer does not take (it has no effect). */
+export interface IgnoredKey {
+  key: string;
+  path: string;
+  reason: string;
+}
+
+/** How the consuming code reads this document (consumer profile stage), as plain data. */
+export interface SetupConsumer {
+  decision: ConsumerDecision;
+  ignoredKeys: IgnoredKey[];
+  /** Scalars the loader reads differently from how they look. */
+  loaderReadings: LoaderReading[];
+  timesteps: TimestepRule;
+  karrasStartsAtMax: boolean;
+  /** The consumer's own spacing when it takes no spacing key. */
+  fixedSpacing?: TimestepSpacing;
+  /** Key a fix writes for each concept; null: the consumer cannot take that concept. */
+  insertKeys?: { [C in Concept]?: string | null };
+  /** What to change instead, per concept the consumer cannot take. */
+  cannotExpress: { [C in Concept]?: string };
+}
+
 /** What kind of file this document describes, from the concepts it sets. */
 export type ConfigRole = 'training' | 'sampling' | 'both';
 
@@ -95,6 +120,8 @@ export interface Setup {
   nullKeys?: { [C in Concept]?: FieldSource };
   /** Concepts taken from the paired training file (see setup/inherit.ts), and that file. */
   inherited?: { from: string; concepts: Concept[] };
+  /** The consumer profile's reading; absent for setups built without one (tests, old callers). */
+  consumer?: SetupConsumer;
 }
 
 /** Typed accessor; returns undefined when the concept is neither set nor assumed. */

@@ -7,6 +7,9 @@ import { dirname, isAbsolute, join, parse as parsePath, resolve } from 'node:pat
 import picomatch from 'picomatch';
 import { LineCounter, parseDocument } from 'yaml';
 import { SEVERITIES, type Severity } from '../base/findings';
+import { FAMILIES, FAMILY_IDS } from '../consumers/profiles';
+import { DIALECT_IDS, type DialectId } from '../consumers/dialects';
+import type { ConsumerSetting, FamilyId } from '../consumers/types';
 import { CONCEPTS, type Concept } from '../fields/concepts';
 import { HARD_NESTING_CAP } from '../parse/shared';
 import type { ParseLimits } from '../parse/types';
@@ -56,7 +59,7 @@ const LIMIT_RANGES: Record<keyof ParseLimits, [number, number]> = {
   maxAliasCount: [0, 1_000_000],
 };
 
-const TOP_LEVEL_FIELDS = ['include', 'exclude', 'rules', 'aliases', 'latentSpace', 'pairs', 'autoPair', 'limits'];
+const TOP_LEVEL_FIELDS = ['include', 'exclude', 'rules', 'aliases', 'latentSpace', 'pairs', 'autoPair', 'limits', 'consumers'];
 
 type Catalog = ReadonlyMap<string, RuleMeta>;
 
@@ -105,6 +108,9 @@ export function resolveProjectData(data: unknown, file: string, catalog: Catalog
         break;
       case 'limits':
         project.limits = limitTable(value, fail);
+        break;
+      case 'consumers':
+        project.consumers = consumerList(value, fail);
         break;
       default:
         fail(key, `unknown field${closest(key, TOP_LEVEL_FIELDS)}; fields: ${TOP_LEVEL_FIELDS.join(', ')}`);
@@ -218,6 +224,46 @@ function pairList(value: unknown, fail: Fail): FilePair[] {
       pair[key] = p as string;
     }
     return pair;
+  });
+}
+
+const CONSUMER_FIELDS = ['files', 'consumer', 'class', 'dialect'];
+
+function consumerList(value: unknown, fail: Fail): ConsumerSetting[] {
+  if (!Array.isArray(value)) return fail('consumers', `must be a list of { files, consumer, class, dialect }, not ${describe(value)}`);
+  return value.map((item, i) => {
+    const at = `consumers[${i}]`;
+    if (!isPlainObject(item)) return fail(at, `must be { files, consumer, class, dialect }, not ${describe(item)}`);
+    for (const key of Object.keys(item)) {
+      if (!CONSUMER_FIELDS.includes(key)) fail(`${at}.${key}`, `unknown field${closest(key, CONSUMER_FIELDS)}; fields: ${CONSUMER_FIELDS.join(', ')}`);
+    }
+    if (item.files === undefined) fail(`${at}.files`, 'is required (a glob or a list of globs)');
+    const setting: ConsumerSetting = { files: globList(item.files, `${at}.files`, fail) };
+    if (item.consumer !== undefined) {
+      const families = FAMILY_IDS as readonly string[];
+      if (typeof item.consumer !== 'string' || !families.includes(item.consumer)) {
+        fail(`${at}.consumer`, `must be one of ${families.join(', ')}, not ${describe(item.consumer)}${typeof item.consumer === 'string' ? closest(item.consumer, families) : ''}`);
+      }
+      setting.consumer = item.consumer as FamilyId;
+    }
+    if (item.class !== undefined) {
+      const family = FAMILIES.find((f) => f.id === setting.consumer);
+      if (!family) fail(`${at}.class`, 'needs a consumer family (consumer:) to belong to');
+      const names = family!.classes.map((c) => c.name);
+      if (typeof item.class !== 'string' || !names.includes(item.class)) {
+        fail(`${at}.class`, `must be a class of ${setting.consumer} (${names.join(', ')}), not ${describe(item.class)}`);
+      }
+      setting.class = item.class as string;
+    }
+    if (item.dialect !== undefined) {
+      const ids = DIALECT_IDS as readonly string[];
+      if (typeof item.dialect !== 'string' || !ids.includes(item.dialect)) {
+        fail(`${at}.dialect`, `must be one of ${ids.join(', ')}, not ${describe(item.dialect)}`);
+      }
+      setting.dialect = item.dialect as DialectId;
+    }
+    if (!setting.consumer && !setting.dialect) fail(at, 'sets neither a consumer nor a dialect');
+    return setting;
   });
 }
 

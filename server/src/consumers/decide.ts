@@ -1,0 +1,126 @@
+/**
+ * Which code consumes a document, and which loader parses it: from the project file's choice
+ * (per glob), else from evidence in the document (a class-name key and its value, a `target:`
+ * class path, section shapes, key sets) and the file name. Nothing matched: the generic reading.
+ */
+import type { LocatedMap, LocatedNode, ParsedDocument, SourceFormat } from '../parse/types';
+import { DIALECTS, type DialectId } from './dialects';
+import { FAMILIES, GENERIC_FAMILY, SCHEDULER_META_KEYS, familyById } from './profiles';
+import type { ConsumerClass, ConsumerDecision, ConsumerFamily, FamilyId } from './types';
+
+/** What the project file says for a path (already matched against its globs). */
+export interface ConsumerChoice {
+  family?: FamilyId;
+  /** A class name of the family (e.g. `EulerDiscreteScheduler`). */
+  className?: string;
+  dialect?: DialectId;
+  /** The glob that matched, for the evidence line. */
+  glob?: string;
+}
+
+export interface ConsumerReading {
+  decision: ConsumerDecision;
+  family: ConsumerFamily;
+  cls: ConsumerClass | null;
+  /** The map whose keys the consumer reads (null: the whole document, generic reading). */
+  section: LocatedMap | null;
+}
+
+interface Detected {
+  family: ConsumerFamily;
+  cls: ConsumerClass | null;
+  section: LocatedMap | null;
+  evidence: string[];
+}
+
+function scalarString(node: LocatedNode | null | undefined): string | null {
+  return node && node.kind === 'scalar' && typeof node.value === 'string' ? node.value : null;
+}
+
+function entryOf(map: LocatedMap, key: string) {
+  return map.entries.find((e) => e.key === key);
+}
+
+function baseName(path: string): string {
+  const parts = path.split(/[\\/]/);
+  return parts[parts.length - 1] ?? path;
+}
+
+function detectSchedulerConfig(root: LocatedMap, path: string): Detected | null {
+  const family = familyById('scheduler-config');
+  const classEntry = entryOf(root, '_class_name');
+  const className = scalarString(classEntry?.value);
+  const version = scalarString(entryOf(root, '_diffusers_version')?.value);
+  const name = baseName(path);
+  if (!className || !/Scheduler$/.test(className)) return null;
+  const evidence = [`_class_name: "${className}"`];
+  if (version) evidence.push(`_diffusers_version: "${version}"`);
+  if (/^scheduler_config\.json$/i.test(name) || /[\\/]scheduler[\\/]/.test(path)) evidence.push(`file name ${name}`);
+  const cls = family.classes.find((c) => c.name === className) ?? null;
+  if (!cls) evidence.push(`${className} has no profile: its keys are read the generic way`);
+  return { family, cls, section: root, evidence };
+}
+
+function detect(doc: ParsedDocument, path: string): Detected | null {
+  const root = doc.root;
+  if (!root || root.kind !== 'map') return null;
+  return detectSchedulerConfig(root, path);
+}
+
+function chooseDialect(
+  format: SourceFormat,
+  family: ConsumerFamily,
+  choice: ConsumerChoice | undefined,
+): { id: DialectId; basis: ConsumerDecision['dialectBasis'] } {
+  if (choice?.dialect) return { id: choice.dialect, basis: 'project' };
+  const json = format === 'json' || format === 'jsonc';
+  if (family.id !== 'generic') return { id: json ? family.dialect.json : family.dialect.yaml, basis: 'family' };
+  return { id: 'generic', basis: 'extension' };
+}
+
+export function decideConsumer(doc: ParsedDocument, format: SourceFormat, path: string, choice?: ConsumerChoice): ConsumerReading {
+  let detected: Detected | null = null;
+  let basis: ConsumerDecision['basis'] = 'fallback';
+  try {
+    detected = detect(doc, path);
+  } catch {
+    detected = null;
+  }
+  if (choice?.family) {
+    const family = familyById(choice.family);
+    const root = doc.root && doc.root.kind === 'map' ? doc.root : null;
+    const wanted = choice.className ?? (detected?.family.id === family.id ? detected.cls?.name : undefined);
+    const cls = wanted ? (family.classes.find((c) => c.name === wanted) ?? null) : (detected?.family.id === family.id ? detected.cls : null);
+    const evidence = [`project file: ${choice.glob ? `"${choice.glob}" ` : ''}sets consumer ${family.id}${choice.className ? ` (${choice.className})` : ''}`];
+    if (detected && detected.family.id === family.id) evidence.push(...detected.evidence);
+    detected = { family, cls, section: detected?.family.id === family.id ? detected.section : root, evidence };
+    basis = 'project';
+  } else if (detected) {
+    basis = 'file';
+  }
+  const family = detected?.family ?? GENERIC_FAMILY;
+  const dialect = chooseDialect(format, family, choice);
+  const evidence = detected?.evidence ?? ['no class-name key, target class path or known key set: read the generic way'];
+  const cls = detected?.cls ?? null;
+  return {
+    decision: {
+      family: family.id,
+      familyTitle: family.title,
+      className: cls?.name ?? null,
+      classSource: cls?.source ?? null,
+      basis,
+      evidence,
+      dialect: dialect.id,
+      dialectTitle: DIALECTS[dialect.id].title,
+      dialectBasis: dialect.basis,
+    },
+    family,
+    cls,
+    section: detected?.section ?? null,
+  };
+}
+
+/** Keys of the consumer's section that the consumer itself treats as metadata (never "ignored"). */
+export function metaKeysOf(family: ConsumerFamily): string[] {
+  return family.id === 'scheduler-config' ? SCHEDULER_META_KEYS : [];
+}

@@ -1,0 +1,85 @@
+/**
+ * What the setup stage needs from a consumer reading: which located keys the consumer takes,
+ * which it ignores, the defaults it applies (with the sentence that says so), and the plain-data
+ * summary the setup carries on.
+ */
+import { CONCEPTS, type Concept, type ConceptValues } from '../fields/concepts';
+import type { LocatedEntry, LocatedMap } from '../parse/types';
+import type { LoaderReading } from './readAs';
+import { metaKeysOf, type ConsumerReading } from './decide';
+import type { ConsumerClass } from './types';
+
+export interface IgnoredKeyInfo {
+  key: string;
+  path: string;
+  reason: string;
+}
+
+/** Keys of the consumer's section the class does not take. */
+export function ignoredKeysOf(reading: ConsumerReading): IgnoredKeyInfo[] {
+  const { cls, section, family } = reading;
+  if (!cls || !section) return [];
+  const meta = new Set(metaKeysOf(family));
+  const taken = new Set(cls.keys);
+  const out: IgnoredKeyInfo[] = [];
+  for (const e of section.entries) {
+    if (meta.has(e.key) || taken.has(e.key) || e.key === '<<') continue;
+    out.push({ key: e.key, path: e.key, reason: `${cls.name} does not take ${e.key}: the key has no effect` });
+  }
+  return out;
+}
+
+/**
+ * True when the consumer reads the entry at `path` (a hit of the concept finder). With a class
+ * profile only the section's own keys that the class takes count; class-name and metadata keys
+ * always count (they name the consumer).
+ */
+export function consumerTakes(reading: ConsumerReading | undefined, entry: LocatedEntry, parent: LocatedMap): boolean {
+  if (!reading || !reading.cls || !reading.section) return true;
+  if (parent !== reading.section) return false;
+  if (metaKeysOf(reading.family).includes(entry.key)) return true;
+  return reading.cls.keys.includes(entry.key);
+}
+
+function short(source: string): string {
+  const i = source.indexOf(' (');
+  return i > 0 ? source.slice(0, i) : source;
+}
+
+function shown(value: unknown): string {
+  return typeof value === 'string' ? `"${value}"` : String(value);
+}
+
+/** The sentence of a class default: `not set: DDIMScheduler uses timestep_spacing "leading" when the key is absent (...)`. */
+export function classDefaultNote(cls: ConsumerClass, concept: Concept, value: unknown): string {
+  const key = cls.conceptKeys[concept];
+  if (!key) {
+    const hint = cls.cannotExpress?.[concept];
+    return `not set: ${cls.name} has no setting for this (${hint ?? 'it always behaves this way'}); assumed ${shown(value)}`;
+  }
+  return `not set: ${cls.name} uses ${key} = ${shown(value)} when the key is absent (${short(cls.source)})`;
+}
+
+export function classDefaults(cls: ConsumerClass): { concept: Concept; value: ConceptValues[Concept]; note: string }[] {
+  const out: { concept: Concept; value: ConceptValues[Concept]; note: string }[] = [];
+  for (const concept of CONCEPTS) {
+    let value = cls.defaults[concept] as ConceptValues[Concept] | undefined;
+    if (concept === 'timestepSpacing' && value === undefined && cls.fixedSpacing) value = cls.fixedSpacing;
+    if (value === undefined) continue;
+    const note =
+      concept === 'timestepSpacing' && !cls.conceptKeys.timestepSpacing && cls.fixedSpacing
+        ? `${cls.name} takes no timestep_spacing: its own step selection is ${cls.fixedSpacing}-like and starts at T - 1 (${short(cls.source)})`
+        : classDefaultNote(cls, concept, value);
+    out.push({ concept, value, note });
+  }
+  return out;
+}
+
+/** Key a fix writes for each concept under this class (null: the class cannot take it). */
+export function insertKeysOf(cls: ConsumerClass): { [C in Concept]?: string | null } {
+  const out: { [C in Concept]?: string | null } = {};
+  for (const concept of CONCEPTS) out[concept] = cls.conceptKeys[concept] ?? null;
+  return out;
+}
+
+export type { LoaderReading };

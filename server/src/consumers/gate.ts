@@ -1,0 +1,42 @@
+/**
+ * Fixes a consumer can express. A fix that would set a concept the consuming class does not take
+ * (inserting a key it rejects or silently ignores) is not offered; the finding says what to change
+ * instead (another class, an explicit beta list, a pipeline argument, a training-script flag).
+ */
+import type { Concept } from '../fields/concepts';
+import type { Setup } from '../setup/types';
+
+interface EditLike {
+  kind: string;
+  concept: Concept;
+}
+
+interface FixLike {
+  edits: EditLike[];
+}
+
+export interface GatedFixes<F extends FixLike> {
+  fixes: F[];
+  /** One sentence per concept that could not be written, for the finding's message. */
+  hints: string[];
+}
+
+export function gateFixes<F extends FixLike>(setup: Setup, fixes: readonly F[]): GatedFixes<F> {
+  const consumer = setup.consumer;
+  if (!consumer?.insertKeys) return { fixes: [...fixes], hints: [] };
+  const kept: F[] = [];
+  const hints: string[] = [];
+  const className = consumer.decision.className ?? 'the consuming code';
+  for (const fix of fixes) {
+    const blocked = fix.edits.filter((e) => e.kind === 'set' && consumer.insertKeys![e.concept] === null && !setup.fields[e.concept]?.source);
+    if (blocked.length === 0) {
+      kept.push(fix);
+      continue;
+    }
+    for (const e of blocked) {
+      const hint = consumer.cannotExpress[e.concept] ?? `${className} has no setting for ${e.concept}`;
+      if (!hints.includes(hint)) hints.push(hint);
+    }
+  }
+  return { fixes: kept, hints };
+}

@@ -1,0 +1,20 @@
+import type { ConsumerFamily, FamilyId } from '../types';
+import { SCHEDULER_CONFIG_FAMILY } from './schedulerConfig';
+
+export { SCHEDULER_CONFIG_FAMILY, SCHEDULER_CLASSES, SCHEDULER_META_KEYS } from './schedulerConfig';
+
+export const GENERIC_FAMILY: ConsumerFamily = {
+  id: 'generic',
+  title: 'generic reading (no consuming code recognised)',
+  dialect: { yaml: 'generic', json: 'generic' },
+  classes: [],
+};
+
+/** Every family, in the order detection tries them. */
+export const FAMILIES: ConsumerFamily[] = [SCHEDULER_CONFIG_FAMILY, GENERIC_FAMILY];
+
+export const FAMILY_IDS: FamilyId[] = FAMILIES.map((f) => f.id);
+
+export function familyById(id: FamilyId): ConsumerFamily {
+  return FAMILIES.find((f) => f.id === id) ?? GENERIC_FAMILY;
+}

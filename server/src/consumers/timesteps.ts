@@ -1,0 +1,73 @@
+/**
+ * Sampling timesteps as a consumer derives them, where that differs from the standard spacings of
+ * shared-math (DESIGN section 4). Each rule names the code it follows.
+ */
+import { karrasSigmas, samplingTimesteps, type ReadonlyFloat64Array } from '@noiselint/shared-math';
+import type { TimestepSpacing } from '../fields/concepts';
+import type { TimestepRule } from './types';
+
+export type TimestepsResult = { ok: true; value: number[] } | { ok: false; problem: string };
+
+/**
+ * - 'n-plus-one' (multistep DPM-Solver, UniPC, single-step DPM-Solver set_timesteps, diffusers
+ *   0.30): linspace: round(linspace(0, T - 1, N + 1)) reversed, last dropped; leading: stride
+ *   floor(T / (N + 1)), (0..N) * stride reversed, last dropped, plus the offset; trailing as
+ *   standard.
+ * - 'ldm-ddim' (latent-diffusion ldm/modules/diffusionmodules/util.py make_ddim_timesteps,
+ *   "uniform"): stride floor(T / N), (0..N-1) * stride + 1, noisiest first (recalled from memory).
+ * - otherwise the standard spacings.
+ */
+export function consumerTimesteps(
+  rule: TimestepRule,
+  spacing: TimestepSpacing,
+  T: number,
+  N: number,
+  offset: number,
+): TimestepsResult {
+  const standard = samplingTimesteps(spacing, T, N, offset);
+  if (!standard.ok) return standard;
+  if (rule === 'n-plus-one' && (spacing === 'linspace' || spacing === 'leading')) {
+    const out: number[] = [];
+    if (spacing === 'linspace') {
+      for (let k = N; k >= 1; k--) out.push(Math.round((k * (T - 1)) / N));
+    } else {
+      const stride = Math.floor(T / (N + 1));
+      for (let k = N; k >= 1; k--) out.push(k * stride + offset);
+    }
+    return { ok: true, value: out };
+  }
+  if (rule === 'ldm-ddim') {
+    const stride = Math.floor(T / N);
+    if (stride < 1) return { ok: false, problem: `${N} sampling steps do not fit in ${T} training steps` };
+    const out: number[] = [];
+    for (let k = N - 1; k >= 0; k--) out.push(k * stride + 1);
+    return { ok: true, value: out };
+  }
+  return { ok: true, value: Array.from(standard.value) };
+}
+
+/**
+ * Timesteps of a Karras-sigma sampler over a discrete schedule: the Karras et al. 2022 sigmas
+ * between the smallest and the largest training sigma (rho 7), each mapped back to a timestep by
+ * interpolating log sigma, as the library's _sigma_to_t does. The first is always T - 1.
+ */
+export function karrasTimesteps(alphaBar: ReadonlyFloat64Array, N: number, rho = 7): TimestepsResult {
+  const T = alphaBar.length;
+  const logSigma = new Float64Array(T);
+  for (let i = 0; i < T; i++) logSigma[i] = 0.5 * Math.log((1 - alphaBar[i]) / alphaBar[i]);
+  const smin = Math.exp(logSigma[0]);
+  const smax = Math.exp(logSigma[T - 1]);
+  if (!Number.isFinite(smax)) return { ok: false, problem: 'the largest training sigma is infinite (zero terminal SNR)' };
+  const k = karrasSigmas(N, smin, smax, rho);
+  if (!k.ok) return k;
+  const out: number[] = [];
+  for (const sigma of k.value) {
+    const ls = Math.log(sigma);
+    let lo = 0;
+    while (lo < T - 2 && logSigma[lo + 1] <= ls) lo++;
+    const w = Math.min(1, Math.max(0, (ls - logSigma[lo]) / (logSigma[lo + 1] - logSigma[lo])));
+    out.push(Math.round(lo + w));
+  }
+  out[0] = T - 1;
+  return { ok: true, value: out };
+}

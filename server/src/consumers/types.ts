@@ -1,0 +1,90 @@
+/**
+ * The consumer profile stage: for each document, which code consumes it (a scheduler class, a
+ * model class, a training script's arguments) and which loader parses it. Profiles are data, one
+ * file per family under profiles/; the decision and its evidence travel with the setup so that
+ * explain, hover and the JSON output can show them.
+ */
+import type { Concept, ConceptValues, TimestepSpacing } from '../fields/concepts';
+import type { DialectId } from './dialects/types';
+
+export type FamilyId = 'scheduler-config' | 'latent-diffusion' | 'config-object' | 'training-args' | 'pixel-args' | 'generic';
+
+export type ConceptDefaults = { [C in Concept]?: ConceptValues[C] };
+
+/**
+ * How a consumer turns a step count into sampling timesteps:
+ * - 'standard': DESIGN section 4 (leading floor(T/N) stride + offset; linspace; trailing);
+ * - 'n-plus-one': the multistep solvers' variant, N + 1 points with the last dropped (leading
+ *   stride floor(T/(N+1)); linspace round(linspace(0, T-1, N+1)) reversed, last dropped);
+ * - 'ldm-ddim': the latent-diffusion code's own DDIM selection, uniform stride floor(T/N)
+ *   plus one (make_ddim_timesteps adds 1 to each step);
+ * - 'flow': flow matching (shifted t from 1 down).
+ */
+export type TimestepRule = 'standard' | 'n-plus-one' | 'ldm-ddim' | 'flow';
+
+/** One consuming class or script (a scheduler class, a model class, an argument parser). */
+export interface ConsumerClass {
+  /** As written in the file (`DDIMScheduler`, `ldm.models.diffusion.ddpm.LatentDiffusion`). */
+  name: string;
+  /** Where the facts below come from: library, version and file. */
+  source: string;
+  /** Keys it reads, exactly as spelled (its keyword arguments / config fields). */
+  keys: string[];
+  /** The key it reads each concept from (the spelling a fix writes). Concepts absent here it cannot take. */
+  conceptKeys: Partial<Record<Concept, string>>;
+  /** What it uses when a key is absent. */
+  defaults: ConceptDefaults;
+  /** Constructor defaults of keys that matter on their own (separate keys of one concept). */
+  keyDefaults?: Record<string, string | number | boolean | null>;
+  timesteps: TimestepRule;
+  /** Spacing used when the class reads no spacing key (fixed by its code). */
+  fixedSpacing?: TimestepSpacing;
+  /** Accepted values per key (as written), when the class checks them. */
+  enums?: Record<string, string[]>;
+  /** With Karras sigmas on, the first sampled sigma is the largest training sigma whatever the spacing. */
+  karrasStartsAtMax?: boolean;
+  /** Two keys of the class that one concept stands for but the class reads separately. */
+  separateKeys?: string[][];
+  /**
+   * What to tell the user when a fix would need a concept this class cannot take, per concept
+   * (e.g. "pass guidance_rescale to the pipeline call").
+   */
+  cannotExpress?: Partial<Record<Concept, string>>;
+}
+
+export interface ConsumerFamily {
+  id: FamilyId;
+  /** Shown in explain: "scheduler config saved by the open diffusion library". */
+  title: string;
+  /** Loader assumed for the family when neither the project file nor the file says. */
+  dialect: { yaml: DialectId; json: DialectId };
+  /** Where in the document the consumer's keys sit (dotted path from the root; '' for the root). */
+  sectionPath?: string;
+  classes: ConsumerClass[];
+}
+
+/** The decision for one document, with its evidence; plain data for explain, hover and JSON. */
+export interface ConsumerDecision {
+  family: FamilyId;
+  familyTitle: string;
+  /** The consuming class, when the family has several and the file names one. */
+  className: string | null;
+  classSource: string | null;
+  /** 'file': evidence in the file; 'project': the project file chose it; 'fallback': nothing matched. */
+  basis: 'file' | 'project' | 'fallback';
+  evidence: string[];
+  dialect: DialectId;
+  dialectTitle: string;
+  dialectBasis: 'file' | 'project' | 'family' | 'extension';
+}
+
+/** `consumers:` entry of the project file (validated in workspace/projectFile.ts). */
+export interface ConsumerSetting {
+  /** Globs relative to the project root. */
+  files: string[];
+  /** A consumer family id (scheduler-config, latent-diffusion, ...). */
+  consumer?: FamilyId;
+  /** A class of that family, e.g. EulerDiscreteScheduler. */
+  class?: string;
+  dialect?: DialectId;
+}
