@@ -108,9 +108,33 @@ describe('explain --format json', () => {
     expect(json.files.map((f: { path: string }) => f.path)).toEqual([linear, cosine]);
     for (const f of json.files) {
       expect(Object.keys(f.documents[0]).sort()).toEqual(
-        ['index', 'isDiffusionConfig', 'problems', 'rescaled', 'sampling', 'schedule', 'setup'].sort(),
+        ['consumer', 'index', 'isDiffusionConfig', 'problems', 'rescaled', 'sampling', 'schedule', 'setup'].sort(),
       );
     }
+    expect(json.version).toBe(2);
+  });
+
+  it('shows the consumer decision and its evidence (contract version 2)', async () => {
+    const saved = file(
+      'scheduler_config.json',
+      JSON.stringify({ _class_name: 'EulerDiscreteScheduler', _diffusers_version: '0.30.3', beta_schedule: 'scaled_linear',
+        beta_start: 0.00085, beta_end: 0.012, clip_sample: false, num_train_timesteps: 1000 }),
+    );
+    const json = await explainJson(saved);
+    const consumer = json.files[0].documents[0].consumer;
+    expect(consumer.family).toBe('scheduler-config');
+    expect(consumer.className).toBe('EulerDiscreteScheduler');
+    expect(consumer.basis).toBe('file');
+    expect(consumer.evidence).toContain('_class_name: "EulerDiscreteScheduler"');
+    expect(consumer.dialect).toBe('python-json');
+    // The Euler class takes no clip_sample (diffusers 0.30, scheduling_euler_discrete.py).
+    expect(consumer.ignoredKeys.map((k: { key: string }) => k.key)).toEqual(['clip_sample']);
+    // Its spacing default is linspace, not the generic leading (same source).
+    expect(json.files[0].documents[0].setup.timestepSpacing).toBe('linspace');
+    const c = capture(dir);
+    expect(await main(['explain', saved], c.io)).toBe(0);
+    expect(c.out()).toContain('read as: EulerDiscreteScheduler, scheduler config saved by the open diffusion library');
+    expect(c.out()).toMatch(/timestepSpacing\s+linspace\s+\(assumed: EulerDiscreteScheduler's default for an absent timestep_spacing/);
   });
 });
 

@@ -50,14 +50,14 @@ function shown(value: unknown): string {
   return typeof value === 'string' ? `"${value}"` : String(value);
 }
 
-/** The sentence of a class default: `not set: DDIMScheduler uses timestep_spacing "leading" when the key is absent (...)`. */
+/** The basis of a class default: `DDIMScheduler's default for an absent timestep_spacing (diffusers 0.30, ...)`. */
 export function classDefaultNote(cls: ConsumerClass, concept: Concept, value: unknown): string {
   const key = cls.conceptKeys[concept];
   if (!key) {
     const hint = cls.cannotExpress?.[concept];
-    return `not set: ${cls.name} has no setting for this (${hint ?? 'it always behaves this way'}); assumed ${shown(value)}`;
+    return `${cls.name} has no setting for this (${hint ?? 'it always behaves this way'})`;
   }
-  return `not set: ${cls.name} uses ${key} = ${shown(value)} when the key is absent (${short(cls.source)})`;
+  return `${cls.name}'s default for an absent ${key} (${short(cls.source)})`;
 }
 
 export function classDefaults(cls: ConsumerClass): { concept: Concept; value: ConceptValues[Concept]; note: string }[] {

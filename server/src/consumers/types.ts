@@ -43,6 +43,11 @@ export interface ConsumerClass {
   enums?: Record<string, string[]>;
   /** With Karras sigmas on, the first sampled sigma is the largest training sigma whatever the spacing. */
   karrasStartsAtMax?: boolean;
+  /**
+   * With its zero-SNR rescale flag on, the class itself clamps the last abar to 2^-24, so its first
+   * sigma is finite (about 4096).
+   */
+  clampsZeroSnrSigma?: boolean;
   /** Two keys of the class that one concept stands for but the class reads separately. */
   separateKeys?: string[][];
   /**

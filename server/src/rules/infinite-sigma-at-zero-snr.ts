@@ -19,6 +19,10 @@ overflow). Karras et al. 2022 spacing interpolates between sigma_min and sigma_m
 undefined when sigma_max is infinite. Check that the sampling code does the clamp; without it the
 first step produces NaN or a black image.
 
+A saved scheduler config of a class that does this clamp itself when its
+\`rescale_betas_zero_snr\` flag is on (the Euler, Euler ancestral, multistep DPM-Solver and
+UniPC classes of the open diffusion library) is not flagged: the consumer profile knows it.
+
 ## A flagged config
 
 \`\`\`yaml
@@ -83,6 +87,8 @@ export const infiniteSigmaAtZeroSnr = defineRule({
     const schedule = discreteSchedule(analysis);
     const sigmas = analysis.sigmas;
     if (!schedule || !sigmas || !(schedule.reachesZeroSnr || sigmas.sigmaMax === Infinity)) return [];
+    // A consuming class that applies the rescale itself also clamps the last step (consumer profile).
+    if (setup.consumer?.clampsZeroSnrSigma && isSet(setup, 'zeroTerminalSnr') && setup.fields.zeroTerminalSnr?.value === true) return [];
     const clampedSigma = sigmaFromAlphaBar(ZERO_SNR_ALPHA_BAR_CLAMP);
     const karras = setup.fields.karrasSigmas?.value === true;
     const sampler = setup.fields.sampler?.value;

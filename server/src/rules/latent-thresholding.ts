@@ -8,7 +8,9 @@ Sample clipping or dynamic thresholding turned on for a model that denoises late
 pixels. Whether a model is latent comes from the project file's \`latentSpace\` setting, or is
 inferred from the file: a scaled_linear schedule (the usual choice of latent models), or a key
 naming an autoencoder (\`vae\`, \`autoencoder\`, \`first_stage\`, \`latent...\`). The message
-says how it was decided.
+says how it was decided. A saved scheduler config that leaves \`clip_sample\` out is read with its
+class's default: the DDIM and DDPM classes of the open diffusion library clip when the key is
+absent, and the message says that the value is assumed.
 
 ## What the run loses
 
@@ -72,14 +74,16 @@ export const latentThresholding = defineRule({
   check(ctx) {
     const { setup } = ctx;
     const thresholding = setup.fields.thresholding;
-    if (!thresholding || thresholding.assumed || thresholding.value !== true) return [];
+    if (!thresholding || thresholding.value !== true) return [];
+    // An assumed "on" counts only when it is the consuming class's own default (consumer profile).
+    if (thresholding.assumed && !setup.consumer?.decision.className) return [];
     if (setup.fields.latentSpace?.value !== true) return [];
     return [
       {
         message:
           'sample clipping / thresholding is on, but the model denoises latents: latents are not bounded to [-1, 1], ' +
           'so clipping cuts off real content (deep shadows, bright highlights)' +
-          assumedNote(setup, ['latentSpace']),
+          assumedNote(setup, ['thresholding', 'latentSpace']),
         at: 'thresholding',
         fixes: [
           {

@@ -194,6 +194,7 @@ function consumerSummary(reading: ConsumerReading, loaderReadings: LoaderReading
     loaderReadings,
     timesteps: cls?.timesteps ?? 'standard',
     karrasStartsAtMax: cls?.karrasStartsAtMax === true,
+    clampsZeroSnrSigma: cls?.clampsZeroSnrSigma === true,
     cannotExpress: { ...(cls?.cannotExpress ?? {}) },
   };
   if (cls?.fixedSpacing) out.fixedSpacing = cls.fixedSpacing;
@@ -220,7 +221,7 @@ function assumeClassDefaults(setup: Setup, decided: Map<Concept, Decided>, readi
   if (thresholding?.value === true) return;
   for (const [key, value] of Object.entries(cls.keyDefaults)) {
     if (value !== true || section.entries.some((e) => e.key === key)) continue;
-    const note = `not set: ${cls.name} uses ${key} = true when the key is absent (${cls.source.split(' (')[0]})`;
+    const note = `${cls.name}'s default for an absent ${key} (${cls.source.split(' (')[0]})`;
     setField(fields, 'thresholding', true, null, note);
     if (!setup.assumed.includes('thresholding')) setup.assumed.push('thresholding');
     return;

@@ -82,6 +82,8 @@ export interface SetupConsumer {
   loaderReadings: LoaderReading[];
   timesteps: TimestepRule;
   karrasStartsAtMax: boolean;
+  /** The consumer clamps the last abar to 2^-24 itself when its zero-SNR flag is on. */
+  clampsZeroSnrSigma: boolean;
   /** The consumer's own spacing when it takes no spacing key. */
   fixedSpacing?: TimestepSpacing;
   /** Key a fix writes for each concept; null: the consumer cannot take that concept. */

@@ -55,7 +55,23 @@ export interface ExplainDocumentJson {
     outOfRange: number[];
   } | null;
   rescaled: { terminalSnr: number | null; terminalSignal: number | null } | null;
+  /** Which code consumes the document and which loader parses it (consumer profile stage). */
+  consumer: ExplainConsumerJson | null;
   problems: string[];
+}
+
+export interface ExplainConsumerJson {
+  family: string;
+  familyTitle: string;
+  className: string | null;
+  classSource: string | null;
+  basis: string;
+  evidence: string[];
+  dialect: string;
+  dialectTitle: string;
+  dialectBasis: string;
+  ignoredKeys: { key: string; reason: string }[];
+  loaderReadings: { path: string; raw: string; looks: string; loaded: string }[];
 }
 
 export interface ExplainJson {
@@ -110,8 +126,48 @@ export function explainDocumentJson(doc: DocumentResult): ExplainDocumentJson {
       outOfRange: sampling.outOfRange,
     },
     rescaled: rescaled && { terminalSnr: num(rescaled.terminalSnr), terminalSignal: num(rescaled.terminalSignal) },
+    consumer: consumerJson(doc.setup),
     problems: problemsOf(doc),
   };
+}
+
+function typedText(t: { value: unknown; kind: string }): string {
+  return t.kind === 'str' ? `the string ${JSON.stringify(t.value)}` : `${t.kind} ${String(t.value)}`;
+}
+
+function consumerJson(setup: Setup): ExplainConsumerJson | null {
+  const c = setup.consumer;
+  if (!c) return null;
+  const d = c.decision;
+  return {
+    family: d.family,
+    familyTitle: d.familyTitle,
+    className: d.className,
+    classSource: d.classSource,
+    basis: d.basis,
+    evidence: [...d.evidence],
+    dialect: d.dialect,
+    dialectTitle: d.dialectTitle,
+    dialectBasis: d.dialectBasis,
+    ignoredKeys: c.ignoredKeys.map((k) => ({ key: k.key, reason: k.reason })),
+    loaderReadings: c.loaderReadings.map((r) => ({ path: r.path, raw: r.raw, looks: typedText(r.looks), loaded: typedText(r.loaded) })),
+  };
+}
+
+/** The consumer decision as explain text lines (also used by hover). */
+export function consumerLines(setup: Setup): string[] {
+  const c = setup.consumer;
+  if (!c) return [];
+  const d = c.decision;
+  const how = d.basis === 'project' ? 'chosen in the project file' : d.basis === 'file' ? 'from the file' : 'nothing recognised';
+  const lines = [`  read as: ${d.className ? `${d.className}, ` : ''}${d.familyTitle} (${how})`];
+  for (const e of d.evidence) lines.push(`    evidence: ${e}`);
+  if (d.classSource) lines.push(`    source: ${d.classSource}`);
+  const dialectHow = d.dialectBasis === 'project' ? 'project file' : d.dialectBasis === 'family' ? `usual loader of ${d.family}` : 'file extension';
+  lines.push(`  loader: ${d.dialectTitle} (${dialectHow})`);
+  for (const k of c.ignoredKeys) lines.push(`    ignored: ${k.key}: ${k.reason}`);
+  for (const r of c.loaderReadings) lines.push(`    loader reads ${r.path}: ${r.raw} as ${typedText(r.loaded)} (looks like ${typedText(r.looks)})`);
+  return lines;
 }
 
 export function explainJson(files: FileReading[]): ExplainJson {
@@ -190,16 +246,20 @@ function documentText(doc: DocumentResult, count: number): string[] {
     return lines;
   }
   lines.push(`${head}:`);
+  lines.push(...consumerLines(doc.setup));
   lines.push('  setup:');
   const width = Math.max(...CONCEPTS.map((c) => c.length));
   for (const concept of CONCEPTS) {
     const field = doc.setup.fields[concept];
     if (!field) continue;
+    const classDefault = !field.source && !field.inherited && doc.setup.consumer?.decision.className && field.note;
     const where = field.source
       ? `  (${field.source.path})`
       : field.inherited
         ? `  (from training file ${field.inherited.from}${field.inherited.key ? `: ${field.inherited.key}` : ', assumed there'})`
-        : '  (assumed default)';
+        : classDefault
+          ? `  (assumed: ${field.note})`
+          : '  (assumed default)';
     lines.push(`    ${concept.padEnd(width)}  ${valueText(field.value)}${where}`);
   }
   const { schedule } = doc.analysis;

@@ -209,6 +209,11 @@ export function hoverModelAt(file: FileReading, offset: number): HoverModel | nu
   const notes: string[] = [...inheritedLines(doc)];
   notes.push(...analysis.scheduleProblems.map((p) => `The schedule could not be computed: ${p}.`));
   notes.push(...rescaleNotes(analysis));
+  const consumer = doc.setup.consumer?.decision;
+  if (consumer && consumer.family !== 'generic') {
+    const who = consumer.className ? `${consumer.className} (${consumer.familyTitle})` : consumer.familyTitle;
+    notes.push(`Read as ${who}, from ${consumer.evidence[0]}; loader: ${consumer.dialectTitle}.`);
+  }
   const s = analysis.schedule;
   return {
     topic,

@@ -5,6 +5,10 @@
  * `from_config` passes the keys the constructor takes and ignores the rest, so a key the class
  * does not take has no effect, and an absent key means the constructor's default.
  *
+ * The four classes marked clampsZeroSnrSigma set alphas_cumprod[-1] = 2**-24 when
+ * rescale_betas_zero_snr is on ("close to 0 without being 0 so first sigma is not inf"; recalled
+ * from memory of diffusers 0.30).
+ *
  * Facts per class: recalled from memory of diffusers 0.30 (src/diffusers/schedulers/), checked
  * where noted against stored copies of the sources (huggingface/diffusers; a copy of 0.27's
  * constructors in A1ex-Chen/DL_project_log; the 0.23.0 API reference). Timestep rules from each
@@ -99,6 +103,7 @@ export const SCHEDULER_CLASSES: ConsumerClass[] = [
     conceptKeys: { ...BETA_CONCEPTS, stepsOffset: 'steps_offset', timestepSpacing: 'timestep_spacing',
       zeroTerminalSnr: 'rescale_betas_zero_snr', karrasSigmas: 'use_karras_sigmas' },
     defaults: { ...LINEAR_DEFAULTS, timestepSpacing: 'linspace', stepsOffset: 0, zeroTerminalSnr: false, karrasSigmas: false },
+    clampsZeroSnrSigma: true,
     timesteps: 'standard',
     karrasStartsAtMax: true,
     enums: enums(),
@@ -110,6 +115,7 @@ export const SCHEDULER_CLASSES: ConsumerClass[] = [
     conceptKeys: { ...BETA_CONCEPTS, stepsOffset: 'steps_offset', timestepSpacing: 'timestep_spacing',
       zeroTerminalSnr: 'rescale_betas_zero_snr' },
     defaults: { ...LINEAR_DEFAULTS, timestepSpacing: 'linspace', stepsOffset: 0, zeroTerminalSnr: false },
+    clampsZeroSnrSigma: true,
     timesteps: 'standard',
     enums: enums(),
   }),
@@ -152,6 +158,7 @@ export const SCHEDULER_CLASSES: ConsumerClass[] = [
       zeroTerminalSnr: 'rescale_betas_zero_snr', karrasSigmas: 'use_karras_sigmas', thresholding: 'thresholding' },
     defaults: { ...LINEAR_DEFAULTS, timestepSpacing: 'linspace', stepsOffset: 0, zeroTerminalSnr: false, karrasSigmas: false },
     keyDefaults: { thresholding: false },
+    clampsZeroSnrSigma: true,
     timesteps: 'n-plus-one',
     karrasStartsAtMax: true,
     enums: enums(),
@@ -187,6 +194,7 @@ export const SCHEDULER_CLASSES: ConsumerClass[] = [
       zeroTerminalSnr: 'rescale_betas_zero_snr', karrasSigmas: 'use_karras_sigmas', thresholding: 'thresholding' },
     defaults: { ...LINEAR_DEFAULTS, timestepSpacing: 'linspace', stepsOffset: 0, zeroTerminalSnr: false, karrasSigmas: false },
     keyDefaults: { thresholding: false },
+    clampsZeroSnrSigma: true,
     timesteps: 'n-plus-one',
     karrasStartsAtMax: true,
     enums: enums(),

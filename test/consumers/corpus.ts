@@ -1,0 +1,109 @@
+/**
+ * Consumer corpora: test/consumers/corpus/<family>/clean/* must give no error or warning;
+ * test/consumers/corpus/<family>/flawed/<name>.<ext> has <name>.expected.json with its exact
+ * findings and fixes. After each fix the text is read back as its loader and consumer read it:
+ * the consumer section changes exactly by the expected keys, and no key the consumer does not
+ * take is added.
+ */
+import { existsSync, readdirSync, readFileSync } from 'node:fs';
+import { extname, join } from 'node:path';
+import { readFile, analyzeText } from '../../server/src/engine/api';
+import type { Finding } from '../../server/src/base/findings';
+import { decideConsumer, type ConsumerChoice } from '../../server/src/consumers/decide';
+import { readAs } from '../../server/src/consumers/readAs';
+import { metaKeysOf } from '../../server/src/consumers/decide';
+import { applyEdits } from '../../server/src/fix';
+import type { LocatedNode, ScalarValue } from '../../server/src/parse/types';
+
+export const CORPUS_ROOT = join(__dirname, 'corpus');
+const INPUT = /\.(json|jsonc|yaml|yml)$/;
+const SIDE = /\.(expected\.json|after-\d+\.[a-z]+)$/;
+
+export interface ExpectedFix {
+  title: string;
+  /** Keys of the consumer section the fix changes, with the value the loader reads afterwards (null: removed). */
+  changes: Record<string, ScalarValue | ScalarValue[]>;
+}
+
+export interface ExpectedFinding {
+  rule: string;
+  severity: 'error' | 'warning' | 'info' | 'hint';
+  /** Exact flagged text. */
+  text: string;
+  /** Substrings the message must contain (numbers with their source in `sources`). */
+  message: string[];
+  fixes: ExpectedFix[];
+}
+
+export interface Expectation {
+  about: string;
+  /** Family, class and dialect the decision must name. */
+  decision: { family: string; className: string | null; dialect: string };
+  findings: ExpectedFinding[];
+  /** Where each number the messages must contain comes from. */
+  sources?: Record<string, string>;
+}
+
+export interface CorpusFile {
+  family: string;
+  kind: 'clean' | 'flawed';
+  name: string;
+  path: string;
+  text: string;
+}
+
+export function corpusFiles(): CorpusFile[] {
+  const out: CorpusFile[] = [];
+  if (!existsSync(CORPUS_ROOT)) return out;
+  for (const family of readdirSync(CORPUS_ROOT).sort()) {
+    for (const kind of ['clean', 'flawed'] as const) {
+      const dir = join(CORPUS_ROOT, family, kind);
+      if (!existsSync(dir)) continue;
+      for (const name of readdirSync(dir).sort()) {
+        if (!INPUT.test(name) || SIDE.test(name)) continue;
+        const path = join(dir, name);
+        out.push({ family, kind, name, path, text: readFileSync(path, 'utf8') });
+      }
+    }
+  }
+  return out;
+}
+
+export function expectationOf(file: CorpusFile): Expectation | null {
+  const p = file.path.replace(/\.[a-z]+$/, '.expected.json');
+  return existsSync(p) ? (JSON.parse(readFileSync(p, 'utf8')) as Expectation) : null;
+}
+
+/** A node as its loader hands it to the consumer (after the dialect's typing). */
+export function plain(node: LocatedNode | null): unknown {
+  if (!node) return null;
+  if (node.kind === 'scalar') return node.value;
+  if (node.kind === 'list') return node.items.map(plain);
+  const out: Record<string, unknown> = {};
+  for (const e of node.entries) out[e.key] = plain(e.value);
+  return out;
+}
+
+/** The consumer's section of the first document, read as its loader reads it. */
+export function loadSection(text: string, path: string, choice?: ConsumerChoice): { values: Record<string, unknown>; accepted: Set<string> | null } {
+  const read = readFile(text, { path });
+  const doc = read.parsed.documents[0];
+  const reading = decideConsumer(doc, read.parsed.format, path, choice);
+  readAs(doc.root, read.parsed.format, reading.decision.dialect);
+  const section = reading.section ?? (doc.root && doc.root.kind === 'map' ? doc.root : null);
+  const values = (section ? plain(section) : {}) as Record<string, unknown>;
+  const accepted = reading.cls ? new Set([...reading.cls.keys, ...metaKeysOf(reading.family)]) : null;
+  return { values, accepted };
+}
+
+export function findingsOf(file: CorpusFile): Finding[] {
+  return analyzeText(file.text, { path: file.path }).findings;
+}
+
+export function applyFix(text: string, finding: Finding, index: number): string {
+  return applyEdits(text, finding.fixes[index].edits);
+}
+
+export function extOf(path: string): string {
+  return extname(path);
+}
