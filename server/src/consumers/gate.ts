@@ -4,7 +4,16 @@
  * instead (another class, an explicit beta list, a pipeline argument, a training-script flag).
  */
 import type { Concept } from '../fields/concepts';
-import type { Setup } from '../setup/types';
+
+/** The part of a setup the gate reads (the setup stage comes after this one). */
+export interface GateSubject {
+  fields: { [C in Concept]?: { source: unknown } };
+  consumer?: {
+    decision: { className: string | null };
+    insertKeys?: { [C in Concept]?: string | null };
+    cannotExpress: { [C in Concept]?: string };
+  };
+}
 
 interface EditLike {
   kind: string;
@@ -21,7 +30,7 @@ export interface GatedFixes<F extends FixLike> {
   hints: string[];
 }
 
-export function gateFixes<F extends FixLike>(setup: Setup, fixes: readonly F[]): GatedFixes<F> {
+export function gateFixes<F extends FixLike>(setup: GateSubject, fixes: readonly F[]): GatedFixes<F> {
   const consumer = setup.consumer;
   if (!consumer?.insertKeys) return { fixes: [...fixes], hints: [] };
   const kept: F[] = [];

@@ -2,7 +2,7 @@
  * The analysis core's front door, shared by the CLI and the language server:
  * text -> located tree -> setup -> analysis -> findings. Never throws.
  */
-import { problemsForLoader, readDocument } from '../consumers';
+import { DIALECTS, problemsForLoader, readDocument } from '../consumers';
 import { parseText, formatFromPath } from '../parse';
 import { buildSetup, inheritanceFrom, inheritSetup, type ScheduleInheritance } from '../setup';
 import { consumerChoiceFor } from '../consumers/choice';
@@ -21,9 +21,12 @@ export function inheritanceOf(options: AnalyzeOptions): ScheduleInheritance | nu
 /** Parse, resolve and analyse without running rules (explain, hover, plot). */
 export function readFile(text: string, options: AnalyzeOptions): FileReading {
   const format = options.format ?? formatFromPath(options.path) ?? 'yaml';
-  const parsed = parseText(text, format, { ...options.project?.limits, ...options.limits }, options.parse);
-  const inheritance = inheritanceOf(options);
   const choice = consumerChoiceFor(options.project, options.path);
+  // A loader chosen in the project file types the scalars while parsing; otherwise the consumer
+  // stage decides it from the tree and re-types them (consumers/readAs.ts).
+  const parseOptions = choice?.dialect && !options.parse?.interpret ? { ...options.parse, interpret: DIALECTS[choice.dialect].interpret } : options.parse;
+  const parsed = parseText(text, format, { ...options.project?.limits, ...options.limits }, parseOptions);
+  const inheritance = inheritanceOf(options);
   const readings = parsed.documents.map((doc) => readDocument(doc, parsed, options.path, choice));
   parsed.problems = problemsForLoader(parsed.problems, readings);
   const documents: DocumentResult[] = parsed.documents.map((doc, i) => {

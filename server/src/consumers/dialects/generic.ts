@@ -59,6 +59,7 @@ export function typeTagged(raw: RawScalar, plain: (text: string) => TypedValue):
 }
 
 export const genericDialect: Dialect = {
+  interpret: (raw) => genericDialect.typeScalar(raw).value,
   id: 'generic',
   title: 'generic reading (YAML 1.2 core schema / JSON)',
   source: 'YAML 1.2.2 specification, section 10.3 (core schema); RFC 8259 (JSON)',

@@ -19,6 +19,7 @@ export function typeOmegaconfPlain(text: string): TypedValue {
 }
 
 export const omegaconfDialect: Dialect = {
+  interpret: (raw) => omegaconfDialect.typeScalar(raw).value,
   id: 'omegaconf',
   title: 'YAML read by OmegaConf (YAML 1.1 types, exponent floats, ${...} interpolation)',
   source: 'recalled from memory of OmegaConf 2.3 (omegaconf/_utils.py get_yaml_loader; interpolation grammar)',

@@ -9,6 +9,7 @@ import { typeNonFiniteJsonToken, typeCorePlain } from './generic';
 import { str, unquoted, type Dialect } from './types';
 
 export const pythonJsonDialect: Dialect = {
+  interpret: (raw) => pythonJsonDialect.typeScalar(raw).value,
   id: 'python-json',
   title: "JSON read by Python's json module (NaN and Infinity allowed, no comments)",
   source: 'recalled from memory of CPython 3.11, Lib/json/decoder.py and Lib/json/scanner.py',

@@ -56,6 +56,7 @@ export function typePyyamlPlain(text: string): TypedValue {
 }
 
 export const pyyamlDialect: Dialect = {
+  interpret: (raw) => pyyamlDialect.typeScalar(raw).value,
   id: 'pyyaml',
   title: 'YAML read by PyYAML (YAML 1.1 implicit types)',
   source: 'recalled from memory of PyYAML 6.0, yaml/resolver.py (implicit resolvers)',

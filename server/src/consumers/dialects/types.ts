@@ -1,22 +1,17 @@
 /**
  * A loader dialect decides what a raw scalar is: the same text `1e-4` is a float for one loader
  * and a string for another. A dialect is a pure function from a raw scalar (its source text, its
- * style and its tag) to a typed value, so any reader of the text (the YAML and JSON readers of
- * parse/, or a faster one) can hand it scalars without the dialect knowing the parser.
+ * style and its tag) to a typed value. Its `interpret` is parse/'s ScalarInterpreter, so the YAML
+ * readers call it directly when the dialect is known before parsing (the project file chose it);
+ * otherwise the consumer stage re-types the located tree's scalars with it (readAs.ts).
  */
+import type { RawScalar, ScalarInterpreter } from '../../parse/scalars';
 import type { ScalarValue } from '../../parse/types';
 
 export type DialectId = 'generic' | 'pyyaml' | 'omegaconf' | 'python-json';
 
-export interface RawScalar {
-  /** The scalar's text as written, quotes included for quoted styles. */
-  source: string;
-  style: 'plain' | 'single' | 'double' | 'block';
-  /** An explicit tag (`!!str`, `tag:yaml.org,2002:float`), if any. */
-  tag?: string;
-  /** The value the reader decoded for a quoted or block scalar (escapes applied). */
-  decoded?: string;
-}
+/** The raw scalar every reader of parse/ hands to its interpreter (parse/scalars.ts). */
+export type { RawScalar };
 
 export type TypedKind = 'str' | 'int' | 'float' | 'bool' | 'null';
 
@@ -32,6 +27,8 @@ export interface Dialect {
   /** Where the typing rules come from. */
   source: string;
   typeScalar(raw: RawScalar): TypedValue;
+  /** The same typing as parse/'s interpreter hook, so a reader can type scalars with it directly. */
+  interpret: ScalarInterpreter;
   /** The loader resolves `${...}` interpolations (OmegaConf). */
   interpolates: boolean;
   /** NaN, Infinity and -Infinity are valid JSON tokens for this loader. */
