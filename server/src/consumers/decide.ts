@@ -61,10 +61,52 @@ function detectSchedulerConfig(root: LocatedMap, path: string): Detected | null 
   return { family, cls, section: root, evidence };
 }
 
+function mapAt(node: LocatedNode | null | undefined, key: string): LocatedMap | null {
+  if (!node || node.kind !== 'map') return null;
+  const v = entryOf(node, key)?.value;
+  return v && v.kind === 'map' ? v : null;
+}
+
+function detectTargetConfig(root: LocatedMap): Detected | null {
+  const model = mapAt(root, 'model');
+  const target = scalarString(model ? entryOf(model, 'target')?.value : null);
+  if (!model || !target) return null;
+  const params = mapAt(model, 'params');
+  if (target.startsWith('ldm.models.diffusion.ddpm.')) {
+    const family = familyById('latent-diffusion');
+    const cls = family.classes.find((c) => c.name === target) ?? null;
+    const evidence = [`model.target: ${target}`];
+    if (params) evidence.push('model.params holds the class keyword arguments');
+    if (!cls) evidence.push(`${target} has no profile: its keys are read the generic way`);
+    return { family, cls, section: params, evidence };
+  }
+  if (target.startsWith('sgm.')) {
+    const family = familyById('config-object');
+    if (family.id === 'generic') return null;
+    const cls = family.classes.find((c) => c.name === target) ?? family.classes[0] ?? null;
+    return { family, cls, section: params, evidence: [`model.target: ${target}`, 'denoiser, sampler and guider configs are read per component'] };
+  }
+  return null;
+}
+
 function detect(doc: ParsedDocument, path: string): Detected | null {
   const root = doc.root;
   if (!root || root.kind !== 'map') return null;
-  return detectSchedulerConfig(root, path);
+  return detectSchedulerConfig(root, path) ?? detectTargetConfig(root) ?? detectArgs(root, path);
+}
+
+/** Flat argument files: a training script's arguments, or an older pixel model's argument set. */
+function detectArgs(root: LocatedMap, path: string): Detected | null {
+  for (const family of [familyById('pixel-args'), familyById('training-args')]) {
+    if (family.id === 'generic' || !family.signature) continue;
+    const keys = new Set(root.entries.map((e) => e.key));
+    const hits = family.signature.filter((k) => keys.has(k));
+    if (hits.length < (family.signatureMin ?? 2)) continue;
+    const cls = family.classes[0] ?? null;
+    void path;
+    return { family, cls, section: root, evidence: [`flat keys ${hits.slice(0, 4).join(', ')}${hits.length > 4 ? ', ...' : ''}`] };
+  }
+  return null;
 }
 
 function chooseDialect(

@@ -6,6 +6,7 @@
  */
 import type { LocatedNode, LocatedScalar, ScalarValue, SourceFormat, Span } from '../parse/types';
 import { DIALECTS, genericDialect, type Dialect, type DialectId, type TypedValue } from './dialects';
+import { resolveInterpolations } from './interpolate';
 
 export interface LoaderReading {
   span: Span;
@@ -16,6 +17,17 @@ export interface LoaderReading {
   loaded: TypedValue;
   /** Dotted path of the entry that holds the value. */
   path: string;
+  /** An interpolation the loader cannot resolve: why (the value is then read as absent). */
+  unresolved?: string;
+  /** The value is an interpolation the loader resolves. */
+  interpolation?: boolean;
+}
+
+function typedOf(value: ScalarValue): TypedValue {
+  if (value === null) return { value, kind: 'null' };
+  if (typeof value === 'boolean') return { value, kind: 'bool' };
+  if (typeof value === 'number') return { value, kind: Number.isInteger(value) ? 'int' : 'float' };
+  return { value, kind: 'str' };
 }
 
 const MAX_VISITS = 2_000_000;
@@ -50,6 +62,17 @@ export function readAs(root: LocatedNode | null, format: SourceFormat, dialectId
         node.value = loaded.value;
         out.push({ span: { ...node.span }, raw: node.raw, looks, loaded, path });
       }
+    }
+  }
+  if (dialect.interpolates) {
+    for (const i of resolveInterpolations(root)) {
+      const looks: TypedValue = { value: i.raw, kind: 'str' };
+      const reading: LoaderReading = i.resolved
+        ? { span: { ...i.scalar.span }, raw: i.scalar.raw, looks, loaded: typedOf(i.resolved.value), path: i.path, interpolation: true }
+        : { span: { ...i.scalar.span }, raw: i.scalar.raw, looks, loaded: { value: null, kind: 'null' }, path: i.path, interpolation: true, unresolved: i.problem };
+      const at = out.findIndex((r) => r.span.start === reading.span.start);
+      if (at >= 0) out.splice(at, 1);
+      out.push(reading);
     }
   }
   return out;

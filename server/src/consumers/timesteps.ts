@@ -14,7 +14,8 @@ export type TimestepsResult = { ok: true; value: number[] } | { ok: false; probl
  *   floor(T / (N + 1)), (0..N) * stride reversed, last dropped, plus the offset; trailing as
  *   standard.
  * - 'ldm-ddim' (latent-diffusion ldm/modules/diffusionmodules/util.py make_ddim_timesteps,
- *   "uniform"): stride floor(T / N), (0..N-1) * stride + 1, noisiest first (recalled from memory).
+ *   "uniform"): c = floor(T / N), range(0, T, c) + 1, noisiest first (recalled from memory): the
+ *   first step is never T - 1 unless c = 1, and T = 1000, N = 30 gives 31 steps.
  * - otherwise the standard spacings.
  */
 export function consumerTimesteps(
@@ -37,10 +38,11 @@ export function consumerTimesteps(
     return { ok: true, value: out };
   }
   if (rule === 'ldm-ddim') {
+    // range(0, T, c) + 1 with c = T // N: one more step than asked when N does not divide T.
     const stride = Math.floor(T / N);
     if (stride < 1) return { ok: false, problem: `${N} sampling steps do not fit in ${T} training steps` };
     const out: number[] = [];
-    for (let k = N - 1; k >= 0; k--) out.push(k * stride + 1);
+    for (let k = Math.floor((T - 1) / stride); k >= 0; k--) out.push(k * stride + 1);
     return { ok: true, value: out };
   }
   return { ok: true, value: Array.from(standard.value) };

@@ -39,6 +39,8 @@ export interface ConsumerClass {
   timesteps: TimestepRule;
   /** Spacing used when the class reads no spacing key (fixed by its code). */
   fixedSpacing?: TimestepSpacing;
+  /** What a value means to this class when that differs from the alias table (key -> written -> tool's member). */
+  valueMeanings?: Record<string, Record<string, string>>;
   /** Accepted values per key (as written), when the class checks them. */
   enums?: Record<string, string[]>;
   /** With Karras sigmas on, the first sampled sigma is the largest training sigma whatever the spacing. */
@@ -48,6 +50,8 @@ export interface ConsumerClass {
    * sigma is finite (about 4096).
    */
   clampsZeroSnrSigma?: boolean;
+  /** No rescale flag, but an explicit beta list key: a zero-SNR fix writes the rescaled list there. */
+  rescaleViaBetas?: boolean;
   /** Two keys of the class that one concept stands for but the class reads separately. */
   separateKeys?: string[][];
   /**
@@ -66,6 +70,9 @@ export interface ConsumerFamily {
   /** Where in the document the consumer's keys sit (dotted path from the root; '' for the root). */
   sectionPath?: string;
   classes: ConsumerClass[];
+  /** Keys whose presence marks a flat document of this family, and how many must be there. */
+  signature?: string[];
+  signatureMin?: number;
 }
 
 /** The decision for one document, with its evidence; plain data for explain, hover and JSON. */

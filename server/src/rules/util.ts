@@ -161,6 +161,12 @@ export function zeroSnrFix(ctx: RuleContext, also?: { edits: ConceptEdit[]; titl
     if (!analysis.rescaled) return null;
     edits.push({ kind: 'set', concept: 'betas', value: Array.from(analysis.rescaled.betas, fmtValue) });
     parts.push('Replace the beta list with its zero-terminal-SNR rescale');
+  } else if (setup.consumer?.rescaleViaBetas) {
+    // The consumer has no rescale flag but takes an explicit beta list (consumer profile).
+    if (!analysis.rescaled) return null;
+    const key = setup.consumer.insertKeys?.betas ?? 'an explicit beta list';
+    edits.push({ kind: 'set', concept: 'betas', value: Array.from(analysis.rescaled.betas, fmtValue) });
+    parts.push(`Pass the zero-terminal-SNR rescale of the schedule as ${key}`);
   } else {
     edits.push({ kind: 'set', concept: 'zeroTerminalSnr', value: true });
     parts.push('Rescale the schedule to zero terminal SNR');

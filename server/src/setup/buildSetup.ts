@@ -26,7 +26,8 @@ import type { LoaderReading } from '../consumers/readAs';
 import type { Concept, ConceptValues } from '../fields/concepts';
 import { findConcepts, type ConceptHit } from '../fields/findConcepts';
 import { keySegments, normalizeKeySegment } from '../fields/normalize';
-import { valueKindOf } from '../fields/values';
+import { BETA_SCHEDULE_SPELLINGS, PREDICTION_TARGET_SPELLINGS, TIMESTEP_SPACING_SPELLINGS } from '../fields/aliases';
+import { lookupSpelling, valueKindOf } from '../fields/values';
 import type { LocatedNode, ParsedDocument } from '../parse/types';
 import {
   BETA_SCHEDULE_NOTE,
@@ -156,6 +157,8 @@ function build(doc: ParsedDocument, opts: BuildSetupOptions, setup: Setup): Setu
   }
 
   applyShortFamilyReading(fields, decided);
+  if (reading?.cls?.valueMeanings) applyValueMeanings(fields, reading.cls.name, reading.cls.valueMeanings);
+  if (reading?.cls?.enums) checkClassEnums(fields, problems, reading.cls.name, reading.cls.enums);
 
   const present = (c: Concept) => decided.has(c);
   const specific = (c: Concept) => {
@@ -186,6 +189,55 @@ function build(doc: ParsedDocument, opts: BuildSetupOptions, setup: Setup): Setu
   return setup;
 }
 
+/** A value the consuming class reads differently from the alias table (`linear` in the latent-diffusion code). */
+function applyValueMeanings(fields: SetupFields, className: string, meanings: Record<string, Record<string, string>>): void {
+  for (const field of Object.values(fields)) {
+    if (!field || !field.source) continue;
+    const table = meanings[field.source.key];
+    const raw = field.source.entry.value;
+    if (!table || !raw || raw.kind !== 'scalar' || typeof raw.value !== 'string') continue;
+    const member = table[raw.value.trim()];
+    if (member === undefined || member === field.value) continue;
+    (field as { value: unknown }).value = member;
+    field.note = `${className} reads ${field.source.key} "${raw.value.trim()}" as what this tool calls ${member}`;
+  }
+}
+
+const ENUM_SPELLINGS: Partial<Record<Concept, Record<string, string[]>>> = {
+  predictionTarget: PREDICTION_TARGET_SPELLINGS,
+  betaSchedule: BETA_SCHEDULE_SPELLINGS,
+  timestepSpacing: TIMESTEP_SPACING_SPELLINGS,
+};
+
+/**
+ * A value the consuming class does not accept (it raises at start-up), even when the alias table
+ * knows what it means: an unknown-value problem, with the class's own spelling of the same member
+ * as the suggestion. The field keeps its meaning so that independent checks still run.
+ */
+function checkClassEnums(fields: SetupFields, problems: ValueProblem[], className: string, enums: Record<string, string[]>): void {
+  for (const field of Object.values(fields)) {
+    if (!field || !field.source) continue;
+    const allowed = enums[field.source.key];
+    const raw = field.source.entry.value;
+    if (!allowed || !raw || raw.kind !== 'scalar' || typeof raw.value !== 'string') continue;
+    const written = raw.value.trim();
+    if (allowed.includes(written)) continue;
+    const table = ENUM_SPELLINGS[field.concept];
+    const member = String(field.value);
+    const suggestion = table ? allowed.find((a) => lookupSpelling(a, table) === member) : undefined;
+    const problem: ValueProblem = {
+      concept: field.concept,
+      kind: 'unknown-value',
+      source: field.source,
+      message:
+        `${field.source.key}: "${written}" is not accepted by ${className} (it takes ${allowed.join(', ')})` +
+        (suggestion ? `; it spells this value "${suggestion}"` : ''),
+    };
+    if (suggestion) problem.suggestion = suggestion;
+    problems.push(problem);
+  }
+}
+
 function consumerSummary(reading: ConsumerReading, loaderReadings: LoaderReading[]): NonNullable<Setup['consumer']> {
   const cls = reading.cls;
   const out: NonNullable<Setup['consumer']> = {
@@ -195,6 +247,7 @@ function consumerSummary(reading: ConsumerReading, loaderReadings: LoaderReading
     timesteps: cls?.timesteps ?? 'standard',
     karrasStartsAtMax: cls?.karrasStartsAtMax === true,
     clampsZeroSnrSigma: cls?.clampsZeroSnrSigma === true,
+    rescaleViaBetas: cls?.rescaleViaBetas === true,
     cannotExpress: { ...(cls?.cannotExpress ?? {}) },
   };
   if (cls?.fixedSpacing) out.fixedSpacing = cls.fixedSpacing;

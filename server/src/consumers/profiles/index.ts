@@ -1,6 +1,8 @@
 import type { ConsumerFamily, FamilyId } from '../types';
+import { LATENT_DIFFUSION_FAMILY } from './latentDiffusion';
 import { SCHEDULER_CONFIG_FAMILY } from './schedulerConfig';
 
+export { LATENT_DIFFUSION_FAMILY, LATENT_DIFFUSION_CLASSES } from './latentDiffusion';
 export { SCHEDULER_CONFIG_FAMILY, SCHEDULER_CLASSES, SCHEDULER_META_KEYS } from './schedulerConfig';
 
 export const GENERIC_FAMILY: ConsumerFamily = {
@@ -11,7 +13,7 @@ export const GENERIC_FAMILY: ConsumerFamily = {
 };
 
 /** Every family, in the order detection tries them. */
-export const FAMILIES: ConsumerFamily[] = [SCHEDULER_CONFIG_FAMILY, GENERIC_FAMILY];
+export const FAMILIES: ConsumerFamily[] = [SCHEDULER_CONFIG_FAMILY, LATENT_DIFFUSION_FAMILY, GENERIC_FAMILY];
 
 export const FAMILY_IDS: FamilyId[] = FAMILIES.map((f) => f.id);
 
