@@ -4,6 +4,7 @@ import * as vscode from 'vscode';
 import { EXPLAIN_SCHEME, ExplainProvider } from './explain';
 import { fixAllInActiveEditor } from './fixAll';
 import { PlotPanel } from './plotPanel';
+import { rescaleRun, undoRunRescale } from './runRescale';
 import { SHOW_SCHEDULE_COMMAND } from './protocol';
 import { ServerController } from './server';
 import { SummaryStatus } from './status';
@@ -40,6 +41,9 @@ export async function activate(context: vscode.ExtensionContext): Promise<void> 
       const doc = await vscode.workspace.openTextDocument(ExplainProvider.uriFor(uri));
       await vscode.window.showTextDocument(doc, { viewColumn: vscode.ViewColumn.Beside, preview: true });
     }),
+    vscode.commands.registerCommand('noiselint.rescaleRun', (target?: unknown) => rescaleRun(controller, output, targetUri(target))),
+    vscode.commands.registerCommand('noiselint.rescaleRunSamplingOnly', (target?: unknown) => rescaleRun(controller, output, targetUri(target), true)),
+    vscode.commands.registerCommand('noiselint.undoRunRescale', () => undoRunRescale()),
     vscode.commands.registerCommand('noiselint.restartServer', async () => {
       if (!enabled()) {
         void vscode.window.showInformationMessage('noiselint is turned off (setting noiselint.enable).');

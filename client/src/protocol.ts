@@ -6,6 +6,7 @@ export {
   PLOT_DATA_REQUEST,
   SHOW_SCHEDULE_COMMAND,
   SUMMARY_REQUEST,
+  RUN_RESCALE_REQUEST,
 } from '@noiselint/server/src/base/protocol';
 export type {
   DocumentSummary,
@@ -17,6 +18,8 @@ export type {
   PlotSkippedRange,
   PlotTailWindow,
   UriParams,
+  RunRescaleParams,
+  RunRescaleResult,
 } from '@noiselint/server/src/base/protocol';
 
 /** Languages the extension checks. */

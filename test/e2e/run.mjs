@@ -629,6 +629,56 @@ const steps = [
     },
   },
   {
+    name: 'run',
+    title: 'the run rescale: shown in the refactor preview across the training and sampling file, applied, then undone',
+    async run(ctx) {
+      const { page, workspace } = ctx;
+      const trainRel = 'e2e-fixture/run/train-dusk.yaml';
+      const sampleRel = 'e2e-fixture/run/sample-dusk.yaml';
+      const trainFile = join(workspace, trainRel);
+      const sampleFile = join(workspace, sampleRel);
+      const trainBefore = readFileSync(trainFile, 'utf8');
+      const sampleBefore = readFileSync(sampleFile, 'utf8');
+      await openFile(page, trainRel);
+      await showProblems(page);
+      await waitForProblems(page, (rs) => rs.some((r) => /terminal-snr-leak/.test(`${r.label} ${r.text}`)), 'the dusk training file should leak (terminal-snr-leak)');
+      await page.locator('.editor-instance .monaco-editor .view-lines').first().click();
+      await runCommand(page, 'noiselint: Rescale the run to zero terminal SNR');
+      // Shown: the refactor preview lists both files before anything is applied.
+      const pane = page.locator('.bulk-edit-panel, [id="refactorPreview"]').first();
+      const shown = await pane.waitFor({ state: 'visible', timeout: WAIT_PROBLEMS_MS }).then(() => true, () => false);
+      expect(shown, 'the refactor preview did not open for the run rescale');
+      const listed = await pane.innerText().catch(() => '');
+      log(`refactor preview: ${listed.replace(/\s+/g, ' ').slice(0, 400)}`);
+      expect(/train-dusk\.yaml/.test(listed) && /sample-dusk\.yaml/.test(listed), `the preview should list both files of the run; it shows: ${listed.replace(/\s+/g, ' ').slice(0, 400)}`);
+      expect(readFileSync(trainFile, 'utf8') === trainBefore, 'nothing may change before the preview is applied');
+      await ctx.shot('run-preview');
+      // Applied.
+      const apply = page.locator('.monaco-button', { hasText: /^Apply$/ }).first();
+      await apply.waitFor({ state: 'visible', timeout: WAIT_UI_MS });
+      await apply.click();
+      await pane.waitFor({ state: 'hidden', timeout: WAIT_UI_MS }).catch(() => {});
+      await runCommand(page, 'File: Save All');
+      const waitFor = async (file, pred, what) => {
+        const deadline = Date.now() + WAIT_UI_MS;
+        let text = readFileSync(file, 'utf8');
+        while (Date.now() < deadline && !pred(text)) {
+          await sleep(300);
+          text = readFileSync(file, 'utf8');
+        }
+        expect(pred(text), `${what}; the file is now:\n${text}`);
+      };
+      await waitFor(trainFile, (t) => t.includes('rescale_betas_zero_snr: true') && t.includes('prediction_type: v_prediction') && !t.includes('noise_offset') && t.includes('# Added because dusk skies stayed mid-grey.'), 'the training file should be rescaled with a v target and no offset noise, its comments kept');
+      await waitFor(sampleFile, (t) => t.includes('timestep_spacing: trailing') && t.includes('guidance_rescale: 0.7'), 'the sampling file should get trailing spacing and guidance rescale 0.7');
+      await ctx.shot('run-applied');
+      // Undone: both files back as they were.
+      await runCommand(page, 'noiselint: Undo the run rescale');
+      await runCommand(page, 'File: Save All');
+      await waitFor(trainFile, (t) => t === trainBefore, 'undo should put the training file back');
+      await waitFor(sampleFile, (t) => t === sampleBefore, 'undo should put the sampling file back');
+    },
+  },
+  {
     name: 'plot-multi',
     title: 'the plot view follows a two-document zero-SNR file: selector, -Infinity log-SNR handled',
     async run(ctx) {
