@@ -653,7 +653,14 @@ const steps = [
       expect(/train-dusk\.yaml/.test(listed) && /sample-dusk\.yaml/.test(listed), `the preview should list both files of the run; it shows: ${listed.replace(/\s+/g, ' ').slice(0, 400)}`);
       expect(readFileSync(trainFile, 'utf8') === trainBefore, 'nothing may change before the preview is applied');
       await ctx.shot('run-preview');
-      // Applied.
+      // Applied: every entry needs confirmation, so the preview starts with them unticked; tick
+      // each file (which ticks its changes), then Apply.
+      for (const name of ['train-dusk.yaml', 'sample-dusk.yaml']) {
+        const row = pane.locator('.monaco-list-row', { hasText: name }).first();
+        const box = row.locator('.monaco-custom-toggle, .monaco-checkbox, input[type="checkbox"]').first();
+        await box.click({ timeout: WAIT_UI_MS });
+      }
+      await ctx.shot('run-confirmed');
       const apply = page.locator('.monaco-button', { hasText: /^Apply$/ }).first();
       await apply.waitFor({ state: 'visible', timeout: WAIT_UI_MS });
       await apply.click();
