@@ -58,12 +58,6 @@ if (!existsSync(serverBundle)) {
 const text = readFileSync(serverBundle, 'utf8').replace(/\n\/\/# sourceMappingURL=\S+\s*$/, '\n');
 writeFileSync(join(here, 'dist/server.js'), text);
 
-// The rule pages (generated into docs/rules by `npm run docs`) travel with the package: the server
-// links each finding's rule id to <extension>/docs/rules/<id>.md when that folder exists.
-const rulePages = join(root, 'docs/rules');
-const packagedPages = join(here, 'docs/rules');
+// Rule ids link to pages only under an https base (noiselint.docsBaseUrl); no pages travel with
+// the package. Remove the folder older builds left behind.
 rmSync(join(here, 'docs'), { recursive: true, force: true });
-if (existsSync(rulePages)) {
-  mkdirSync(packagedPages, { recursive: true });
-  cpSync(rulePages, packagedPages, { recursive: true, filter: (source) => !source.endsWith('~') });
-}

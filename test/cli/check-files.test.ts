@@ -87,10 +87,14 @@ describe('check: files that are hard to read', () => {
 
   it('a file above limits.maxFileBytes is skipped without reading it all', async () => {
     const big = `# ${'x'.repeat(500)}\n${LEAKY_V}`;
-    const root = tree({ 'noiselint.project.yaml': 'limits: { maxFileBytes: 100 }\n', 'big.yaml': big });
+    const root = tree({ 'noiselint.project.yaml': 'limits: { maxFileBytes: 100 }\n', 'big.yaml': big, 'small.yaml': 'num_train_timesteps: 1000\n' });
     const r = await runCli(['check'], root);
     expect(r.code).toBe(0);
     expect(r.stderr).toBe(`noiselint check: big.yaml: skipped: ${big.length} bytes is above the 100 bytes limit (limits.maxFileBytes)\n`);
+    // Named on the command line, the same skip is an error: nothing was checked that was asked for.
+    const named = await runCli(['check', 'big.yaml'], root);
+    expect(named.code).toBe(2);
+    expect(named.stderr.split('\n')[0]).toBe(`noiselint check: big.yaml: skipped: ${big.length} bytes is above the 100 bytes limit (limits.maxFileBytes)`);
   });
 
   it('a missing path or an empty glob is an error (exit 2), the rest is checked', async () => {

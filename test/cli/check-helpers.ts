@@ -14,7 +14,7 @@ export interface RunResult {
 export async function runCli(
   args: string[],
   cwd: string,
-  options: { isTTY?: boolean; env?: Record<string, string | undefined> } = {},
+  options: { isTTY?: boolean; stderrIsTTY?: boolean; env?: Record<string, string | undefined>; stdin?: string | Uint8Array } = {},
 ): Promise<RunResult> {
   // Each run sees the files as they are now, as a new process would.
   clearProjectCache();
@@ -25,7 +25,9 @@ export async function runCli(
     stdout: (t) => void (stdout += t),
     stderr: (t) => void (stderr += t),
     isTTY: options.isTTY ?? false,
+    stderrIsTTY: options.stderrIsTTY ?? false,
     env: options.env ?? {},
+    readStdin: async () => (typeof options.stdin === 'string' ? Buffer.from(options.stdin, 'utf8') : (options.stdin ?? new Uint8Array())),
   };
   const code = await main(args, io);
   return { code, stdout, stderr };

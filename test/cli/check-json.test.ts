@@ -1,6 +1,7 @@
 import { afterEach, describe, expect, it } from 'vitest';
 import { LineIndex } from '../../server/src/parse/lineIndex';
 import { removeTree } from '../workspace/helpers';
+import { VERSION } from '../../server/src/base/version';
 import { CLEAN, LEAKY_V, ZERO_SNR_EPSILON, runCli, tempTree } from './check-helpers';
 
 const roots: string[] = [];
@@ -48,7 +49,9 @@ describe('check --format json', () => {
     expect(r.code).toBe(1);
     expect(r.stderr).toBe('');
     const out = JSON.parse(r.stdout);
-    expect(Object.keys(out).sort()).toEqual(['files', 'formatVersion', 'skipped', 'summary']);
+    expect(Object.keys(out).sort()).toEqual(['files', 'formatVersion', 'skipped', 'summary', 'tool', 'unchecked']);
+    expect(out.tool).toEqual({ name: 'noiselint', version: VERSION });
+    expect(out.unchecked).toEqual([]);
     // Every checked file is listed, sorted, with paths relative to the current folder.
     expect(out.files.map((f: { path: string }) => f.path)).toEqual(['runs/clean.yaml', 'runs/eps.yaml', 'runs/leaky.yaml']);
     expect(out.files[0].findings).toEqual([]);
@@ -88,7 +91,7 @@ describe('check --format json', () => {
     }
     expect(out.summary).toMatchObject({ errors, warnings, infos, files: 3 });
     expect(out.formatVersion).toBe(3);
-    expect(Object.keys(out)).toEqual(['formatVersion', 'files', 'skipped', 'summary']);
+    expect(Object.keys(out)).toEqual(['formatVersion', 'tool', 'files', 'unchecked', 'skipped', 'summary']);
     expect(errors).toBeGreaterThan(0);
   });
 
@@ -138,7 +141,7 @@ describe('check --format json', () => {
   it('refuses an unknown --fix-edits form', async () => {
     const r = await runCli(['check', '--format', 'json', '--fix-edits', 'tiny'], tree({ 'leaky.yaml': LEAKY_V }));
     expect(r.code).toBe(2);
-    expect(r.stderr).toMatch(/--fix-edits must be compact, full, none/);
+    expect(r.stderr).toMatch(/--fix-edits must be compact, full or none, not "tiny"/);
   });
 
   it('characters count UTF-16 code units, after a BOM and non-ASCII text', async () => {

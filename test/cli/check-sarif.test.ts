@@ -1,9 +1,17 @@
 import { afterEach, describe, expect, it } from 'vitest';
-import Ajv from 'ajv';
 import { ruleDocs } from '../../server/src/rules/docs';
+import { readFileSync } from 'node:fs';
+import { join } from 'node:path';
+import { createRequire } from 'node:module';
+import { dirname } from 'node:path';
+import { REPO_ROOT } from '../lsp/buildServer';
+import Ajv2020, { type ValidateFunction } from 'ajv/dist/2020';
+import addFormats from 'ajv-formats';
 import { ALL_RULE_METAS } from '../../server/src/rules';
 import { removeTree } from '../workspace/helpers';
-import { LEAKY_V, ZERO_SNR_EPSILON, runCli, tempTree } from './check-helpers';
+import { CLEAN, LEAKY_V, ZERO_SNR_EPSILON, runCli, tempTree } from './check-helpers';
+import { FINGERPRINT_KEY, toSarif } from '../../server/src/cli/output/sarif';
+import { HOMEPAGE, VERSION } from '../../server/src/base/version';
 
 const roots: string[] = [];
 function tree(files: Record<string, string | Uint8Array>): string {
@@ -16,144 +24,43 @@ afterEach(() => {
 });
 
 /**
- * A hand-written subset of the SARIF 2.1.0 schema (OASIS, sarif-schema-2.1.0.json): the parts a
- * code-scanning service reads. Written from the specification's object descriptions
- * (sections 3.13 sarifLog, 3.14 run, 3.19 toolComponent, 3.49 reportingDescriptor, 3.27 result,
- * 3.28 location, 3.29 physicalLocation, 3.30 region, 3.55 fix, 3.56 artifactChange,
- * 3.57 replacement), recalled from memory; not downloaded.
+ * The SARIF 2.1.0 JSON schema as the SARIF SDK ships it in its npm package
+ * (@microsoft/sarif-multitool-<platform>, file sarif-2.1.0.json: the OASIS SARIF 2.1.0 schema with
+ * its errata, written for JSON Schema 2020-12). Formats (uri, date-time, uuid) come from ajv-formats.
  */
-const message = { type: 'object', required: ['text'], properties: { text: { type: 'string', minLength: 1 } } };
-const region = {
-  type: 'object',
-  required: ['startLine'],
-  properties: {
-    startLine: { type: 'integer', minimum: 1 },
-    startColumn: { type: 'integer', minimum: 1 },
-    endLine: { type: 'integer', minimum: 1 },
-    endColumn: { type: 'integer', minimum: 1 },
-  },
-};
-const artifactLocation = {
-  type: 'object',
-  required: ['uri'],
-  properties: { uri: { type: 'string', minLength: 1 }, uriBaseId: { type: 'string' } },
-};
-const physicalLocation = {
-  type: 'object',
-  required: ['artifactLocation', 'region'],
-  properties: { artifactLocation, region },
-};
-const location = {
-  type: 'object',
-  required: ['physicalLocation'],
-  properties: { id: { type: 'integer', minimum: -1 }, physicalLocation, message },
-};
-const multiformat = { type: 'object', required: ['text'], properties: { text: { type: 'string' }, markdown: { type: 'string' } } };
-const reportingDescriptor = {
-  type: 'object',
-  required: ['id'],
-  properties: {
-    id: { type: 'string', minLength: 1 },
-    shortDescription: multiformat,
-    fullDescription: multiformat,
-    help: multiformat,
-    helpUri: { type: 'string', format: 'uri' },
-    defaultConfiguration: {
-      type: 'object',
-      properties: { level: { enum: ['none', 'note', 'warning', 'error'] }, enabled: { type: 'boolean' } },
-    },
-  },
-};
-const fix = {
-  type: 'object',
-  required: ['artifactChanges'],
-  properties: {
-    description: message,
-    artifactChanges: {
-      type: 'array',
-      minItems: 1,
-      items: {
-        type: 'object',
-        required: ['artifactLocation', 'replacements'],
-        properties: {
-          artifactLocation,
-          replacements: {
-            type: 'array',
-            minItems: 1,
-            items: {
-              type: 'object',
-              required: ['deletedRegion'],
-              properties: { deletedRegion: region, insertedContent: { type: 'object', properties: { text: { type: 'string' } } } },
-            },
-          },
-        },
-      },
-    },
-  },
-};
-const result = {
-  type: 'object',
-  required: ['message', 'ruleId', 'level', 'locations'],
-  properties: {
-    ruleId: { type: 'string' },
-    ruleIndex: { type: 'integer', minimum: 0 },
-    level: { enum: ['none', 'note', 'warning', 'error'] },
-    message,
-    locations: { type: 'array', items: location },
-    relatedLocations: { type: 'array', items: location },
-    fixes: { type: 'array', items: fix },
-  },
-};
-const sarifSubset = {
-  type: 'object',
-  required: ['version', 'runs'],
-  properties: {
-    $schema: { type: 'string', format: 'uri' },
-    version: { const: '2.1.0' },
-    runs: {
-      type: 'array',
-      minItems: 1,
-      items: {
-        type: 'object',
-        required: ['tool'],
-        properties: {
-          tool: {
-            type: 'object',
-            required: ['driver'],
-            properties: {
-              driver: {
-                type: 'object',
-                required: ['name'],
-                properties: { name: { type: 'string' }, version: { type: 'string' }, rules: { type: 'array', items: reportingDescriptor } },
-              },
-            },
-          },
-          originalUriBaseIds: { type: 'object', additionalProperties: { type: 'object', properties: { uri: { type: 'string', format: 'uri' } } } },
-          columnKind: { enum: ['utf16CodeUnits', 'unicodeCodePoints'] },
-          results: { type: 'array', items: result },
-        },
-      },
-    },
-  },
-};
+function officialSchemaPath(): string {
+  const require = createRequire(import.meta.url);
+  const wrapper = dirname(require.resolve('@microsoft/sarif-multitool/package.json'));
+  const platformPackage = `@microsoft/sarif-multitool-${process.platform === 'win32' ? 'win32' : process.platform === 'darwin' ? 'darwin' : 'linux'}`;
+  return require.resolve(`${platformPackage}/sarif-2.1.0.json`, { paths: [wrapper] });
+}
 
-/** ajv's "uri" format without the ajv-formats package: an absolute URI. */
-function validator() {
-  const ajv = new Ajv({ allErrors: true, strict: true });
-  ajv.addFormat('uri', (s: string) => /^[a-z][a-z0-9+.-]*:/i.test(s) && URL.canParse(s));
-  return ajv.compile(sarifSubset);
+let compiled: ValidateFunction | undefined;
+function validator(): ValidateFunction {
+  if (!compiled) {
+    const schema = JSON.parse(readFileSync(officialSchemaPath(), 'utf8'));
+    expect(schema.title).toMatch(/SARIF\) Version 2\.1\.0 JSON Schema/);
+    const ajv = new Ajv2020({ allErrors: true, strict: false });
+    addFormats(ajv);
+    compiled = ajv.compile(schema);
+  }
+  return compiled;
+}
+
+function expectValid(log: unknown): void {
+  const validate = validator();
+  const ok = validate(log);
+  expect(validate.errors ?? []).toEqual([]);
+  expect(ok).toBe(true);
 }
 
 describe('check --format sarif', () => {
-  it('validates against the SARIF 2.1.0 subset and maps findings to 1-based regions', async () => {
+  it('validates against the official SARIF 2.1.0 schema and maps findings to 1-based regions', async () => {
     const root = tree({ 'runs/eps.yaml': ZERO_SNR_EPSILON, 'runs/leaky.yaml': LEAKY_V });
     const r = await runCli(['check', '--format', 'sarif'], root);
     expect(r.code).toBe(1);
     const log = JSON.parse(r.stdout);
-    const validate = validator();
-    const ok = validate(log);
-    expect(validate.errors ?? []).toEqual([]);
-    expect(ok).toBe(true);
+    expectValid(log);
 
     const run = log.runs[0];
     expect(run.tool.driver.name).toBe('noiselint');
@@ -186,9 +93,12 @@ describe('check --format sarif', () => {
       const d = rules.find((x: { id: string }) => x.id === meta.id);
       expect(d.shortDescription.text).toBe(meta.summary);
       expect(d.defaultConfiguration.level).toBe(level[meta.defaultSeverity]);
-      expect(d.helpUri.endsWith(`docs/rules/${meta.id}.md`)).toBe(true);
+      // No https docs base configured: no link (never a file:// path of the machine that ran the check).
+      expect(d.helpUri).toBeUndefined();
       // The same text as the rule's page, option list included.
       expect(d.help.markdown).toBe(ruleDocs(meta));
+      expect(d.help.text).toContain(meta.summary);
+      expect(d.help.text).not.toMatch(/^#/m);
       expect(d.fullDescription.text.length).toBeGreaterThan(0);
       expect(d.properties).toEqual({
         repairEffects: meta.repair ? [...meta.repair.effects] : [],
@@ -203,11 +113,11 @@ describe('check --format sarif', () => {
   });
 
   it('a clean run is a valid log with no results', async () => {
-    const root = tree({ 'notes.yaml': 'title: storyboard notes\n' });
+    const root = tree({ 'clean.yaml': CLEAN });
     const r = await runCli(['check', '--format', 'sarif'], root);
     expect(r.code).toBe(0);
     const log = JSON.parse(r.stdout);
-    expect(validator()(log)).toBe(true);
+    expectValid(log);
     expect(log.runs[0].results).toEqual([]);
     expect(log.runs[0].invocations[0].executionSuccessful).toBe(true);
   });
@@ -216,5 +126,50 @@ describe('check --format sarif', () => {
     const root = tree({ 'night runs/leaky #2.yaml': LEAKY_V });
     const log = JSON.parse((await runCli(['check', '--format', 'sarif'], root)).stdout);
     expect(log.runs[0].results[0].locations[0].physicalLocation.artifactLocation.uri).toBe('night%20runs/leaky%20%232.yaml');
+  });
+
+  it('names the tool\'s home and version, as package.json does', async () => {
+    const root = tree({ 'a.yaml': LEAKY_V });
+    const log = JSON.parse((await runCli(['check', '--format', 'sarif'], root)).stdout);
+    const pkg = JSON.parse(readFileSync(join(REPO_ROOT, 'package.json'), 'utf8'));
+    expect(log.runs[0].tool.driver.informationUri).toBe(HOMEPAGE);
+    expect(HOMEPAGE).toBe(pkg.homepage);
+    expect(log.runs[0].tool.driver.version).toBe(VERSION);
+    expect(VERSION).toBe(pkg.version);
+  });
+
+  it('links rule pages only under an https base', () => {
+    const report = { cwd: '/w', files: [], skipped: [], otherTexts: new Map(), notices: [] };
+    const rules = (docsBase?: string) =>
+      ((toSarif(report, { version: VERSION, rules: ALL_RULE_METAS, docsBase }).runs as { tool: { driver: { rules: { id: string; helpUri?: string }[] } } }[])[0].tool.driver.rules);
+    const linked = rules('https://docs.lanternfish.example/noiselint/rules');
+    expect(linked.find((d) => d.id === 'terminal-snr-leak')?.helpUri).toBe('https://docs.lanternfish.example/noiselint/rules/terminal-snr-leak.md');
+    for (const base of [undefined, '', 'http://docs.lanternfish.example/rules', 'file:///work/docs/rules', 'docs/rules']) {
+      expect(rules(base).every((d) => d.helpUri === undefined), String(base)).toBe(true);
+    }
+  });
+
+  it('fingerprints stay the same across runs and line moves, and tell findings apart', async () => {
+    const fingerprints = async (text: string) => {
+      const root = tree({ 'runs/eps.yaml': text });
+      const log = JSON.parse((await runCli(['check', '--format', 'sarif'], root)).stdout);
+      expectValid(log);
+      return new Map<string, string>(
+        log.runs[0].results.map((r: { ruleId: string; partialFingerprints: Record<string, string> }) => [r.ruleId, r.partialFingerprints[FINGERPRINT_KEY]]),
+      );
+    };
+    const first = await fingerprints(ZERO_SNR_EPSILON);
+    expect(first.size).toBeGreaterThan(0);
+    for (const hash of first.values()) expect(hash).toMatch(/^[0-9a-f]{32}$/);
+    expect(new Set(first.values()).size).toBe(first.size);
+    // A second run of the same file.
+    expect(await fingerprints(ZERO_SNR_EPSILON)).toEqual(first);
+    // The same findings three lines further down, under a comment and an unrelated section.
+    const moved = `# Lanternfish Pictures: night storyboard run\nlogging:\n  every: 50\n${ZERO_SNR_EPSILON}`;
+    expect(await fingerprints(moved)).toEqual(first);
+    // Changing the flagged value is a different finding.
+    const edited = await fingerprints(ZERO_SNR_EPSILON.replace('prediction_type: epsilon', 'prediction_type: eps'));
+    expect(edited.get('epsilon-at-zero-snr')).toBeDefined();
+    expect(edited.get('epsilon-at-zero-snr')).not.toBe(first.get('epsilon-at-zero-snr'));
   });
 });

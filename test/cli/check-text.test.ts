@@ -137,9 +137,10 @@ describe('check: text output', () => {
     const files: Record<string, string> = {};
     for (let i = 0; i < 22; i++) files[`c${String(i).padStart(2, '0')}.yaml`] = CLEAN;
     const root = tree(files);
-    const tty = await runCli(['check'], root, { isTTY: true });
+    // stderr decides, whatever stdout is (a file or a pipe here).
+    const tty = await runCli(['check'], root, { isTTY: false, stderrIsTTY: true });
     expect(tty.stderr).toContain('checking 22/22');
-    expect((await runCli(['check'], root, { isTTY: false })).stderr).toBe('');
+    expect((await runCli(['check'], root, { isTTY: true, stderrIsTTY: false })).stderr).toBe('');
   });
 
   it('bad arguments are one-line usage errors with exit code 2', async () => {

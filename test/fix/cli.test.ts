@@ -45,7 +45,8 @@ describe('noiselint fix', () => {
     const dir = project({ 'night.yaml': NIGHT });
     const before = statSync(join(dir, 'night.yaml')).mtimeMs;
     const r = await run(dir, '--dry-run', 'night.yaml');
-    expect(r.code).toBe(0);
+    // Changes are pending: a dry run gates a build with exit code 1.
+    expect(r.code).toBe(1);
     expect(r.stdout).toContain('--- a/night.yaml');
     expect(r.stdout).toContain('+++ b/night.yaml');
     expect(r.stdout).toMatch(/^- {2}timestep_spacing: leading$/m);

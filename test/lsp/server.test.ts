@@ -4,9 +4,7 @@
  * actions applied to the text, fix-all, and robustness against bad requests.
  */
 import { spawnSync } from 'node:child_process';
-import { existsSync } from 'node:fs';
 import { join } from 'node:path';
-import { pathToFileURL } from 'node:url';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import {
   DiagnosticSeverity,
@@ -87,10 +85,8 @@ describe('diagnostics', () => {
     expect(leak).toBeDefined();
     expect(leak!.source).toBe('noiselint');
     expect(leak!.severity).toBe(DiagnosticSeverity.Warning);
-    expect(leak!.codeDescription?.href).toMatch(/terminal-snr-leak\.md$/);
-    // The repository bundle links to the bundled rule page on disk.
-    const page = join(REPO_ROOT, 'docs/rules/terminal-snr-leak.md');
-    if (!process.env.NOISELINT_TEST_SERVER && existsSync(page)) expect(leak!.codeDescription?.href).toBe(pathToFileURL(page).href);
+    // No https docs base configured: no link (a file:// path of this machine means nothing elsewhere).
+    expect(leak!.codeDescription).toBeUndefined();
     expect(leak!.range.start.line).toBe(lineOf(TRAIN_LEAKY, 'beta_schedule'));
     // Lin et al. 2023, Table 1 (recalled from memory): sqrt(abar_T) = 0.068265, SNR_T = 0.004682.
     expect(leak!.message).toMatch(/0\.068\b/);

@@ -98,9 +98,12 @@ describe('discoverFiles', () => {
     expect(found(root, ['runs/*/sample.yaml']).files).toEqual(['runs/b/sample.yaml']);
   });
 
-  it('checks a named file whatever its extension; dedupes overlapping inputs', () => {
-    const root = tree({ 'x.conf': '', 'a/b.yaml': '' });
-    expect(found(root, ['x.conf', 'a', 'a/b.yaml', 'a/*.yaml'])).toEqual({ files: ['a/b.yaml', 'x.conf'], errors: [] });
+  it('refuses a named file of a type it does not read, loudly; dedupes overlapping inputs', () => {
+    const root = tree({ 'x.conf': '', 'a/b.yaml': '', 'c.JSON': '' });
+    expect(found(root, ['x.conf', 'a', 'a/b.yaml', 'a/*.yaml', 'c.JSON'])).toEqual({
+      files: ['a/b.yaml', 'c.JSON'],
+      errors: ['x.conf: not a file type noiselint reads (.yaml, .yml, .json, .jsonc, .toml)'],
+    });
   });
 
   it('reports missing paths and empty globs as one-line errors and keeps going', () => {

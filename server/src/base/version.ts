@@ -9,3 +9,6 @@ export const VERSION = '0.1.0';
  *    and one line without indentation; the summary adds `passedOver`.
  */
 export const JSON_FORMAT_VERSION = 3;
+
+/** The project's home page (package.json "homepage"); a placeholder host until the project is published. */
+export const HOMEPAGE = 'https://noiselint.example/';

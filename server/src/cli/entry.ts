@@ -15,7 +15,13 @@ const io: CliIO = {
   stdout: (t) => void process.stdout.write(t),
   stderr: (t) => void process.stderr.write(t),
   isTTY: !!process.stdout.isTTY,
+  stderrIsTTY: !!process.stderr.isTTY,
   env: process.env,
+  readStdin: async () => {
+    const chunks: Buffer[] = [];
+    for await (const chunk of process.stdin) chunks.push(chunk as Buffer);
+    return Buffer.concat(chunks);
+  },
 };
 
 main(process.argv.slice(2), io).then(

@@ -3,9 +3,13 @@ export interface CliIO {
   cwd: string;
   stdout: (text: string) => void;
   stderr: (text: string) => void;
-  /** True when stdout is a terminal (colours, progress). */
+  /** True when stdout is a terminal (colours). */
   isTTY: boolean;
+  /** True when stderr is a terminal (progress). */
+  stderrIsTTY?: boolean;
   env: Record<string, string | undefined>;
+  /** All of standard input, as bytes (for `-`); absent where there is none to read. */
+  readStdin?: () => Promise<Uint8Array>;
 }
 
 /** Thrown for bad arguments; main prints the one-line message and exits 2. */

@@ -59,12 +59,11 @@ import { NO_CAPABILITIES, readCapabilities, type Capabilities } from './capabili
 import { findingToDiagnostic, type PositionMapper } from './convert';
 import { cancelPending, OpenDocuments, type Analyzed, type OpenDocument } from './documents';
 import * as requests from './requests';
-import { DEFAULT_DEBOUNCE_MS, defaultSettings, mergeSettingsIntoProject, normalizeSettings, type EditorSettings } from './settings';
+import { DEFAULT_DEBOUNCE_MS, defaultSettings, mergeSettingsIntoProject, PushedSettings, SETTINGS_SECTION, settingsFromClient, type EditorSettings } from './settings';
 import { errorMessage, formatOf, isRuleId, requireUri, uriToPath } from './util';
 import { WorkspaceIndex } from './workspaceIndex';
 
-const SETTINGS_SECTION = 'noiselint';
-const WATCH_GLOBS = ['**/*.{yaml,yml,json,jsonc,toml}', '**/noiselint.project.{yaml,json}'];
+const WATCH_GLOBS = ['**/*.{yaml,yml,json,jsonc,toml}', '**/noiselint.project.{yaml,yml,json}'];
 /** Documents whose full reading (tree, setups, analysis) is kept for the views; others are read again. */
 const RECENT_READS = 8;
 
@@ -73,7 +72,8 @@ export class NoiselintServer {
   caps: Capabilities = NO_CAPABILITIES;
   readonly docs = new OpenDocuments();
   private readonly settingsCache = new Map<string, Promise<EditorSettings>>();
-  private globalSettings: EditorSettings = defaultSettings();
+  /** Settings the client pushed (initializationOptions, didChangeConfiguration). */
+  private readonly pushed = new PushedSettings();
   /** Bumped when settings or project files change: every cached analysis is then stale. */
   private generation = 0;
   private analysisSeq = 0;
@@ -149,6 +149,7 @@ export class NoiselintServer {
   private initialize(params: InitializeParams): InitializeResult {
     const cc: ClientCapabilities = params?.capabilities ?? {};
     this.caps = readCapabilities(cc, params);
+    this.pushed.initialize(params?.initializationOptions);
     const folders: WorkspaceFolder[] = params?.workspaceFolders ?? (params?.rootUri ? [{ uri: params.rootUri, name: 'root' }] : []);
     this.workspace.folders = folders.filter((f) => typeof f?.uri === 'string').map((f) => ({ uri: f.uri, path: uriToPath(f.uri) }));
     const result: InitializeResult = {
@@ -282,26 +283,17 @@ export class NoiselintServer {
   // ---------------------------------------------------------------- settings and projects
 
   settingsFor(uri: string): Promise<EditorSettings> {
-    if (!this.caps.configuration) return Promise.resolve(this.globalSettings);
     let pending = this.settingsCache.get(uri);
     if (!pending) {
-      pending = this.connection.workspace.getConfiguration({ scopeUri: uri, section: SETTINGS_SECTION }).then(
-        (raw: unknown) => normalizeSettings(raw),
-        (err: unknown) => {
-          this.logError('workspace/configuration', err);
-          return defaultSettings();
-        },
-      );
+      const ask = this.caps.configuration ? () => this.connection.workspace.getConfiguration({ scopeUri: uri, section: SETTINGS_SECTION }) : null;
+      pending = settingsFromClient(ask, this.pushed, (err) => this.logError('workspace/configuration', err));
       this.settingsCache.set(uri, pending);
     }
     return pending;
   }
 
   private configurationChanged(settings: unknown): void {
-    if (!this.caps.configuration) {
-      const section = (settings as Record<string, unknown> | null | undefined)?.[SETTINGS_SECTION];
-      this.globalSettings = normalizeSettings(section ?? {});
-    }
+    this.pushed.changed(settings);
     this.settingsCache.clear();
     this.invalidateAll(true);
   }

@@ -16,7 +16,7 @@ export interface EditorSettings {
   limits: Partial<ParseLimits>;
   /** Quiet time after the last edit before a document is checked. */
   debounceMs: number;
-  /** Base URL of the rule pages (`<base><id>.md`); empty: the bundled docs or the repository. */
+  /** https base URL of the rule pages (`<base>/<id>.md`); empty or not https: no links. */
   docsBaseUrl: string;
   /** Embedded chart in hovers: 'auto' follows the client (lsp/hoverImages.ts). */
   hover: { images: boolean | 'auto' };
@@ -101,4 +101,94 @@ export function mergeSettingsIntoProject(project: ResolvedProject, settings: Edi
     rules[id] = { ...rules[id], options: { ...rules[id]?.options, ...options } };
   }
   return { ...project, rules, limits: { ...project.limits, ...settings.limits } };
+}
+
+/** The settings section the server reads (`noiselint`). */
+export const SETTINGS_SECTION = 'noiselint';
+
+/** How long to wait for a workspace/configuration answer before using the pushed settings. */
+export const CONFIGURATION_TIMEOUT_MS = 3000;
+
+function isPlainRecord(v: unknown): v is Record<string, unknown> {
+  return typeof v === 'object' && v !== null && !Array.isArray(v);
+}
+
+/** The `noiselint` section of what a client sent: `{ noiselint: {...} }`, or the section itself. */
+function sectionOf(raw: unknown): Record<string, unknown> | undefined {
+  if (!isPlainRecord(raw)) return undefined;
+  const inner = raw[SETTINGS_SECTION];
+  return isPlainRecord(inner) ? inner : raw;
+}
+
+/**
+ * Settings a client sends without being asked, for clients that never answer
+ * workspace/configuration (or answer it with nothing): the `initializationOptions` of initialize
+ * and the `settings` of workspace/didChangeConfiguration, either as `{ noiselint: {...} }` or as
+ * the section itself. A later didChangeConfiguration replaces what came before it.
+ */
+export class PushedSettings {
+  private raw: Record<string, unknown> | undefined;
+  private cached: EditorSettings | undefined;
+
+  initialize(initializationOptions: unknown): void {
+    this.raw = sectionOf(initializationOptions);
+    this.cached = undefined;
+  }
+
+  /**
+   * `settings` of workspace/didChangeConfiguration. `{ noiselint: ... }` replaces the settings (an
+   * empty section restores the defaults); a bare non-empty object is taken as the section itself;
+   * a notification without settings (null, {}) only says "ask again" and keeps what was pushed.
+   */
+  changed(settings: unknown): void {
+    if (!isPlainRecord(settings)) return;
+    if (SETTINGS_SECTION in settings) {
+      const inner = settings[SETTINGS_SECTION];
+      this.raw = isPlainRecord(inner) ? inner : {};
+    } else if (Object.keys(settings).length > 0) {
+      this.raw = settings;
+    } else {
+      return;
+    }
+    this.cached = undefined;
+  }
+
+  current(): EditorSettings {
+    this.cached ??= normalizeSettings(this.raw ?? {});
+    return this.cached;
+  }
+}
+
+/**
+ * The settings for one document. `ask` sends workspace/configuration (null when the client does
+ * not support it). An answer that is not a settings object (null: the client has none), an error,
+ * or no answer within `timeoutMs` falls back to the pushed settings.
+ */
+export function settingsFromClient(
+  ask: (() => Promise<unknown>) | null,
+  pushed: PushedSettings,
+  onError: (err: unknown) => void = () => {},
+  timeoutMs = CONFIGURATION_TIMEOUT_MS,
+): Promise<EditorSettings> {
+  if (!ask) return Promise.resolve(pushed.current());
+  return new Promise<EditorSettings>((done) => {
+    let settled = false;
+    const finish = (s: EditorSettings) => {
+      if (settled) return;
+      settled = true;
+      clearTimeout(timer);
+      done(s);
+    };
+    const timer = setTimeout(() => finish(pushed.current()), timeoutMs);
+    ask().then(
+      (answer) => {
+        const section = Array.isArray(answer) ? answer[0] : answer;
+        finish(isPlainRecord(section) && Object.keys(section).length > 0 ? normalizeSettings(section) : pushed.current());
+      },
+      (err: unknown) => {
+        onError(err);
+        finish(pushed.current());
+      },
+    );
+  });
 }

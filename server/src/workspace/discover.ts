@@ -1,7 +1,8 @@
 /**
  * Which files a run checks. Inputs are files, folders or globs (none: the current folder).
  *
- * - A file named on the command line is always checked, whatever its extension.
+ * - A file named on the command line is checked when its extension is one noiselint reads; any
+ *   other extension is refused with a one-line error (never skipped silently).
  * - A folder is walked for *.yaml, *.yml, *.json, *.jsonc and *.toml files.
  * - A glob is matched against paths relative to the current folder; it picks the extensions itself.
  * - Walks honour .gitignore files (nested ones too, and those of parent folders up to the folder
@@ -36,6 +37,8 @@ export interface DiscoverResult {
   files: string[];
   /** One line each: inputs that do not exist, globs that match nothing, unreadable folders. */
   errors: string[];
+  /** The same problems as data: the path (as given, or the folder) and the reason. */
+  problems: { path: string; reason: string }[];
 }
 
 interface IgnoreLayer {
@@ -79,6 +82,7 @@ export function discoverFiles(inputs: string[], cwd: string, project?: ResolvedP
     project,
     files: new Set<string>(),
     errors: [] as string[],
+    problems: [] as { path: string; reason: string }[],
     entries: 0,
     maxFiles: options.maxFiles ?? DEFAULT_MAX_FILES,
     maxEntries: options.maxEntries ?? DEFAULT_MAX_ENTRIES,
@@ -90,11 +94,13 @@ export function discoverFiles(inputs: string[], cwd: string, project?: ResolvedP
     const abs = resolve(cwd, input);
     const st = fs.stat(abs);
     if (st?.kind === 'file') {
-      state.files.add(abs);
+      const name = abs.slice(abs.lastIndexOf(sep) + 1);
+      if (isConfigFileName(name) || isProjectFileName(name)) state.files.add(abs);
+      else problem(state, input, `not a file type noiselint reads (${CONFIG_EXTENSIONS.join(', ')})`);
     } else if (st?.kind === 'dir') {
       walk(abs, state, null);
     } else if (st) {
-      state.errors.push(`${input}: not a regular file or folder`);
+      problem(state, input, 'not a regular file or folder');
     } else if (picomatch.scan(input).isGlob) {
       const scan = picomatch.scan(input);
       let matched = 0;
@@ -104,12 +110,17 @@ export function discoverFiles(inputs: string[], cwd: string, project?: ResolvedP
         const matches = picomatch(pattern, { dot: false });
         matched = walk(base, state, (file) => matches(toPosix(relative(cwd, file))));
       }
-      if (matched === 0) state.errors.push(`${input}: no files match`);
+      if (matched === 0) problem(state, input, 'no files match');
     } else {
-      state.errors.push(`${input}: no such file or folder`);
+      problem(state, input, 'no such file or folder');
     }
   }
-  return { files: [...state.files].sort(comparePaths), errors: state.errors };
+  return { files: [...state.files].sort(comparePaths), errors: state.errors, problems: state.problems };
+}
+
+function problem(state: { errors: string[]; problems: { path: string; reason: string }[] }, path: string, reason: string): void {
+  state.errors.push(`${path}: ${reason}`);
+  state.problems.push({ path, reason });
 }
 
 interface WalkState {
@@ -117,6 +128,7 @@ interface WalkState {
   project?: ResolvedProject;
   files: Set<string>;
   errors: string[];
+  problems: { path: string; reason: string }[];
   entries: number;
   maxFiles: number;
   maxEntries: number;
@@ -137,7 +149,7 @@ function walk(root: string, state: WalkState, select: ((file: string) => boolean
     try {
       entries = state.fs.readDir(dir);
     } catch (err) {
-      state.errors.push(`${dir}: cannot read folder: ${describeFsError(err)}`);
+      problem(state, dir, `cannot read folder: ${describeFsError(err)}`);
       continue;
     }
     entries.sort((a, b) => (a.name < b.name ? -1 : a.name > b.name ? 1 : 0));
@@ -147,7 +159,7 @@ function walk(root: string, state: WalkState, select: ((file: string) => boolean
     const subdirs: string[] = [];
     for (const entry of entries) {
       if (++state.entries > state.maxEntries) {
-        state.errors.push(`stopped after looking at ${state.maxEntries} folder entries; name fewer or smaller folders`);
+        problem(state, root, `stopped after looking at ${state.maxEntries} folder entries; name fewer or smaller folders`);
         state.stopped = true;
         return accepted;
       }
@@ -162,7 +174,7 @@ function walk(root: string, state: WalkState, select: ((file: string) => boolean
         if (isIgnored(layers, path, false)) continue;
         if (project && !projectSelects(project, path)) continue;
         if (!state.files.has(path) && state.files.size >= state.maxFiles) {
-          state.errors.push(`stopped after ${state.maxFiles} files; name fewer or smaller folders`);
+          problem(state, root, `stopped after ${state.maxFiles} files; name fewer or smaller folders`);
           state.stopped = true;
           return accepted;
         }

@@ -3,6 +3,7 @@
  * server passes its own view so that open, unsaved documents win over the disk copy.
  */
 import { closeSync, constants as fsConstants, fstatSync, openSync, readSync, readdirSync, realpathSync, statSync } from 'node:fs';
+import { basename, dirname, join } from 'node:path';
 import { DEFAULT_PARSE_LIMITS } from '../parse/types';
 
 export type EntryKind = 'file' | 'dir' | 'other';
@@ -102,8 +103,34 @@ export function readBounded(path: string, maxBytes: number): Buffer {
   }
 }
 
+/** How a file's text is stored on disk; a fix writes it back the same way. */
+export type TextEncoding = 'utf-8' | 'utf-16le' | 'utf-16be';
+
+/**
+ * `base` with one more file: `path` holding `bytes` (standard input read as that path). The file
+ * shows in its folder's listing, so discovery and pairing see it as they would see it on disk.
+ */
+export function withExtraFile(base: WorkspaceFs, path: string, bytes: Uint8Array): WorkspaceFs {
+  const folder = dirname(path);
+  const name = basename(path);
+  return {
+    stat: (p) => (p === path ? { kind: 'file', size: bytes.length } : base.stat(p)),
+    readDir: (p) => {
+      const entries = base.readDir(p);
+      return p === folder ? [...entries.filter((e) => e.name !== name), { name, kind: 'file', isSymlink: false }] : entries;
+    },
+    readBytes: (p, maxBytes) => (p === path ? bytes : base.readBytes(p, maxBytes)),
+    realpath: (p) => {
+      if (p !== path) return base.realpath(p);
+      const realFolder = base.realpath(folder);
+      return realFolder ? join(realFolder, name) : path;
+    },
+  };
+}
+
 export type TextReadResult =
-  | { ok: true; text: string }
+  /** `encoding` is absent for UTF-8. */
+  | { ok: true; text: string; encoding?: TextEncoding }
   /**
    * 'io': the file could not be read (missing, permission); callers treat it as an error.
    * 'skipped': the file was read but is not text we analyse (binary, not UTF-8, too large).
@@ -136,12 +163,47 @@ export function readTextFile(fs: WorkspaceFs, path: string, maxBytes: number = D
   if (bytes.length > maxBytes) {
     return { ok: false, kind: 'skipped', problem: `skipped: above the ${formatBytes(maxBytes)} limit (limits.maxFileBytes)` };
   }
-  if (bytes.includes(0)) return { ok: false, kind: 'skipped', problem: 'skipped: looks binary (contains NUL bytes)' };
+  return decodeText(bytes);
+}
+
+const UTF16 = {
+  'utf-16le': new TextDecoder('utf-16le', { fatal: true, ignoreBOM: true }),
+  'utf-16be': new TextDecoder('utf-16be', { fatal: true, ignoreBOM: true }),
+} as const;
+
+/**
+ * Bytes to text: UTF-8 (with or without a BOM), or UTF-16 when a byte-order mark says so. The BOM
+ * stays in the text (U+FEFF), so offsets count it and a fix writes it back. Text with NUL
+ * characters is treated as binary.
+ */
+export function decodeText(bytes: Uint8Array): TextReadResult {
+  const encoding: TextEncoding | null =
+    bytes.length >= 2 && bytes[0] === 0xff && bytes[1] === 0xfe ? 'utf-16le' : bytes.length >= 2 && bytes[0] === 0xfe && bytes[1] === 0xff ? 'utf-16be' : null;
+  if (encoding) {
+    let text: string;
+    try {
+      text = UTF16[encoding].decode(bytes);
+    } catch {
+      return { ok: false, kind: 'skipped', problem: `skipped: not valid ${encoding.toUpperCase()} (it starts with a UTF-16 byte-order mark)` };
+    }
+    if (text.includes('\u0000')) return { ok: false, kind: 'skipped', problem: 'skipped: looks binary (contains NUL characters)' };
+    return { ok: true, text, encoding };
+  }
+  if (bytes.includes(0)) {
+    return { ok: false, kind: 'skipped', problem: 'skipped: looks binary (contains NUL bytes)' };
+  }
   try {
     return { ok: true, text: UTF8.decode(bytes) };
   } catch {
     return { ok: false, kind: 'skipped', problem: 'skipped: not valid UTF-8' };
   }
+}
+
+/** Text to the bytes of `encoding` (the inverse of decodeText; a BOM in the text is written as is). */
+export function encodeText(text: string, encoding: TextEncoding = 'utf-8'): Buffer {
+  if (encoding === 'utf-8') return Buffer.from(text, 'utf8');
+  const bytes = Buffer.from(text, 'utf16le');
+  return encoding === 'utf-16be' ? bytes.swap16() : bytes;
 }
 
 export function describeFsError(err: unknown): string {

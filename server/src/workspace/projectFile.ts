@@ -1,5 +1,5 @@
 /**
- * The project file: `noiselint.project.yaml` (or `.json`), found by walking up from the checked
+ * The project file: `noiselint.project.yaml` (or `.yml`, `.json`), found by walking up from the checked
  * file. Loading validates every field; a bad file is one ProjectFileError naming the field, never
  * a stack trace. The format is documented in docs/project-file.md.
  */
@@ -19,7 +19,7 @@ import { nodeFs, readTextFile, type WorkspaceFs } from './fs';
 import type { FilePair, ResolvedProject, RuleSetting } from './types';
 import { nearestName } from '../base/nearest';
 
-export const PROJECT_FILE_NAMES = ['noiselint.project.yaml', 'noiselint.project.json'] as const;
+export const PROJECT_FILE_NAMES = ['noiselint.project.yaml', 'noiselint.project.yml', 'noiselint.project.json'] as const;
 
 /** The built-in settings used when no project file is found. */
 export const DEFAULT_PROJECT: Readonly<ResolvedProject> = Object.freeze({
@@ -51,7 +51,7 @@ export class ProjectFileError extends Error {
 /** Project files are small; anything bigger is a mistake, not a project file. */
 const MAX_PROJECT_FILE_BYTES = 256 * 1024;
 
-const LIMIT_RANGES: Record<keyof ParseLimits, [number, number]> = {
+export const LIMIT_RANGES: Record<keyof ParseLimits, [number, number]> = {
   maxFileBytes: [1, 1024 * 1024 * 1024],
   // The parser cannot honour more (see parse/shared.ts): accept exactly what is enforced.
   maxNesting: [1, HARD_NESTING_CAP],
@@ -59,7 +59,7 @@ const LIMIT_RANGES: Record<keyof ParseLimits, [number, number]> = {
   maxAliasCount: [0, 1_000_000],
 };
 
-const TOP_LEVEL_FIELDS = ['include', 'exclude', 'rules', 'aliases', 'latentSpace', 'pairs', 'autoPair', 'limits', 'consumers'];
+export const TOP_LEVEL_FIELDS = ['include', 'exclude', 'rules', 'aliases', 'latentSpace', 'pairs', 'autoPair', 'limits', 'consumers'];
 
 type Catalog = ReadonlyMap<string, RuleMeta>;
 
@@ -333,7 +333,8 @@ export function findProjectFile(folder: string, fs: WorkspaceFs = nodeFs): strin
   for (;;) {
     const found = PROJECT_FILE_NAMES.map((name) => join(dir, name)).filter((p) => fs.stat(p)?.kind === 'file');
     if (found.length > 1) {
-      return new ProjectFileError(found[0], '', `both ${PROJECT_FILE_NAMES.join(' and ')} are in ${dir}; keep one`);
+      const names = found.map((p) => p.slice(dir.length + 1)).join(' and ');
+      return new ProjectFileError(found[0], '', `${names} are both in ${dir}; keep one`);
     }
     if (found.length === 1) return found[0];
     if (dir === top) return null;

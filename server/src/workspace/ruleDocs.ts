@@ -1,48 +1,24 @@
 /**
- * Where a rule id links to (LSP codeDescription, SARIF helpUri): a configured base URL, else the
- * rule pages shipped with this installation (file://), else the repository's docs/rules folder.
+ * Where a rule id links to (LSP codeDescription, SARIF helpUri): `<base>/<id>.md` under an https
+ * base the user configured, and otherwise no link at all. A path on the machine that ran the check
+ * (file://) means nothing to whoever reads the report or the diagnostic elsewhere, so none is made.
  */
-import { existsSync } from 'node:fs';
-import { dirname, join } from 'node:path';
-import { pathToFileURL } from 'node:url';
 
-/** The repository's rule pages; `<base><id>.md`. The host is a placeholder until the project is published. */
-export const REPOSITORY_RULE_DOCS = 'https://noiselint.example/docs/rules/';
-
-let installedDocs: string | null | undefined;
-
-/**
- * The docs/rules folder of this installation, looked up by walking up from the running bundle:
- * server/dist -> repository root, or the extension folder holding dist/server.js.
- */
-export function findDocsFolder(): string | null {
-  if (installedDocs !== undefined) return installedDocs;
-  installedDocs = null;
-  let dir = typeof __dirname === 'string' ? __dirname : null;
-  while (dir) {
-    const candidate = join(dir, 'docs', 'rules');
-    if (existsSync(candidate)) {
-      installedDocs = candidate;
-      break;
-    }
-    const up = dirname(dir);
-    if (up === dir) break;
-    dir = up;
+/** The base as given, when it is an absolute https URL; null for anything else (empty, http, file). */
+export function httpsDocsBase(base: string | undefined): string | null {
+  const trimmed = (base ?? '').trim();
+  if (!trimmed) return null;
+  try {
+    const url = new URL(trimmed);
+    return url.protocol === 'https:' && url.host ? trimmed : null;
+  } catch {
+    return null;
   }
-  return installedDocs;
 }
 
-const pageCache = new Map<string, string>();
-
-/** `docsFolder`: override the installation's folder (null: none), for tests. */
-export function ruleDocsUrl(ruleId: string, baseSetting = '', docsFolder?: string | null): string {
-  if (baseSetting) return `${baseSetting.endsWith('/') ? baseSetting : `${baseSetting}/`}${encodeURIComponent(ruleId)}.md`;
-  const useCache = docsFolder === undefined;
-  const cached = useCache ? pageCache.get(ruleId) : undefined;
-  if (cached) return cached;
-  const dir = useCache ? findDocsFolder() : docsFolder;
-  const page = dir ? join(dir, `${ruleId}.md`) : null;
-  const url = page && existsSync(page) ? pathToFileURL(page).href : `${REPOSITORY_RULE_DOCS}${encodeURIComponent(ruleId)}.md`;
-  if (useCache) pageCache.set(ruleId, url);
-  return url;
+/** The rule page's URL under an https base; null without one. */
+export function ruleDocsUrl(ruleId: string, base: string | undefined): string | null {
+  const https = httpsDocsBase(base);
+  if (!https) return null;
+  return `${https.endsWith('/') ? https : `${https}/`}${encodeURIComponent(ruleId)}.md`;
 }

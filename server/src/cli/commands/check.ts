@@ -1,23 +1,23 @@
 /**
- * `noiselint check [paths|globs...] [--format text|json|sarif] [--show <severity>] [--budget <severity>=<N>...]`
+ * `noiselint check [paths|globs|-...] [options]`: options and exit codes in CHECK_SPEC (`--help`).
  *
  * `--show` is the faintest severity listed (the others are still counted); each `--budget` lets
  * at most N findings at or above a severity pass. Without an `error=` budget, no error may pass.
- *
- * Exit codes: 0 the findings fit every budget; 1 a budget is exceeded; 2 the run could not look at
- * everything it was given (bad arguments, an invalid project file, a file or folder that could not
- * be read; the rest is still checked and reported).
  */
-import { parseArgs } from 'node:util';
+import { resolve } from 'node:path';
 import { findingsAsData, type FileResult } from '../../engine/api';
 import { ALL_RULE_METAS } from '../../rules';
 import { discoverFiles } from '../../workspace/discover';
-import { nodeFs, type WorkspaceFs } from '../../workspace/fs';
+import { decodeText, nodeFs, withExtraFile, type TextReadResult, type WorkspaceFs } from '../../workspace/fs';
 import { loadProject, ProjectFileError, type ResolvedProject } from '../../workspace/project';
+import { httpsDocsBase } from '../../workspace/ruleDocs';
 import { WorkspaceSession, type Pairing } from '../../workspace/session';
 import { mayBeDiffusionConfig } from '../../engine/prefilter';
 
 import { UsageError, type CliIO } from '../io';
+import { COLOR_OPTION, useColor, type ColorChoice } from '../color';
+import { helpText, parseCommandArgs, type CommandSpec } from '../options';
+import { formatAnnotations } from '../output/annotations';
 import { EDIT_FORMS, JsonReportWriter, type EditForm } from '../output/json';
 import { atOrAbove, displayPath, summarize, type BudgetResult, type CheckReport, type Summary } from '../output/report';
 import { SEVERITIES, type Severity } from '../../base/findings';
@@ -31,7 +31,42 @@ import { VERSION as CHECK_TOOL_VERSION } from '../../base/version';
 /** Progress on a terminal only for runs at least this long. */
 const PROGRESS_MIN_FILES = 20;
 
-export type CheckFormat = 'text' | 'json' | 'sarif';
+export const CHECK_FORMATS = ['text', 'json', 'sarif', 'annotations'] as const;
+export type CheckFormat = (typeof CHECK_FORMATS)[number];
+
+/** The name a run reads from standard input under, when --as does not give one. */
+export const STDIN_NAME = '<stdin>';
+
+export const CHECK_SPEC: CommandSpec = {
+  name: 'check',
+  summary: 'Checks diffusion training and sampling configs and reports what is quietly wrong, with the numbers.',
+  usage: '[paths|globs|-...] [options]',
+  details: [
+    'Inputs are files, folders (walked for the config types noiselint reads; .gitignore and the',
+    'project file apply) or globs; none: the current folder. `-` reads one config from standard',
+    'input; give --as <path> so the project file, pairing and the file type follow that path.',
+  ],
+  options: [
+    { name: 'format', short: 'f', type: 'string', value: 'text|json|sarif|annotations', choices: CHECK_FORMATS, description: 'Report format (default text). annotations: CI workflow commands (::error file=...).' },
+    { name: 'show', type: 'string', value: 'severity', choices: SEVERITIES, description: 'List findings of this severity or more severe only (default hint: all); the rest still count.' },
+    { name: 'budget', type: 'string', value: 'severity=N', multiple: true, description: 'At most N findings at or above the severity may pass (repeatable); default error=0.' },
+    { name: 'fix-edits', type: 'string', value: 'compact|full|none', choices: EDIT_FORMS, description: 'How the JSON report writes fix edits (default compact).' },
+    COLOR_OPTION,
+    { name: 'as', type: 'string', value: 'path', description: 'With `-`: the path the text on standard input stands for.' },
+    { name: 'empty-ok', type: 'boolean', description: 'Exit 0 even when an input holds no diffusion config (e.g. hooks on changed files).' },
+    { name: 'docs-base', type: 'string', value: 'https-url', description: 'Link rule ids in SARIF to <url>/<rule-id>.md (https only; default: no links).' },
+  ],
+  exitCodes: [
+    [0, 'the findings fit every budget (by default: no error)'],
+    [1, 'a budget is exceeded'],
+    [2, 'bad arguments, an invalid project file, an input that could not be read or checked (a named file that is binary, over a limit or of another type), or an input with no diffusion config (unless --empty-ok)'],
+  ],
+  examples: [
+    'noiselint check configs/',
+    'noiselint check --budget warning=0 -f sarif configs/ > noiselint.sarif',
+    'cat train.yaml | noiselint check - --as configs/train.yaml',
+  ],
+};
 
 export interface CheckOptions {
   inputs: string[];
@@ -42,6 +77,15 @@ export interface CheckOptions {
   budgets: Budget[];
   /** How the JSON report writes fix edits (default compact). */
   fixEdits?: EditForm;
+  color?: ColorChoice;
+  /** With `-` among the inputs: the path the text on standard input stands for. */
+  stdinPath?: string;
+  /** An input without any diffusion config is fine. */
+  emptyOk?: boolean;
+  /** https base of the rule pages linked from SARIF. */
+  docsBase?: string;
+  /** `--help` was given. */
+  help?: boolean;
 }
 
 export interface Budget {
@@ -65,57 +109,92 @@ function budgetArg(raw: string): Budget {
 }
 
 export function parseCheckArgs(args: string[]): CheckOptions {
-  let parsed;
-  try {
-    parsed = parseArgs({
-      args,
-      allowPositionals: true,
-      strict: true,
-      options: {
-        format: { type: 'string', default: 'text' },
-        show: { type: 'string', default: 'hint' },
-        budget: { type: 'string', multiple: true, default: [] },
-        'fix-edits': { type: 'string', default: 'compact' },
-      },
-    });
-  } catch (err) {
-    throw new UsageError(err instanceof Error ? err.message.split('\n')[0] : String(err));
-  }
-  const format = parsed.values.format;
-  if (format !== 'text' && format !== 'json' && format !== 'sarif') {
-    throw new UsageError(`--format must be text, json or sarif, not "${format}"`);
-  }
-  const show = severityArg('--show', parsed.values.show ?? 'hint');
-  const budgets = (parsed.values.budget ?? []).map(budgetArg);
+  const parsed = parseCommandArgs(CHECK_SPEC, args);
+  if (parsed.help) return { inputs: [], format: 'text', show: 'hint', budgets: [], help: true };
+  const v = parsed.values;
+  const show = severityArg('--show', typeof v.show === 'string' ? v.show : 'hint');
+  const budgets = (Array.isArray(v.budget) ? v.budget : []).map(budgetArg);
   for (const [i, b] of budgets.entries()) {
     if (budgets.findIndex((o) => o.severity === b.severity) !== i) throw new UsageError(`--budget ${b.severity}= is given twice`);
   }
   if (!budgets.some((b) => b.severity === 'error')) budgets.unshift({ severity: 'error', allowed: 0, explicit: false });
-  const fixEdits = parsed.values['fix-edits'] as EditForm;
-  if (!EDIT_FORMS.includes(fixEdits)) throw new UsageError(`--fix-edits must be ${EDIT_FORMS.join(', ')}, not "${fixEdits}"`);
-  return { inputs: parsed.positionals, format, show, budgets, fixEdits };
+  const fixEdits = (typeof v['fix-edits'] === 'string' ? v['fix-edits'] : 'compact') as EditForm;
+  const stdinCount = parsed.positionals.filter((p) => p === '-').length;
+  if (stdinCount > 1) throw new UsageError('`-` (standard input) may be given once');
+  const stdinPath = typeof v.as === 'string' ? v.as : undefined;
+  if (stdinPath !== undefined && stdinCount === 0) throw new UsageError('--as names the file on standard input; add `-` to read it');
+  if (stdinPath !== undefined && stdinPath.trim() === '') throw new UsageError('--as needs a path');
+  const docsBase = typeof v['docs-base'] === 'string' ? v['docs-base'] : undefined;
+  if (docsBase !== undefined && !httpsDocsBase(docsBase)) throw new UsageError(`--docs-base must be an https URL, not "${docsBase}"`);
+  return {
+    inputs: parsed.positionals,
+    format: (v.format as CheckFormat | undefined) ?? 'text',
+    show,
+    budgets,
+    fixEdits,
+    color: v.color as ColorChoice | undefined,
+    stdinPath,
+    emptyOk: v['empty-ok'] === true,
+    docsBase,
+  };
 }
 
 export async function runCheck(args: string[], io: CliIO): Promise<number> {
   const options = parseCheckArgs(args);
+  if (options.help) {
+    io.stdout(helpText(CHECK_SPEC));
+    return 0;
+  }
   return check(options, io);
 }
 
-export async function check(options: CheckOptions, io: CliIO, fs: WorkspaceFs = nodeFs): Promise<number> {
-  const report: CheckReport = { cwd: io.cwd, files: [], skipped: [], otherTexts: new Map(), notices: [] };
+/** Standard input, when the run reads it: the bytes and the absolute path they stand for. */
+interface StdinInput {
+  path: string;
+  bytes: Uint8Array;
+}
+
+export async function check(options: CheckOptions, io: CliIO, diskFs: WorkspaceFs = nodeFs): Promise<number> {
+  const unchecked: { path: string; reason: string }[] = [];
+  const report: CheckReport = { cwd: io.cwd, files: [], skipped: [], unchecked, otherTexts: new Map(), notices: [] };
   const notice = (level: 'error' | 'warning', message: string) => {
     report.notices.push({ level, message });
     io.stderr(`noiselint check: ${level === 'warning' ? 'warning: ' : ''}${printableLine(message)}\n`);
   };
   const shown = (p: string) => displayPath(io.cwd, p);
 
-  const discovered = discoverFiles(options.inputs, io.cwd, undefined, { fs });
-  for (const e of discovered.errors) notice('error', e);
+  let stdin: StdinInput | null = null;
+  if (options.inputs.includes('-')) {
+    if (!io.readStdin) throw new UsageError('standard input cannot be read here');
+    stdin = { path: resolve(io.cwd, options.stdinPath ?? STDIN_NAME), bytes: await io.readStdin() };
+  }
+  // Standard input is read as the file it stands for: pairing and discovery see it there.
+  const fs = stdin ? withExtraFile(diskFs, stdin.path, stdin.bytes) : diskFs;
+
+  // Each input on its own, so that one that holds no config can be named.
+  const named = options.inputs.filter((i) => i !== '-');
+  const inputs = named.length || stdin ? named : ['.'];
+  const filesOf = new Map<string, string[]>();
+  const namedFiles = new Set<string>();
+  const discoveryFailed = new Set<string>();
+  const wanted = new Set<string>();
+  for (const input of inputs) {
+    const found = discoverFiles([input], io.cwd, undefined, { fs });
+    for (const e of found.errors) notice('error', e);
+    for (const p of found.problems) unchecked.push({ path: p.path, reason: p.reason });
+    if (found.errors.length) discoveryFailed.add(input);
+    filesOf.set(input, found.files);
+    if (fs.stat(resolve(io.cwd, input))?.kind === 'file') for (const f of found.files) namedFiles.add(f);
+    for (const f of found.files) wanted.add(f);
+  }
+  if (stdin) wanted.delete(stdin.path);
+  const files = [...wanted].sort();
 
   // Every project file first: an invalid one stops the run before any output.
   const projects = new Map<string, ResolvedProject>();
   try {
-    for (const file of discovered.files) projects.set(file, loadProject(file, fs));
+    for (const file of files) projects.set(file, loadProject(file, fs));
+    if (stdin) projects.set(stdin.path, loadProject(stdin.path, fs));
   } catch (err) {
     if (err instanceof ProjectFileError) {
       io.stderr(`noiselint check: ${printableLine(`${shown(err.file)}: ${err.field ? `${err.field}: ` : ''}${err.detail}`)}\n`);
@@ -130,25 +209,22 @@ export async function check(options: CheckOptions, io: CliIO, fs: WorkspaceFs = 
   const stream = options.format === 'json' ? new JsonReportWriter(io.stdout, io.cwd, options.fixEdits ?? 'compact') : null;
   const counted: Summary = { errors: 0, warnings: 0, infos: 0, hints: 0 };
   const countedListed: Summary = { errors: 0, warnings: 0, infos: 0, hints: 0 };
-  const progress = io.isTTY && discovered.files.length >= PROGRESS_MIN_FILES;
-  let done = 0;
-  for (const file of discovered.files) {
-    if (progress) io.stderr(`\rchecking ${++done}/${discovered.files.length}`);
+  const checkedConfig = new Set<string>();
+  const checkOne = (file: string, read: TextReadResult): void => {
     const project = projects.get(file)!;
-    const read = session.readText(file, project);
     if (!read.ok) {
-      if (progress) io.stderr('\r\x1b[K');
-      if (read.kind === 'io') notice('error', `${shown(file)}: ${read.problem}`);
+      unchecked.push({ path: file, reason: read.problem });
+      if (read.kind === 'io' || namedFiles.has(file) || file === stdin?.path) notice('error', `${shown(file)}: ${read.problem}`);
       else {
         report.skipped.push({ path: file, reason: read.problem });
         io.stderr(`noiselint check: ${printableLine(`${shown(file)}: ${read.problem}`)}\n`);
       }
-      continue;
+      return;
     }
     // A text that names no schedule or step-count key cannot hold a finding: not parsed at all.
     if (!mayBeDiffusionConfig(read.text, project.aliases)) {
       report.passedOver = (report.passedOver ?? 0) + 1;
-      continue;
+      return;
     }
     let result: FileResult;
     let pairing: Pairing;
@@ -159,8 +235,10 @@ export async function check(options: CheckOptions, io: CliIO, fs: WorkspaceFs = 
     } catch (err) {
       // The core never throws by contract; if it does, one file's failure must not end the run.
       notice('error', `${shown(file)}: internal error while checking: ${err instanceof Error ? err.message.split('\n')[0] : String(err)}`);
-      continue;
+      unchecked.push({ path: file, reason: 'internal error while checking' });
+      return;
     }
+    if (result.isDiffusionConfig) checkedConfig.add(file);
     // As data: the report outlives every file's tree.
     const checked = { path: file, text: read.text, findings: findingsAsData(result.findings), isDiffusionConfig: result.isDiffusionConfig };
     if (stream) {
@@ -172,9 +250,32 @@ export async function check(options: CheckOptions, io: CliIO, fs: WorkspaceFs = 
       for (const [p, t] of pairing.texts) report.otherTexts.set(p, t);
       report.files.push(checked);
     }
+  };
+
+  if (stdin) checkOne(stdin.path, decodeText(stdin.bytes));
+  // Progress goes to stderr when stderr is a terminal, whatever stdout is (a file, a pipe).
+  const progress = !!io.stderrIsTTY && files.length >= PROGRESS_MIN_FILES;
+  let done = 0;
+  for (const file of files) {
+    if (progress) io.stderr(`\rchecking ${++done}/${files.length}`);
+    const read = session.readText(file, projects.get(file)!);
+    if (progress && !read.ok) io.stderr('\r\x1b[K');
+    checkOne(file, read);
   }
   if (progress) io.stderr('\r\x1b[K');
   for (const w of session.warnings) notice('warning', relativizeWarning(w, io.cwd));
+
+  // Never green on nothing checked: every input must hold at least one diffusion config.
+  if (!options.emptyOk) {
+    const empty = (label: string, read: number) =>
+      notice('error', `${label}: no diffusion config found (${read === 0 ? 'no config files' : `${read} ${read === 1 ? 'file' : 'files'} read, none is a training or sampling config`}); --empty-ok accepts that`);
+    if (stdin && !checkedConfig.has(stdin.path)) empty(options.stdinPath ?? STDIN_NAME, 1);
+    for (const input of inputs) {
+      if (discoveryFailed.has(input)) continue;
+      const own = filesOf.get(input) ?? [];
+      if (!own.some((f) => checkedConfig.has(f))) empty(input, own.length);
+    }
+  }
 
   // Budgets and the summary count every finding; the view only decides what is listed.
   const all = stream ? counted : summarize(report.files);
@@ -193,8 +294,9 @@ export async function check(options: CheckOptions, io: CliIO, fs: WorkspaceFs = 
   report.outcome = { counted: all, hidden, show: options.show, budgets };
 
   if (stream) stream.finish(report);
-  else if (options.format === 'sarif') io.stdout(formatSarif(report, { version: CHECK_TOOL_VERSION, rules: ALL_RULE_METAS }));
-  else io.stdout(formatText(report, { color: io.isTTY && !io.env.NO_COLOR }));
+  else if (options.format === 'sarif') io.stdout(formatSarif(report, { version: CHECK_TOOL_VERSION, rules: ALL_RULE_METAS, docsBase: options.docsBase }));
+  else if (options.format === 'annotations') io.stdout(formatAnnotations(report));
+  else io.stdout(formatText(report, { color: useColor(options.color, io) }));
 
   if (report.notices.some((n) => n.level === 'error')) return 2;
   return budgets.some((b) => b.exceeded) ? 1 : 0;

@@ -1,15 +1,12 @@
 /**
- * `noiselint fix [paths...] [--accept-retraining] [--accept-comment-edits] [--dry-run]`
+ * `noiselint fix [paths...] [options]`: options and exit codes in FIX_SPEC (`--help`).
  *
  * Applies the sampling-only fixes to the files `check` would look at (fixes that change what the
  * model learns with --accept-retraining, fixes that touch a comment with --accept-comment-edits), repeating
  * until nothing changes. --dry-run prints a unified diff and writes nothing. A file is written
- * atomically (temporary file in the same folder, fsync, original mode, rename) and only when it
- * parsed cleanly, is writable, and did not change on disk meanwhile.
- *
- * Exit codes: 0 done; 1 some file could not be fixed or written; 2 bad usage or unreadable input.
+ * atomically (temporary file in the same folder, fsync, original mode, rename), in the encoding it
+ * was read in, and only when it parsed cleanly, is writable, and did not change on disk meanwhile.
  */
-import { parseArgs } from 'node:util';
 import { randomBytes } from 'node:crypto';
 import {
   accessSync,
@@ -36,46 +33,60 @@ import { fixText, type FixLoopResult } from '../../fix/loop';
 import { LineIndex } from '../../parse/lineIndex';
 import { PARSE_ERROR_ID } from '../../rules';
 import { discoverFiles } from '../../workspace/discover';
-import { describeFsError, nodeFs, readTextFile } from '../../workspace/fs';
+import { describeFsError, encodeText, nodeFs, readTextFile, type TextEncoding } from '../../workspace/fs';
 import { loadProject, ProjectFileError, type ResolvedProject } from '../../workspace/project';
-import { UsageError, type CliIO } from '../io';
+import { type CliIO } from '../io';
+import { helpText, parseCommandArgs, type CommandSpec } from '../options';
 import { printable, printableLine } from '../output/printable';
 import { displayPath } from '../output/report';
 import { WorkspaceSession } from '../../workspace/session';
+
+export const FIX_SPEC: CommandSpec = {
+  name: 'fix',
+  summary: 'Applies the fixes of `check` to the files, as minimal edits that keep comments and layout.',
+  usage: '[paths|globs...] [options]',
+  details: [
+    'Inputs as for `check` (none: the current folder). Without consent flags only sampling-only',
+    'fixes that keep every comment are applied: a trained checkpoint stays valid.',
+  ],
+  options: [
+    { name: 'accept-retraining', type: 'boolean', description: 'Also apply fixes that change what the model learns (the checkpoint then needs fine-tuning or retraining).' },
+    { name: 'accept-comment-edits', type: 'boolean', description: 'Also apply fixes that rewrite or delete part of a comment you wrote.' },
+    { name: 'dry-run', short: 'n', type: 'boolean', description: 'Print the changes as a unified diff and write nothing.' },
+  ],
+  exitCodes: [
+    [0, 'done (with --dry-run: nothing to change)'],
+    [1, 'with --dry-run: changes are pending; otherwise some file could not be fixed or written'],
+    [2, 'bad arguments, an invalid project file, or an input that could not be read'],
+  ],
+  examples: ['noiselint fix --dry-run configs/', 'noiselint fix -n . && echo "nothing to fix"'],
+};
 
 interface FixArgs {
   inputs: string[];
   acceptRetraining: boolean;
   acceptCommentEdits: boolean;
   dryRun: boolean;
+  help: boolean;
 }
 
 function parseFixArgs(args: string[]): FixArgs {
-  let parsed;
-  try {
-    parsed = parseArgs({
-      args,
-      allowPositionals: true,
-      strict: true,
-      options: {
-        'accept-retraining': { type: 'boolean', default: false },
-        'accept-comment-edits': { type: 'boolean', default: false },
-        'dry-run': { type: 'boolean', default: false },
-      },
-    });
-  } catch (err) {
-    throw new UsageError(err instanceof Error ? err.message : String(err));
-  }
+  const parsed = parseCommandArgs(FIX_SPEC, args);
   return {
     inputs: parsed.positionals,
-    acceptRetraining: !!parsed.values['accept-retraining'],
-    acceptCommentEdits: !!parsed.values['accept-comment-edits'],
-    dryRun: !!parsed.values['dry-run'],
+    acceptRetraining: parsed.values['accept-retraining'] === true,
+    acceptCommentEdits: parsed.values['accept-comment-edits'] === true,
+    dryRun: parsed.values['dry-run'] === true,
+    help: parsed.help,
   };
 }
 
 export async function runFix(args: string[], io: CliIO): Promise<number> {
   const options = parseFixArgs(args);
+  if (options.help) {
+    io.stdout(helpText(FIX_SPEC));
+    return 0;
+  }
   // Every name printed for a person is escaped (control and bidi characters in file names).
   const shown = (p: string) => printable(displayPath(io.cwd, p));
   // The same files `check` looks at.
@@ -149,7 +160,7 @@ export async function runFix(args: string[], io: CliIO): Promise<number> {
       fixesApplied += count;
       continue;
     }
-    const written = writeAtomically(file, original, result.text);
+    const written = writeAtomically(file, original, result.text, read.encoding);
     if (!written.ok) {
       io.stderr(`${name}: not written: ${written.problem}; ${what} not applied\n`);
       notWritten = true;
@@ -176,6 +187,8 @@ export async function runFix(args: string[], io: CliIO): Promise<number> {
     );
   }
   if (ioError) return 2;
+  // A dry run gates a build: pending changes are exit code 1.
+  if (options.dryRun && filesChanged > 0) return 1;
   return notWritten ? 1 : 0;
 }
 
@@ -311,7 +324,7 @@ function syncFolder(dir: string): void {
  * not atomic; a flushed copy of the original (`.<name>.<random>.noiselint-backup`) is kept until
  * the new content is on disk, so a crash in between leaves the original's bytes beside the file.
  */
-export function writeAtomically(path: string, expected: string, text: string): WriteResult {
+export function writeAtomically(path: string, expected: string, text: string, encoding: TextEncoding = 'utf-8'): WriteResult {
   let target: string;
   let fd: number;
   try {
@@ -321,7 +334,7 @@ export function writeAtomically(path: string, expected: string, text: string): W
     return { ok: false, problem: describeFsError(err) };
   }
   try {
-    return writeOpened(target, fd, Buffer.from(expected, 'utf8'), Buffer.from(text, 'utf8'));
+    return writeOpened(target, fd, encodeText(expected, encoding), encodeText(text, encoding));
   } catch (err) {
     return { ok: false, problem: `cannot write: ${describeFsError(err)}` };
   } finally {

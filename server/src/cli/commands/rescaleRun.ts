@@ -12,7 +12,6 @@
  * Exit codes: 0 shown or written; 1 not written (an edit could not be made, a file changed on
  * disk, consent missing); 2 bad usage or an unreadable file.
  */
-import { parseArgs } from 'node:util';
 import { resolve } from 'node:path';
 import { createTwoFilesPatch } from 'diff';
 import { analyzeText, readFile } from '../../engine/api';
@@ -25,6 +24,7 @@ import { WorkspaceSession } from '../../workspace/session';
 import { UsageError, type CliIO } from '../io';
 import { displayPath } from '../output/report';
 import { writeAtomically } from './fix';
+import { parseCommandArgs, type CommandSpec } from '../options';
 
 interface RescaleArgs {
   inputs: string[];
@@ -33,28 +33,32 @@ interface RescaleArgs {
   acceptRetraining: boolean;
 }
 
+export const RESCALE_RUN_SPEC: CommandSpec = {
+  name: 'rescale-run',
+  summary: 'Moves a whole run (training file and its sampling partners) to zero terminal SNR in one step.',
+  usage: '<file...> [options]',
+  details: ['Prints the change as one diff across the files and a before/after table; writes nothing without --write.'],
+  options: [
+    { name: 'sampling-only', type: 'boolean', description: 'Only the sampling side (the trained checkpoint stays valid).' },
+    { name: 'write', type: 'boolean', description: 'Write the change (atomically) instead of printing it only.' },
+    { name: 'accept-retraining', type: 'boolean', description: 'With --write: also write changes to what the model learns (it then needs fine-tuning).' },
+  ],
+  exitCodes: [
+    [0, 'shown or written'],
+    [1, 'not written (an edit could not be made, a file changed on disk, consent missing)'],
+    [2, 'bad usage or an unreadable file'],
+  ],
+  examples: ['noiselint rescale-run configs/train.yaml', 'noiselint rescale-run configs/train.yaml --write --accept-retraining'],
+};
+
 function parseRescaleArgs(args: string[]): RescaleArgs {
-  let parsed;
-  try {
-    parsed = parseArgs({
-      args,
-      allowPositionals: true,
-      strict: true,
-      options: {
-        'sampling-only': { type: 'boolean', default: false },
-        write: { type: 'boolean', default: false },
-        'accept-retraining': { type: 'boolean', default: false },
-      },
-    });
-  } catch (err) {
-    throw new UsageError(err instanceof Error ? err.message.split('\n')[0] : String(err));
-  }
+  const parsed = parseCommandArgs(RESCALE_RUN_SPEC, args);
   if (parsed.positionals.length === 0) throw new UsageError('name a training or sampling file: noiselint rescale-run <file...>');
   return {
     inputs: parsed.positionals,
-    samplingOnly: !!parsed.values['sampling-only'],
-    write: !!parsed.values.write,
-    acceptRetraining: !!parsed.values['accept-retraining'],
+    samplingOnly: parsed.values['sampling-only'] === true,
+    write: parsed.values.write === true,
+    acceptRetraining: parsed.values['accept-retraining'] === true,
   };
 }
 

@@ -3,7 +3,20 @@ import { ruleDocs } from '../../rules/docs';
 import { ALL_RULE_METAS, getRuleMeta } from '../../rules';
 import { repairLabel } from '../../rules/docs';
 import type { RuleMeta } from '../../rules/types';
-import type { CliIO } from '../io';
+import { UsageError, type CliIO } from '../io';
+import { helpText, parseCommandArgs, type CommandSpec } from '../options';
+
+export const RULES_SPEC: CommandSpec = {
+  name: 'rules',
+  summary: 'Lists the rules, or prints one rule\'s documentation.',
+  usage: '[rule-id]',
+  options: [],
+  exitCodes: [
+    [0, 'printed'],
+    [2, 'an unknown rule id, or bad arguments'],
+  ],
+  examples: ['noiselint rules', 'noiselint rules terminal-snr-leak'],
+};
 
 function table(metas: readonly RuleMeta[]): string {
   const rows = metas.map((m) => [m.id, m.defaultSeverity, repairLabel(m), m.summary]);
@@ -20,20 +33,13 @@ export function ruleText(meta: RuleMeta): string {
 }
 
 export async function runRulesCommand(args: string[], io: CliIO): Promise<number> {
-  const positional = args.filter((a) => !a.startsWith('-'));
-  const flags = args.filter((a) => a.startsWith('-'));
-  if (flags.some((f) => f === '--help' || f === '-h')) {
-    io.stdout('Usage: noiselint rules [id]\n');
+  const parsed = parseCommandArgs(RULES_SPEC, args);
+  if (parsed.help) {
+    io.stdout(helpText(RULES_SPEC));
     return 0;
   }
-  if (flags.length > 0) {
-    io.stderr(`noiselint rules: unknown option "${flags[0]}" (usage: noiselint rules [id])\n`);
-    return 2;
-  }
-  if (positional.length > 1) {
-    io.stderr('noiselint rules: give at most one rule id (usage: noiselint rules [id])\n');
-    return 2;
-  }
+  const positional = parsed.positionals;
+  if (positional.length > 1) throw new UsageError('give at most one rule id (usage: noiselint rules [rule-id])');
   if (positional.length === 0) {
     io.stdout(table(ALL_RULE_METAS));
     return 0;

@@ -2,8 +2,9 @@
  * `check --format json`: the documented contract (docs/project-file.md, "JSON output").
  * Lines and characters are 0-based; characters count UTF-16 code units (as LSP does).
  */
+import { isAbsolute } from 'node:path';
 import type { FixEffect } from '../../base/findings';
-import { JSON_FORMAT_VERSION } from '../../base/version';
+import { JSON_FORMAT_VERSION, VERSION } from '../../base/version';
 import { displayPath, Locator, summarize, type CheckedFile, type CheckReport, type Range } from './report';
 
 export interface JsonEdit {
@@ -40,9 +41,13 @@ export interface JsonFinding {
 export interface JsonOutput {
   /** JSON_FORMAT_VERSION: raised when a field is renamed or removed. */
   formatVersion: number;
+  /** The tool that wrote the report. */
+  tool: { name: 'noiselint'; version: string };
   files: { path: string; findings: JsonFinding[] }[];
   /** Files that were found but not analysed (binary, not UTF-8, too large). */
   skipped: { path: string; reason: string }[];
+  /** Every path that could not be checked (skipped, unreadable, missing, of another type), with the reason. */
+  unchecked: { path: string; reason: string }[];
   /** Every finding of the run, listed or not (`hidden`: how many `--show` left out). */
   /**
    * `files`: files checked and listed; `passedOver`: files whose text names no schedule or
@@ -107,10 +112,17 @@ export function toJson(report: CheckReport, edits: EditForm = 'full'): JsonOutpu
   const locate = new Locator(report);
   return {
     formatVersion: JSON_FORMAT_VERSION,
+    tool: { name: 'noiselint', version: VERSION },
     files: report.files.map((file) => fileEntry(file, locate, report.cwd, edits)),
+    unchecked: uncheckedOf(report),
     skipped: report.skipped.map((s) => ({ path: displayPath(report.cwd, s.path), reason: s.reason })),
     summary: summaryOf(report),
   };
+}
+
+/** Every path the run could not check, relative to the run's folder (inputs as given). */
+function uncheckedOf(report: CheckReport): { path: string; reason: string }[] {
+  return (report.unchecked ?? report.skipped).map((s) => ({ path: isAbsolute(s.path) ? displayPath(report.cwd, s.path) : s.path, reason: s.reason }));
 }
 
 function summaryOf(report: CheckReport, listedFiles = report.files.length): JsonOutput['summary'] {
@@ -147,7 +159,7 @@ export class JsonReportWriter {
     private readonly cwd: string,
     private readonly edits: EditForm = 'compact',
   ) {
-    this.buffer = `{"formatVersion":${JSON_FORMAT_VERSION},"files":[`;
+    this.buffer = `{"formatVersion":${JSON_FORMAT_VERSION},"tool":${JSON.stringify({ name: 'noiselint', version: VERSION })},"files":[`;
   }
 
   /** Writes one checked file; `otherTexts` are the texts its related locations point into. */
@@ -160,7 +172,7 @@ export class JsonReportWriter {
   /** Writes the skipped files and the summary (the report's `files` are not read again). */
   finish(report: CheckReport): void {
     const skipped = report.skipped.map((s) => ({ path: displayPath(this.cwd, s.path), reason: s.reason }));
-    this.buffer += `],"skipped":${JSON.stringify(skipped)},"summary":${JSON.stringify(summaryOf(report, this.files))}}\n`;
+    this.buffer += `],"unchecked":${JSON.stringify(uncheckedOf(report))},"skipped":${JSON.stringify(skipped)},"summary":${JSON.stringify(summaryOf(report, this.files))}}\n`;
     this.flush();
   }
 

@@ -25,6 +25,11 @@ export interface CheckReport {
   cwd: string;
   files: CheckedFile[];
   skipped: SkippedFile[];
+  /**
+   * Every path the run could not check, with the reason: skipped files, unreadable ones, inputs
+   * that do not exist or are of another type. Paths are absolute, or an input as given.
+   */
+  unchecked?: SkippedFile[];
   /** Text of other files related locations point into (paired files), by absolute path. */
   otherTexts: Map<string, string>;
   /** One-line I/O errors and warnings of the run (also written to stderr). */

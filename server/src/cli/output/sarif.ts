@@ -3,7 +3,9 @@
  * documentation; lines and columns are 1-based, columns count UTF-16 code units.
  */
 import { ruleDocs } from '../../rules/docs';
+import { createHash } from 'node:crypto';
 import { pathToFileURL } from 'node:url';
+import { HOMEPAGE } from '../../base/version';
 import { ruleDocsUrl } from '../../workspace/ruleDocs';
 import type { Severity } from '../../base/findings';
 import type { RuleMeta } from '../../rules/types';
@@ -15,8 +17,8 @@ const SRCROOT = '%SRCROOT%';
 export interface SarifToolInfo {
   version: string;
   rules: readonly RuleMeta[];
-  /** Folder that holds `<rule id>.md`; found next to the installed tool when absent. */
-  docsFolder?: string | null;
+  /** https base of the rule pages (`<base>/<id>.md`); without one, no helpUri is written. */
+  docsBase?: string;
 }
 
 type SarifLevel = 'error' | 'warning' | 'note';
@@ -49,6 +51,29 @@ function plainHelp(meta: RuleMeta): string {
   return `${meta.summary}\n\n${ruleDocs(meta).replace(/^#+\s*/gm, '').trim()}`;
 }
 
+function helpUri(ruleId: string, base: string | undefined): { helpUri?: string } {
+  const url = ruleDocsUrl(ruleId, base);
+  return url ? { helpUri: url } : {};
+}
+
+/** Key of our fingerprint in `partialFingerprints` (versioned: a new way of computing it gets a new key). */
+export const FINGERPRINT_KEY = 'noiselintFindingHash/v1';
+
+/**
+ * A finding's identity across runs, independent of its line: the rule, the file, the YAML document,
+ * the text under the finding (whitespace collapsed) and, for identical ones, their order in the file.
+ * Moving the lines around keeps it; editing the flagged value or renaming the file makes a new one.
+ */
+function fingerprinter(): (rule: string, uri: string, documentIndex: number, flagged: string) => string {
+  const seen = new Map<string, number>();
+  return (rule, uri, documentIndex, flagged) => {
+    const base = [rule, uri, String(documentIndex), flagged.replace(/\s+/g, ' ').trim()].join('\u0000');
+    const n = seen.get(base) ?? 0;
+    seen.set(base, n + 1);
+    return createHash('sha256').update(`${base}\u0000${n}`).digest('hex').slice(0, 32);
+  };
+}
+
 export function toSarif(report: CheckReport, tool: SarifToolInfo): Record<string, unknown> {
   const locate = new Locator(report);
   const descriptors: Record<string, unknown>[] = [];
@@ -60,7 +85,7 @@ export function toSarif(report: CheckReport, tool: SarifToolInfo): Record<string
       shortDescription: { text: meta.summary },
       fullDescription: { text: fullDescription(meta) },
       help: { text: plainHelp(meta), markdown: ruleDocs(meta) || meta.summary },
-      helpUri: ruleDocsUrl(meta.id, '', tool.docsFolder),
+      ...helpUri(meta.id, tool.docsBase),
       defaultConfiguration: { level: LEVEL[meta.defaultSeverity] },
       properties: {
         repairEffects: meta.repair ? [...meta.repair.effects] : [],
@@ -76,7 +101,9 @@ export function toSarif(report: CheckReport, tool: SarifToolInfo): Record<string
     },
   });
   const results: Record<string, unknown>[] = [];
+  const fingerprint = fingerprinter();
   for (const file of report.files) {
+    const text = locate.textOf(file.path) ?? '';
     for (const f of file.findings) {
       if (!ruleIndex.has(f.rule)) {
         // A finding from outside the rule list (a parse problem): describe it minimally.
@@ -89,6 +116,9 @@ export function toSarif(report: CheckReport, tool: SarifToolInfo): Record<string
         level: LEVEL[f.severity],
         message: { text: f.message },
         locations: [location(file.path, locate.range(file.path, f.span))],
+        partialFingerprints: {
+          [FINGERPRINT_KEY]: fingerprint(f.rule, displayPath(report.cwd, file.path), f.documentIndex, text.slice(f.span.start, f.span.end)),
+        },
       };
       if (f.related.length) {
         result.relatedLocations = f.related.map((r, i) => {
@@ -128,6 +158,7 @@ export function toSarif(report: CheckReport, tool: SarifToolInfo): Record<string
             name: 'noiselint',
             version: tool.version,
             semanticVersion: tool.version,
+            informationUri: HOMEPAGE,
             rules: descriptors,
           },
         },

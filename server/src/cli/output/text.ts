@@ -5,6 +5,7 @@
  * line per budget given on the command line that the run exceeds.
  */
 import type { Severity } from '../../base/findings';
+import { allowedFix, NO_CONSENT } from '../../fix/select';
 import { displayPath, Locator, summarize, type CheckReport } from './report';
 import { printable, printableLine } from './printable';
 
@@ -65,6 +66,10 @@ function summaryLine(report: CheckReport, paint: (code: string, s: string) => st
       ].filter(Boolean).join(', ')} not listed: --show ${report.outcome!.show})`
     : '';
   const total = s.errors + s.warnings + s.infos + s.hints;
+  // Never green on nothing checked.
+  if (total === 0 && !report.files.some((f) => f.isDiffusionConfig)) {
+    return `No diffusion configs found: nothing checked (${count(report.files.length, 'file')} read${skipped}).`;
+  }
   if (total === 0) return `${paint(SGR.green, 'No findings')} in ${checked}${skipped}${hidden}.`;
   const parts = [
     s.errors ? paint(SGR.red, count(s.errors, 'error')) : '',
@@ -72,7 +77,9 @@ function summaryLine(report: CheckReport, paint: (code: string, s: string) => st
     s.infos ? paint(SGR.blue, count(s.infos, 'info')) : '',
     s.hints ? count(s.hints, 'hint') : '',
   ].filter(Boolean);
-  const fixable = report.files.reduce((n, f) => n + f.findings.filter((x) => x.fixes.length > 0).length, 0);
-  const fixNote = fixable ? `; ${fixable} with a fix (noiselint fix --dry-run shows them)` : '';
+  // Only what a plain `noiselint fix` applies: findings with a safe fix.
+  const plainFix = allowedFix(NO_CONSENT);
+  const fixable = report.files.reduce((n, f) => n + f.findings.filter((x) => x.fixes.some(plainFix)).length, 0);
+  const fixNote = fixable ? `; ${fixable} fixable by noiselint fix (--dry-run shows the changes)` : '';
   return `${parts.join(', ')} in ${checked}${skipped}${hidden}${fixNote}.`;
 }
