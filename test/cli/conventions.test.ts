@@ -126,6 +126,7 @@ describe('standard input', () => {
   beta_schedule: scaled_linear
   beta_start: 0.00085
   beta_end: 0.012
+  rescale_betas_zero_snr: false
   prediction_type: v_prediction
   timestep_spacing: trailing
 sampling:

@@ -68,7 +68,8 @@ function summaryLine(report: CheckReport, paint: (code: string, s: string) => st
   const total = s.errors + s.warnings + s.infos + s.hints;
   // Never green on nothing checked.
   if (total === 0 && !report.files.some((f) => f.isDiffusionConfig)) {
-    return `No diffusion configs found: nothing checked (${count(report.files.length, 'file')} read${skipped}).`;
+    const read = report.files.length + (report.passedOver ?? 0);
+    return `No diffusion configs found: nothing checked (${count(read, 'file')} read${report.skipped.length ? `, ${report.skipped.length} skipped` : ''}).`;
   }
   if (total === 0) return `${paint(SGR.green, 'No findings')} in ${checked}${skipped}${hidden}.`;
   const parts = [
