@@ -156,7 +156,7 @@ sampling:
   it('`-` alone reads as <stdin>; --as without `-` is refused', async () => {
     const root = tree({});
     const r = await runCli(['check', '-'], root, { stdin: LEAKY_V });
-    expect(r.stdout).toMatch(/^<stdin>:3:\d+ warning terminal-snr-leak/m);
+    expect(r.stdout).toMatch(/^<stdin>:3:\d+: warning: .*\(noiselint rules terminal-snr-leak\)$/m);
     expect(r.code).toBe(0);
     const bad = await runCli(['check', '--as', 'x.yaml'], root);
     expect(bad.code).toBe(2);
@@ -209,7 +209,7 @@ describe('never green on nothing checked', () => {
       'noiselint check: docs: no diffusion config found (1 file read, none is a training or sampling config); --empty-ok accepts that',
       'noiselint check: empty: no diffusion config found (no config files); --empty-ok accepts that',
     ]);
-    expect(r.stdout).toMatch(/runs\/leaky\.yaml:\d+:\d+ warning terminal-snr-leak/);
+    expect(r.stdout).toMatch(/runs\/leaky\.yaml:\d+:\d+: warning: .*\(noiselint rules terminal-snr-leak\)/);
   });
 
   it('a named binary file, or a named file of another type, is an error with its reason', async () => {
