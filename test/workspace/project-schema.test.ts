@@ -8,6 +8,7 @@ import { join } from 'node:path';
 import Ajv from 'ajv';
 import { parse as parseYaml } from 'yaml';
 import { describe, expect, it } from 'vitest';
+import { FAMILY_IDS } from '../../server/src/consumers/profiles';
 import { parseProjectFile, PROJECT_FILE_NAMES } from '../../server/src/workspace/projectFile';
 import { PROJECT_SCHEMA_FILE, projectFileSchemaText } from '../../server/src/workspace/projectSchema';
 import { REPO_ROOT, ensureServerBuilt } from '../lsp/buildServer';
@@ -23,6 +24,7 @@ const VALID: Record<string, string> = {
   'an empty file': '',
   'a single glob as a string': 'include: "configs/**"\n',
   'rule options': 'rules:\n  terminal-snr-leak:\n    severity: error\n    options: { warnSignal: 0.02 }\n',
+  'a consumer entry': `consumers:\n  - files: ["launch/**"]\n    consumer: ${FAMILY_IDS[0]}\n`,
 };
 
 const INVALID: Record<string, string> = {
@@ -36,6 +38,8 @@ const INVALID: Record<string, string> = {
   'a pair without its sampling side': 'pairs:\n  - training: a.yaml\n',
   'a flag that is not a boolean': 'autoPair: "yes"\n',
   'an absolute glob': 'include: ["/etc/**"]\n',
+  'a consumer entry without files': `consumers:\n  - consumer: ${FAMILY_IDS[0]}\n`,
+  'an unknown consumer family': 'consumers:\n  - files: ["launch/**"]\n    consumer: no-such-family\n',
 };
 
 describe('project file schema', () => {

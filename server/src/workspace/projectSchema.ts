@@ -94,7 +94,6 @@ export function projectFileSchema(): Schema {
         type: 'object',
         additionalProperties: false,
         required: ['files'],
-        anyOf: [{ required: ['consumer'] }, { required: ['dialect'] }],
         properties: {
           files: globs('Globs relative to this folder: the files this entry is about.'),
           consumer: { enum: [...FAMILY_IDS] },
