@@ -3,7 +3,7 @@
  * analyse again, repeat until nothing changes, so that fixing a fixed text changes nothing.
  * The analysis is passed in (the caller owns the pipeline); this module only does text.
  */
-import type { Finding, FixEffect, FixProposal, TextEdit } from '../base/findings';
+import type { Finding, FixEffect } from '../base/findings';
 import type { ParseProblem } from '../parse/types';
 import { applyEdits } from './apply';
 import { allowedFix, FULL_CONSENT, selectFixes } from './select';
