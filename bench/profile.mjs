@@ -2,7 +2,7 @@
 // Profiles one benchmark measurement with the V8 sampling profiler and prints the functions that
 // dominate (self time and inclusive time). Needs the harness bundle and the corpus that
 // `node bench/run.mjs --only a` leaves behind.
-//   node bench/profile.mjs core|command|parse|ajv|lsp-analyze [--lines 5000]
+//   node bench/profile.mjs core|command|parse|ajv|lsp-analyze [--lines 5000] [--dir bench/monorepo]
 import { spawnSync } from 'node:child_process';
 import { mkdtempSync, readdirSync, readFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
@@ -11,10 +11,10 @@ import { fileURLToPath, pathToFileURL } from 'node:url';
 import { parseArgs } from 'node:util';
 
 const root = join(dirname(fileURLToPath(import.meta.url)), '..');
-const { values, positionals } = parseArgs({ allowPositionals: true, options: { lines: { type: 'string', default: '5000' }, child: { type: 'boolean', default: false }, top: { type: 'string', default: '25' } } });
+const { values, positionals } = parseArgs({ allowPositionals: true, options: { dir: { type: 'string', default: 'bench/corpus' }, lines: { type: 'string', default: '5000' }, child: { type: 'boolean', default: false }, top: { type: 'string', default: '25' } } });
 const what = positionals[0] ?? 'core';
 const harness = join(root, 'build/bench/harness.mjs');
-const corpus = join(root, 'bench/corpus');
+const corpus = join(root, values.dir);
 
 if (values.child) {
   process.env.NOISELINT_REPO = root;
@@ -29,7 +29,7 @@ if (values.child) {
 }
 
 const dir = mkdtempSync(join(tmpdir(), 'noiselint-prof-'));
-const r = spawnSync(process.execPath, ['--cpu-prof', `--cpu-prof-dir=${dir}`, fileURLToPath(import.meta.url), what, '--child', '--lines', values.lines], { stdio: 'inherit' });
+const r = spawnSync(process.execPath, ['--cpu-prof', `--cpu-prof-dir=${dir}`, fileURLToPath(import.meta.url), what, '--child', '--lines', values.lines, '--dir', values.dir], { stdio: 'inherit' });
 if (r.status !== 0) process.exit(r.status ?? 1);
 const file = join(dir, readdirSync(dir).find((f) => f.endsWith('.cpuprofile')));
 const profile = JSON.parse(readFileSync(file, 'utf8'));

@@ -83,18 +83,21 @@ export class NotRegularFileError extends Error {
  * report size 0 and never end. Opened without blocking (a FIFO swapped in after a stat would
  * block an ordinary open), then only a regular file is read.
  */
+const READ_SCRATCH = Buffer.allocUnsafe(64 * 1024);
+
 export function readBounded(path: string, maxBytes: number): Buffer {
   const fd = openSync(path, fsConstants.O_RDONLY | fsConstants.O_NONBLOCK);
   try {
     if (!fstatSync(fd).isFile()) throw new NotRegularFileError('not a regular file');
     // Whole 64 KiB reads (some special files refuse odd sizes), stopping once past the limit.
+    // Into one shared scratch buffer, copied out at the size read: a fresh 64 KiB per read made
+    // every small config cost two 64 KiB allocations (the second read only finds the end).
     const chunks: Buffer[] = [];
     let total = 0;
     while (total <= maxBytes) {
-      const chunk = Buffer.allocUnsafe(64 * 1024);
-      const n = readSync(fd, chunk, 0, chunk.length, null);
+      const n = readSync(fd, READ_SCRATCH, 0, READ_SCRATCH.length, null);
       if (n <= 0) break;
-      chunks.push(n === chunk.length ? chunk : chunk.subarray(0, n));
+      chunks.push(Buffer.from(READ_SCRATCH.subarray(0, n)));
       total += n;
     }
     return chunks.length === 1 ? chunks[0] : Buffer.concat(chunks, total);
