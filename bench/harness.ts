@@ -145,6 +145,18 @@ export function parseTimes(text: string, format: SourceFormat, runs: number): nu
   return out;
 }
 
+/**
+ * CPU time (user + system, ms) of analyzeText on one text, per run: compared with the server's
+ * CPU time per change, so that waiting for a core on a shared machine counts on neither side.
+ */
+export function analyzeCpuMs(text: string, path: string, runs: number): number {
+  analyzeText(text, { path });
+  const t0 = process.cpuUsage();
+  for (let i = 0; i < runs; i++) analyzeText(text, { path });
+  const d = process.cpuUsage(t0);
+  return (d.user + d.system) / 1000 / runs;
+}
+
 /** analyzeText time of one text, repeated (the in-process part of a diagnostics round trip). */
 export function analyzeTimes(text: string, path: string, runs: number): number[] {
   const out: number[] = [];

@@ -17,6 +17,8 @@ import type { Concept } from '../fields/concepts';
 import { KEY_ALIASES } from '../fields/aliases';
 import { keySegments } from '../fields/normalize';
 import { SCHEDULE_CONCEPTS } from '../setup';
+import { detectLineEnding, formatFromPath, hasBom, type ParsedFile } from '../parse';
+import type { FileReading } from './types';
 
 /** Concepts whose spellings let a text through. */
 export const PREFILTER_CONCEPTS: readonly Concept[] = [...SCHEDULE_CONCEPTS, 'sampleSteps', 'stepsOffset'];
@@ -74,4 +76,23 @@ export function mayBeDiffusionConfig(text: string, extraAliases?: Partial<Record
     if (all) return true;
   }
   return false;
+}
+
+/**
+ * The reading of a file the pre-filter passed over: no documents, nothing parsed. What pairing
+ * and the session learn from it (role 'none', no partner documents) is what a parse would have
+ * told them, since such a text holds no diffusion config.
+ */
+export function passedOverReading(path: string, text: string): FileReading {
+  const parsed: ParsedFile = {
+    format: formatFromPath(path) ?? 'yaml',
+    text,
+    documents: [],
+    problems: [],
+    lineEnding: detectLineEnding(text),
+    bom: hasBom(text),
+    suppressions: [],
+    comments: [],
+  };
+  return { path, parsed, documents: [], isDiffusionConfig: false, inheritance: null };
 }

@@ -13,6 +13,7 @@
 import { dirname } from 'node:path';
 import { LruCache } from '@noiselint/shared-math';
 import { analyzeRead, analyzeText, readFile, type AnalyzeOptions, type FileReading, type FileResult } from '../engine/api';
+import { mayBeDiffusionConfig, passedOverReading } from '../engine/prefilter';
 import type { PartnerDocument } from '../rules/types';
 import { projectSelects } from './discover';
 import { nodeFs, readTextFile, type TextReadResult, type WorkspaceFs } from './fs';
@@ -150,7 +151,12 @@ export class WorkspaceSession {
         entry =
           cached && cached.text === read.text && cached.project === project
             ? cached
-            : { text: read.text, project, file: readFile(read.text, { path, project }) };
+            : {
+                text: read.text,
+                project,
+                // Not parsed when the text cannot hold a diffusion config (engine/prefilter.ts).
+                file: mayBeDiffusionConfig(read.text, project.aliases) ? readFile(read.text, { path, project }) : passedOverReading(path, read.text),
+              };
       }
     } catch {
       entry = null;
