@@ -99,7 +99,7 @@ export class WorkspaceIndex {
       if (!f.path) continue;
       const found = discoverFiles([f.path], f.path, undefined, { fs: this.session.fs, maxFiles: MAX_INDEXED_FILES });
       files.push(...found.files);
-      for (const e of found.errors) hooks.warn(e);
+      for (const e of [...found.errors, ...found.warnings]) hooks.warn(e);
     }
     for (let i = 0; i < files.length; i++) {
       if (hooks.stopped()) return null;

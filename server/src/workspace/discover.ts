@@ -11,8 +11,7 @@
  * - The result is sorted and free of duplicates.
  */
 import { dirname, join, relative, resolve, sep } from 'node:path';
-import ignore, { type Ignore } from 'ignore';
-import picomatch from 'picomatch';
+import { compileGlob, GlobError, globBase, hasGlobSyntax, parseIgnore, type IgnoreRules } from './glob';
 import { describeFsError, nodeFs, type WorkspaceFs } from './fs';
 import { PROJECT_FILE_NAMES, loadProject } from './projectFile';
 import type { ResolvedProject } from './types';
@@ -39,11 +38,13 @@ export interface DiscoverResult {
   errors: string[];
   /** The same problems as data: the path (as given, or the folder) and the reason. */
   problems: { path: string; reason: string }[];
+  /** One line each: .gitignore files or patterns left out (too large, too many wildcards). */
+  warnings: string[];
 }
 
 interface IgnoreLayer {
   base: string;
-  rules: Ignore;
+  rules: IgnoreRules;
 }
 
 export function isConfigFileName(name: string): boolean {
@@ -64,8 +65,8 @@ export function projectSelects(project: ResolvedProject, file: string): boolean 
   let m = matcherCache.get(project);
   if (!m) {
     m = {
-      include: project.include.length ? picomatch(project.include, { dot: true }) : null,
-      exclude: project.exclude.length ? picomatch(project.exclude, { dot: true }) : null,
+      include: project.include.length ? safeMatcher(project.include) : null,
+      exclude: project.exclude.length ? safeMatcher(project.exclude) : null,
     };
     matcherCache.set(project, m);
   }
@@ -73,6 +74,15 @@ export function projectSelects(project: ResolvedProject, file: string): boolean 
   if (m.exclude && m.exclude(rel)) return false;
   if (m.include && !m.include(rel)) return false;
   return true;
+}
+
+/** The project file refuses bad globs when it is loaded; a hand-made project's bad glob matches nothing. */
+function safeMatcher(globs: string[]): (p: string) => boolean {
+  try {
+    return compileGlob(globs, { dot: true });
+  } catch {
+    return () => false;
+  }
 }
 
 export function discoverFiles(inputs: string[], cwd: string, project?: ResolvedProject, options: DiscoverOptions = {}): DiscoverResult {
@@ -83,6 +93,7 @@ export function discoverFiles(inputs: string[], cwd: string, project?: ResolvedP
     files: new Set<string>(),
     errors: [] as string[],
     problems: [] as { path: string; reason: string }[],
+    warnings: [] as string[],
     entries: 0,
     maxFiles: options.maxFiles ?? DEFAULT_MAX_FILES,
     maxEntries: options.maxEntries ?? DEFAULT_MAX_ENTRIES,
@@ -101,21 +112,24 @@ export function discoverFiles(inputs: string[], cwd: string, project?: ResolvedP
       walk(abs, state, null);
     } else if (st) {
       problem(state, input, 'not a regular file or folder');
-    } else if (picomatch.scan(input).isGlob) {
-      const scan = picomatch.scan(input);
-      let matched = 0;
-      const base = resolve(cwd, scan.base || '.');
-      if (fs.stat(base)?.kind === 'dir') {
-        const pattern = toPosix(relative(cwd, resolve(cwd, input.replace(/\\/g, '/')))) || '.';
-        const matches = picomatch(pattern, { dot: false });
-        matched = walk(base, state, (file) => matches(toPosix(relative(cwd, file))));
+    } else if (hasGlobSyntax(input)) {
+      let matches: (p: string) => boolean;
+      try {
+        matches = compileGlob(toPosix(relative(cwd, resolve(cwd, input))) || '.', { dot: false });
+      } catch (err) {
+        if (!(err instanceof GlobError)) throw err;
+        problem(state, input, `glob refused: ${err.message}`);
+        continue;
       }
+      let matched = 0;
+      const base = resolve(cwd, globBase(input));
+      if (fs.stat(base)?.kind === 'dir') matched = walk(base, state, (file) => matches(toPosix(relative(cwd, file))));
       if (matched === 0) problem(state, input, 'no files match');
     } else {
       problem(state, input, 'no such file or folder');
     }
   }
-  return { files: [...state.files].sort(comparePaths), errors: state.errors, problems: state.problems };
+  return { files: [...state.files].sort(comparePaths), errors: state.errors, problems: state.problems, warnings: [...new Set(state.warnings)] };
 }
 
 function problem(state: { errors: string[]; problems: { path: string; reason: string }[] }, path: string, reason: string): void {
@@ -129,6 +143,7 @@ interface WalkState {
   files: Set<string>;
   errors: string[];
   problems: { path: string; reason: string }[];
+  warnings: string[];
   entries: number;
   maxFiles: number;
   maxEntries: number;
@@ -141,7 +156,7 @@ interface WalkState {
  */
 function walk(root: string, state: WalkState, select: ((file: string) => boolean) | null): number {
   let accepted = 0;
-  const layers = ancestorIgnoreLayers(root, state.fs);
+  const layers = ancestorIgnoreLayers(root, state.fs, state.warnings);
   const stack: { dir: string; layers: IgnoreLayer[] }[] = [{ dir: root, layers }];
   while (stack.length) {
     const { dir, layers: inherited } = stack.pop()!;
@@ -153,7 +168,7 @@ function walk(root: string, state: WalkState, select: ((file: string) => boolean
       continue;
     }
     entries.sort((a, b) => (a.name < b.name ? -1 : a.name > b.name ? 1 : 0));
-    const own = entries.some((e) => e.name === '.gitignore' && e.kind === 'file') ? loadIgnoreLayer(dir, state.fs) : null;
+    const own = entries.some((e) => e.name === '.gitignore' && e.kind === 'file') ? loadIgnoreLayer(dir, state.fs, state.warnings) : null;
     const layers = own ? [...inherited, own] : inherited;
     const project = state.project ?? safeProject(dir, state.fs);
     const subdirs: string[] = [];
@@ -197,22 +212,28 @@ function safeProject(dir: string, fs: WorkspaceFs): ResolvedProject | undefined 
   }
 }
 
-function loadIgnoreLayer(dir: string, fs: WorkspaceFs): IgnoreLayer | null {
+function loadIgnoreLayer(dir: string, fs: WorkspaceFs, warnings: string[]): IgnoreLayer | null {
   const path = join(dir, '.gitignore');
   const st = fs.stat(path);
-  if (!st || st.kind !== 'file' || st.size > MAX_GITIGNORE_BYTES) return null;
+  if (!st || st.kind !== 'file') return null;
+  const tooLarge = () => {
+    warnings.push(`${path}: not used: above ${MAX_GITIGNORE_BYTES} bytes`);
+    return null;
+  };
+  if (st.size > MAX_GITIGNORE_BYTES) return tooLarge();
   try {
     const bytes = fs.readBytes(path, MAX_GITIGNORE_BYTES);
-    if (bytes.length > MAX_GITIGNORE_BYTES) return null;
-    const text = new TextDecoder('utf-8').decode(bytes);
-    return { base: dir, rules: ignore().add(text) };
+    if (bytes.length > MAX_GITIGNORE_BYTES) return tooLarge();
+    const rules = parseIgnore(new TextDecoder('utf-8').decode(bytes), path);
+    warnings.push(...rules.warnings);
+    return { base: dir, rules };
   } catch {
     return null;
   }
 }
 
 /** .gitignore files of the folders above `root`, up to the one that holds `.git` (if any). */
-function ancestorIgnoreLayers(root: string, fs: WorkspaceFs): IgnoreLayer[] {
+function ancestorIgnoreLayers(root: string, fs: WorkspaceFs, warnings: string[]): IgnoreLayer[] {
   const chain: string[] = [];
   let dir = dirname(root);
   let gitRoot: string | null = fs.stat(join(root, '.git')) ? root : null;
@@ -226,7 +247,7 @@ function ancestorIgnoreLayers(root: string, fs: WorkspaceFs): IgnoreLayer[] {
   if (!gitRoot) return [];
   const layers: IgnoreLayer[] = [];
   for (const d of chain.reverse()) {
-    const layer = loadIgnoreLayer(d, fs);
+    const layer = loadIgnoreLayer(d, fs, warnings);
     if (layer) layers.push(layer);
   }
   return layers;

@@ -4,7 +4,6 @@
  * a stack trace. The format is documented in docs/project-file.md.
  */
 import { dirname, isAbsolute, join, parse as parsePath, resolve } from 'node:path';
-import picomatch from 'picomatch';
 import { LineCounter, parseDocument } from 'yaml';
 import { SEVERITIES, type Severity } from '../base/findings';
 import { FAMILIES, FAMILY_IDS } from '../consumers/profiles';
@@ -16,6 +15,9 @@ import type { ParseLimits } from '../parse/types';
 import { ALL_RULE_METAS } from '../rules';
 import type { RuleMeta } from '../rules/types';
 import { nodeFs, readTextFile, type WorkspaceFs } from './fs';
+import { checkGlob } from './glob';
+
+const shortGlob = (g: string) => (g.length > 60 ? `${g.slice(0, 59)}…` : g);
 import type { FilePair, ResolvedProject, RuleSetting } from './types';
 import { nearestName } from '../base/nearest';
 
@@ -130,9 +132,9 @@ function globList(value: unknown, field: string, fail: Fail): string[] {
     if (isAbsolute(item) || /^[A-Za-z]:[\\/]/.test(item)) return fail(at, `"${item}" must be relative to the project folder`);
     if (item.split(/[\\/]/).includes('..')) return fail(at, `"${item}" must stay inside the project folder (no "..")`);
     try {
-      picomatch(item);
+      checkGlob(item);
     } catch (err) {
-      return fail(at, `"${item}" is not a valid glob (${firstLine(err)})`);
+      return fail(at, `"${shortGlob(item)}" is refused (${firstLine(err)})`);
     }
     return item.replace(/^\.\//, '');
   });

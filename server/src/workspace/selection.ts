@@ -1,6 +1,6 @@
 /** Glob selection helpers shared by the session and the language server (paths in POSIX form). */
 import { isAbsolute, relative, sep } from 'node:path';
-import picomatch from 'picomatch';
+import { compileGlob } from './glob';
 
 /** `path` is `folder` or lies below it. */
 export function isInside(folder: string, path: string): boolean {
@@ -29,7 +29,7 @@ export function globMatcher(globs: readonly string[]): (path: string) => boolean
   let m = matchers.get(key);
   if (!m) {
     try {
-      m = picomatch([...globs], { dot: true });
+      m = compileGlob(globs, { dot: true });
     } catch {
       m = () => false;
     }

@@ -181,6 +181,7 @@ export async function check(options: CheckOptions, io: CliIO, diskFs: WorkspaceF
   for (const input of inputs) {
     const found = discoverFiles([input], io.cwd, undefined, { fs });
     for (const e of found.errors) notice('error', e);
+    for (const w of found.warnings) notice('warning', relativizeWarning(w, io.cwd));
     for (const p of found.problems) unchecked.push({ path: p.path, reason: p.reason });
     if (found.errors.length) discoveryFailed.add(input);
     filesOf.set(input, found.files);

@@ -94,6 +94,7 @@ export async function runFix(args: string[], io: CliIO): Promise<number> {
   const scope = checkedScope(options.inputs, io.cwd);
   let ioError = found.errors.length > 0;
   for (const e of found.errors) io.stderr(`noiselint fix: ${printableLine(e)}\n`);
+  for (const w of found.warnings) io.stderr(`noiselint fix: warning: ${printableLine(w.split(`${io.cwd}/`).join(''))}\n`);
   const projects = new Map<string, ResolvedProject>();
   try {
     for (const file of found.files) projects.set(file, loadProject(file));
