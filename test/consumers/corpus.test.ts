@@ -58,7 +58,16 @@ describe('consumer corpora', () => {
         const fixed = applyFix(file.text, got, k);
         const after = loadSection(fixed, file.path);
         // Exactly the intended change, as the loader reads it, and nothing else.
-        expect(changedKeys(before.values, after.values)).toEqual(wantFix.changes);
+        const changed = changedKeys(before.values, after.values);
+        // A long list is stated by its length and its ends (a rescaled beta list: the first beta is
+        // unchanged and the last is exactly 1, Lin et al. 2023, Algorithm 1).
+        for (const [key, want] of Object.entries(wantFix.changes)) {
+          const got2 = changed[key];
+          if (want && typeof want === 'object' && !Array.isArray(want) && Array.isArray(got2)) {
+            changed[key] = { length: got2.length, first: got2[0], last: got2[got2.length - 1] };
+          }
+        }
+        expect(changed).toEqual(wantFix.changes);
         // No key the consumer does not take.
         if (after.accepted) {
           const added = Object.keys(after.values).filter((k2) => !(k2 in before.values));

@@ -22,7 +22,7 @@ const SIDE = /\.(expected\.json|after-\d+\.[a-z]+)$/;
 export interface ExpectedFix {
   title: string;
   /** Keys of the consumer section the fix changes, with the value the loader reads afterwards (null: removed). */
-  changes: Record<string, ScalarValue | ScalarValue[]>;
+  changes: Record<string, ScalarValue | ScalarValue[] | { length: number; first: ScalarValue; last: ScalarValue }>;
 }
 
 export interface ExpectedFinding {

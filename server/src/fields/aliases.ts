@@ -54,7 +54,7 @@ export const KEY_ALIASES: Record<Concept, KeyAlias[]> = {
   betaStart: [key('beta_start'), key('linear_start', 'short')],
   betaEnd: [key('beta_end'), key('linear_end', 'short')],
   // `betas` alone is also the Adam optimizer's pair: it needs a list of at least 3 numbers.
-  betas: [key('trained_betas'), ambiguous('betas')],
+  betas: [key('trained_betas'), key('given_betas', 'short'), ambiguous('betas')],
   zeroTerminalSnr: [key('rescale_betas_zero_snr'), key('zero_terminal_snr')],
   predictionTarget: [
     key('prediction_type'),

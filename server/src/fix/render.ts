@@ -223,7 +223,9 @@ class Renderer implements RemovalContext, InsertContext {
     if (ENUM_CONCEPTS.has(concept)) {
       if (typeof value !== 'string') giveUp(`${concept} needs a name`);
       const oldValue = typeof oldScalar?.value === 'string' ? oldScalar.value : null;
-      const spelled = spellEnum(concept, value, { key, oldValue, style: this.setup.keyStyle });
+      // A consuming class with a profile spells the value its own way (consumer profile stage).
+      const own = key ? this.setup.consumer?.enumSpellings?.[key]?.[value] : undefined;
+      const spelled = own ?? spellEnum(concept, value, { key, oldValue, style: this.setup.keyStyle });
       if (spelled === null) giveUp(`no spelling for ${concept} ${value}`);
       const quote = oldScalar ? oldQuote : this.preferredQuote();
       return formatString(spelled, this.format, quote);

@@ -238,6 +238,23 @@ function checkClassEnums(fields: SetupFields, problems: ValueProblem[], classNam
   }
 }
 
+/** For each enum key of the class: tool member -> the class's spelling (the first accepted spelling of it). */
+function enumSpellingsOf(cls: NonNullable<ConsumerReading['cls']>): Record<string, Record<string, string>> {
+  const out: Record<string, Record<string, string>> = {};
+  for (const [key, allowed] of Object.entries(cls.enums ?? {})) {
+    const concept = (Object.keys(cls.conceptKeys) as Concept[]).find((c) => cls.conceptKeys[c] === key);
+    const table = concept ? ENUM_SPELLINGS[concept] : undefined;
+    if (!table) continue;
+    const byMember: Record<string, string> = {};
+    for (const written of allowed) {
+      const meaning = cls.valueMeanings?.[key]?.[written] ?? lookupSpelling(written, table);
+      if (meaning !== undefined && !(meaning in byMember)) byMember[meaning] = written;
+    }
+    out[key] = byMember;
+  }
+  return out;
+}
+
 function consumerSummary(reading: ConsumerReading, loaderReadings: LoaderReading[]): NonNullable<Setup['consumer']> {
   const cls = reading.cls;
   const out: NonNullable<Setup['consumer']> = {
@@ -251,6 +268,7 @@ function consumerSummary(reading: ConsumerReading, loaderReadings: LoaderReading
     cannotExpress: { ...(cls?.cannotExpress ?? {}) },
   };
   if (cls?.fixedSpacing) out.fixedSpacing = cls.fixedSpacing;
+  if (cls?.enums) out.enumSpellings = enumSpellingsOf(cls);
   if (cls) out.insertKeys = insertKeysOf(cls);
   return out;
 }

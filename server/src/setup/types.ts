@@ -90,6 +90,8 @@ export interface SetupConsumer {
   fixedSpacing?: TimestepSpacing;
   /** Key a fix writes for each concept; null: the consumer cannot take that concept. */
   insertKeys?: { [C in Concept]?: string | null };
+  /** The consumer's own spelling of each enum member, per key (`parameterization` -> v -> "v"). */
+  enumSpellings?: Record<string, Record<string, string>>;
   /** What to change instead, per concept the consumer cannot take. */
   cannotExpress: { [C in Concept]?: string };
 }
