@@ -75,6 +75,8 @@ class Renderer implements RemovalContext, InsertContext {
   /** Commas that removals in flow maps delete: an insert must not rely on them. */
   readonly removedCommas = new Set<number>();
   private readonly inserts: PendingInsert[] = [];
+  /** Concepts whose new value is spelled plainly, not like the old text (loader-safe spelling). */
+  private readonly plainSpelling = new Set<Concept>();
   private booleanSpelling: 'lower' | 'title' | 'upper' | undefined;
   private insertQuote: QuoteStyle | undefined;
   /** Why the edits need a parse of the result before they are offered (see the module comment). */
@@ -107,6 +109,7 @@ class Renderer implements RemovalContext, InsertContext {
     }
     // Removals first, so that an insertion never anchors on an entry that goes away.
     for (const edit of edits) if (edit.kind === 'remove') remove(this, edit.concept, edit.keepComment === true);
+    for (const edit of edits) if (edit.kind === 'set' && edit.plainSpelling) this.plainSpelling.add(edit.concept);
     for (const edit of edits) if (edit.kind === 'set') this.set(edit.concept, edit.value);
     for (const pending of this.inserts) renderInsert(this, pending);
     return this.finish();
@@ -231,6 +234,7 @@ class Renderer implements RemovalContext, InsertContext {
       return formatString(spelled, this.format, quote);
     }
     if (typeof value !== 'number') giveUp(`${concept} needs a number`);
+    if (this.plainSpelling.has(concept)) return this.number(concept, value, null);
     return keepQuotes(this.number(concept, value, oldScalar?.raw ?? null));
   }
 

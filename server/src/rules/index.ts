@@ -5,6 +5,7 @@ import { guidanceOverexposure } from './guidance-overexposure';
 import { guidanceRescaleRange } from './guidance-rescale-range';
 import { infiniteSigmaAtZeroSnr } from './infinite-sigma-at-zero-snr';
 import { latentThresholding } from './latent-thresholding';
+import { loadedValueDiffers } from './loaded-value-differs';
 import { minSnrDivision } from './min-snr-division';
 import { minSnrDropsTerminalStep } from './min-snr-drops-terminal-step';
 import { offsetNoiseConflict } from './offset-noise-conflict';
@@ -38,6 +39,7 @@ export const RULES: readonly Rule[] = [
   timestepOutOfRange,
   infiniteSigmaAtZeroSnr,
   minSnrDropsTerminalStep,
+  loadedValueDiffers,
 ];
 
 export const RULE_IDS: readonly string[] = RULES.map((r) => r.meta.id);

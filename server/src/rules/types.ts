@@ -5,7 +5,13 @@ import type { FieldSource, Setup } from '../setup/types';
 
 /** A change stated in concepts; fix/ renders it as minimal text edits. */
 export type ConceptEdit =
-  | { kind: 'set'; concept: Concept; value: ConceptValues[Concept] }
+  | {
+      kind: 'set';
+      concept: Concept;
+      value: ConceptValues[Concept];
+      /** Write the value in its plain spelling instead of copying the old one (`1e-4` -> `0.0001`). */
+      plainSpelling?: boolean;
+    }
   | {
       kind: 'remove';
       concept: Concept;
