@@ -93,14 +93,16 @@ describe('adversarial bytes and files', () => {
       expect(r.stderr, name).toMatch(/noiselint\.project\.yaml/);
       expect(r.stderr.trim().split('\n').length, `${name}: ${r.stderr}`).toBeLessThanOrEqual(3);
     }
-    // A code-constructing tag is data at most: the command in it never runs.
+    // A code-constructing tag is plain data: the tagged list is read as the include patterns, so
+    // exactly the one file it names is checked (other.yaml is not).
     const tagged = tempDir('project-tag');
-    const marker = join(tagged, 'pwned');
-    writeFileSync(join(tagged, 'noiselint.project.yaml'), `include: !!python/object/apply:os.system ["touch ${marker}"]\n`);
+    writeFileSync(join(tagged, 'noiselint.project.yaml'), 'include: !!python/object/apply:os.system ["train.yaml"]\n');
     writeFileSync(join(tagged, 'train.yaml'), VALID);
-    const rTag = runCli(['check', 'train.yaml'], { cwd: tagged, heapMb: 128 });
+    writeFileSync(join(tagged, 'other.yaml'), VALID);
+    const rTag = runCli(['check', '--format', 'json'], { cwd: tagged, heapMb: 128 });
     expect(describeCrash(rTag)).toBeNull();
-    expect(existsSync(marker)).toBe(false);
+    expect(rTag.status, rTag.stderr).toBe(0);
+    expect((JSON.parse(rTag.stdout) as { files: { path: string }[] }).files.map((f) => f.path)).toEqual(['train.yaml']);
 
     const dir = tempDir('project-fifo');
     execFileSync('mkfifo', [join(dir, 'noiselint.project.yaml')]);

@@ -33,7 +33,6 @@ describe('rapid edits', () => {
     // The 1,000th edit asks for the zero-SNR rescale: the leak goes, epsilon-at-zero-snr comes.
     const after = positionOf(TRAIN_LEAKY, 'prediction_type: epsilon', 'prediction_type: epsilon'.length);
     client.edit(uri, ++version, { start: after, end: after }, '\n  rescale_betas_zero_snr: true');
-    expect(version).toBe(1001);
 
     const last = await client.waitForDiagnostics(uri, (p) => p.version === 1001);
     expect(codesOf(last)).toEqual(['epsilon-at-zero-snr']);
