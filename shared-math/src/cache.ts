@@ -138,7 +138,7 @@ function hashList(values: Float64Array): string {
   const words = new Uint32Array(values.buffer, values.byteOffset, values.length * 2);
   let h = 0x811c9dc5;
   for (let i = 0; i < words.length; i++) {
-    let w = words[i];
+    let w = words[i]!;
     for (let b = 0; b < 4; b++) {
       h ^= w & 0xff;
       h = Math.imul(h, 0x01000193);
@@ -162,10 +162,10 @@ function numbersFromBetas(betas: Float64Array): ScheduleNumbers {
   const logSnr = new Float64Array(alphaBar.length);
   const signal = new Float64Array(alphaBar.length);
   for (let i = 0; i < alphaBar.length; i++) {
-    logSnr[i] = logSnrFromAlphaBar(alphaBar[i]);
-    signal[i] = signalAmplitude(alphaBar[i]);
+    logSnr[i] = logSnrFromAlphaBar(alphaBar[i]!);
+    signal[i] = signalAmplitude(alphaBar[i]!);
   }
-  const last = alphaBar[alphaBar.length - 1];
+  const last = alphaBar[alphaBar.length - 1]!;
   return Object.freeze({
     betas,
     alphaBar,
@@ -174,8 +174,8 @@ function numbersFromBetas(betas: Float64Array): ScheduleNumbers {
     terminalSignal: signalAmplitude(last),
     terminalNoise: noiseAmplitude(last),
     terminalSnr: snrFromAlphaBar(last),
-    logSnrMax: logSnr[0],
-    logSnrMin: logSnr[logSnr.length - 1],
+    logSnrMax: logSnr[0]!,
+    logSnrMin: logSnr[logSnr.length - 1]!,
   });
 }
 

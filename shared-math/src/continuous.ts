@@ -46,7 +46,7 @@ export function karrasSigmas(
   const maxRoot = Math.pow(sigmaMax, 1 / rho);
   const minRoot = Math.pow(sigmaMin, 1 / rho);
   const ramp = linspace(0, 1, N);
-  for (let i = 0; i < N; i++) sigmas[i] = Math.pow(maxRoot + ramp[i] * (minRoot - maxRoot), rho);
+  for (let i = 0; i < N; i++) sigmas[i] = Math.pow(maxRoot + ramp[i]! * (minRoot - maxRoot), rho);
   sigmas[0] = sigmaMax;
   sigmas[N - 1] = sigmaMin;
   return ok(sigmas);

@@ -10,7 +10,7 @@ export const COMMON_GUIDANCE_SCALE = 7.5,
 /** Population mean; NaN for an empty list. */
 export function mean(x: ArrayLike<number>): number {
   let sum = 0;
-  for (let i = 0; i < x.length; i++) sum += x[i];
+  for (let i = 0; i < x.length; i++) sum += x[i]!;
   return sum / x.length;
 }
 
@@ -19,7 +19,7 @@ export function populationStd(x: ArrayLike<number>): number {
   const m = mean(x);
   let sum = 0;
   for (let i = 0; i < x.length; i++) {
-    const d = x[i] - m;
+    const d = x[i]! - m;
     sum += d * d;
   }
   return Math.sqrt(sum / x.length);
@@ -36,7 +36,7 @@ function sameNonEmptyLength(pos: ArrayLike<number>, neg: ArrayLike<number>): boo
 export function classifierFreeGuidance(pos: ArrayLike<number>, neg: ArrayLike<number>, w: number): Float64Array {
   if (!sameNonEmptyLength(pos, neg)) return new Float64Array(0);
   const out = new Float64Array(pos.length);
-  for (let i = 0; i < pos.length; i++) out[i] = neg[i] + w * (pos[i] - neg[i]);
+  for (let i = 0; i < pos.length; i++) out[i] = neg[i]! + w * (pos[i]! - neg[i]!);
   return out;
 }
 
@@ -54,6 +54,6 @@ export function guidanceRescale(pos: ArrayLike<number>, neg: ArrayLike<number>, 
   const stdCfg = populationStd(cfg);
   const ratio = stdCfg === 0 ? 1 : populationStd(pos) / stdCfg;
   const out = new Float64Array(cfg.length);
-  for (let i = 0; i < cfg.length; i++) out[i] = phi * (cfg[i] * ratio) + (1 - phi) * cfg[i];
+  for (let i = 0; i < cfg.length; i++) out[i] = phi * (cfg[i]! * ratio) + (1 - phi) * cfg[i]!;
   return out;
 }

@@ -22,17 +22,17 @@ export function rescaleZeroTerminalSnr(betas: ArrayLike<number>): MathResult<Flo
   if (problem !== null) return fail(problem);
   const T = betas.length;
   const abar = alphaBarFromBetas(betas);
-  const first = Math.sqrt(abar[0]);
-  const last = Math.sqrt(abar[T - 1]);
+  const first = Math.sqrt(abar[0]!);
+  const last = Math.sqrt(abar[T - 1]!);
   if (!(first > last)) {
     return fail('cannot rescale to zero terminal SNR: the first and last signal amplitudes are equal');
   }
   const scale = first / (first - last);
   const out = new Float64Array(T);
-  out[0] = betas[0];
-  let previous = abar[0];
+  out[0] = betas[0]!;
+  let previous = abar[0]!;
   for (let i = 1; i < T; i++) {
-    const amplitude = (Math.sqrt(abar[i]) - last) * scale;
+    const amplitude = (Math.sqrt(abar[i]!) - last) * scale;
     const current = amplitude * amplitude;
     out[i] = 1 - current / previous;
     previous = current;

@@ -44,7 +44,7 @@ export function scaledLinearBetas(T: number, b0: number, b1: number): MathResult
   if (problem !== null) return fail(problem);
   const roots = linspace(Math.sqrt(b0), Math.sqrt(b1), T);
   const betas = new Float64Array(T);
-  for (let i = 0; i < T; i++) betas[i] = roots[i] * roots[i];
+  for (let i = 0; i < T; i++) betas[i] = roots[i]! * roots[i]!;
   return finish(betas);
 }
 
@@ -86,6 +86,6 @@ export function sigmoidBetas(T: number, b0: number, b1: number): MathResult<Floa
   if (problem !== null) return fail(problem);
   const x = linspace(-SIGMOID_RANGE, SIGMOID_RANGE, T);
   const betas = new Float64Array(T);
-  for (let i = 0; i < T; i++) betas[i] = (1 / (1 + Math.exp(-x[i]))) * (b1 - b0) + b0;
+  for (let i = 0; i < T; i++) betas[i] = (1 / (1 + Math.exp(-x[i]!))) * (b1 - b0) + b0;
   return finish(betas);
 }

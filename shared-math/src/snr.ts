@@ -17,7 +17,7 @@ export function alphaBarFromBetas(betas: ArrayLike<number>): Float64Array {
   const out = new Float64Array(n);
   const logSum = new CompensatedSum();
   for (let i = 0; i < n; i++) {
-    logSum.add(Math.log1p(-betas[i]));
+    logSum.add(Math.log1p(-betas[i]!));
     out[i] = Math.exp(logSum.value);
   }
   return out;

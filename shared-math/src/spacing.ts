@@ -49,7 +49,7 @@ export function samplingTimesteps(spacing: SpacingKind, T: number, N: number, st
     }
     case 'linspace': {
       const grid = linspace(0, T - 1, N);
-      for (let k = 0; k < N; k++) out[k] = roundHalfEven(grid[N - 1 - k]);
+      for (let k = 0; k < N; k++) out[k] = roundHalfEven(grid[N - 1 - k]!);
       return ok(out);
     }
     case 'trailing': {
@@ -64,7 +64,7 @@ export function samplingTimesteps(spacing: SpacingKind, T: number, N: number, st
     case 'quadratic': {
       const grid = linspace(0, Math.sqrt(QUADRATIC_SPACING_FRACTION * T), N);
       for (let k = 0; k < N; k++) {
-        const g = grid[N - 1 - k];
+        const g = grid[N - 1 - k]!;
         out[k] = Math.floor(g * g) + stepsOffset;
       }
       return ok(out);

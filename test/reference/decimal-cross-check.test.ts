@@ -23,7 +23,7 @@ function referenceCumprod(betas: ArrayLike<number>): Decimal[] {
   const out: Decimal[] = [];
   let product = new D(1);
   for (let i = 0; i < betas.length; i++) {
-    product = product.times(new D(1).minus(new D(betas[i])));
+    product = product.times(new D(1).minus(new D(betas[i]!)));
     out.push(product);
   }
   return out;
@@ -64,7 +64,7 @@ describe('cumulative product of (1 - beta) against decimal.js (50 digits)', () =
     expect(abar.length).toBe(reference.length);
     for (let i = 0; i < abar.length; i++) {
       // decimal.js at 50 digits (general-purpose reference library, npm): 1e-12 relative
-      expectRelative(abar[i], reference[i].toNumber(), 1e-12, `abar[${i}]`);
+      expectRelative(abar[i]!, reference[i]!.toNumber(), 1e-12, `abar[${i}]`);
     }
   });
 
@@ -74,7 +74,7 @@ describe('cumulative product of (1 - beta) against decimal.js (50 digits)', () =
     const reference = referenceCumprod(betas);
     for (let i = 0; i < 300; i++) {
       // decimal.js at 50 digits (general-purpose reference library, npm): 1e-12 relative
-      expectRelative(s.alphaBar[i], reference[i].toNumber(), 1e-12, `abar[${i}]`);
+      expectRelative(s.alphaBar[i]!, reference[i]!.toNumber(), 1e-12, `abar[${i}]`);
     }
   });
 
@@ -82,7 +82,7 @@ describe('cumulative product of (1 - beta) against decimal.js (50 digits)', () =
     const betas = [...randomBetas(9, 3, 1e-3, 0.1), 1];
     const abar = alphaBarFromBetas(betas);
     // decimal.js at 50 digits (general-purpose reference library, npm): the product is exactly 0
-    expect(referenceCumprod(betas)[9].isZero()).toBe(true);
+    expect(referenceCumprod(betas)[9]!.isZero()).toBe(true);
     expect(abar[9]).toBe(0);
   });
 });
@@ -98,7 +98,7 @@ describe('cosine betas against decimal.js trigonometry (50 digits)', () => {
       const exact = D.min(new D(1).minus(f(i + 1).div(f(i))), new D('0.999')).toNumber();
       // decimal.js at 50 digits (npm): 1e-10 relative; 1 - ratio cancels for the smallest betas
       // (about 4e-5), which costs float64 a few digits below 1e-12.
-      expectRelative(betas[i], exact, 1e-10, `beta[${i}]`);
+      expectRelative(betas[i]!, exact, 1e-10, `beta[${i}]`);
     }
   });
 });
@@ -115,7 +115,7 @@ describe('Karras et al. 2022, eq. (5) against decimal.js (50 digits)', () => {
     for (let i = 0; i < N; i++) {
       const exact = maxRoot.plus(new D(i).div(N - 1).times(minRoot.minus(maxRoot))).pow(rho).toNumber();
       // decimal.js at 50 digits (npm), Karras et al. 2022 eq. (5): 1e-12 relative
-      expectRelative(sigmas[i], exact, 1e-12, `sigma[${i}]`);
+      expectRelative(sigmas[i]!, exact, 1e-12, `sigma[${i}]`);
     }
   });
 });

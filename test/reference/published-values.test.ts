@@ -87,7 +87,7 @@ describe('guidance 7.5 with rescale 0.7', () => {
     expect(COMMON_GUIDANCE_RESCALE).toBe(0.7);
     const pos = [0.3, -1.2, 0.8, 0.1, -0.4, 1.5, -0.9, 0.2];
     const neg = [0.1, -0.8, 0.5, 0.3, -0.1, 0.9, -0.6, 0.0];
-    const cfg = pos.map((p, i) => neg[i] + 7.5 * (p - neg[i])); // Lin et al. 2023, eq. 13
+    const cfg = pos.map((p, i) => neg[i]! + 7.5 * (p - neg[i]!)); // Lin et al. 2023, eq. 13
     const out = guidanceRescale(pos, neg, COMMON_GUIDANCE_SCALE, COMMON_GUIDANCE_RESCALE);
     // Lin et al. 2023, eqs. 14-16: x_out = cfg * (phi * std(pos) / std(cfg) + 1 - phi), so its std
     // is phi * std(pos) + (1 - phi) * std(cfg).
@@ -120,12 +120,12 @@ describe('rescaled schedule', () => {
     const plain = schedule({ kind: 'scaled_linear', trainSteps: 1000, betaStart: 0.00085, betaEnd: 0.012 });
     const rescaled = schedule({ kind: 'scaled_linear', trainSteps: 1000, betaStart: 0.00085, betaEnd: 0.012, rescaleZeroSnr: true });
     const a = Array.from(plain.alphaBar, Math.sqrt);
-    const a0 = a[0];
-    const aT = a[999];
+    const a0 = a[0]!;
+    const aT = a[999]!;
     for (let i = 0; i < 1000; i++) {
       // Lin et al. 2023, Algorithm 1: sqrt(abar) <- (sqrt(abar) - a_T) * a_0 / (a_0 - a_T)
-      const expected = (a[i] - aT) * (a0 / (a0 - aT));
-      const got = Math.sqrt(rescaled.alphaBar[i]);
+      const expected = (a[i]! - aT) * (a0 / (a0 - aT));
+      const got = Math.sqrt(rescaled.alphaBar[i]!);
       expect(Math.abs(got - expected)).toBeLessThanOrEqual(1e-12 * Math.max(expected, 1e-3));
     }
   });

@@ -61,7 +61,7 @@ training:
 
   it('reports the path and spans of each hit', () => {
     const text = 'pipelines:\n  - scheduler:\n      guidance_rescale: 0.7\n';
-    const [h] = hits(text);
+    const h = hits(text)[0]!;
     expect(h.concept).toBe('guidanceRescale');
     expect(h.source.path).toBe('pipelines[0].scheduler.guidance_rescale');
     expect(text.slice(h.source.keySpan.start, h.source.keySpan.end)).toBe('guidance_rescale');
@@ -87,7 +87,7 @@ training:
     const found = hits(text, 'yaml', { trainSteps: ['lanternfish.denoise_count'] });
     const steps = found.filter((h) => h.concept === 'trainSteps');
     expect(steps.map((h) => h.value)).toEqual([1000, 500]);
-    expect(steps[0].extra).toBe(true);
+    expect(steps[0]!.extra).toBe(true);
   });
 
   it('ignores unknown keys', () => {
@@ -153,9 +153,9 @@ describe('value spellings', () => {
     it(`${text} -> ${concept} ${String(expected)}`, () => {
       const found = hits(`${text}\n`);
       expect(found.length).toBeGreaterThan(0);
-      expect(found[0].concept).toBe(concept);
-      expect(found[0].status).toBe('ok');
-      expect(found[0].value).toEqual(expected);
+      expect(found[0]!.concept).toBe(concept);
+      expect(found[0]!.status).toBe('ok');
+      expect(found[0]!.value).toEqual(expected);
     });
   }
 
@@ -170,26 +170,26 @@ describe('value spellings', () => {
 
   it('reads explicit beta lists, numeric strings included', () => {
     const found = hits('trained_betas: [0.0001, "2e-4", 3.0e-4]\n');
-    expect(found[0].value).toEqual([0.0001, 0.0002, 0.0003]);
+    expect(found[0]!.value).toEqual([0.0001, 0.0002, 0.0003]);
   });
 });
 
 describe('unknown enum values', () => {
   it('suggests the closest known spelling in the style of the file', () => {
-    const [h] = hits('beta_schedule: scaled-linaer\n');
+    const h = hits('beta_schedule: scaled-linaer\n')[0]!;
     expect(h.status).toBe('problem');
     expect(h.problem!.kind).toBe('unknown-value');
     expect(h.problem!.suggestion).toBe('scaled-linear');
     expect(h.problem!.message).toContain('scaled-linaer');
     expect(h.problem!.message).not.toContain('\n');
-    const [t] = hits('timestep_spacing: trialing\n');
+    const t = hits('timestep_spacing: trialing\n')[0]!;
     expect(t.problem!.suggestion).toBe('trailing');
-    const [p] = hits('prediction_type: V_PREDICTON\n');
+    const p = hits('prediction_type: V_PREDICTON\n')[0]!;
     expect(p.problem!.suggestion).toBe('V_PREDICTION');
   });
 
   it('reports values with nothing close without a suggestion', () => {
-    const [h] = hits('prediction_type: banana\n');
+    const h = hits('prediction_type: banana\n')[0]!;
     expect(h.problem!.kind).toBe('unknown-value');
     expect(h.problem!.suggestion).toBeUndefined();
   });
@@ -217,7 +217,7 @@ describe('non-number values', () => {
   ];
   for (const [text, kind] of cases) {
     it(`${text} -> ${kind}`, () => {
-      const [h] = hits(`${text}\n`);
+      const h = hits(`${text}\n`)[0]!;
       expect(h.status).toBe('problem');
       expect(h.problem!.kind).toBe(kind);
     });
@@ -270,7 +270,7 @@ describe('generic keys count only when the value fits', () => {
   });
 
   it('a close misspelling under a generic key is still reported', () => {
-    const [h] = hits('schedule: cosnie\n');
+    const h = hits('schedule: cosnie\n')[0]!;
     expect(h.problem?.suggestion).toBe('cosine');
   });
 

@@ -288,7 +288,7 @@ describe('schedule cache', () => {
     ];
     expect(writes).toHaveLength(7);
     // Reading, iterating and copying work on the same values.
-    expect(Array.from(n.signal.subarray(0, 2))).toEqual([Math.sqrt(n.alphaBar[0]), Math.sqrt(n.alphaBar[1])]);
+    expect(Array.from(n.signal.subarray(0, 2))).toEqual([Math.sqrt(n.alphaBar[0]!), Math.sqrt(n.alphaBar[1]!)]);
   });
 
   it('no public function writes to the arrays it is given: the cache stays bit-for-bit intact', () => {
@@ -324,7 +324,7 @@ describe('schedule cache', () => {
     if (!r.ok) throw new Error(r.problem);
     const { alphaBar, signal } = r.value;
     expect(signal.length).toBe(1000);
-    for (let i = 0; i < 1000; i++) expect(signal[i]).toBe(Math.sqrt(alphaBar[i]));
+    for (let i = 0; i < 1000; i++) expect(signal[i]).toBe(Math.sqrt(alphaBar[i]!));
     // Lin et al. 2023: exactly zero signal at the last step after the rescale.
     expect(signal[999]).toBe(0);
   });

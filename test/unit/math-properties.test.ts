@@ -56,7 +56,7 @@ describe('schedules', () => {
         expect(s.alphaBar.length).toBe(p.trainSteps);
         expect(s.alphaBar[0]).toBeLessThan(1);
         for (let i = 1; i < s.alphaBar.length; i++) {
-          if (!(s.alphaBar[i] < s.alphaBar[i - 1])) {
+          if (!(s.alphaBar[i]! < s.alphaBar[i - 1]!)) {
             throw new Error(`abar[${i}] = ${s.alphaBar[i]} >= abar[${i - 1}] = ${s.alphaBar[i - 1]}`);
           }
         }
@@ -91,8 +91,8 @@ describe('sampling spacings', () => {
   function expectStrictlyDecreasingWithin(steps: number[], T: number): void {
     for (let k = 0; k < steps.length; k++) {
       if (!Number.isInteger(steps[k])) throw new Error(`step ${steps[k]} is not an integer`);
-      if (steps[k] < 0 || steps[k] > T - 1) throw new Error(`step ${steps[k]} outside [0, ${T - 1}]`);
-      if (k > 0 && !(steps[k] < steps[k - 1])) throw new Error(`not strictly decreasing at ${k}: ${steps[k - 1]}, ${steps[k]}`);
+      if (steps[k]! < 0 || steps[k]! > T - 1) throw new Error(`step ${steps[k]} outside [0, ${T - 1}]`);
+      if (k > 0 && !(steps[k]! < steps[k - 1]!)) throw new Error(`not strictly decreasing at ${k}: ${steps[k - 1]}, ${steps[k]}`);
     }
   }
 
@@ -152,7 +152,7 @@ describe('sampling spacings', () => {
         expect(steps.length).toBe(N);
         const outside = steps.filter((t) => t < 0 || t > T - 1);
         expect(outside).toEqual([]);
-        const rising = steps.findIndex((t, k) => k > 0 && t > steps[k - 1]);
+        const rising = steps.findIndex((t, k) => k > 0 && t > steps[k - 1]!);
         expect(rising).toBe(-1);
         if ((N - 1) ** 2 < 0.8 * T) expectStrictlyDecreasingWithin(steps, T);
       }),
@@ -178,7 +178,7 @@ describe('Karras et al. 2022 sigmas', () => {
           const sigmas = unwrap(karrasSigmas(N, smin, smax, rho));
           expect(sigmas[0]).toBe(smax); // Karras et al. 2022: first = sigma_max
           expect(sigmas[N - 1]).toBe(smin); // Karras et al. 2022: last = sigma_min
-          for (let i = 1; i < N; i++) expect(sigmas[i]).toBeLessThan(sigmas[i - 1]);
+          for (let i = 1; i < N; i++) expect(sigmas[i]).toBeLessThan(sigmas[i - 1]!);
         },
       ),
       RUNS,
@@ -200,7 +200,7 @@ describe('guidance rescale (Lin et al. 2023, eqs. 13-16)', () => {
       fc.property(vectors, ({ pos, neg, w }) => {
         const out = guidanceRescale(pos, neg, w, 0);
         // Lin et al. 2023, eq. 13: x_cfg = x_neg + w (x_pos - x_neg)
-        pos.forEach((p, i) => expect(out[i]).toBe(neg[i] + w * (p - neg[i])));
+        pos.forEach((p, i) => expect(out[i]).toBe(neg[i]! + w * (p - neg[i]!)));
       }),
       RUNS,
     );
@@ -209,7 +209,7 @@ describe('guidance rescale (Lin et al. 2023, eqs. 13-16)', () => {
   it('phi = 1 has the std of the positive prediction', () => {
     fc.assert(
       fc.property(vectors, ({ pos, neg, w }) => {
-        const cfg = pos.map((p, i) => neg[i] + w * (p - neg[i]));
+        const cfg = pos.map((p, i) => neg[i]! + w * (p - neg[i]!));
         fc.pre(populationStd(cfg) > 1e-6 && populationStd(pos) > 1e-6);
         const out = guidanceRescale(pos, neg, w, 1);
         // Lin et al. 2023, eq. 14: std(x_res) = std(x_pos)

@@ -48,9 +48,9 @@ describe('shared schedule curves', () => {
     const ca = curvesOf(a);
     expect(ca.length).toBeGreaterThanOrEqual(2);
     curvesOf(b).forEach((c, i) => {
-      expect(c.alphaBar).toBe(ca[i].alphaBar);
-      expect(c.logSnr).toBe(ca[i].logSnr);
-      expect(c.signal).toBe(ca[i].signal);
+      expect(c.alphaBar).toBe(ca[i]!.alphaBar);
+      expect(c.logSnr).toBe(ca[i]!.logSnr);
+      expect(c.signal).toBe(ca[i]!.signal);
     });
     // The discrete curve is shared-math's cached schedule itself.
     const schedule = a.documents.find((d) => d.analysis.schedule?.family === 'discrete')!.analysis.schedule!;
@@ -62,8 +62,8 @@ describe('shared schedule curves', () => {
 
   it('flow and Karras curves are shared too', () => {
     for (const rel of ['flow-matching/layout-flow.yaml', 'karras-sigmas/edm-heun.jsonc']) {
-      const [first] = curvesOf(analyse(rel));
-      const [again] = curvesOf(analyse(rel));
+      const first = curvesOf(analyse(rel))[0]!;
+      const again = curvesOf(analyse(rel))[0]!;
       expect(first).toBeDefined();
       expect(again.logSnr).toBe(first.logSnr);
     }

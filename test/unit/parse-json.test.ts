@@ -73,7 +73,7 @@ describe('JSON located tree', () => {
     const f = parseText(text, 'json');
     expect(f.bom).toBe(true);
     expect(f.problems).toEqual([]);
-    const e = rootMap(f).entries[0];
+    const e = rootMap(f).entries[0]!;
     expect(text.slice(e.keySpan.start, e.keySpan.end)).toBe('"guidance_scale"');
   });
 
@@ -81,14 +81,14 @@ describe('JSON located tree', () => {
     const f = parseText('{"guidance_scale": 5, "guidance_scale": 9}', 'json');
     const map = rootMap(f);
     expect(map.entries.length).toBe(1);
-    const v = map.entries[0].value!;
+    const v = map.entries[0]!.value!;
     expect(v.kind === 'scalar' && v.value).toBe(9);
     expect(f.problems.map((p) => p.code)).toEqual(['duplicate-key']);
   });
 
   it('reads overflowing numbers as Infinity (setup reports them)', () => {
     const f = parseText('{"beta_end": 1e400}', 'json');
-    const v = rootMap(f).entries[0].value!;
+    const v = rootMap(f).entries[0]!.value!;
     expect(v.kind === 'scalar' && v.value).toBe(Infinity);
   });
 });
@@ -124,7 +124,7 @@ describe('JSON problems are data', () => {
 
   it('reports an empty file', () => {
     const f = parseText('', 'json');
-    expect(f.documents[0].root).toBeNull();
+    expect(f.documents[0]!.root).toBeNull();
     expect(f.problems.some((p) => p.code === 'json-syntax')).toBe(true);
   });
 

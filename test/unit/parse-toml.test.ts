@@ -160,18 +160,18 @@ describe('TOML problems as data', () => {
     const text = '# half-edited\n[noise_scheduler]\nbeta_schedule = [scaled_linear\n';
     const f = parseText(text, 'toml');
     expect(f.documents.length).toBe(1);
-    expect(f.documents[0].root).toBeNull();
+    expect(f.documents[0]!.root).toBeNull();
     expect(f.problems.length).toBe(1);
-    expect(f.problems[0].code).toBe('toml-syntax');
-    expect(f.problems[0].severity).toBe('error');
-    expect(f.problems[0].span.start).toBeGreaterThanOrEqual(text.indexOf('[scaled'));
+    expect(f.problems[0]!.code).toBe('toml-syntax');
+    expect(f.problems[0]!.severity).toBe('error');
+    expect(f.problems[0]!.span.start).toBeGreaterThanOrEqual(text.indexOf('[scaled'));
     expect(f.comments).toEqual([{ start: 0, end: 13 }]);
   });
 
   it('refuses a key defined twice (TOML v1.0.0: "Defining a key multiple times is invalid")', () => {
     const f = parseText('beta_end = 0.012\nbeta_end = 0.02\n', 'toml');
     expect(f.problems.map((p) => p.code)).toEqual(['toml-syntax']);
-    expect(f.problems[0].span.start).toBe(17);
+    expect(f.problems[0]!.span.start).toBe(17);
   });
 
   it('reads a BOM file with offsets that count the BOM', () => {

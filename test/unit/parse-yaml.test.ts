@@ -139,11 +139,11 @@ describe('multi-document YAML', () => {
     expect(file.documents.map((d) => d.index)).toEqual([0, 1, 2]);
     expect(scalar(get(rootMap(file, 0), 'num_train_timesteps')).value).toBe(1000);
     expect(scalar(get(rootMap(file, 1), 'guidance_scale')).value).toBe(7.5);
-    expect(file.documents[2].root).toBeNull();
+    expect(file.documents[2]!.root).toBeNull();
   });
 
   it('gives documents disjoint spans in source order', () => {
-    const [a, b] = file.documents;
+    const [a, b] = [file.documents[0]!, file.documents[1]!];
     expect(a.span.end).toBeLessThanOrEqual(b.span.start);
     expect(text.slice(b.span.start, b.span.end)).toContain('num_inference_steps: 25');
     expect(text.slice(a.span.start, a.span.end)).not.toContain('num_inference_steps');
@@ -163,13 +163,13 @@ describe('BOM and CRLF', () => {
 
   it('counts the BOM in every offset', () => {
     const section = get(rootMap(file), 'noise_scheduler') as LocatedMap;
-    expect(rootMap(file).entries[0].keySpan.start).toBe(1);
+    expect(rootMap(file).entries[0]!.keySpan.start).toBe(1);
     for (const entry of section.entries) {
       expect(text.slice(entry.keySpan.start, entry.keySpan.end)).toBe(entry.key);
       const v = scalar(entry.value!);
       expect(text.slice(v.span.start, v.span.end)).toBe(v.raw);
     }
-    const steps = section.entries[1];
+    const steps = section.entries[1]!;
     const lines = new LineIndex(text);
     expect(lines.positionAt(steps.keySpan.start)).toEqual({ line: 2, character: 2 });
   });
@@ -195,7 +195,7 @@ describe('problems are data', () => {
     const file = parseText(text, 'yaml');
     const map = rootMap(file);
     expect(map.entries.length).toBe(1);
-    expect(scalar(map.entries[0].value!).value).toBe(7.5);
+    expect(scalar(map.entries[0]!.value!).value).toBe(7.5);
     const dup = file.problems.find((p) => p.code === 'duplicate-key')!;
     expect(dup.severity).toBe('warning');
     expect(dup.span.start).toBe(0); // the first (ignored) key
@@ -212,7 +212,7 @@ describe('problems are data', () => {
     const tags = file.problems.filter((p) => p.code === 'custom-tag');
     expect(tags.length).toBe(3);
     expect(tags.every((p) => p.severity === 'warning')).toBe(true);
-    expect(tags[0].message).toContain('python/object');
+    expect(tags[0]!.message).toContain('python/object');
   });
 
   it('does not throw on non-string input or empty text', () => {
@@ -228,10 +228,10 @@ describe('aliases', () => {
     const text = 'base: &sched {beta_schedule: cosine}\nfinetune: *sched\n';
     const file = parseText(text, 'yaml');
     const map = rootMap(file);
-    expect(map.entries[1].value).toBe(map.entries[0].value);
-    const span = map.entries[1].aliasSpan!;
+    expect(map.entries[1]!.value).toBe(map.entries[0]!.value);
+    const span = map.entries[1]!.aliasSpan!;
     expect(text.slice(span.start, span.end)).toBe('*sched');
-    expect(text.slice(map.entries[1].span.start, map.entries[1].span.end)).toBe('finetune: *sched');
+    expect(text.slice(map.entries[1]!.span.start, map.entries[1]!.span.end)).toBe('finetune: *sched');
   });
 
   it('reports an alias without an anchor and one that contains itself', () => {
@@ -249,7 +249,7 @@ describe('aliases', () => {
     expect(file.problems.some((p) => p.code === 'alias-limit')).toBe(true);
     // Walk the tree as a consumer would (shared nodes visited each time) with a cap.
     let visited = 0;
-    const stack: LocatedNode[] = [file.documents[0].root!];
+    const stack: LocatedNode[] = [file.documents[0]!.root!];
     while (stack.length && visited < 10_000_000) {
       const n = stack.pop()!;
       visited++;
@@ -275,7 +275,7 @@ describe('bounds', () => {
     const text = `betas: ${'['.repeat(5000)}0.1${']'.repeat(5000)}\nnum_train_timesteps: 1000\n`;
     const file = parseText(text, 'yaml');
     expect(file.problems.some((p) => p.code === 'too-deep')).toBe(true);
-    expect(maxDepth(file.documents[0].root)).toBeLessThanOrEqual(256);
+    expect(maxDepth(file.documents[0]!.root)).toBeLessThanOrEqual(256);
     // the rest of the document is still read
     expect(scalar(get(rootMap(file), 'num_train_timesteps')).value).toBe(1000);
   });
@@ -302,14 +302,14 @@ describe('bounds', () => {
     expect(placeholder.value).toBeNull();
     expect(placeholder.raw).toBe(text.slice(cut.span.start, cut.span.end));
     expect(scalar(get(rootMap(file), 'sibling')).value).toBe(2);
-    expect(maxDepth(file.documents[0].root)).toBe(3);
+    expect(maxDepth(file.documents[0]!.root)).toBe(3);
   });
 
   it('handles 600-level block nesting (indentation) without the composer failing', () => {
     const lines = Array.from({ length: 600 }, (_, i) => `${' '.repeat(i)}k${i}:`);
     const file = parseText(lines.join('\n'), 'yaml');
     expect(file.problems.map((p) => p.code)).toEqual(['too-deep']);
-    expect(maxDepth(file.documents[0].root)).toBe(256);
+    expect(maxDepth(file.documents[0]!.root)).toBe(256);
   });
 
   it('reads a 100,000-number beta list within the default limits', () => {

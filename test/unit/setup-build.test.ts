@@ -12,7 +12,7 @@ function setups(text: string, format: SourceFormat = 'yaml', opts?: Parameters<t
 function setup(text: string, format: SourceFormat = 'yaml', opts?: Parameters<typeof buildSetup>[1]): Setup {
   const all = setups(text, format, opts);
   expect(all.length).toBe(1);
-  return all[0];
+  return all[0]!;
 }
 
 // runs/night-storyboard-ft.yaml
@@ -169,11 +169,11 @@ describe('multiple documents', () => {
     const all = setups(text);
     expect(all.map((s) => s.documentIndex)).toEqual([0, 1, 2]);
     expect(all.map((s) => s.isDiffusionConfig)).toEqual([true, true, false]);
-    expect(all[0].role).toBe('training');
-    expect(all[1].role).toBe('sampling');
-    expect(valueOf(all[1], 'sampleSteps')).toBe(25);
-    expect(valueOf(all[0], 'sampleSteps')).toBeUndefined();
-    expect(all[1].documentSpan.start).toBeGreaterThan(all[0].documentSpan.start);
+    expect(all[0]!.role).toBe('training');
+    expect(all[1]!.role).toBe('sampling');
+    expect(valueOf(all[1]!, 'sampleSteps')).toBe(25);
+    expect(valueOf(all[0]!, 'sampleSteps')).toBeUndefined();
+    expect(all[1]!.documentSpan.start).toBeGreaterThan(all[0]!.documentSpan.start);
   });
 });
 
@@ -308,7 +308,7 @@ describe('value problems', () => {
     const s = setup(text);
     expect(valueOf(s, 'trainSteps')).toBe(1000);
     expect(s.problems.length).toBe(1);
-    const dup = s.problems[0];
+    const dup = s.problems[0]!;
     expect(dup.kind).toBe('duplicate');
     expect(dup.source.path).toBe('sampling.scheduler.num_train_timesteps');
     expect(dup.message).toContain('1000');
