@@ -41,6 +41,8 @@ export default tseslint.config(
         { argsIgnorePattern: '^_', varsIgnorePattern: '^_', caughtErrors: 'none', ignoreRestSiblings: true },
       ],
       eqeqeq: ['error', 'always', { null: 'ignore' }],
+      // An empty catch is how best-effort clean-up says "ignore this failure".
+      'no-empty': ['error', { allowEmptyCatch: true }],
       'no-constant-binary-expression': 'error',
       'no-self-compare': 'error',
       'no-unmodified-loop-condition': 'error',
@@ -49,7 +51,8 @@ export default tseslint.config(
     },
   },
   {
-    files: ['**/*.cjs'],
+    // CommonJS: .cjs files, and .js files (the root package is not "type": "module").
+    files: ['**/*.cjs', '**/*.js'],
     languageOptions: { sourceType: 'commonjs' },
     rules: { '@typescript-eslint/no-require-imports': 'off' },
   },
@@ -64,7 +67,6 @@ export default tseslint.config(
       '@typescript-eslint/await-thenable': 'error',
       '@typescript-eslint/no-floating-promises': 'error',
       '@typescript-eslint/no-misused-promises': 'error',
-      '@typescript-eslint/require-await': 'error',
       '@typescript-eslint/return-await': ['error', 'in-try-catch'],
       '@typescript-eslint/no-unnecessary-type-assertion': 'error',
       '@typescript-eslint/no-base-to-string': 'error',
