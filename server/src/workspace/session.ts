@@ -79,6 +79,16 @@ export interface ExtraSelection {
  */
 export const DEFAULT_READING_ENTRIES = 2 * MAX_AUTO_CANDIDATES;
 
+/**
+ * Automatic pairing reads a sibling's role only up to this size: a diffusion config is a few
+ * kilobytes (an explicit beta list of 1,000 values about 20 KB), so a larger sibling is not
+ * parsed to learn its role and is not auto-paired (explicit pairs in the project file still work).
+ */
+export const ROLE_PROBE_MAX_BYTES = 256 * 1024;
+
+/** Readings kept between the role probe and the file's own check, by text length. */
+export const KEPT_READING_MAX_CHARS = 64 * 1024;
+
 function errorMessage(err: unknown): string {
   return (err instanceof Error ? err.message : String(err)).split('\n')[0] ?? '';
 }
@@ -140,12 +150,14 @@ export class WorkspaceSession {
   // ------------------------------------------------------------------ readings and roles
 
   /** A file read and analysed without rules, memoised; null when unreadable. */
-  private reading(path: string): Reading | null {
+  private reading(path: string, purpose: 'role' | 'partner' = 'partner'): Reading | null {
     const cached = this.readings.get(path);
     if (cached !== undefined && (this.stable || cached === null)) return cached;
     let entry: Reading | null = null;
     try {
       const { project } = this.projectFor(path);
+      // A role probe of a large sibling is not worth its parse: such a file is not auto-paired.
+      if (purpose === 'role' && (this.fs.stat(path)?.size ?? 0) > ROLE_PROBE_MAX_BYTES) return null;
       const read = readTextFile(this.fs, path, project.limits.maxFileBytes);
       if (read.ok) {
         entry =
@@ -161,7 +173,10 @@ export class WorkspaceSession {
     } catch {
       entry = null;
     }
-    this.readings.set(path, entry);
+    // Only small readings are kept: a large file's tree is not held for the rest of the run (its
+    // own check parses it again).
+    if (entry === null || entry.text.length <= KEPT_READING_MAX_CHARS) this.readings.set(path, entry);
+    else this.readings.delete(path);
     return entry;
   }
 
@@ -171,7 +186,7 @@ export class WorkspaceSession {
     if (known !== undefined) return known;
     let role = this.roles.get(path);
     if (role === undefined) {
-      const read = this.reading(path);
+      const read = this.reading(path, 'role');
       role = read ? roleOfSetups(read.file.documents.map((d) => d.setup)) : 'none';
       this.roles.set(path, role);
     }
