@@ -19,9 +19,7 @@ import {
   CodeActionKind,
   DidChangeConfigurationNotification,
   DidChangeWatchedFilesNotification,
-  ErrorCodes,
   FileChangeType,
-  ResponseError,
   TextDocumentSyncKind,
   type CancellationToken,
   type ClientCapabilities,
@@ -60,7 +58,7 @@ import { findingToDiagnostic, type PositionMapper } from './convert';
 import { cancelPending, OpenDocuments, type Analyzed, type OpenDocument } from './documents';
 import * as requests from './requests';
 import { DEFAULT_DEBOUNCE_MS, defaultSettings, mergeSettingsIntoProject, PushedSettings, SETTINGS_SECTION, settingsFromClient, type EditorSettings } from './settings';
-import { errorMessage, formatOf, isRuleId, requireUri, uriToPath } from './util';
+import { errorMessage, fileFinding, formatOf, isRuleId, notificationGuard, requestGuard, requireUri, uriToPath, visibleFindings } from './util';
 import { WorkspaceIndex } from './workspaceIndex';
 
 const WATCH_GLOBS = ['**/*.{yaml,yml,json,jsonc,toml}', '**/noiselint.project.{yaml,yml,json}'];
@@ -118,27 +116,8 @@ export class NoiselintServer {
 
   // ---------------------------------------------------------------- robustness
 
-  /** Every request handler: an exception becomes a ResponseError for that request only. */
-  private guard<P, R>(name: string, handler: (params: P, token: CancellationToken) => R | Promise<R>) {
-    return async (params: P, token: CancellationToken): Promise<R> => {
-      try {
-        return await handler(params, token);
-      } catch (err) {
-        if (err instanceof ResponseError) throw err;
-        this.logError(name, err);
-        throw new ResponseError(ErrorCodes.InternalError, `noiselint: ${name} failed: ${errorMessage(err)}`);
-      }
-    };
-  }
-
-  private notifyGuard(name: string, handler: () => unknown): void {
-    try {
-      const result = handler();
-      if (result instanceof Promise) result.catch((err: unknown) => this.logError(name, err));
-    } catch (err) {
-      this.logError(name, err);
-    }
-  }
+  private readonly guard = requestGuard((name, err) => this.logError(name, err));
+  private readonly notifyGuard = notificationGuard((name, err) => this.logError(name, err));
 
   private logError(name: string, err: unknown): void {
     this.connection.console.error(`noiselint: ${name} failed: ${err instanceof Error ? (err.stack ?? err.message) : String(err)}`);
@@ -440,19 +419,11 @@ export class NoiselintServer {
       file = reading ? analyzeRead(reading, options) : analyzeText(text, options);
     } catch (err) {
       this.logError('analysis', err);
-      const finding: Finding = {
-        rule: 'internal-error',
-        severity: 'error',
-        message: `noiselint could not check this file: ${errorMessage(err)}`,
-        span: { start: 0, end: 0 },
-        documentIndex: 0,
-        related: [],
-        fixes: [],
-      };
+      const finding = fileFinding('internal-error', 'error', `noiselint could not check this file: ${errorMessage(err)}`);
       return { ...empty, shown: [finding], diagnostics: [this.toDiagnostic(od, finding, settings, base.version)] };
     }
     if (file.isDiffusionConfig) od.wasConfig = true;
-    const shown = this.visibleFindings(file, problem);
+    const shown = visibleFindings(file, problem);
     this.recentReads.set(od.uri, { seq: base.seq, file, shown });
     const { partners: _partners, pairRole: _pairRole, ...read } = options;
     return {
@@ -466,27 +437,12 @@ export class NoiselintServer {
     };
   }
 
-  /** The engine's findings (rules and parse errors), plus a project-file problem on config files. */
-  private visibleFindings(file: FileResult, projectProblem: string | null): Finding[] {
-    if (!projectProblem || !file.isDiffusionConfig) return file.findings;
-    const problem: Finding = {
-      rule: 'project-file',
-      severity: 'warning',
-      message: `${projectProblem}; checking with the built-in defaults`,
-      span: { start: 0, end: 0 },
-      documentIndex: 0,
-      related: [],
-      fixes: [],
-    };
-    return [problem, ...file.findings];
-  }
-
   /** A project file shows its own validation problem (if any) and nothing else. */
   private projectFileAnalysis(od: OpenDocument, base: { seq: number; version: number; generation: number; text: string }): Analyzed {
     const { problem } = this.projectFor(od.path);
     const none: Analyzed = { ...base, read: null, isDiffusionConfig: false, role: null, shown: [], diagnostics: [], partners: [] };
     if (!problem) return none;
-    const finding: Finding = { rule: 'project-file', severity: 'error', message: problem, span: { start: 0, end: 0 }, documentIndex: 0, related: [], fixes: [] };
+    const finding = fileFinding('project-file', 'error', problem);
     return { ...none, shown: [finding], diagnostics: [this.toDiagnostic(od, finding, defaultSettings(), base.version)] };
   }
 
@@ -549,7 +505,7 @@ export class NoiselintServer {
     if (!read.ok) return null;
     const pairing = this.workspace.pairingFor(path, project, (err) => this.logError('pairing', err));
     const file = analyzeText(read.text, { path, project, partners: pairing.partners, pairRole: pairing.role, limits: settings.limits });
-    return { file, shown: this.visibleFindings(file, null), version: null };
+    return { file, shown: visibleFindings(file, null), version: null };
   }
 
 

@@ -1,6 +1,8 @@
 /** Small helpers of the protocol layer: URIs, document formats, request parameter checks. */
 import { fileURLToPath } from 'node:url';
-import { ErrorCodes, ResponseError } from 'vscode-languageserver/node';
+import { ErrorCodes, ResponseError, type CancellationToken } from 'vscode-languageserver/node';
+import type { Finding, Severity } from '../base/findings';
+import type { FileResult } from '../engine/api';
 import type { SourceFormat } from '../parse/types';
 import { getRuleMeta } from '../rules';
 
@@ -43,4 +45,43 @@ export function isPosition(p: unknown): p is { line: number; character: number }
 /** Rule ids (and `parse-error`) have a documentation page; internal codes do not. */
 export function isRuleId(code: string): boolean {
   return getRuleMeta(code) !== undefined;
+}
+
+type ErrorLog = (name: string, err: unknown) => void;
+
+/** Wraps request handlers: an exception becomes a ResponseError for that request only. */
+export function requestGuard(log: ErrorLog) {
+  return <P, R>(name: string, handler: (params: P, token: CancellationToken) => R | Promise<R>) =>
+    async (params: P, token: CancellationToken): Promise<R> => {
+      try {
+        return await handler(params, token);
+      } catch (err) {
+        if (err instanceof ResponseError) throw err;
+        log(name, err);
+        throw new ResponseError(ErrorCodes.InternalError, `noiselint: ${name} failed: ${errorMessage(err)}`);
+      }
+    };
+}
+
+/** Wraps notification handlers: an exception (or a rejected promise) is logged, never fatal. */
+export function notificationGuard(log: ErrorLog) {
+  return (name: string, handler: () => unknown): void => {
+    try {
+      const result = handler();
+      if (result instanceof Promise) result.catch((err: unknown) => log(name, err));
+    } catch (err) {
+      log(name, err);
+    }
+  };
+}
+
+/** A finding about the whole file (shown at its start). */
+export function fileFinding(rule: string, severity: Severity, message: string): Finding {
+  return { rule, severity, message, span: { start: 0, end: 0 }, documentIndex: 0, related: [], fixes: [] };
+}
+
+/** The engine's findings (rules and parse errors), plus a project-file problem on config files. */
+export function visibleFindings(file: FileResult, projectProblem: string | null): Finding[] {
+  if (!projectProblem || !file.isDiffusionConfig) return file.findings;
+  return [fileFinding('project-file', 'warning', `${projectProblem}; checking with the built-in defaults`), ...file.findings];
 }
