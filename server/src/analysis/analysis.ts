@@ -8,7 +8,7 @@
  * hold one copy of its 1,000-point curves between them. Every array in an Analysis is read only
  * (ReadonlyFloat64Array); copy it with `.slice()` before changing it.
  */
-import { DEFAULT_FLOW_SHIFT, DEFAULT_KARRAS, DEFAULT_SPACING, DEFAULT_STEPS_OFFSET, DEFAULT_TRAIN_STEPS } from '../setup/defaults';
+import { ASSUMED_SAMPLE_STEPS, DEFAULT_FLOW_SHIFT, DEFAULT_KARRAS, DEFAULT_SPACING, DEFAULT_STEPS_OFFSET, DEFAULT_TRAIN_STEPS } from '../setup/defaults';
 import {
   checkSampleSteps,
   checkTrainSteps,
@@ -33,8 +33,7 @@ export type ScheduleFamily = 'discrete' | 'flow' | 'karras';
 
 /** sigma_data of Karras et al. 2022 (0.5 for images); SNR = sigma_data^2 / sigma^2. */
 export const KARRAS_SIGMA_DATA = SIGMA_DATA_DEFAULT;
-/** Sampling steps assumed when a file sets a spacing but no step count (common practice). */
-export const ASSUMED_SAMPLE_STEPS = 50;
+export { ASSUMED_SAMPLE_STEPS } from '../setup/defaults';
 /** Points of the continuous curves (flow, Karras) drawn over t. */
 const CONTINUOUS_POINTS = 1000;
 

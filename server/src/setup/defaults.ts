@@ -43,6 +43,9 @@ export const OFFSET_NOTE = 'not set: assumed steps offset 0';
 export const ZERO_SNR_NOTE = 'not set: assumed the schedule is not rescaled to zero terminal SNR';
 export const GUIDANCE_RESCALE_NOTE = 'not set: assumed no guidance rescale (0)';
 
+/** Sampling steps assumed when a file sets a spacing but no step count (common practice). */
+export const ASSUMED_SAMPLE_STEPS = 50;
+
 /** Continuous sigma schedule (Karras et al. 2022, their defaults). */
 export const DEFAULT_KARRAS = { sigmaMin: 0.002, sigmaMax: 80, rho: 7 } as const;
 export const KARRAS_NOTE = 'not set: assumed the default of Karras et al. 2022';
