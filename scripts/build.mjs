@@ -7,7 +7,9 @@ import { fileURLToPath } from 'node:url';
 import { createRequire } from 'node:module';
 
 const root = join(dirname(fileURLToPath(import.meta.url)), '..');
-const common = { bundle: true, platform: 'node', target: 'node20', format: 'cjs', sourcemap: 'linked', logLevel: 'warning',
+// absWorkingDir: module paths in the bundle (its `// path` comments, the source map) are relative to
+// the repository root whichever folder runs the build (npm runs `prepare` from server/).
+const common = { bundle: true, platform: 'node', target: 'node20', format: 'cjs', sourcemap: 'linked', logLevel: 'warning', absWorkingDir: root,
   // jsonc-parser's UMD build hides its requires from the bundler; its ESM build bundles cleanly.
   mainFields: ['module', 'main'] };
 await build({ ...common, entryPoints: [join(root, 'server/src/cli/entry.ts')], outfile: join(root, 'server/dist/noiselint.js') });
