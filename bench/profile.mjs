@@ -11,7 +11,15 @@ import { fileURLToPath, pathToFileURL } from 'node:url';
 import { parseArgs } from 'node:util';
 
 const root = join(dirname(fileURLToPath(import.meta.url)), '..');
-const { values, positionals } = parseArgs({ allowPositionals: true, options: { dir: { type: 'string', default: 'bench/corpus' }, lines: { type: 'string', default: '5000' }, child: { type: 'boolean', default: false }, top: { type: 'string', default: '25' } } });
+const { values, positionals } = parseArgs({
+  allowPositionals: true,
+  options: {
+    dir: { type: 'string', default: 'bench/corpus' },
+    lines: { type: 'string', default: '5000' },
+    child: { type: 'boolean', default: false },
+    top: { type: 'string', default: '25' },
+  },
+});
 const what = positionals[0] ?? 'core';
 const harness = join(root, 'build/bench/harness.mjs');
 const corpus = join(root, values.dir);
@@ -29,9 +37,16 @@ if (values.child) {
 }
 
 const dir = mkdtempSync(join(tmpdir(), 'noiselint-prof-'));
-const r = spawnSync(process.execPath, ['--cpu-prof', `--cpu-prof-dir=${dir}`, fileURLToPath(import.meta.url), what, '--child', '--lines', values.lines, '--dir', values.dir], { stdio: 'inherit' });
+const r = spawnSync(
+  process.execPath,
+  ['--cpu-prof', `--cpu-prof-dir=${dir}`, fileURLToPath(import.meta.url), what, '--child', '--lines', values.lines, '--dir', values.dir],
+  { stdio: 'inherit' },
+);
 if (r.status !== 0) process.exit(r.status ?? 1);
-const file = join(dir, readdirSync(dir).find((f) => f.endsWith('.cpuprofile')));
+const file = join(
+  dir,
+  readdirSync(dir).find((f) => f.endsWith('.cpuprofile')),
+);
 const profile = JSON.parse(readFileSync(file, 'utf8'));
 const byId = new Map(profile.nodes.map((n) => [n.id, n]));
 const parent = new Map();
@@ -62,6 +77,19 @@ const top = Number(values.top);
 const fmt = ([k, t]) => `${(t / 1000).toFixed(0).padStart(7)} ms ${((100 * t) / all).toFixed(1).padStart(5)}%  ${k}`;
 console.log(`profile of "${what}" (${(all / 1000).toFixed(0)} ms sampled; ${file})`);
 console.log('\nself time:');
-console.log([...self].sort((a, b) => b[1] - a[1]).slice(0, top).map(fmt).join('\n'));
+console.log(
+  [...self]
+    .sort((a, b) => b[1] - a[1])
+    .slice(0, top)
+    .map(fmt)
+    .join('\n'),
+);
 console.log('\ninclusive time (harness.mjs lines are in build/bench/harness.mjs):');
-console.log([...total].sort((a, b) => b[1] - a[1]).filter(([k]) => !/^\((root|program)\)|^(anonymous)|runMain|executeUserEntryPoint|Module\.|loadESM|import|run /.test(k)).slice(0, top * 2).map(fmt).join('\n'));
+console.log(
+  [...total]
+    .sort((a, b) => b[1] - a[1])
+    .filter(([k]) => !/^\((root|program)\)|^(anonymous)|runMain|executeUserEntryPoint|Module\.|loadESM|import|run /.test(k))
+    .slice(0, top * 2)
+    .map(fmt)
+    .join('\n'),
+);

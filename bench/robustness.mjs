@@ -26,7 +26,14 @@ function measure(args) {
 
 // (1) One YAML file of many small entries (invented Lanternfish Pictures data).
 const entries = Math.round(200_000 * SCALE);
-const lines = ['# Lanternfish Pictures: sweep of night storyboard runs (invented demo data)', 'num_train_timesteps: 1000', 'beta_schedule: scaled_linear', 'timestep_spacing: leading', 'num_inference_steps: 30', 'runs:'];
+const lines = [
+  '# Lanternfish Pictures: sweep of night storyboard runs (invented demo data)',
+  'num_train_timesteps: 1000',
+  'beta_schedule: scaled_linear',
+  'timestep_spacing: leading',
+  'num_inference_steps: 30',
+  'runs:',
+];
 for (let i = 0; i < entries; i++) lines.push(`  run_${i}: ${(i % 997) / 1000}`);
 const big = `${lines.join('\n')}\n`;
 writeFileSync(join(dir, 'sweep.yaml'), big);
@@ -37,10 +44,16 @@ const fix = measure(['fix', '--dry-run', 'sweep.yaml']);
 const perMb = (r) => (r.rss - baseline.rss) / (mb * 1024 * 1024);
 
 // (2) Documents per file: the same document 1,000 and 10,000 times.
-const doc = 'num_train_timesteps: 1000\nbeta_schedule: scaled_linear\nbeta_start: 0.00085\nbeta_end: 0.012\nprediction_type: epsilon\ntimestep_spacing: leading\nnum_inference_steps: 30\n';
+const doc =
+  'num_train_timesteps: 1000\nbeta_schedule: scaled_linear\nbeta_start: 0.00085\nbeta_end: 0.012\nprediction_type: epsilon\ntimestep_spacing: leading\nnum_inference_steps: 30\n';
 const small = Math.max(100, Math.round(1000 * SCALE));
 writeFileSync(join(dir, 'few.yaml'), Array(small).fill(doc).join('---\n'));
-writeFileSync(join(dir, 'many.yaml'), Array(small * 10).fill(doc).join('---\n'));
+writeFileSync(
+  join(dir, 'many.yaml'),
+  Array(small * 10)
+    .fill(doc)
+    .join('---\n'),
+);
 const few = measure(['fix', '--dry-run', 'few.yaml']);
 const many = measure(['fix', '--dry-run', 'many.yaml']);
 

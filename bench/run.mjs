@@ -70,7 +70,10 @@ const machine = {
   memoryGb: (os.totalmem() / 1024 ** 3).toFixed(1),
   node: process.version,
   platform: `${os.type()} ${os.release()} ${os.arch()}`,
-  date: new Date().toISOString().replace('T', ' ').replace(/\.\d+Z$/, ' UTC'),
+  date: new Date()
+    .toISOString()
+    .replace('T', ' ')
+    .replace(/\.\d+Z$/, ' UTC'),
 };
 const sections = [];
 const summary = [];
@@ -103,7 +106,9 @@ async function corpusRuns(dir, measures) {
     log(`  pass ${rep + 1}/${REPS}: ${line.join(', ')}`);
   }
   const m = Object.fromEntries(Object.entries(runs).map(([k, xs]) => [k, median(xs)]));
-  const spread = Object.entries(runs).map(([k, xs]) => `${k} ${ms(Math.min(...xs))}-${ms(Math.max(...xs))}`).join(', ');
+  const spread = Object.entries(runs)
+    .map(([k, xs]) => `${k} ${ms(Math.min(...xs))}-${ms(Math.max(...xs))}`)
+    .join(', ');
   return { m, last, spread };
 }
 
@@ -123,7 +128,7 @@ function processRuns(n, cmd, args, cwd) {
 const WORKERS = spawnSync(process.execPath, [CLI, 'check', '--help'], { encoding: 'utf8' }).stdout.includes('--workers');
 const schema = JSON.parse(readFileSync(join(root, 'bench/schema.json'), 'utf8'));
 const validateDir = H.schemaValidator(schema);
-const perFile = (t, n) => (1000 * t / n).toFixed(0);
+const perFile = (t, n) => ((1000 * t) / n).toFixed(0);
 
 if (only.has('a')) {
   const corpus = join(root, 'bench', 'corpus');
@@ -144,10 +149,35 @@ if (only.has('a')) {
   const plainScript = processRuns(3, process.execPath, [join(root, 'bench/child.mjs'), 'plain', corpus], corpus);
   const n = last.plain.files;
   const found = H.findingsIn(last.command.summary);
-  summary.push(['a', `whole \`check\` over ${n} configs vs plain parse`, `${ratio(m.command, m.plain)}x`, '<= 1.3x', verdict(m.command / m.plain, 1.3)]);
-  summary.push(['a', `same vs ajv validation of the same files (one thread)`, `${ratio(m.command, m.ajv)}x`, '<= 1.0x', verdict(m.command / m.ajv, 1.0)]);
-  if (WORKERS) summary.push(['a', `same with workers (${os.availableParallelism?.() ?? machine.cores} cores) vs ajv`, `${ratio(m.workers, m.ajv)}x`, '<= 0.8x', verdict(m.workers / m.ajv, 0.8)]);
-  summary.push(['g', 'JSON report bytes per finding (default report)', `${(last.command.outputBytes / Math.max(1, found)).toFixed(0)} B`, '<= 512 B', verdict(last.command.outputBytes / Math.max(1, found), 512)]);
+  summary.push([
+    'a',
+    `whole \`check\` over ${n} configs vs plain parse`,
+    `${ratio(m.command, m.plain)}x`,
+    '<= 1.3x',
+    verdict(m.command / m.plain, 1.3),
+  ]);
+  summary.push([
+    'a',
+    `same vs ajv validation of the same files (one thread)`,
+    `${ratio(m.command, m.ajv)}x`,
+    '<= 1.0x',
+    verdict(m.command / m.ajv, 1.0),
+  ]);
+  if (WORKERS)
+    summary.push([
+      'a',
+      `same with workers (${os.availableParallelism?.() ?? machine.cores} cores) vs ajv`,
+      `${ratio(m.workers, m.ajv)}x`,
+      '<= 0.8x',
+      verdict(m.workers / m.ajv, 0.8),
+    ]);
+  summary.push([
+    'g',
+    'JSON report bytes per finding (default report)',
+    `${(last.command.outputBytes / Math.max(1, found)).toFixed(0)} B`,
+    '<= 512 B',
+    verdict(last.command.outputBytes / Math.max(1, found), 512),
+  ]);
   const row = (label, t) => `| ${label} | ${ms(t)} | ${perFile(t, n)} | ${ratio(t, m.plain)}x | ${ratio(t, m.ajv)}x |`;
   sections.push(`## (a) \`check\` over a corpus of ${n} diffusion configs
 
@@ -177,7 +207,9 @@ JSON report ${mb(last.command.outputBytes)} MB = ${(last.command.outputBytes / M
 ${last.ajv.invalid} files rejected by the schema, ${last.plain.failed} plain-parse failures, ${last.located.problems} located-parse problems.
 Spread (min-max ms): ${spread}.
 `);
-  log(`(a) plain ${ms(m.plain)} ms, ajv ${ms(m.ajv)}, command ${ms(m.command)} (${ratio(m.command, m.plain)}x plain, ${ratio(m.command, m.ajv)}x ajv), workers ${ms(m.workers ?? NaN)}`);
+  log(
+    `(a) plain ${ms(m.plain)} ms, ajv ${ms(m.ajv)}, command ${ms(m.command)} (${ratio(m.command, m.plain)}x plain, ${ratio(m.command, m.ajv)}x ajv), workers ${ms(m.workers ?? NaN)}`,
+  );
 }
 
 // ---------------------------------------------------------------- (e) monorepo corpus
@@ -192,7 +224,13 @@ if (only.has('e')) {
     command: () => H.checkCommand(dir, WORKERS ? ['--workers', '1'] : []),
   });
   const n = last.plain.files;
-  summary.push(['e', `monorepo (${n} files, ${((100 * mix.diffusion) / n).toFixed(0)}% diffusion configs) vs ajv`, `${ratio(m.command, m.ajv)}x`, '<= 0.3x', verdict(m.command / m.ajv, 0.3)]);
+  summary.push([
+    'e',
+    `monorepo (${n} files, ${((100 * mix.diffusion) / n).toFixed(0)}% diffusion configs) vs ajv`,
+    `${ratio(m.command, m.ajv)}x`,
+    '<= 0.3x',
+    verdict(m.command / m.ajv, 0.3),
+  ]);
   const row = (label, t) => `| ${label} | ${ms(t)} | ${perFile(t, n)} | ${ratio(t, m.plain)}x | ${ratio(t, m.ajv)}x |`;
   sections.push(`## (e) \`check\` over a monorepo-like tree
 
@@ -232,11 +270,19 @@ if (only.has('f')) {
     const workersKb = WORKERS ? peakKb([CLI, 'check', '.', '--format', 'json'], dir) : NaN;
     const plainKb = peakKb([join(root, 'bench/child.mjs'), 'plain', dir], dir);
     rows.push({ count, cliKb, workersKb, plainKb });
-    log(`  ${count} files: CLI ${(cliKb / 1024).toFixed(0)} MB, with workers ${(workersKb / 1024).toFixed(0)} MB, plain-parse script ${(plainKb / 1024).toFixed(0)} MB`);
+    log(
+      `  ${count} files: CLI ${(cliKb / 1024).toFixed(0)} MB, with workers ${(workersKb / 1024).toFixed(0)} MB, plain-parse script ${(plainKb / 1024).toFixed(0)} MB`,
+    );
   }
   const largest = rows[rows.length - 1];
   const smallest = rows[0];
-  summary.push(['f', `peak RSS of the CLI at ${largest.count} files (one thread)`, `${(largest.cliKb / 1024).toFixed(0)} MB (${(smallest.cliKb / 1024).toFixed(0)} MB at ${smallest.count})`, '<= 300 MB, flat', verdict(largest.cliKb / 1024, 300)]);
+  summary.push([
+    'f',
+    `peak RSS of the CLI at ${largest.count} files (one thread)`,
+    `${(largest.cliKb / 1024).toFixed(0)} MB (${(smallest.cliKb / 1024).toFixed(0)} MB at ${smallest.count})`,
+    '<= 300 MB, flat',
+    verdict(largest.cliKb / 1024, 300),
+  ]);
   sections.push(`## (f) Peak memory of the CLI
 
 Maximum resident set size (\`/usr/bin/time -f %M\`) of \`noiselint check . --format json\` (report
@@ -262,7 +308,7 @@ if (only.has('b')) {
   mkdirSync(dir, { recursive: true });
   const client = await H.LspTestClient.start({ cwd: dir, settings: { debounceMs: 0 } });
   const rows = [];
-  let floor = [];
+  const floor = [];
   try {
     // IPC floor: a trivial request round trip (summary of an unknown document).
     for (let i = 0; i < 200; i++) {
@@ -289,7 +335,18 @@ if (only.has('b')) {
       const sample = H.configText(7, 7, lines);
       const parse = H.parseTimes(sample, 'yaml', Math.max(30, Math.floor(samples / 2)));
       const analyze = H.analyzeTimes(sample, join(dir, `doc-${lines}.yaml`), Math.max(30, Math.floor(samples / 2)));
-      rows.push({ lines, bytes: sample.length, samples, p50: median(lat), p99: quantile(lat, 0.99), parse50: median(parse), parse99: quantile(parse, 0.99), analyze50: median(analyze), analyzeCpu: H.analyzeCpuMs(sample, join(dir, `doc-${lines}.yaml`), Math.max(30, Math.floor(samples / 2))), busy });
+      rows.push({
+        lines,
+        bytes: sample.length,
+        samples,
+        p50: median(lat),
+        p99: quantile(lat, 0.99),
+        parse50: median(parse),
+        parse99: quantile(parse, 0.99),
+        analyze50: median(analyze),
+        analyzeCpu: H.analyzeCpuMs(sample, join(dir, `doc-${lines}.yaml`), Math.max(30, Math.floor(samples / 2))),
+        busy,
+      });
       client.close(uri);
     }
   } finally {
@@ -297,7 +354,13 @@ if (only.has('b')) {
   }
   const f50 = median(floor);
   for (const r of rows) {
-    summary.push(['b', `LSP server busy time per change vs \`analyzeText\`, ${r.lines}-line file`, `${ratio(r.busy, r.analyzeCpu)}x (${ms(r.busy)} ms vs ${ms(r.analyzeCpu)} ms CPU)`, '<= 1.3x', verdict(r.busy / r.analyzeCpu, 1.3)]);
+    summary.push([
+      'b',
+      `LSP server busy time per change vs \`analyzeText\`, ${r.lines}-line file`,
+      `${ratio(r.busy, r.analyzeCpu)}x (${ms(r.busy)} ms vs ${ms(r.analyzeCpu)} ms CPU)`,
+      '<= 1.3x',
+      verdict(r.busy / r.analyzeCpu, 1.3),
+    ]);
   }
   sections.push(`## (b) LSP didChange -> publishDiagnostics latency
 

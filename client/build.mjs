@@ -3,7 +3,7 @@
 // the bundled language server (dist/server.js) so the .vsix is self-contained.
 // Run from any folder: `node client/build.mjs [--production]`; scripts/build.mjs imports it too.
 import { build } from 'esbuild';
-import { cpSync, existsSync, mkdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { existsSync, mkdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 

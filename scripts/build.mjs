@@ -9,14 +9,25 @@ import { createRequire } from 'node:module';
 const root = join(dirname(fileURLToPath(import.meta.url)), '..');
 // absWorkingDir: module paths in the bundle (its `// path` comments, the source map) are relative to
 // the repository root whichever folder runs the build (npm runs `prepare` from server/).
-const common = { bundle: true, platform: 'node', target: 'node20', format: 'cjs', sourcemap: 'linked', logLevel: 'warning', absWorkingDir: root,
+const common = {
+  bundle: true,
+  platform: 'node',
+  target: 'node20',
+  format: 'cjs',
+  sourcemap: 'linked',
+  logLevel: 'warning',
+  absWorkingDir: root,
   // jsonc-parser's UMD build hides its requires from the bundler; its ESM build bundles cleanly.
-  mainFields: ['module', 'main'] };
+  mainFields: ['module', 'main'],
+};
 await build({ ...common, entryPoints: [join(root, 'server/src/cli/entry.ts')], outfile: join(root, 'server/dist/noiselint.js') });
 
 // The schema module is bundled in memory and evaluated as CommonJS (its dependencies are CJS).
 const schemaModule = await build({
-  ...common, entryPoints: [join(root, 'server/src/workspace/projectSchema.ts')], write: false, sourcemap: false,
+  ...common,
+  entryPoints: [join(root, 'server/src/workspace/projectSchema.ts')],
+  write: false,
+  sourcemap: false,
 });
 const loaded = { exports: {} };
 new Function('module', 'exports', 'require', schemaModule.outputFiles[0].text)(loaded, loaded.exports, createRequire(import.meta.url));

@@ -62,7 +62,8 @@ for (const p of selected) {
     endOnFailure: false,
   });
   const secs = ((Date.now() - started) / 1000).toFixed(1);
-  const line = `${p.name}: ${details.numRuns} runs in ${secs} s, seed ${details.seed}` +
+  const line =
+    `${p.name}: ${details.numRuns} runs in ${secs} s, seed ${details.seed}` +
     `, ${stats.findings} findings and ${stats.fixes} fixes checked, rules seen: ${[...stats.rules].sort().join(', ') || 'none'}`;
   if (details.failed) {
     failed = true;
@@ -71,7 +72,12 @@ for (const p of selected) {
     console.log(`  replay: npm run fuzz -- --property ${p.name} --seed ${details.seed} --path "${details.counterexamplePath}" --runs 1`);
     console.log(`  or: NOISELINT_FUZZ_SEED=${details.seed} npx vitest run test/fuzz`);
     const err = details.errorInstance;
-    console.log(String(err instanceof Error ? err.message : err).split('\n').slice(0, 12).join('\n'));
+    console.log(
+      String(err instanceof Error ? err.message : err)
+        .split('\n')
+        .slice(0, 12)
+        .join('\n'),
+    );
   } else {
     console.log(`ok   ${line}${details.interrupted ? ' (time budget reached)' : ''}`);
   }

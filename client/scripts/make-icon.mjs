@@ -17,7 +17,12 @@ function blend(x, y, [r, g, b], alpha) {
   const i = (y * W + x) * 4;
   const a = alpha + rgba[i + 3] * (1 - alpha);
   if (a === 0) return;
-  for (const [k, c] of [[0, r], [1, g], [2, b]]) rgba[i + k] = (c * alpha + rgba[i + k] * rgba[i + 3] * (1 - alpha)) / a;
+  for (const [k, c] of [
+    [0, r],
+    [1, g],
+    [2, b],
+  ])
+    rgba[i + k] = (c * alpha + rgba[i + k] * rgba[i + 3] * (1 - alpha)) / a;
   rgba[i + 3] = a;
 }
 
@@ -28,7 +33,12 @@ function roundedTile(color, radius) {
       const dy = Math.max(radius - y, y - (W - 1 - radius), 0);
       if (dx * dx + dy * dy <= radius * radius) {
         const shade = 1 - 0.25 * (y / W);
-        blend(x, y, color.map((c) => c * shade), 1);
+        blend(
+          x,
+          y,
+          color.map((c) => c * shade),
+          1,
+        );
       }
     }
   }

@@ -42,7 +42,9 @@ export async function activate(context: vscode.ExtensionContext): Promise<void> 
       await vscode.window.showTextDocument(doc, { viewColumn: vscode.ViewColumn.Beside, preview: true });
     }),
     vscode.commands.registerCommand('noiselint.rescaleRun', (target?: unknown) => rescaleRun(controller, output, targetUri(target))),
-    vscode.commands.registerCommand('noiselint.rescaleRunSamplingOnly', (target?: unknown) => rescaleRun(controller, output, targetUri(target), true)),
+    vscode.commands.registerCommand('noiselint.rescaleRunSamplingOnly', (target?: unknown) =>
+      rescaleRun(controller, output, targetUri(target), true),
+    ),
     vscode.commands.registerCommand('noiselint.undoRunRescale', () => undoRunRescale()),
     vscode.commands.registerCommand('noiselint.restartServer', async () => {
       if (!enabled()) {

@@ -187,5 +187,7 @@ export class PlotPanel implements vscode.Disposable {
 }
 
 function makeNonce(): string {
-  return randomBytes(24).toString('base64').replace(/[^A-Za-z0-9]/g, '');
+  return randomBytes(24)
+    .toString('base64')
+    .replace(/[^A-Za-z0-9]/g, '');
 }

@@ -56,7 +56,12 @@ async function textOf(uri: vscode.Uri): Promise<string> {
   return (await vscode.workspace.openTextDocument(uri)).getText();
 }
 
-export async function rescaleRun(controller: ServerController, output: vscode.LogOutputChannel, uri: vscode.Uri | undefined, samplingOnly = false): Promise<void> {
+export async function rescaleRun(
+  controller: ServerController,
+  output: vscode.LogOutputChannel,
+  uri: vscode.Uri | undefined,
+  samplingOnly = false,
+): Promise<void> {
   if (!uri) {
     void vscode.window.showInformationMessage('noiselint: open a training or sampling file of the run first.');
     return;
@@ -81,7 +86,7 @@ export async function rescaleRun(controller: ServerController, output: vscode.Lo
   if (!applied || after.every((f) => f.after === f.before)) return;
   last = { files: after };
   const notes = result.notes.length ? ` ${result.notes.join(' ')}` : '';
-  const caution = result.needsRetraining ? result.cautions[0] : result.cautions[1] ?? '';
+  const caution = result.needsRetraining ? result.cautions[0] : (result.cautions[1] ?? '');
   void vscode.window.showWarningMessage(`noiselint: run rescaled in ${after.length} files (unsaved). ${caution}${notes}`);
 }
 
@@ -93,7 +98,7 @@ export async function undoRunRescale(): Promise<void> {
     return;
   }
   const docs = await Promise.all(snapshot.files.map((f) => vscode.workspace.openTextDocument(f.uri)));
-  const changed = snapshot.files.filter((f, i) => docs[i].getText() !== f.after);
+  const changed = snapshot.files.filter((f, i) => docs[i]!.getText() !== f.after);
   if (changed.length > 0) {
     void vscode.window.showWarningMessage(
       `noiselint: not undone: ${changed.map((f) => vscode.workspace.asRelativePath(f.uri)).join(', ')} changed after the run rescale.`,
@@ -102,7 +107,7 @@ export async function undoRunRescale(): Promise<void> {
   }
   const edit = new vscode.WorkspaceEdit();
   snapshot.files.forEach((f, i) => {
-    const doc = docs[i];
+    const doc = docs[i]!;
     edit.replace(f.uri, new vscode.Range(doc.positionAt(0), doc.positionAt(doc.getText().length)), f.before);
   });
   if (await vscode.workspace.applyEdit(edit)) {

@@ -1,12 +1,6 @@
 // Starts, stops and restarts the bundled language server (`noiselint lsp --stdio`).
 import * as vscode from 'vscode';
-import {
-  LanguageClient,
-  TransportKind,
-  type DocumentSelector,
-  type LanguageClientOptions,
-  type ServerOptions,
-} from 'vscode-languageclient/node';
+import { LanguageClient, TransportKind, type DocumentSelector, type LanguageClientOptions, type ServerOptions } from 'vscode-languageclient/node';
 import { LANGUAGES, PLOT_CHANGED_NOTIFICATION, type UriParams } from './protocol';
 
 /**

@@ -34,9 +34,7 @@ export function karrasSigmas(
     checkPositive('sigma min', sigmaMin) ??
     checkPositive('sigma max', sigmaMax) ??
     checkPositive('rho', rho) ??
-    (sigmaMax < sigmaMin
-      ? `sigma max (${describeValue(sigmaMax)}) must not be below sigma min (${describeValue(sigmaMin)})`
-      : null);
+    (sigmaMax < sigmaMin ? `sigma max (${describeValue(sigmaMax)}) must not be below sigma min (${describeValue(sigmaMin)})` : null);
   if (problem !== null) return fail(problem);
   const sigmas = new Float64Array(N);
   if (N === 1) {

@@ -39,14 +39,7 @@ export {
 export { rescaleZeroTerminalSnr } from './rescale';
 export { type SpacingKind, SPACING_KINDS, QUADRATIC_SPACING_FRACTION, samplingTimesteps } from './spacing';
 export { type TargetKind, TARGET_KINDS, noisySample, vFromEpsX0, x0FromV, x0FromEps, epsFromV } from './targets';
-export {
-  guidanceRescale,
-  classifierFreeGuidance,
-  populationStd,
-  mean,
-  COMMON_GUIDANCE_SCALE,
-  COMMON_GUIDANCE_RESCALE,
-} from './guidance';
+export { guidanceRescale, classifierFreeGuidance, populationStd, mean, COMMON_GUIDANCE_SCALE, COMMON_GUIDANCE_RESCALE } from './guidance';
 export { minSnrWeight, MIN_SNR_GAMMA_DEFAULT } from './weighting';
 export {
   karrasSigmas,

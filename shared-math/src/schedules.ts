@@ -57,9 +57,7 @@ export function scaledLinearBetas(T: number, b0: number, b1: number): MathResult
 export function cosineBetas(T: number, s: number = COSINE_OFFSET, maxBeta: number = COSINE_MAX_BETA): MathResult<Float64Array> {
   const problem =
     checkTrainSteps(T) ??
-    (typeof s !== 'number' || !Number.isFinite(s) || s < 0
-      ? `cosine offset must be a finite number >= 0, got ${describeValue(s)}`
-      : null) ??
+    (typeof s !== 'number' || !Number.isFinite(s) || s < 0 ? `cosine offset must be a finite number >= 0, got ${describeValue(s)}` : null) ??
     checkBetaBound('maximum beta', maxBeta);
   if (problem !== null) return fail(problem);
   const f = (t: number): number => {

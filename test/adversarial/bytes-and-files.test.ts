@@ -52,7 +52,12 @@ describe('adversarial bytes and files', () => {
     // 0xFF never appears in UTF-8; 0xC3 0x28 is a broken two-byte sequence.
     const bytes = Buffer.concat([Buffer.from(VALID), Buffer.from([0x23, 0x20, 0xff, 0xfe, 0xc3, 0x28, 0x0a])]);
     writeFileSync(file, bytes);
-    for (const args of [['check', file], ['explain', file], ['fix', file], ['fix', '--accept-retraining', '--accept-comment-edits', file]]) {
+    for (const args of [
+      ['check', file],
+      ['explain', file],
+      ['fix', file],
+      ['fix', '--accept-retraining', '--accept-comment-edits', file],
+    ]) {
       const r = runCli(args, { heapMb: 128 });
       expect(describeCrash(r), args.join(' ')).toBeNull();
       // One line naming the problem. (`check` and `fix` count the file as skipped, exit 0.)
@@ -79,7 +84,12 @@ describe('adversarial bytes and files', () => {
 
   it('a hostile project file (alias bomb, deep nesting, a FIFO in its place) is one line, not a crash', () => {
     const bombs: Record<string, string> = {
-      'alias bomb': ['a0: &a0 [x, x, x, x, x, x, x, x, x]', ...Array.from({ length: 9 }, (_, i) => `a${i + 1}: &a${i + 1} [${Array(9).fill(`*a${i}`).join(', ')}]`), 'include: *a9', ''].join('\n'),
+      'alias bomb': [
+        'a0: &a0 [x, x, x, x, x, x, x, x, x]',
+        ...Array.from({ length: 9 }, (_, i) => `a${i + 1}: &a${i + 1} [${Array(9).fill(`*a${i}`).join(', ')}]`),
+        'include: *a9',
+        '',
+      ].join('\n'),
       'deep nesting': `limits: ${'['.repeat(100_000)}${']'.repeat(100_000)}\n`,
       'wrong types': 'limits: {maxFileBytes: .inf, maxNesting: -1}\nrules: 7\n',
     };

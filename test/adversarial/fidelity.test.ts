@@ -33,7 +33,7 @@ const LINES = [
 ];
 
 function valueOf(text: string, key: string): unknown {
-  const root = parseText(text, 'yaml').documents[0].root as LocatedMap;
+  const root = parseText(text, 'yaml').documents[0]!.root as LocatedMap;
   return root.entries.find((e) => e.key === key)?.value;
 }
 
@@ -90,7 +90,7 @@ describe('core-schema tags (YAML 1.2 section 10.3) are applied, not reported as 
   it('a text that does not fit its core tag is a tag-mismatch warning, not a custom tag', () => {
     const parsed = parseText('a: !!int 1.5\n', 'yaml');
     expect(parsed.problems.map((p) => [p.code, p.severity])).toEqual([['tag-mismatch', 'warning']]);
-    expect(parsed.problems[0].message).toMatch(/not a valid !!int value/);
+    expect(parsed.problems[0]!.message).toMatch(/not a valid !!int value/);
   });
 });
 
@@ -129,7 +129,6 @@ describe('file names with control and bidirectional characters are printed escap
     const args = command === 'explain' ? ['explain', ...names, 'missing\u202E.yaml'] : [...command.split(' '), '.'];
     const r = await runCli(args, dir);
     const all = r.stdout + r.stderr;
-    // eslint-disable-next-line no-control-regex
     expect(all.replace(/\n/g, '')).not.toMatch(/[\u0000-\u001f\u007f-\u009f\u202a-\u202e\u2066-\u2069]/);
     expect(all).toContain('night\\u202Elmay.yaml');
     if (command !== 'explain') expect(all).toContain('still\\u001B[31m.yaml');
@@ -148,6 +147,7 @@ describe('many documents in one file: no whole-text scan per fix', () => {
   function wholeTextScans(documents: number): number {
     const doc = LINES.slice(1, 10).join('\n');
     const text = Array.from({ length: documents }, () => doc).join('\n---\n') + '\n';
+    // eslint-disable-next-line @typescript-eslint/unbound-method -- kept to be called with its own `this` below
     const exec = RegExp.prototype.exec;
     let scans = 0;
     vi.spyOn(RegExp.prototype, 'exec').mockImplementation(function (this: RegExp, s: string) {

@@ -18,7 +18,10 @@ describe('inputs found by the fuzzer', () => {
         const text = `${head}\nnum_train_timesteps: ${steps}\nnum_inference_steps: 20\n`;
         const result = analyzeText(text, { path: 'lanternfish/flow.yaml' });
         expectSpansInside(result, text);
-        expect(result.findings.map((f) => f.rule), text).toContain('schedule-invalid');
+        expect(
+          result.findings.map((f) => f.rule),
+          text,
+        ).toContain('schedule-invalid');
       }
     }
   });
@@ -41,11 +44,18 @@ describe('inputs found by the fuzzer', () => {
   });
 
   it('syntax error spans do not split a surrogate pair (an LSP position between the halves is invalid)', () => {
-    const cases = ['a: [\n\u{10000}]\n', '{}\n---\nnum_train_timesteps: [\n\u{10000}]\n', 'x: {num_train_timesteps: ["], "\u{100eb}": 0}\n', 'a: "\u{1f3ee}\n'];
+    const cases = [
+      'a: [\n\u{10000}]\n',
+      '{}\n---\nnum_train_timesteps: [\n\u{10000}]\n',
+      'x: {num_train_timesteps: ["], "\u{100eb}": 0}\n',
+      'a: "\u{1f3ee}\n',
+    ];
     for (const text of cases) {
       const result = analyzeText(text, { path: 'astral.yaml' });
       expectSpansInside(result, text);
-      const bad = [...result.parsed.problems.map((p) => p.span), ...result.findings.map((f) => f.span)].filter((s) => splits(text, s.start) || splits(text, s.end));
+      const bad = [...result.parsed.problems.map((p) => p.span), ...result.findings.map((f) => f.span)].filter(
+        (s) => splits(text, s.start) || splits(text, s.end),
+      );
       expect(bad, JSON.stringify(text)).toEqual([]);
     }
   });

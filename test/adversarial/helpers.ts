@@ -171,7 +171,10 @@ export interface CliRun {
  * Runs `node [nodeArgs] server/dist/noiselint.js args` with a hang guard (a kill after
  * `killAfterMs` counts as a failure, not a measurement) and a bounded old-space heap.
  */
-export function runCli(args: string[], opts: { cwd?: string; heapMb?: number; nodeArgs?: string[]; killAfterMs?: number; input?: string } = {}): CliRun {
+export function runCli(
+  args: string[],
+  opts: { cwd?: string; heapMb?: number; nodeArgs?: string[]; killAfterMs?: number; input?: string } = {},
+): CliRun {
   const nodeArgs = [`--max-old-space-size=${opts.heapMb ?? 256}`, ...(opts.nodeArgs ?? [])];
   const r: SpawnSyncReturns<string> = spawnSync(process.execPath, [...nodeArgs, CLI, ...args], {
     cwd: opts.cwd ?? REPO,

@@ -8,7 +8,19 @@ import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { analyzeText } from '../../server/src/engine/api';
 import { DEFAULT_PARSE_LIMITS } from '../../server/src/parse/types';
-import { MB, describeCrash, flat, ensureCliBuilt, expectSpansInside, reportText, retainedHeapGrowth, runCli, removeTempDirs, tempDir, treeStats } from './helpers';
+import {
+  MB,
+  describeCrash,
+  flat,
+  ensureCliBuilt,
+  expectSpansInside,
+  reportText,
+  retainedHeapGrowth,
+  runCli,
+  removeTempDirs,
+  tempDir,
+  treeStats,
+} from './helpers';
 
 const HEADER = '# Lanternfish Pictures: invented demo data\nbeta_schedule: linear\nbeta_start: 0.0001\nbeta_end: 0.02\n';
 
@@ -45,7 +57,7 @@ describe('adversarial sizes', () => {
       const finding = result.findings.find((f) => f.rule === 'schedule-invalid')!;
       // It points at the step count.
       expect(text.slice(finding.span.start, finding.span.end)).toContain(steps.slice(0, 6));
-      expect(result.documents[0].analysis.schedule).toBeNull();
+      expect(result.documents[0]!.analysis.schedule).toBeNull();
       expect(growthBytes, `${steps}: kept ${(growthBytes / MB).toFixed(1)} MB`).toBeLessThan(16 * MB);
     }
   });
@@ -64,8 +76,14 @@ describe('adversarial sizes', () => {
       const { result, growthBytes } = retainedHeapGrowth(() => analyzeText(text, { path: `betas.${format}`, format }));
       expectSpansInside(result, text);
       const report = reportText(result);
-      expect(result.parsed.problems.map((p) => p.code), `${name}: ${report.slice(0, 400)}`).not.toContain('internal-error');
-      expect(result.parsed.problems.map((p) => p.code), `${name}: ${report.slice(0, 400)}`).toContain('too-long');
+      expect(
+        result.parsed.problems.map((p) => p.code),
+        `${name}: ${report.slice(0, 400)}`,
+      ).not.toContain('internal-error');
+      expect(
+        result.parsed.problems.map((p) => p.code),
+        `${name}: ${report.slice(0, 400)}`,
+      ).toContain('too-long');
       const longest = Math.max(0, ...result.parsed.documents.map((d) => treeStats(d.root).longestList));
       expect(longest, name).toBeLessThanOrEqual(DEFAULT_PARSE_LIMITS.maxListLength);
       // 200,000 located scalars is the most the tree may hold.
@@ -86,7 +104,10 @@ describe('adversarial sizes', () => {
       const { result, growthBytes } = retainedHeapGrowth(() => analyzeText(text, { path: `long-line.${format}`, format }));
       expectSpansInside(result, text);
       // Zero terminal SNR with an epsilon target (DESIGN section 5: epsilon-at-zero-snr).
-      expect(result.findings.map((f) => f.rule), `case ${i}: ${reportText(result)}`).toContain('epsilon-at-zero-snr');
+      expect(
+        result.findings.map((f) => f.rule),
+        `case ${i}: ${reportText(result)}`,
+      ).toContain('epsilon-at-zero-snr');
       expect(growthBytes, `case ${i}: kept ${(growthBytes / MB).toFixed(1)} MB`).toBeLessThan(24 * MB);
     }
   });

@@ -13,7 +13,8 @@ import { compileGlob, parseIgnore } from '../../server/src/workspace/glob';
 import { describeCrash, ensureCliBuilt, removeTempDirs, runCli, tempDir } from './helpers';
 
 /** A leading-spacing sampler (invented Lanternfish Pictures data): one finding at least. */
-const CONFIG = 'num_train_timesteps: 1000\nbeta_schedule: scaled_linear\nbeta_start: 0.00085\nbeta_end: 0.012\ntimestep_spacing: leading\nnum_inference_steps: 30\n';
+const CONFIG =
+  'num_train_timesteps: 1000\nbeta_schedule: scaled_linear\nbeta_start: 0.00085\nbeta_end: 0.012\ntimestep_spacing: leading\nnum_inference_steps: 30\n';
 
 describe('hostile patterns', () => {
   beforeAll(() => ensureCliBuilt());
@@ -50,7 +51,7 @@ describe('hostile patterns', () => {
     const lines: string[] = ['skipped.yaml'];
     for (let i = 0, size = 0; size < 1024 * 1024 - 100; i++) {
       lines.push(`generated/${'*x'.repeat(8)}-${i}/**/*.tmp`);
-      size += lines[lines.length - 1].length + 1;
+      size += lines[lines.length - 1]!.length + 1;
     }
     writeFileSync(join(dir, '.gitignore'), lines.join('\n'));
     writeFileSync(join(dir, 'skipped.yaml'), CONFIG);
@@ -93,12 +94,37 @@ describe('hostile patterns', () => {
 
 describe('the matcher agrees with the reference libraries on ordinary patterns', () => {
   const paths = [
-    'train.yaml', 'configs/train.yaml', 'configs/night/sampler.yml', 'configs/.hidden/x.yaml', '.ci/run.yaml',
-    'a/b/c/d.json', 'runs/2024-06/a.jsonc', 'runs/x.yaml.bak', 'node/x.yaml', 'ab.yaml', 'abc.yaml', 'a-b.yaml', 'b.yaml',
+    'train.yaml',
+    'configs/train.yaml',
+    'configs/night/sampler.yml',
+    'configs/.hidden/x.yaml',
+    '.ci/run.yaml',
+    'a/b/c/d.json',
+    'runs/2024-06/a.jsonc',
+    'runs/x.yaml.bak',
+    'node/x.yaml',
+    'ab.yaml',
+    'abc.yaml',
+    'a-b.yaml',
+    'b.yaml',
   ];
   const globs = [
-    '*.yaml', '**/*.yaml', 'configs/**', 'configs/*.yaml', '**/night/*', '{configs,runs}/**/*.{yaml,yml}', 'a/**/d.json',
-    '?b.yaml', '[ab]*.yaml', '[^a]*.yaml', 'runs/*/a.jsonc', '**', 'configs/**/*.yml', '**/.hidden/**', 'a?c.yaml', '*-*.yaml',
+    '*.yaml',
+    '**/*.yaml',
+    'configs/**',
+    'configs/*.yaml',
+    '**/night/*',
+    '{configs,runs}/**/*.{yaml,yml}',
+    'a/**/d.json',
+    '?b.yaml',
+    '[ab]*.yaml',
+    '[^a]*.yaml',
+    'runs/*/a.jsonc',
+    '**',
+    'configs/**/*.yml',
+    '**/.hidden/**',
+    'a?c.yaml',
+    '*-*.yaml',
   ];
 
   it.each([true, false])('globs, dot: %s (picomatch)', (dot) => {
@@ -111,8 +137,18 @@ describe('the matcher agrees with the reference libraries on ordinary patterns',
 
   it('.gitignore rules (node-ignore)', () => {
     const files = [
-      ['*.bak'], ['configs/'], ['/train.yaml'], ['night'], ['runs/**/a.jsonc'], ['*.yaml', '!configs/*.yaml'], ['a/**/d.json'],
-      ['.hidden'], ['configs/night/'], ['**/x.yaml'], ['# comment', '\\#x', 'b.yaml  '], ['*', '!*/', '!*.yml'],
+      ['*.bak'],
+      ['configs/'],
+      ['/train.yaml'],
+      ['night'],
+      ['runs/**/a.jsonc'],
+      ['*.yaml', '!configs/*.yaml'],
+      ['a/**/d.json'],
+      ['.hidden'],
+      ['configs/night/'],
+      ['**/x.yaml'],
+      ['# comment', '\\#x', 'b.yaml  '],
+      ['*', '!*/', '!*.yml'],
     ];
     for (const lines of files) {
       const ours = parseIgnore(lines.join('\n'));

@@ -32,7 +32,10 @@ function mergeKeyBomb(): string {
 
 describe('adversarial YAML/JSON structure', () => {
   it('alias bomb ("billion laughs"): refused with a problem, nothing expanded', () => {
-    for (const [name, text] of [['alias bomb', aliasBomb()], ['merge-key bomb', mergeKeyBomb()]] as const) {
+    for (const [name, text] of [
+      ['alias bomb', aliasBomb()],
+      ['merge-key bomb', mergeKeyBomb()],
+    ] as const) {
       const { result, growthBytes } = retainedHeapGrowth(() => analyzeText(text, { path: 'lanternfish/bomb.yaml' }));
       expectSpansInside(result, text);
       const report = reportText(result);
@@ -144,8 +147,12 @@ describe('adversarial YAML/JSON structure', () => {
       '  beta_schedule: linear',
       '',
     ].join('\n');
-    const json = '{"__proto__": {"polluted": true}, "constructor": {"prototype": {"polluted": true}}, "num_train_timesteps": 1000, "beta_schedule": "toString"}';
-    for (const [text, format] of [[yaml, 'yaml'], [json, 'json']] as const) {
+    const json =
+      '{"__proto__": {"polluted": true}, "constructor": {"prototype": {"polluted": true}}, "num_train_timesteps": 1000, "beta_schedule": "toString"}';
+    for (const [text, format] of [
+      [yaml, 'yaml'],
+      [json, 'json'],
+    ] as const) {
       const result = analyzeText(text, { path: `proto.${format}`, format });
       expectSpansInside(result, text);
       expect(({} as Record<string, unknown>).polluted, format).toBeUndefined();

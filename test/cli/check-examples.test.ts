@@ -58,10 +58,17 @@ describe('check examples (the Lanternfish Pictures demo workspace)', () => {
     const rel = 'examples/launcher-args/night-args.toml';
     const text = readFileSync(join(repo, rel), 'utf8');
     const out = JSON.parse((await runCli(['check', '--format', 'json', rel], repo)).stdout) as {
-      files: { findings: { rule: string; severity: string; message: string; range: { start: { line: number; character: number }; end: { line: number; character: number } } }[] }[];
+      files: {
+        findings: {
+          rule: string;
+          severity: string;
+          message: string;
+          range: { start: { line: number; character: number }; end: { line: number; character: number } };
+        }[];
+      }[];
     };
-    const lineText = (n: number) => text.split('\n')[n];
-    const found = out.files[0].findings.map((f) => ({
+    const lineText = (n: number) => text.split('\n')[n]!;
+    const found = out.files[0]!.findings.map((f) => ({
       rule: f.rule,
       severity: f.severity,
       text: lineText(f.range.start.line).slice(f.range.start.character, f.range.end.character),
@@ -72,8 +79,8 @@ describe('check examples (the Lanternfish Pictures demo workspace)', () => {
     ]);
     // sqrt(abar_T) = 0.068265, SNR_T = 0.004682 for scaled_linear 0.00085 -> 0.012, T = 1000:
     // Lin et al. 2023, Table 1 (recalled from memory; float64 recomputation agrees).
-    expect(out.files[0].findings[0].message).toContain('(999) is 0.068 (SNR 4.7e-3)');
-    expect(out.files[0].findings[1].message).toContain('offset noise 0.05');
+    expect(out.files[0]!.findings[0]!.message).toContain('(999) is 0.068 (SNR 4.7e-3)');
+    expect(out.files[0]!.findings[1]!.message).toContain('offset noise 0.05');
 
     const root = tempTree({ 'night-args.toml': text });
     try {
@@ -82,11 +89,14 @@ describe('check examples (the Lanternfish Pictures demo workspace)', () => {
       const fixed = readFileSync(join(root, 'night-args.toml'), 'utf8');
       expect(fixed).toBe(
         text
-          .replace('noise_scheduler.prediction_type = "epsilon"\n', 'noise_scheduler.prediction_type = "v_prediction"\nnoise_scheduler.rescale_betas_zero_snr = true\n')
+          .replace(
+            'noise_scheduler.prediction_type = "epsilon"\n',
+            'noise_scheduler.prediction_type = "v_prediction"\nnoise_scheduler.rescale_betas_zero_snr = true\n',
+          )
           .replace('noise_offset = 0.05  # brighter skies, as in run 011\n', ''),
       );
       const again = JSON.parse((await runCli(['check', '--format', 'json', 'night-args.toml'], root)).stdout) as { files: { findings: unknown[] }[] };
-      expect(again.files[0].findings).toEqual([]);
+      expect(again.files[0]!.findings).toEqual([]);
     } finally {
       removeTree(root);
     }
@@ -105,7 +115,7 @@ describe('check examples (the Lanternfish Pictures demo workspace)', () => {
     const root = tempTree({ 'train-finetune.yaml': text });
     try {
       const out = JSON.parse((await runCli(['check', '--format', 'json'], root)).stdout) as { files: JsonFile[] };
-      expect(out.files[0].findings.find((f) => f.rule === 'offset-noise-conflict')?.severity).toBe('info');
+      expect(out.files[0]!.findings.find((f) => f.rule === 'offset-noise-conflict')?.severity).toBe('info');
     } finally {
       removeTree(root);
     }

@@ -94,7 +94,9 @@ describe('check: files that are hard to read', () => {
     // Named on the command line, the same skip is an error: nothing was checked that was asked for.
     const named = await runCli(['check', 'big.yaml'], root);
     expect(named.code).toBe(2);
-    expect(named.stderr.split('\n')[0]).toBe(`noiselint check: big.yaml: skipped: ${big.length} bytes is above the 100 bytes limit (limits.maxFileBytes)`);
+    expect(named.stderr.split('\n')[0]).toBe(
+      `noiselint check: big.yaml: skipped: ${big.length} bytes is above the 100 bytes limit (limits.maxFileBytes)`,
+    );
   });
 
   it('a missing path or an empty glob is an error (exit 2), the rest is checked', async () => {
@@ -199,7 +201,11 @@ sampling:
     let stdout = '';
     const io: CliIO = { cwd: root, stdout: (t) => void (stdout += t), stderr: () => undefined, isTTY: false, env: {} };
     expect(await check(parseCheckArgs(['--format', 'json']), io, counting)).toBe(1);
-    expect([...reads.keys()].sort()).toEqual(Object.keys(files).map((f) => join(root, f)).sort());
+    expect([...reads.keys()].sort()).toEqual(
+      Object.keys(files)
+        .map((f) => join(root, f))
+        .sort(),
+    );
     expect([...reads.values()].every((n) => n === 1)).toBe(true);
 
     // The same findings as analysing each file on its own (fresh parse) with the partners pairing gives.
@@ -210,7 +216,7 @@ sampling:
       const path = join(root, rel);
       const project = loadProject(path);
       const pairing = session.partnersOf(path, project);
-      const alone = analyzeText(files[rel], { path, project, partners: pairing.partners, pairRole: pairing.pairRole });
+      const alone = analyzeText(files[rel]!, { path, project, partners: pairing.partners, pairRole: pairing.pairRole });
       const reported = out.files.find((f) => f.path === rel)!.findings;
       expect(reported.map((f) => `${f.rule} ${f.severity} ${f.message}`)).toEqual(alone.findings.map((f) => `${f.rule} ${f.severity} ${f.message}`));
     }
@@ -221,7 +227,7 @@ sampling:
 });
 
 describe('check: what the report keeps', () => {
-  it('findings as data: equal to the engine\'s, but no fix still points at the parse it came from', () => {
+  it("findings as data: equal to the engine's, but no fix still points at the parse it came from", () => {
     const result = analyzeText(LEAKY_V, { path: 'leaky.yaml' });
     const fixes = result.findings.flatMap((f) => f.fixes);
     expect(fixes.length).toBeGreaterThan(0);
@@ -232,4 +238,3 @@ describe('check: what the report keeps', () => {
     expect(data.flatMap((f) => f.fixes).every((x) => originOf(x) === undefined)).toBe(true);
   });
 });
-

@@ -128,7 +128,9 @@ describe('check --format json', () => {
       file.findings.forEach((finding, j) => {
         finding.fixes.forEach((fix, k) => {
           const short = compact.files[i].findings[j].fixes[k].edits;
-          expect(short).toEqual(fix.edits.map((e) => [e.range.start.line, e.range.start.character, e.range.end.line, e.range.end.character, e.newText]));
+          expect(short).toEqual(
+            fix.edits.map((e) => [e.range.start.line, e.range.start.character, e.range.end.line, e.range.end.character, e.newText]),
+          );
           expect(none.files[i].findings[j].fixes[k]).not.toHaveProperty('edits');
           edits += short.length;
         });

@@ -128,7 +128,7 @@ describe('check --format sarif', () => {
     expect(log.runs[0].results[0].locations[0].physicalLocation.artifactLocation.uri).toBe('night%20runs/leaky%20%232.yaml');
   });
 
-  it('names the tool\'s home and version, as package.json does', async () => {
+  it("names the tool's home and version, as package.json does", async () => {
     const root = tree({ 'a.yaml': LEAKY_V });
     const log = JSON.parse((await runCli(['check', '--format', 'sarif'], root)).stdout);
     const pkg = JSON.parse(readFileSync(join(REPO_ROOT, 'package.json'), 'utf8'));
@@ -141,11 +141,18 @@ describe('check --format sarif', () => {
   it('links rule pages only under an https base', () => {
     const report = { cwd: '/w', files: [], skipped: [], otherTexts: new Map(), notices: [] };
     const rules = (docsBase?: string) =>
-      ((toSarif(report, { version: VERSION, rules: ALL_RULE_METAS, docsBase }).runs as { tool: { driver: { rules: { id: string; helpUri?: string }[] } } }[])[0].tool.driver.rules);
+      (
+        toSarif(report, { version: VERSION, rules: ALL_RULE_METAS, docsBase }).runs as {
+          tool: { driver: { rules: { id: string; helpUri?: string }[] } };
+        }[]
+      )[0]!.tool.driver.rules;
     const linked = rules('https://docs.lanternfish.example/noiselint/rules');
     expect(linked.find((d) => d.id === 'terminal-snr-leak')?.helpUri).toBe('https://docs.lanternfish.example/noiselint/rules/terminal-snr-leak.md');
     for (const base of [undefined, '', 'http://docs.lanternfish.example/rules', 'file:///work/docs/rules', 'docs/rules']) {
-      expect(rules(base).every((d) => d.helpUri === undefined), String(base)).toBe(true);
+      expect(
+        rules(base).every((d) => d.helpUri === undefined),
+        String(base),
+      ).toBe(true);
     }
   });
 
@@ -155,7 +162,10 @@ describe('check --format sarif', () => {
       const log = JSON.parse((await runCli(['check', '--format', 'sarif'], root)).stdout);
       expectValid(log);
       return new Map<string, string>(
-        log.runs[0].results.map((r: { ruleId: string; partialFingerprints: Record<string, string> }) => [r.ruleId, r.partialFingerprints[FINGERPRINT_KEY]]),
+        log.runs[0].results.map((r: { ruleId: string; partialFingerprints: Record<string, string> }) => [
+          r.ruleId,
+          r.partialFingerprints[FINGERPRINT_KEY],
+        ]),
       );
     };
     const first = await fingerprints(ZERO_SNR_EPSILON);

@@ -21,7 +21,7 @@ function findingLines(stdout: string): { path: string; line: number; col: number
     .split('\n')
     .map((l) => /^(\S+?):(\d+):(\d+): (error|warning|info|hint): (.+) \(noiselint rules ([a-z0-9-]+)\)$/.exec(l))
     .filter((m): m is RegExpExecArray => m !== null)
-    .map((m) => ({ path: m[1], line: Number(m[2]), col: Number(m[3]), severity: m[4], message: m[5], rule: m[6] }));
+    .map((m) => ({ path: m[1]!, line: Number(m[2]), col: Number(m[3]), severity: m[4]!, message: m[5]!, rule: m[6]! }));
 }
 
 describe('check: text output', () => {
@@ -32,20 +32,20 @@ describe('check: text output', () => {
     const lines = findingLines(r.stdout);
     expect(lines.map((l) => [l.path, l.severity, l.rule])).toEqual([['runs/leaky.yaml', 'warning', 'terminal-snr-leak']]);
     // The finding points into the schedule block (lines 1-6 of the file), at a real column.
-    expect(lines[0].line).toBeGreaterThanOrEqual(1);
-    expect(lines[0].line).toBeLessThanOrEqual(6);
-    expect(lines[0].col).toBeGreaterThanOrEqual(1);
+    expect(lines[0]!.line).toBeGreaterThanOrEqual(1);
+    expect(lines[0]!.line).toBeLessThanOrEqual(6);
+    expect(lines[0]!.col).toBeGreaterThanOrEqual(1);
     // The message carries the number: signal amplitude about 0.068 (Lin et al. 2023, Table 1, from memory).
-    expect(lines[0].message).toMatch(/0\.068/);
+    expect(lines[0]!.message).toMatch(/0\.068/);
     const summary = r.stdout.trim().split('\n').at(-1)!;
     expect(summary).toMatch(/^1 warning in 2 files checked/);
     expect(r.stderr).toBe('');
     // The whole line, GNU style, the rule id closing it inside the command that explains it.
     const [first] = r.stdout.split('\n');
-    expect(first).toBe(`runs/leaky.yaml:${lines[0].line}:${lines[0].col}: warning: ${lines[0].message} (noiselint rules terminal-snr-leak)`);
+    expect(first).toBe(`runs/leaky.yaml:${lines[0]!.line}:${lines[0]!.col}: warning: ${lines[0]!.message} (noiselint rules terminal-snr-leak)`);
   });
 
-  it('the extension\'s problem matcher reads every finding line', async () => {
+  it("the extension's problem matcher reads every finding line", async () => {
     const pkg = JSON.parse(readFileSync(join(__dirname, '..', '..', 'client', 'package.json'), 'utf8'));
     const matcher = pkg.contributes.problemMatchers.find((m: { name: string }) => m.name === 'noiselint');
     const { regexp, file, line, column, severity, message, code } = matcher.pattern;
@@ -54,8 +54,20 @@ describe('check: text output', () => {
     const expected = findingLines(r.stdout);
     expect(expected.length).toBeGreaterThan(2);
     const re = new RegExp(regexp);
-    const matched = r.stdout.split('\n').map((l) => re.exec(l)).filter((m): m is RegExpExecArray => m !== null);
-    expect(matched.map((m) => ({ path: m[file], line: Number(m[line]), col: Number(m[column]), severity: m[severity], message: m[message], rule: m[code] }))).toEqual(expected);
+    const matched = r.stdout
+      .split('\n')
+      .map((l) => re.exec(l))
+      .filter((m): m is RegExpExecArray => m !== null);
+    expect(
+      matched.map((m) => ({
+        path: m[file],
+        line: Number(m[line]),
+        col: Number(m[column]),
+        severity: m[severity],
+        message: m[message],
+        rule: m[code],
+      })),
+    ).toEqual(expected);
   });
 
   it('reports no findings on clean files and exits 0', async () => {
@@ -177,7 +189,15 @@ describe('check: text output', () => {
             text,
             isDiffusionConfig: true,
             findings: [
-              { rule: 'unknown-value', severity: 'error', message: 'value "x\x1b[31my" is\nnot known', span: { start: 0, end: 1 }, documentIndex: 0, related: [], fixes: [] },
+              {
+                rule: 'unknown-value',
+                severity: 'error',
+                message: 'value "x\x1b[31my" is\nnot known',
+                span: { start: 0, end: 1 },
+                documentIndex: 0,
+                related: [],
+                fixes: [],
+              },
             ],
           },
         ],
@@ -188,7 +208,6 @@ describe('check: text output', () => {
       { color: false },
     );
     expect(out.split('\n')[0]).toBe('odd\\u0007name.yaml:1:1: error: value "x\\u001B[31my" is not known (noiselint rules unknown-value)');
-    // eslint-disable-next-line no-control-regex
     expect(out).not.toMatch(/[\u0000-\u0008\u000b-\u001f]/);
   });
 });

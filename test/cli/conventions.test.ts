@@ -45,7 +45,12 @@ describe('--help per command', () => {
   for (const spec of SPECS) {
     it(`noiselint ${spec.name} --help prints usage, every option and the exit codes, exit 0`, async () => {
       const root = tree({});
-      for (const args of [[spec.name, '--help'], [spec.name, '-h'], ['help', spec.name], [spec.name, 'x.yaml', '--bogus', '--help']]) {
+      for (const args of [
+        [spec.name, '--help'],
+        [spec.name, '-h'],
+        ['help', spec.name],
+        [spec.name, 'x.yaml', '--bogus', '--help'],
+      ]) {
         const r = await runCli(args, root);
         expect(r.code, args.join(' ')).toBe(0);
         expect(r.stderr).toBe('');
@@ -193,7 +198,9 @@ describe('never green on nothing checked', () => {
     const root = tree({ 'notes.yaml': 'title: storyboard notes\n', 'ci/lint.yml': 'on: push\n' });
     const r = await runCli(['check'], root, { env: { FORCE_COLOR: '1' } });
     expect(r.code).toBe(2);
-    expect(r.stderr).toBe('noiselint check: .: no diffusion config found (2 files read, none is a training or sampling config); --empty-ok accepts that\n');
+    expect(r.stderr).toBe(
+      'noiselint check: .: no diffusion config found (2 files read, none is a training or sampling config); --empty-ok accepts that\n',
+    );
     expect(r.stdout).not.toContain('\x1b[32m');
     expect(r.stdout).toMatch(/^No diffusion configs found: nothing checked \(2 files read\)\.$/m);
     const ok = await runCli(['check', '--empty-ok'], root);
@@ -257,7 +264,9 @@ describe('UTF-16 with a byte-order mark', () => {
     expect(r.code).toBe(0);
     const bytes = readFileSync(join(root, 'night.yaml'));
     expect([...bytes.subarray(0, 2)]).toEqual([0xfe, 0xff]);
-    expect(Buffer.from(bytes.subarray(2)).swap16().toString('utf16le')).toBe(NIGHT.replace('timestep_spacing: leading', 'timestep_spacing: trailing'));
+    expect(Buffer.from(bytes.subarray(2)).swap16().toString('utf16le')).toBe(
+      NIGHT.replace('timestep_spacing: leading', 'timestep_spacing: trailing'),
+    );
   });
 });
 

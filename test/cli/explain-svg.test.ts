@@ -112,7 +112,11 @@ describe('explain --plot-svg', () => {
     const root = svg.documentElement!;
     expect(root.tagName).toBe('svg');
     expect(root.getAttribute('xmlns')).toBe('http://www.w3.org/2000/svg');
-    expect(all(svg, 'g').map((g) => g.getAttribute('data-panel')).filter(Boolean)).toEqual(['log-snr', 'signal', 'signal-tail']);
+    expect(
+      all(svg, 'g')
+        .map((g) => g.getAttribute('data-panel'))
+        .filter(Boolean),
+    ).toEqual(['log-snr', 'signal', 'signal-tail']);
 
     // Leading, T = 1000, N = 50, offset 1 (shared-math, DESIGN section 4): 981, 961, ..., 1.
     const steps = samplingTimesteps('leading', 1000, 50, 1);
@@ -126,11 +130,11 @@ describe('explain --plot-svg', () => {
     for (const t of [981, 501, 1]) {
       const c = marks.find((m) => num(m, 'data-t') === t)!;
       expect(num(c, 'cx')).toBeCloseTo(px(signal.box, t), 1);
-      expect(num(c, 'cy')).toBeCloseTo(py(signal.box, Math.sqrt(abar[t])), 1);
+      expect(num(c, 'cy')).toBeCloseTo(py(signal.box, Math.sqrt(abar[t]!)), 1);
     }
     const logSnr = panel(svg, 'log-snr');
     const first = own(logSnr.g, 'circle').find((c) => num(c, 'data-t') === 981)!;
-    expect(num(first, 'cy')).toBeCloseTo(py(logSnr.box, Math.log(abar[981] / (1 - abar[981]))), 1);
+    expect(num(first, 'cy')).toBeCloseTo(py(logSnr.box, Math.log(abar[981]! / (1 - abar[981]!))), 1);
 
     // The band covers the steps the sampler never visits: 982..999, from x(981) to x(999).
     for (const g of [logSnr.g, signal.g]) {
@@ -153,21 +157,31 @@ describe('explain --plot-svg', () => {
     // sqrt(abar_T) = 0.068265 for scaled_linear 0.00085 -> 0.012, T = 1000: Lin et al. 2023,
     // Table 1 (recalled from memory); recomputed with shared-math here.
     const abar = alphaBarFromBetas((scaledLinearBetas(1000, 0.00085, 0.012) as { ok: true; value: Float64Array }).value);
-    expect(Math.sqrt(abar[999])).toBeCloseTo(0.068265, 5);
+    expect(Math.sqrt(abar[999]!)).toBeCloseTo(0.068265, 5);
     const current = own(tail.g, 'polyline').find((p) => hasClass(p, 'current'))!;
-    const points = current.getAttribute('points')!.split(' ').map((p) => p.split(',').map(Number));
-    const [lastX, lastY] = points[points.length - 1];
+    const points = current
+      .getAttribute('points')!
+      .split(' ')
+      .map((p) => p.split(',').map(Number));
+    const [lastX, lastY] = points[points.length - 1]!;
     expect(lastX).toBeCloseTo(px(tail.box, 999), 1);
-    expect(lastY).toBeCloseTo(py(tail.box, Math.sqrt(abar[999])), 1);
+    expect(lastY).toBeCloseTo(py(tail.box, Math.sqrt(abar[999]!)), 1);
     // In the zoomed window the leak is tens of pixels tall; on the 0..1 axis a few.
     const signal = panel(svg, 'signal');
     expect(tail.box.height * (0.068265 / tail.box.yMax)).toBeGreaterThan(25);
     expect(signal.box.height * 0.068265).toBeLessThan(20);
     // The rescaled curve (Lin et al. 2023, Algorithm 1) ends at exactly zero amplitude.
     const rescaled = own(tail.g, 'polyline').find((p) => hasClass(p, 'rescaled'))!;
-    const rp = rescaled.getAttribute('points')!.split(' ').map((p) => p.split(',').map(Number));
-    expect(rp[rp.length - 1][1]).toBeCloseTo(py(tail.box, 0), 1);
-    expect(own(tail.g, 'text').map((t) => t.textContent).join(' ')).toContain('0.0683');
+    const rp = rescaled
+      .getAttribute('points')!
+      .split(' ')
+      .map((p) => p.split(',').map(Number));
+    expect(rp[rp.length - 1]![1]).toBeCloseTo(py(tail.box, 0), 1);
+    expect(
+      own(tail.g, 'text')
+        .map((t) => t.textContent)
+        .join(' '),
+    ).toContain('0.0683');
     // No sampler in a training file: no band.
     expect(all(svg, 'rect').filter((r) => hasClass(r, 'skipped'))).toEqual([]);
   });

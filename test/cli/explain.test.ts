@@ -46,11 +46,17 @@ sampling:
 `,
 );
 const linear = file('pixel-linear.json', '{ "num_train_timesteps": 1000, "beta_schedule": "linear", "beta_start": 0.0001, "beta_end": 0.02 }');
-const cosine = file('pixel-cosine.jsonc', '{\n  // Lanternfish product stills, pixel space\n  "num_train_timesteps": 1000,\n  "beta_schedule": "squaredcos_cap_v2",\n}\n');
+const cosine = file(
+  'pixel-cosine.jsonc',
+  '{\n  // Lanternfish product stills, pixel space\n  "num_train_timesteps": 1000,\n  "beta_schedule": "squaredcos_cap_v2",\n}\n',
+);
 const spacings = file(
   'spacings.yaml',
   ['leading', 'linspace', 'trailing']
-    .map((s) => `num_train_timesteps: 1000\nbeta_schedule: scaled_linear\ntimestep_spacing: ${s}\nsteps_offset: ${s === 'leading' ? 1 : 0}\nnum_inference_steps: 10\n`)
+    .map(
+      (s) =>
+        `num_train_timesteps: 1000\nbeta_schedule: scaled_linear\ntimestep_spacing: ${s}\nsteps_offset: ${s === 'leading' ? 1 : 0}\nnum_inference_steps: 10\n`,
+    )
     .join('---\n'),
 );
 
@@ -116,8 +122,15 @@ describe('explain --format json', () => {
   it('shows the consumer decision and its evidence (contract version 2)', async () => {
     const saved = file(
       'scheduler_config.json',
-      JSON.stringify({ _class_name: 'EulerDiscreteScheduler', _diffusers_version: '0.30.3', beta_schedule: 'scaled_linear',
-        beta_start: 0.00085, beta_end: 0.012, clip_sample: false, num_train_timesteps: 1000 }),
+      JSON.stringify({
+        _class_name: 'EulerDiscreteScheduler',
+        _diffusers_version: '0.30.3',
+        beta_schedule: 'scaled_linear',
+        beta_start: 0.00085,
+        beta_end: 0.012,
+        clip_sample: false,
+        num_train_timesteps: 1000,
+      }),
     );
     const json = await explainJson(saved);
     const consumer = json.files[0].documents[0].consumer;

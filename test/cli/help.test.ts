@@ -15,8 +15,8 @@ describe('noiselint --help', () => {
   it('lists check with --show and --budget, and fix with the consents it asks for', async () => {
     const { code, out } = await run(['--help']);
     expect(code).toBe(0);
-    expect(out).toMatch(/^  noiselint check /m);
-    expect(out).toMatch(/^  noiselint fix /m);
+    expect(out).toMatch(/^ {2}noiselint check /m);
+    expect(out).toMatch(/^ {2}noiselint fix /m);
     const check = await run(['check', '--help']);
     expect(check.code).toBe(0);
     expect(check.out).toMatch(/^ +--show <severity> /m);
@@ -29,7 +29,11 @@ describe('noiselint --help', () => {
   });
 
   it('refuses the flags it no longer has, in one line with exit code 2', async () => {
-    for (const argv of [['fix', '--unsafe', '.'], ['check', '--quiet'], ['check', '--max-warnings', '0']]) {
+    for (const argv of [
+      ['fix', '--unsafe', '.'],
+      ['check', '--quiet'],
+      ['check', '--max-warnings', '0'],
+    ]) {
       const r = await run(argv);
       expect(r.code, argv.join(' ')).toBe(2);
       expect(r.err.trim().split('\n'), argv.join(' ')).toHaveLength(1);

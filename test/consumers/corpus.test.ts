@@ -27,8 +27,14 @@ describe('consumer corpora', () => {
     const families = new Set(files.map((f) => f.family));
     expect(families.size).toBeGreaterThanOrEqual(1);
     for (const family of families) {
-      expect(clean.some((f) => f.family === family), `${family}: clean files`).toBe(true);
-      expect(flawed.some((f) => f.family === family), `${family}: flawed files`).toBe(true);
+      expect(
+        clean.some((f) => f.family === family),
+        `${family}: clean files`,
+      ).toBe(true);
+      expect(
+        flawed.some((f) => f.family === family),
+        `${family}: flawed files`,
+      ).toBe(true);
     }
   });
 
@@ -36,7 +42,7 @@ describe('consumer corpora', () => {
     const result = analyzeText(file.text, { path: file.path });
     const loud = result.findings.filter((x) => x.severity === 'error' || x.severity === 'warning');
     expect(loud.map((x) => `${x.rule}: ${x.message}`)).toEqual([]);
-    expect(result.documents[0].setup.consumer?.decision.family).toBe(file.family);
+    expect(result.documents[0]!.setup.consumer?.decision.family).toBe(file.family);
     expect(result.isDiffusionConfig).toBe(true);
   });
 
@@ -44,13 +50,13 @@ describe('consumer corpora', () => {
     const expected = expectationOf(file);
     expect(expected, `${file.name} needs a .expected.json`).not.toBeNull();
     const result = analyzeText(file.text, { path: file.path });
-    const decision = result.documents[0].setup.consumer!.decision;
+    const decision = result.documents[0]!.setup.consumer!.decision;
     expect({ family: decision.family, className: decision.className, dialect: decision.dialect }).toEqual(expected!.decision);
     const findings = findingsOf(file);
     expect(findings.map((f) => `${f.rule}/${f.severity}`)).toEqual(expected!.findings.map((f) => `${f.rule}/${f.severity}`));
     const before = loadSection(file.text, file.path);
     expected!.findings.forEach((want, i) => {
-      const got = findings[i];
+      const got = findings[i]!;
       expect(file.text.slice(got.span.start, got.span.end)).toBe(want.text);
       for (const part of want.message) expect(got.message).toContain(part);
       expect(got.fixes.map((x) => x.title)).toEqual(want.fixes.map((x) => x.title));

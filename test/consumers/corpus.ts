@@ -87,7 +87,7 @@ export function plain(node: LocatedNode | null): unknown {
 /** The consumer's section of the first document, read as its loader reads it. */
 export function loadSection(text: string, path: string, choice?: ConsumerChoice): { values: Record<string, unknown>; accepted: Set<string> | null } {
   const read = readFile(text, { path });
-  const doc = read.parsed.documents[0];
+  const doc = read.parsed.documents[0]!;
   const reading = decideConsumer(doc, read.parsed.format, path, choice);
   readAs(doc.root, read.parsed.format, reading.decision.dialect);
   const section = reading.section ?? (doc.root && doc.root.kind === 'map' ? doc.root : null);
@@ -101,7 +101,7 @@ export function findingsOf(file: CorpusFile): Finding[] {
 }
 
 export function applyFix(text: string, finding: Finding, index: number): string {
-  return applyEdits(text, finding.fixes[index].edits);
+  return applyEdits(text, finding.fixes[index]!.edits);
 }
 
 export function extOf(path: string): string {

@@ -95,13 +95,13 @@ describe("Python's json dialect", () => {
   it('the JSON reader keeps a -Infinity value and the keys after it (real saved configs carry it)', () => {
     const text = '{"lambda_min_clipped": -Infinity, "num_train_timesteps": 1000}';
     const parsed = parseText(text, 'json');
-    const root = parsed.documents[0].root!;
+    const root = parsed.documents[0]!.root!;
     expect(root.kind).toBe('map');
     if (root.kind !== 'map') return;
     const [clip, steps] = root.entries;
-    expect(clip.value).toMatchObject({ kind: 'scalar', value: -Infinity, raw: '-Infinity' });
-    expect(text.slice(clip.value!.span.start, clip.value!.span.end)).toBe('-Infinity');
-    expect(steps.value).toMatchObject({ value: 1000 });
+    expect(clip!.value).toMatchObject({ kind: 'scalar', value: -Infinity, raw: '-Infinity' });
+    expect(text.slice(clip!.value!.span.start, clip!.value!.span.end)).toBe('-Infinity');
+    expect(steps!.value).toMatchObject({ value: 1000 });
     expect(parsed.problems.filter((p) => p.severity === 'error')).toEqual([]);
     expect(parsed.problems.map((p) => p.code)).toEqual(['json-non-finite']);
   });

@@ -25,8 +25,13 @@ describe('consumers setting', () => {
     const p = project('consumers:\n  - files: "sched/*.yaml"\n    consumer: scheduler-config\n    class: EulerDiscreteScheduler\n');
     const text = '# Lanternfish Pictures: preview scheduler\nnum_train_timesteps: 1000\nbeta_schedule: squaredcos_cap_v2\nprediction_type: epsilon\n';
     const r = analyzeText(text, { path: '/studio/sched/preview.yaml', project: p });
-    const setup = r.documents[0].setup;
-    expect(setup.consumer?.decision).toMatchObject({ family: 'scheduler-config', className: 'EulerDiscreteScheduler', basis: 'project', dialect: 'pyyaml' });
+    const setup = r.documents[0]!.setup;
+    expect(setup.consumer?.decision).toMatchObject({
+      family: 'scheduler-config',
+      className: 'EulerDiscreteScheduler',
+      basis: 'project',
+      dialect: 'pyyaml',
+    });
     // Euler's default spacing (diffusers 0.30, scheduling_euler_discrete.py), not the generic leading.
     expect(setup.fields.timestepSpacing?.value).toBe('linspace');
   });

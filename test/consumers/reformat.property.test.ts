@@ -18,7 +18,12 @@ function rng(seed: number): () => number {
 
 /** Python's json reads these tokens; YAML spells them .inf / .nan. */
 function parsePythonJson(text: string): Record<string, unknown> {
-  return JSON.parse(text.replace(/-Infinity/g, '"__-inf"').replace(/\bInfinity\b/g, '"__inf"').replace(/\bNaN\b/g, '"__nan"'));
+  return JSON.parse(
+    text
+      .replace(/-Infinity/g, '"__-inf"')
+      .replace(/\bInfinity\b/g, '"__inf"')
+      .replace(/\bNaN\b/g, '"__nan"'),
+  );
 }
 
 function yamlScalar(v: unknown, quote: boolean): string {
@@ -26,8 +31,17 @@ function yamlScalar(v: unknown, quote: boolean): string {
   if (v === '__inf') return '.inf';
   if (v === '__nan') return '.nan';
   if (v === null) return 'null';
-  if (typeof v === 'string') return quote ? JSON.stringify(v) : /^[A-Za-z_][\w.]*$/.test(v) && !/^(yes|no|on|off|true|false|null)$/i.test(v) ? v : JSON.stringify(v);
-  if (typeof v === 'number') return Number.isInteger(v) ? String(v) : String(v).includes('e') ? v.toExponential().replace(/e([-+])/, '.0e$1').replace(/\.(\d+)\.0e/, '.$1e') : String(v);
+  if (typeof v === 'string')
+    return quote ? JSON.stringify(v) : /^[A-Za-z_][\w.]*$/.test(v) && !/^(yes|no|on|off|true|false|null)$/i.test(v) ? v : JSON.stringify(v);
+  if (typeof v === 'number')
+    return Number.isInteger(v)
+      ? String(v)
+      : String(v).includes('e')
+        ? v
+            .toExponential()
+            .replace(/e([-+])/, '.0e$1')
+            .replace(/\.(\d+)\.0e/, '.$1e')
+        : String(v);
   if (Array.isArray(v)) return `[${v.map((x) => yamlScalar(x, quote)).join(', ')}]`;
   return JSON.stringify(v);
 }
@@ -45,11 +59,17 @@ function rewrites(text: string, seed: number): { name: string; text: string; pat
   const keys = Object.keys(data);
   const shuffled = [...keys].sort(() => r() - 0.5);
   const json = (ks: string[], indent: string) =>
-    indent === '' ? `{${ks.map((k) => `${JSON.stringify(k)}:${jsonValue(data[k])}`).join(',')}}` : `{\n${ks.map((k) => `${indent}${JSON.stringify(k)}: ${jsonValue(data[k])}`).join(',\n')}\n}\n`;
+    indent === ''
+      ? `{${ks.map((k) => `${JSON.stringify(k)}:${jsonValue(data[k])}`).join(',')}}`
+      : `{\n${ks.map((k) => `${indent}${JSON.stringify(k)}: ${jsonValue(data[k])}`).join(',\n')}\n}\n`;
   return [
     { name: 'shuffled, 4 spaces', text: json(shuffled, '    '), path: 'scheduler_config.json' },
     { name: 'compact', text: json(keys, ''), path: 'scheduler_config.json' },
-    { name: 'YAML block, plain strings', text: `# Lanternfish Pictures: YAML copy\n${shuffled.map((k) => `${k}: ${yamlScalar(data[k], false)}`).join('\n')}\n`, path: 'scheduler.yaml' },
+    {
+      name: 'YAML block, plain strings',
+      text: `# Lanternfish Pictures: YAML copy\n${shuffled.map((k) => `${k}: ${yamlScalar(data[k], false)}`).join('\n')}\n`,
+      path: 'scheduler.yaml',
+    },
     { name: 'YAML block, quoted strings', text: keys.map((k) => `${k}: ${yamlScalar(data[k], true)}`).join('\n') + '\n', path: 'scheduler.yaml' },
     { name: 'YAML flow', text: `{${shuffled.map((k) => `${k}: ${yamlScalar(data[k], true)}`).join(', ')}}\n`, path: 'scheduler.yaml' },
   ];
@@ -60,13 +80,13 @@ const clean = corpusFiles().filter((f) => f.kind === 'clean' && f.family === 'sc
 describe('reformatting a clean scheduler config keeps it clean', () => {
   it('has clean files to reformat', () => expect(clean.length).toBeGreaterThan(5));
   it.each(clean.map((f) => [f.name, f] as const))('%s', (_name, file) => {
-    const base = analyzeText(file.text, { path: file.path }).documents[0].setup.consumer!.decision;
+    const base = analyzeText(file.text, { path: file.path }).documents[0]!.setup.consumer!.decision;
     for (let seed = 1; seed <= 3; seed++) {
       for (const variant of rewrites(file.text, seed)) {
         const result = analyzeText(variant.text, { path: `/studio/${variant.path}` });
         const loud = result.findings.filter((x) => x.severity === 'error' || x.severity === 'warning');
         expect(loud.map((x) => `${variant.name}: ${x.rule}: ${x.message}`)).toEqual([]);
-        expect(result.documents[0].setup.consumer?.decision.className, variant.name).toBe(base.className);
+        expect(result.documents[0]!.setup.consumer?.decision.className, variant.name).toBe(base.className);
       }
     }
   });

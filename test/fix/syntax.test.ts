@@ -26,16 +26,19 @@ const FIELDS: [string, string[]][] = [
   ['trained_betas', ['[0.0001, 0.0002, 0.02]', '\n  - 0.0001\n  - 0.001\n  - 0.02']],
 ];
 
-const pick = <T>(xs: T[], n: number): T => xs[n % xs.length];
+const pick = <T>(xs: T[], n: number): T => xs[n % xs.length]!;
 
 /** One `key: value` line in one of the shapes, driven by the numbers in `d`. */
 function line(field: [string, string[]], indent: string, d: number[]): string {
   const [key, values] = field;
-  const value = pick(values, d[0]);
-  const decorated = pick([value, value, value, `&a${d[1] % 2} ${value}`, `!!str ${value}`, `\n${indent}    ${value}`, `*a${d[1] % 2}`, `|\n${indent}    ${value}\n`], d[2]);
-  const k = pick([key, key, key, `"${key}"`, `&k ${key}`], d[3]);
-  const body = d[4] % 17 === 0 ? `${indent}? ${k}\n${indent}: ${decorated}` : `${indent}${k}:${d[5] % 5 === 0 ? '   ' : ' '}${decorated}`;
-  return body + pick(['', '', ' # Lanternfish note', '  #: odd comment'], d[6]);
+  const value = pick(values, d[0]!);
+  const decorated = pick(
+    [value, value, value, `&a${d[1]! % 2} ${value}`, `!!str ${value}`, `\n${indent}    ${value}`, `*a${d[1]! % 2}`, `|\n${indent}    ${value}\n`],
+    d[2]!,
+  );
+  const k = pick([key, key, key, `"${key}"`, `&k ${key}`], d[3]!);
+  const body = d[4]! % 17 === 0 ? `${indent}? ${k}\n${indent}: ${decorated}` : `${indent}${k}:${d[5]! % 5 === 0 ? '   ' : ' '}${decorated}`;
+  return body + pick(['', '', ' # Lanternfish note', '  #: odd comment'], d[6]!);
 }
 
 const configArb = fc
@@ -47,11 +50,11 @@ const configArb = fc
     anchorFirst: fc.boolean(),
   })
   .map(({ shape, fields, digits, crlf, anchorFirst }) => {
-    const block = (indent: string) => fields.map((f, i) => line(f, indent, digits[i])).join('\n');
+    const block = (indent: string) => fields.map((f, i) => line(f, indent, digits[i]!)).join('\n');
     const flow = `{${fields
       .filter(([k]) => k !== 'trained_betas')
-      .map(([k, vs], i) => `${k}: ${pick(vs, digits[i][0])}`)
-      .join(pick([', ', ',\n  '], digits[0][1]))}}`;
+      .map(([k, vs], i) => `${k}: ${pick(vs, digits[i]![0]!)}`)
+      .join(pick([', ', ',\n  '], digits[0]![1]!))}}`;
     const bodies = [
       block(''),
       `scheduler:\n${block('  ')}\nname: harbour-dusk`,

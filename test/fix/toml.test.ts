@@ -43,13 +43,39 @@ const cases: FixCase[] = [
   },
   {
     name: 'insert after the last sibling of a [table], before the next header and its comment',
-    before: lines('[noise_scheduler]', 'num_train_timesteps = 1000', 'beta_schedule = "scaled_linear"', '', '# optimiser', '[training]', 'learning_rate = 1e-6', ''),
+    before: lines(
+      '[noise_scheduler]',
+      'num_train_timesteps = 1000',
+      'beta_schedule = "scaled_linear"',
+      '',
+      '# optimiser',
+      '[training]',
+      'learning_rate = 1e-6',
+      '',
+    ),
     edits: [{ kind: 'set', concept: 'zeroTerminalSnr', value: true }],
-    after: lines('[noise_scheduler]', 'num_train_timesteps = 1000', 'beta_schedule = "scaled_linear"', 'rescale_betas_zero_snr = true', '', '# optimiser', '[training]', 'learning_rate = 1e-6', ''),
+    after: lines(
+      '[noise_scheduler]',
+      'num_train_timesteps = 1000',
+      'beta_schedule = "scaled_linear"',
+      'rescale_betas_zero_snr = true',
+      '',
+      '# optimiser',
+      '[training]',
+      'learning_rate = 1e-6',
+      '',
+    ),
   },
   {
     name: 'insert with the dotted prefix of the sibling key, keeping its indentation',
-    before: lines('run = "lf-night-ft-015"', '  model.scheduler.beta_schedule = "scaled_linear"', '  model.scheduler.num_train_timesteps = 1000', '[data]', 'path = "/mnt/night"', ''),
+    before: lines(
+      'run = "lf-night-ft-015"',
+      '  model.scheduler.beta_schedule = "scaled_linear"',
+      '  model.scheduler.num_train_timesteps = 1000',
+      '[data]',
+      'path = "/mnt/night"',
+      '',
+    ),
     edits: [{ kind: 'set', concept: 'zeroTerminalSnr', value: true }],
     after: lines(
       'run = "lf-night-ft-015"',
@@ -63,9 +89,28 @@ const cases: FixCase[] = [
   },
   {
     name: 'insert into a [[array]] table: the new key follows its guidance sibling in that table',
-    before: lines('[[previews]]', 'name = "dusk"', 'guidance_scale = 7.5', 'timestep_spacing = "trailing"', '', '[scheduler]', 'num_train_timesteps = 1000', ''),
+    before: lines(
+      '[[previews]]',
+      'name = "dusk"',
+      'guidance_scale = 7.5',
+      'timestep_spacing = "trailing"',
+      '',
+      '[scheduler]',
+      'num_train_timesteps = 1000',
+      '',
+    ),
     edits: [{ kind: 'set', concept: 'guidanceRescale', value: 0.7 }],
-    after: lines('[[previews]]', 'name = "dusk"', 'guidance_scale = 7.5', 'guidance_rescale = 0.7', 'timestep_spacing = "trailing"', '', '[scheduler]', 'num_train_timesteps = 1000', ''),
+    after: lines(
+      '[[previews]]',
+      'name = "dusk"',
+      'guidance_scale = 7.5',
+      'guidance_rescale = 0.7',
+      'timestep_spacing = "trailing"',
+      '',
+      '[scheduler]',
+      'num_train_timesteps = 1000',
+      '',
+    ),
   },
   {
     name: 'insert after a multi-line array value',
@@ -142,7 +187,8 @@ describe('TOML fixes', () => {
   it('never writes a token TOML v1.0.0 refuses', () => {
     // The spec's invalid floats: ".7", "7.", "3.e+20"; booleans are lower case; no null.
     for (const bad of ['.7', '7.', '3.e+20', 'True', 'null', "'a'b'", '"\\/"']) expect(isScalarToken(bad, 'toml'), bad).toBe(false);
-    for (const good of ['0.7', '-1.0e-4', '+3', '1e-4', 'true', '"trailing"', "'trailing'", '"\\u00e9"']) expect(isScalarToken(good, 'toml'), good).toBe(true);
+    for (const good of ['0.7', '-1.0e-4', '+3', '1e-4', 'true', '"trailing"', "'trailing'", '"\\u00e9"'])
+      expect(isScalarToken(good, 'toml'), good).toBe(true);
   });
 
   it('gives up rather than insert after a key/value line that shares its line with a header', () => {
@@ -152,10 +198,38 @@ describe('TOML fixes', () => {
   });
 
   it('a fixed file keeps every byte outside the edited lines', () => {
-    const before = lines('# top', '[noise_scheduler]  # stock', "beta_schedule = 'scaled_linear'", 'num_train_timesteps = 1000', '', '[train]', 'noise_offset = 0.1 # x', '');
-    const edits = render(before, [{ kind: 'set', concept: 'zeroTerminalSnr', value: true }, { kind: 'remove', concept: 'offsetNoise', keepComment: true }], 'toml');
+    const before = lines(
+      '# top',
+      '[noise_scheduler]  # stock',
+      "beta_schedule = 'scaled_linear'",
+      'num_train_timesteps = 1000',
+      '',
+      '[train]',
+      'noise_offset = 0.1 # x',
+      '',
+    );
+    const edits = render(
+      before,
+      [
+        { kind: 'set', concept: 'zeroTerminalSnr', value: true },
+        { kind: 'remove', concept: 'offsetNoise', keepComment: true },
+      ],
+      'toml',
+    );
     expect(edits).not.toBeNull();
     const after = applyEdits(before, edits!);
-    expect(after).toBe(lines('# top', '[noise_scheduler]  # stock', "beta_schedule = 'scaled_linear'", 'num_train_timesteps = 1000', 'rescale_betas_zero_snr = true', '', '[train]', '# x', ''));
+    expect(after).toBe(
+      lines(
+        '# top',
+        '[noise_scheduler]  # stock',
+        "beta_schedule = 'scaled_linear'",
+        'num_train_timesteps = 1000',
+        'rescale_betas_zero_snr = true',
+        '',
+        '[train]',
+        '# x',
+        '',
+      ),
+    );
   });
 });

@@ -37,7 +37,15 @@ describe('fuzz: analyzeText on hostile configs', () => {
     const c = { format: 'yaml' as const, path: 'x.yaml', text: 'a: 1\r\nb: 2\r\n' };
     expect(() => applyEditsChecked(c.text, [{ span: { start: 0, end: 99 }, newText: '' }], 'out of range', c)).toThrow(InvariantError);
     expect(() =>
-      applyEditsChecked(c.text, [{ span: { start: 0, end: 3 }, newText: 'x' }, { span: { start: 2, end: 4 }, newText: 'y' }], 'overlap', c),
+      applyEditsChecked(
+        c.text,
+        [
+          { span: { start: 0, end: 3 }, newText: 'x' },
+          { span: { start: 2, end: 4 }, newText: 'y' },
+        ],
+        'overlap',
+        c,
+      ),
     ).toThrow(InvariantError);
     expect(() => applyEditsChecked(c.text, [{ span: { start: 5, end: 5 }, newText: 'z' }], 'inside CRLF', c)).toThrow(InvariantError);
     expect(applyEditsChecked(c.text, [{ span: { start: 3, end: 4 }, newText: '7' }], 'ok', c)).toBe('a: 7\r\nb: 2\r\n');

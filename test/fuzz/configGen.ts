@@ -11,30 +11,97 @@ import type { SourceFormat } from '../../server/src/parse/types';
 
 /** Key spellings users already have (DESIGN section 3), plus a few near misses. */
 export const CONCEPT_KEYS = [
-  'num_train_timesteps', 'timesteps', 'num_timesteps', 'diffusion_steps',
-  'beta_schedule', 'noise_schedule', 'schedule',
-  'beta_start', 'beta_end', 'linear_start', 'linear_end',
-  'trained_betas', 'betas',
-  'rescale_betas_zero_snr', 'zero_terminal_snr',
-  'prediction_type', 'parameterization', 'objective', 'v_parameterization',
-  'timestep_spacing', 'steps_offset',
-  'num_inference_steps', 'sampling_steps', 'sample_steps',
-  'guidance_scale', 'cfg_scale', 'guidance_rescale', 'cfg_rescale',
-  'noise_offset', 'offset_noise', 'snr_gamma', 'min_snr_gamma',
-  'clip_sample', 'thresholding', 'sigma_min', 'sigma_max', 'rho', 'shift', 'flow_shift',
-  'resolution', 'image_size', 'sampler', 'sampler_name', 'scheduler', 'use_karras_sigmas',
-  'numTrainTimesteps', 'betaSchedule', 'predictionType',
-  'model.params.timesteps', 'noise_scheduler.beta_schedule',
+  'num_train_timesteps',
+  'timesteps',
+  'num_timesteps',
+  'diffusion_steps',
+  'beta_schedule',
+  'noise_schedule',
+  'schedule',
+  'beta_start',
+  'beta_end',
+  'linear_start',
+  'linear_end',
+  'trained_betas',
+  'betas',
+  'rescale_betas_zero_snr',
+  'zero_terminal_snr',
+  'prediction_type',
+  'parameterization',
+  'objective',
+  'v_parameterization',
+  'timestep_spacing',
+  'steps_offset',
+  'num_inference_steps',
+  'sampling_steps',
+  'sample_steps',
+  'guidance_scale',
+  'cfg_scale',
+  'guidance_rescale',
+  'cfg_rescale',
+  'noise_offset',
+  'offset_noise',
+  'snr_gamma',
+  'min_snr_gamma',
+  'clip_sample',
+  'thresholding',
+  'sigma_min',
+  'sigma_max',
+  'rho',
+  'shift',
+  'flow_shift',
+  'resolution',
+  'image_size',
+  'sampler',
+  'sampler_name',
+  'scheduler',
+  'use_karras_sigmas',
+  'numTrainTimesteps',
+  'betaSchedule',
+  'predictionType',
+  'model.params.timesteps',
+  'noise_scheduler.beta_schedule',
 ] as const;
 
 /** Keys that trip naive object lookups (prototype members) or YAML specials. */
 const HOSTILE_KEYS = ['__proto__', 'constructor', 'prototype', 'toString', 'hasOwnProperty', '<<', '', ' ', '-', '?', '#', ':', '&a', '*a', '!!str'];
 
 const ENUM_VALUES = [
-  'linear', 'scaled_linear', 'cosine', 'squaredcos_cap_v2', 'sigmoid', 'scaled-linaer', 'LINEAR',
-  'epsilon', 'eps', 'noise', 'v_prediction', 'v', 'velocity', 'sample', 'x0', 'x_start', 'flow', 'flow_matching',
-  'leading', 'linspace', 'trailing', 'trailling', 'Trailing', 'uniform', 'quad',
-  'ddim', 'ddpm', 'euler', 'euler_a', 'heun', 'dpmpp_2m', 'lms', 'unipc', 'DDIMScheduler', 'EulerDiscreteScheduler',
+  'linear',
+  'scaled_linear',
+  'cosine',
+  'squaredcos_cap_v2',
+  'sigmoid',
+  'scaled-linaer',
+  'LINEAR',
+  'epsilon',
+  'eps',
+  'noise',
+  'v_prediction',
+  'v',
+  'velocity',
+  'sample',
+  'x0',
+  'x_start',
+  'flow',
+  'flow_matching',
+  'leading',
+  'linspace',
+  'trailing',
+  'trailling',
+  'Trailing',
+  'uniform',
+  'quad',
+  'ddim',
+  'ddpm',
+  'euler',
+  'euler_a',
+  'heun',
+  'dpmpp_2m',
+  'lms',
+  'unipc',
+  'DDIMScheduler',
+  'EulerDiscreteScheduler',
 ];
 
 /** A scalar written two ways: as YAML and as JSON (JSON may be deliberately invalid). */
@@ -44,23 +111,56 @@ export interface Token {
 }
 
 export type GenNode =
-  | { t: 'scalar'; token: Token }
-  | { t: 'map'; flow: boolean; entries: [string, GenNode][] }
-  | { t: 'list'; flow: boolean; items: GenNode[] };
+  { t: 'scalar'; token: Token } | { t: 'map'; flow: boolean; entries: [string, GenNode][] } | { t: 'list'; flow: boolean; items: GenNode[] };
 
 const tok = (yaml: string, json = yaml): Token => ({ yaml, json });
 
 const quoteJson = (s: string): string => JSON.stringify(s);
 
 const specialNumber: fc.Arbitrary<Token> = fc.constantFrom(
-  tok('.nan', 'NaN'), tok('.NaN', '"NaN"'), tok('NaN', 'NaN'),
-  tok('.inf', '1e999'), tok('-.inf', '-1e999'), tok('Infinity', 'Infinity'), tok('+.inf', '"Infinity"'),
-  tok('1e308'), tok('1.7976931348623157e308'), tok('-1.7976931348623157e308'), tok('1e309'), tok('5e-324'),
-  tok('-0'), tok('-0.0'), tok('0'), tok('1'), tok('2'), tok('-1'),
-  tok('123456789012345678901234567890'), tok('9007199254740993'), tok('1e12'), tok('1000000000000'),
-  tok('100000'), tok('100001'), tok('1000'), tok('999'), tok('50'), tok('10'), tok('0.7'), tok('7.5'), tok('1.0'),
-  tok('0.00085'), tok('0.012'), tok('0.0001'), tok('0.02'), tok('0.999'), tok('1.5'), tok('-0.5'),
-  tok('0x10', '16'), tok('0o17', '15'), tok('1_000', '"1_000"'), tok('1e-4'), tok('.5', '0.5'),
+  tok('.nan', 'NaN'),
+  tok('.NaN', '"NaN"'),
+  tok('NaN', 'NaN'),
+  tok('.inf', '1e999'),
+  tok('-.inf', '-1e999'),
+  tok('Infinity', 'Infinity'),
+  tok('+.inf', '"Infinity"'),
+  tok('1e308'),
+  tok('1.7976931348623157e308'),
+  tok('-1.7976931348623157e308'),
+  tok('1e309'),
+  tok('5e-324'),
+  tok('-0'),
+  tok('-0.0'),
+  tok('0'),
+  tok('1'),
+  tok('2'),
+  tok('-1'),
+  tok('123456789012345678901234567890'),
+  tok('9007199254740993'),
+  tok('1e12'),
+  tok('1000000000000'),
+  tok('100000'),
+  tok('100001'),
+  tok('1000'),
+  tok('999'),
+  tok('50'),
+  tok('10'),
+  tok('0.7'),
+  tok('7.5'),
+  tok('1.0'),
+  tok('0.00085'),
+  tok('0.012'),
+  tok('0.0001'),
+  tok('0.02'),
+  tok('0.999'),
+  tok('1.5'),
+  tok('-0.5'),
+  tok('0x10', '16'),
+  tok('0o17', '15'),
+  tok('1_000', '"1_000"'),
+  tok('1e-4'),
+  tok('.5', '0.5'),
 );
 
 const doubleToken: fc.Arbitrary<Token> = fc.double().map((d) => {
@@ -71,20 +171,25 @@ const doubleToken: fc.Arbitrary<Token> = fc.double().map((d) => {
   return tok(s);
 });
 
-const intToken: fc.Arbitrary<Token> = fc.oneof(
-  fc.integer({ min: -5, max: 2000 }),
-  fc.integer(),
-  fc.bigInt({ min: -(10n ** 40n), max: 10n ** 40n }),
-).map((n) => tok(String(n)));
+const intToken: fc.Arbitrary<Token> = fc
+  .oneof(fc.integer({ min: -5, max: 2000 }), fc.integer(), fc.bigInt({ min: -(10n ** 40n), max: 10n ** 40n }))
+  .map((n) => tok(String(n)));
 
 const boolToken: fc.Arbitrary<Token> = fc.constantFrom(
-  tok('true'), tok('false'), tok('True', 'true'), tok('yes', '"yes"'), tok('no', '"no"'), tok('on', '"on"'),
-  tok('null'), tok('~', 'null'), tok('', 'null'),
+  tok('true'),
+  tok('false'),
+  tok('True', 'true'),
+  tok('yes', '"yes"'),
+  tok('no', '"no"'),
+  tok('on', '"on"'),
+  tok('null'),
+  tok('~', 'null'),
+  tok('', 'null'),
 );
 
-const enumToken: fc.Arbitrary<Token> = fc.constantFrom(...ENUM_VALUES).chain((v) =>
-  fc.constantFrom(tok(v, quoteJson(v)), tok(`"${v}"`, quoteJson(v)), tok(`'${v}'`, quoteJson(v)), tok(`${v} `, quoteJson(`${v} `))),
-);
+const enumToken: fc.Arbitrary<Token> = fc
+  .constantFrom(...ENUM_VALUES)
+  .chain((v) => fc.constantFrom(tok(v, quoteJson(v)), tok(`"${v}"`, quoteJson(v)), tok(`'${v}'`, quoteJson(v)), tok(`${v} `, quoteJson(`${v} `))));
 
 const loneSurrogate = fc.integer({ min: 0xd800, max: 0xdfff }).map((c) => String.fromCharCode(c));
 
@@ -93,7 +198,26 @@ const textString: fc.Arbitrary<string> = fc.oneof(
   fc.string({ unit: 'grapheme', maxLength: 20 }),
   fc.string({ unit: 'binary', maxLength: 20 }),
   fc.tuple(fc.string({ maxLength: 4 }), loneSurrogate, fc.string({ maxLength: 4 })).map(([a, s, b]) => a + s + b),
-  fc.constantFrom('Lanternfish Pictures', 'storyboard-night-v3', 'a: b', '- x', '{', '[', '"', "'", '#', '\t', '\\', '\u2028', '\u0085', '\ufeff', '\u0000', '&anchor', '*alias', '!!python/object/apply:os.system'),
+  fc.constantFrom(
+    'Lanternfish Pictures',
+    'storyboard-night-v3',
+    'a: b',
+    '- x',
+    '{',
+    '[',
+    '"',
+    "'",
+    '#',
+    '\t',
+    '\\',
+    '\u2028',
+    '\u0085',
+    '\ufeff',
+    '\u0000',
+    '&anchor',
+    '*alias',
+    '!!python/object/apply:os.system',
+  ),
   fc.integer({ min: 200, max: 5_000 }).map((n) => 'x'.repeat(n)),
 );
 
@@ -194,7 +318,7 @@ function yamlBlock(n: GenNode, indent: number, comments: boolean): string[] {
       else {
         const inner = yamlBlock(item, indent + 2, comments);
         if (inner.length === 0) lines.push(`${pad}- null`);
-        else lines.push(`${pad}- ${inner[0].slice(indent + 2)}`, ...inner.slice(1));
+        else lines.push(`${pad}- ${inner[0]!.slice(indent + 2)}`, ...inner.slice(1));
       }
     }
   }
@@ -214,7 +338,10 @@ function jsonText(n: GenNode, indent: number, jsonc: boolean): string {
     case 'map':
       if (n.entries.length === 0) return '{}';
       return `{\n${n.entries
-        .map(([k, v], i) => `${jsonc && i % 3 === 1 ? `${pad}// Lanternfish Pictures note\n` : ''}${pad}${quoteJson(k)}: ${jsonText(v, indent + 1, jsonc)}${jsonc && i % 4 === 2 ? ' /* c */' : ''}`)
+        .map(
+          ([k, v], i) =>
+            `${jsonc && i % 3 === 1 ? `${pad}// Lanternfish Pictures note\n` : ''}${pad}${quoteJson(k)}: ${jsonText(v, indent + 1, jsonc)}${jsonc && i % 4 === 2 ? ' /* c */' : ''}`,
+        )
         .join(',\n')}${trailing}\n${close}}`;
   }
 }
@@ -249,11 +376,52 @@ export type Mutation =
   | { kind: 'duplicate'; at: number; len: number }
   | { kind: 'swap-ending'; at: number };
 
-const SYNTAX_BITS = [':', ': ', '{', '}', '[', ']', ',', '"', "'", '#', '- ', '\n', '\r\n', '\r', '\t', '  ', '&a ', '*a', '<<: *a', '!!binary ', '!!python/object/apply:os.system ', '? ', '|', '>', '---\n', '...\n', '%YAML 1.1\n', '\\', '/*', '//', '\ufeff', '\u0000', '\ud800', 'NaN', '.inf', '1e999'];
+const SYNTAX_BITS = [
+  ':',
+  ': ',
+  '{',
+  '}',
+  '[',
+  ']',
+  ',',
+  '"',
+  "'",
+  '#',
+  '- ',
+  '\n',
+  '\r\n',
+  '\r',
+  '\t',
+  '  ',
+  '&a ',
+  '*a',
+  '<<: *a',
+  '!!binary ',
+  '!!python/object/apply:os.system ',
+  '? ',
+  '|',
+  '>',
+  '---\n',
+  '...\n',
+  '%YAML 1.1\n',
+  '\\',
+  '/*',
+  '//',
+  '\ufeff',
+  '\u0000',
+  '\ud800',
+  'NaN',
+  '.inf',
+  '1e999',
+];
 
 const mutationArb: fc.Arbitrary<Mutation> = fc.oneof(
   fc.record({ kind: fc.constant('delete' as const), at: fc.nat(), len: fc.integer({ min: 1, max: 12 }) }),
-  fc.record({ kind: fc.constant('insert' as const), at: fc.nat(), text: fc.oneof(fc.constantFrom(...SYNTAX_BITS), fc.string({ unit: 'binary', maxLength: 4 })) }),
+  fc.record({
+    kind: fc.constant('insert' as const),
+    at: fc.nat(),
+    text: fc.oneof(fc.constantFrom(...SYNTAX_BITS), fc.string({ unit: 'binary', maxLength: 4 })),
+  }),
   fc.record({ kind: fc.constant('duplicate' as const), at: fc.nat(), len: fc.integer({ min: 1, max: 40 }) }),
   fc.record({ kind: fc.constant('swap-ending' as const), at: fc.nat() }),
 );
@@ -384,24 +552,51 @@ export const anyConfigArb: fc.Arbitrary<GeneratedConfig> = fc.oneof(
 );
 
 /** Keys a training file sets, and keys a sampling file sets (so that pairs have real roles). */
-const TRAINING_KEYS = ['num_train_timesteps', 'beta_schedule', 'beta_start', 'beta_end', 'trained_betas', 'rescale_betas_zero_snr', 'prediction_type', 'noise_offset', 'snr_gamma'] as const;
-const SAMPLING_KEYS = ['num_train_timesteps', 'beta_schedule', 'prediction_type', 'rescale_betas_zero_snr', 'timestep_spacing', 'steps_offset', 'num_inference_steps', 'guidance_scale', 'guidance_rescale', 'sampler'] as const;
+const TRAINING_KEYS = [
+  'num_train_timesteps',
+  'beta_schedule',
+  'beta_start',
+  'beta_end',
+  'trained_betas',
+  'rescale_betas_zero_snr',
+  'prediction_type',
+  'noise_offset',
+  'snr_gamma',
+] as const;
+const SAMPLING_KEYS = [
+  'num_train_timesteps',
+  'beta_schedule',
+  'prediction_type',
+  'rescale_betas_zero_snr',
+  'timestep_spacing',
+  'steps_offset',
+  'num_inference_steps',
+  'guidance_scale',
+  'guidance_rescale',
+  'sampler',
+] as const;
 
 function roleConfig(keys: readonly string[], name: string): fc.Arbitrary<GeneratedConfig> {
   return fc
     .tuple(
       fc.constantFrom<SourceFormat>('yaml', 'json', 'jsonc'),
       fc.uniqueArray(fc.constantFrom(...keys), { minLength: 2, maxLength: keys.length }),
-      fc.array(fc.oneof({ weight: 3, arbitrary: enumToken }, { weight: 3, arbitrary: specialNumber }, { weight: 1, arbitrary: boolToken }), { minLength: keys.length, maxLength: keys.length }),
+      fc.array(fc.oneof({ weight: 3, arbitrary: enumToken }, { weight: 3, arbitrary: specialNumber }, { weight: 1, arbitrary: boolToken }), {
+        minLength: keys.length,
+        maxLength: keys.length,
+      }),
       fc.boolean(),
       fc.array(mutationArb, { maxLength: 2 }),
     )
     .map(([format, chosen, tokens, crlf, ms]) => {
-      const root: GenNode = { t: 'map', flow: false, entries: chosen.map((k, i) => [k, { t: 'scalar', token: tokens[i] }]) };
+      const root: GenNode = { t: 'map', flow: false, entries: chosen.map((k, i) => [k, { t: 'scalar', token: tokens[i]! }]) };
       const text = mutate(render(root, { format, crlf, bom: false, comments: true, extraDocs: [] }), ms);
       return { format, path: `lanternfish/pair/${name}.${EXT[format]}`, text };
     });
 }
 
 /** [sampling file, training file]. */
-export const pairArb: fc.Arbitrary<[GeneratedConfig, GeneratedConfig]> = fc.tuple(roleConfig(SAMPLING_KEYS, 'sample-night'), roleConfig(TRAINING_KEYS, 'train-night'));
+export const pairArb: fc.Arbitrary<[GeneratedConfig, GeneratedConfig]> = fc.tuple(
+  roleConfig(SAMPLING_KEYS, 'sample-night'),
+  roleConfig(TRAINING_KEYS, 'train-night'),
+);

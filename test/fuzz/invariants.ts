@@ -38,11 +38,11 @@ function checkSpan(span: Span | undefined, text: string, what: string, c: Genera
 export function applyEditsChecked(text: string, edits: TextEdit[], what: string, c: GeneratedConfig): string {
   const sorted = [...edits].sort((a, b) => a.span.start - b.span.start || a.span.end - b.span.end);
   for (let i = 0; i < sorted.length; i++) {
-    const e = sorted[i];
+    const e = sorted[i]!;
     checkSpan(e.span, text, `${what}, edit ${i}`, c);
     if (typeof e.newText !== 'string') fail(`${what}, edit ${i}: newText is not a string`, c);
-    if (i > 0 && sorted[i - 1].span.end > e.span.start) {
-      fail(`${what}: edits overlap (${sorted[i - 1].span.start}..${sorted[i - 1].span.end} and ${e.span.start}..${e.span.end})`, c);
+    if (i > 0 && sorted[i - 1]!.span.end > e.span.start) {
+      fail(`${what}: edits overlap (${sorted[i - 1]!.span.start}..${sorted[i - 1]!.span.end} and ${e.span.start}..${e.span.end})`, c);
     }
     for (const at of [e.span.start, e.span.end]) {
       if (at > 0 && at < text.length && text[at - 1] === '\r' && text[at] === '\n') fail(`${what}: edit boundary ${at} splits a CRLF`, c);
@@ -50,7 +50,7 @@ export function applyEditsChecked(text: string, edits: TextEdit[], what: string,
   }
   let out = text;
   for (let i = sorted.length - 1; i >= 0; i--) {
-    const e = sorted[i];
+    const e = sorted[i]!;
     out = out.slice(0, e.span.start) + e.newText + out.slice(e.span.end);
   }
   return out;
@@ -115,7 +115,8 @@ export function checkConfig(c: GeneratedConfig, stats?: CheckStats, partner?: Pa
       if (!fix.title) fail(`${fwhat}: no title`, c);
       if (!FIX_EFFECTS.includes(fix.effect)) fail(`${fwhat}: effect ${String(fix.effect)}`, c);
       if (typeof fix.touchesComment !== 'boolean') fail(`${fwhat}: touchesComment ${String(fix.touchesComment)}`, c);
-      if (fix.effect === 'needs-retraining' && !/fine-tuning or retraining/.test(fix.title)) fail(`${fwhat}: needs retraining but the title does not say so`, c);
+      if (fix.effect === 'needs-retraining' && !/fine-tuning or retraining/.test(fix.title))
+        fail(`${fwhat}: needs retraining but the title does not say so`, c);
       const after = applyEditsChecked(text, fix.edits, fwhat, c);
       let viaFix: string;
       try {

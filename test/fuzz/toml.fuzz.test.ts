@@ -16,10 +16,39 @@ const seed = process.env.NOISELINT_FUZZ_SEED ? Number(process.env.NOISELINT_FUZZ
 const repo = join(__dirname, '..', '..');
 const SEEDS: string[] = [];
 for (const dir of ['examples/launcher-args', ...readdirSync(join(repo, 'test/rules/fixtures')).map((d) => `test/rules/fixtures/${d}`)]) {
-  for (const f of readdirSync(join(repo, dir))) if (f.endsWith('.toml') && !f.includes('.after-')) SEEDS.push(readFileSync(join(repo, dir, f), 'utf8'));
+  for (const f of readdirSync(join(repo, dir)))
+    if (f.endsWith('.toml') && !f.includes('.after-')) SEEDS.push(readFileSync(join(repo, dir, f), 'utf8'));
 }
 
-const SNIPPETS = ['=', '"', "'", '[', ']', '{', '}', ',', '.', '#', '\n', '\r\n', ' ', '\t', 'x', '1', '1e-4', 'true', '"""', "'''", '\\', '[[a]]\n', '[noise_scheduler]\n', 'noise_offset = 0.1 # c\n', 'timestep_spacing = "leading"\n', 'a.b.', '\ufeff'];
+const SNIPPETS = [
+  '=',
+  '"',
+  "'",
+  '[',
+  ']',
+  '{',
+  '}',
+  ',',
+  '.',
+  '#',
+  '\n',
+  '\r\n',
+  ' ',
+  '\t',
+  'x',
+  '1',
+  '1e-4',
+  'true',
+  '"""',
+  "'''",
+  '\\',
+  '[[a]]\n',
+  '[noise_scheduler]\n',
+  'noise_offset = 0.1 # c\n',
+  'timestep_spacing = "leading"\n',
+  'a.b.',
+  '\ufeff',
+];
 
 const mutation = fc.record({
   at: fc.nat(),

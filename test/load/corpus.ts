@@ -28,9 +28,8 @@ function rng(seed: number): () => number {
   };
 }
 
-
 function pick<T>(r: () => number, xs: readonly T[]): T {
-  return xs[Math.floor(r() * xs.length)];
+  return xs[Math.floor(r() * xs.length)]!;
 }
 
 export function trainingConfig(i: number): Record<string, Json> {
@@ -108,7 +107,12 @@ function toYaml(v: Json, indent = 0): string {
     return '\n' + v.map((x) => `${pad}- ${toYaml(x, indent + 2).trimStart()}`).join('\n');
   }
   if (v !== null && typeof v === 'object') {
-    return '\n' + Object.entries(v).map(([k, x]) => `${pad}${k}:${typeof x === 'object' && x !== null && !Array.isArray(x) ? '' : ' '}${toYaml(x, indent + 2)}`).join('\n');
+    return (
+      '\n' +
+      Object.entries(v)
+        .map(([k, x]) => `${pad}${k}:${typeof x === 'object' && x !== null && !Array.isArray(x) ? '' : ' '}${toYaml(x, indent + 2)}`)
+        .join('\n')
+    );
   }
   return yamlScalar(v);
 }
@@ -281,9 +285,19 @@ function composeFile(i: number, r: () => number): string {
 function otherModelConfig(i: number, r: () => number): Record<string, Json> {
   return {
     experiment: `lanternfish-caption-tagger-${i}`,
-    model: { arch: pick(r, ['resnet50', 'vit_small', 'bert_base']), hidden_size: pick(r, [256, 512, 768]), num_layers: pick(r, [4, 6, 12]), dropout: 0.1 },
+    model: {
+      arch: pick(r, ['resnet50', 'vit_small', 'bert_base']),
+      hidden_size: pick(r, [256, 512, 768]),
+      num_layers: pick(r, [4, 6, 12]),
+      dropout: 0.1,
+    },
     optimizer: { name: 'adamw', lr: pick(r, [1e-4, 3e-4]), weight_decay: 0.01, betas: [0.9, 0.999] },
-    trainer: { max_epochs: pick(r, [10, 30, 90]), batch_size: pick(r, [32, 64, 128]), precision: pick(r, ['16-mixed', 'bf16-mixed']), accumulate_grad_batches: 1 },
+    trainer: {
+      max_epochs: pick(r, [10, 30, 90]),
+      batch_size: pick(r, [32, 64, 128]),
+      precision: pick(r, ['16-mixed', 'bf16-mixed']),
+      accumulate_grad_batches: 1,
+    },
     data: { train: `/data/lanternfish/tags/train-${i}.jsonl`, val: `/data/lanternfish/tags/val-${i}.jsonl`, num_workers: 8, max_length: 128 },
     tokenizer: { vocab_size: 32000, lowercase: r() < 0.5, special_tokens: ['<pad>', '<unk>', '<s>', '</s>'] },
   };

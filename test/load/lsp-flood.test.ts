@@ -69,7 +69,10 @@ describe('language server under load', () => {
         send(EXPLAIN_REQUEST, { uri: 7 });
         send(SUMMARY_REQUEST, {});
         send('noiselint/noSuchRequest', { uri });
-        void client.connection.sendNotification('textDocument/didChange', { textDocument: { uri: ghost, version: 3 }, contentChanges: [{ text: 'x: 1' }] });
+        void client.connection.sendNotification('textDocument/didChange', {
+          textDocument: { uri: ghost, version: 3 },
+          contentChanges: [{ text: 'x: 1' }],
+        });
         void client.connection.sendNotification('textDocument/didChange', { textDocument: { uri }, contentChanges: 'not a list' });
         void client.connection.sendNotification('textDocument/didClose', { textDocument: { uri: ghost } });
       }
@@ -97,7 +100,9 @@ describe('language server under load', () => {
     // ...and the diagnostics are those of the last version.
     const last = await client.settled(uri, version);
     const lastText = configText(CHANGES, CHANGES);
-    const expected = analyzeText(lastText, { path: join(dir, 'storyboard.yaml') }).findings.map((f) => f.rule).sort();
+    const expected = analyzeText(lastText, { path: join(dir, 'storyboard.yaml') })
+      .findings.map((f) => f.rule)
+      .sort();
     expect(expected.length).toBeGreaterThan(0);
     expect(codesOf(last.diagnostics)).toEqual(expected);
     if (last.version !== undefined) expect(last.version).toBe(version);
@@ -127,7 +132,7 @@ describe('language server under load', () => {
       if (i % 50 === 49) {
         // Let the batch be analysed (per-document state exists), then close it.
         const batch = uris.slice(-50);
-        await client.settled(batch[batch.length - 1], 1);
+        await client.settled(batch[batch.length - 1]!, 1);
         for (const u of batch) if ((client.latest.get(u)?.diagnostics.length ?? 0) > 0) analysed++;
         for (const u of batch) client.close(u);
       }
@@ -143,7 +148,9 @@ describe('language server under load', () => {
     // for V8 heap growth that has not been collected yet, but not for a leak of per-document state
     // with schedules (1000 doubles x several arrays x 2,000 documents is already ~100 MB).
     const growthMb = (after - before) / 1024;
-    console.log(`server RSS ${(before / 1024).toFixed(0)} MB before, ${(after / 1024).toFixed(0)} MB after ${DOCS} documents opened, analysed and closed`);
+    console.log(
+      `server RSS ${(before / 1024).toFixed(0)} MB before, ${(after / 1024).toFixed(0)} MB after ${DOCS} documents opened, analysed and closed`,
+    );
     expect(growthMb, `RSS ${before} kB -> ${after} kB`).toBeLessThan(150);
     // Closed documents end with their diagnostics cleared (an editor would otherwise show stale ones).
     const stale = uris.filter((u) => (client.latest.get(u)?.diagnostics.length ?? 0) > 0);

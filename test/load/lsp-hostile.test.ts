@@ -15,7 +15,12 @@ const MB = 1024 * 1024;
 
 function aliasBomb(): string {
   const lines = ['a0: &a0 [lol, lol, lol, lol, lol, lol, lol, lol, lol]'];
-  for (let i = 1; i <= 9; i++) lines.push(`a${i}: &a${i} [${Array(9).fill(`*a${i - 1}`).join(', ')}]`);
+  for (let i = 1; i <= 9; i++)
+    lines.push(
+      `a${i}: &a${i} [${Array(9)
+        .fill(`*a${i - 1}`)
+        .join(', ')}]`,
+    );
   return `${lines.join('\n')}\nnum_train_timesteps: 1000\nbeta_schedule: *a9\n`;
 }
 
@@ -43,7 +48,11 @@ describe('language server with hostile documents', () => {
       ['deep.json', `{"num_train_timesteps": 1000, "beta_schedule": "linear", "x": ${'['.repeat(5000)}1${']'.repeat(5000)}}`, 'json'],
       ['deep.yaml', `num_train_timesteps: 1000\nbeta_schedule: linear\nx: ${'['.repeat(5000)}1${']'.repeat(5000)}\n`, 'yaml'],
       ['nul.yaml', 'num_train_timesteps: 1000\u0000\nbeta_schedule: "lin\u0000ear"\n\u0000\u0000', 'yaml'],
-      ['longline.yaml', `description: ${'y'.repeat(MB)}\nbeta_schedule: linear\nnum_train_timesteps: 1000\nprediction_type: epsilon\nrescale_betas_zero_snr: true\n`, 'yaml'],
+      [
+        'longline.yaml',
+        `description: ${'y'.repeat(MB)}\nbeta_schedule: linear\nnum_train_timesteps: 1000\nprediction_type: epsilon\nrescale_betas_zero_snr: true\n`,
+        'yaml',
+      ],
       ['astral.yaml', 'num_train_timesteps: [\n\u{1f3ee}]\nbeta_schedule: "\u{1f3ee}"\n', 'yaml'],
     ];
     const results = new Map<string, Diagnostic[]>();
@@ -65,9 +74,24 @@ describe('language server with hostile documents', () => {
         expect(d.range.start.character, name).toBeGreaterThanOrEqual(0);
       }
     }
-    expect(results.get('huge.yaml')!.map((d) => d.message).join('\n')).toMatch(/larger than|maxFileBytes|too large/i);
-    expect(results.get('deep.json')!.map((d) => String(d.code)).join(' ')).toMatch(/too-deep|parse/);
-    expect(results.get('bomb.yaml')!.map((d) => d.message).join('\n')).toMatch(/alias/i);
+    expect(
+      results
+        .get('huge.yaml')!
+        .map((d) => d.message)
+        .join('\n'),
+    ).toMatch(/larger than|maxFileBytes|too large/i);
+    expect(
+      results
+        .get('deep.json')!
+        .map((d) => String(d.code))
+        .join(' '),
+    ).toMatch(/too-deep|parse/);
+    expect(
+      results
+        .get('bomb.yaml')!
+        .map((d) => d.message)
+        .join('\n'),
+    ).toMatch(/alias/i);
     expect(results.get('longline.yaml')!.map((d) => String(d.code))).toContain('epsilon-at-zero-snr');
   });
 
@@ -93,6 +117,8 @@ describe('language server with hostile documents', () => {
     const fresh = `file://${join(dir, 'fresh.yaml')}`;
     client.open(fresh, configText(3, 3), 'yaml');
     const expected = await client.diagnosticsFor(fresh, 1);
-    expect(final.map((d) => `${String(d.code)}@${d.range.start.line}`).sort()).toEqual(expected.map((d) => `${String(d.code)}@${d.range.start.line}`).sort());
+    expect(final.map((d) => `${String(d.code)}@${d.range.start.line}`).sort()).toEqual(
+      expected.map((d) => `${String(d.code)}@${d.range.start.line}`).sort(),
+    );
   });
 });

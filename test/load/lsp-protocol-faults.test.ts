@@ -71,7 +71,11 @@ class RawClient {
   }
 
   async start(): Promise<void> {
-    this.send({ id: 1, method: 'initialize', params: { processId: null, rootUri: null, capabilities: { textDocument: { hover: { contentFormat: ['markdown', 'plaintext'] } } } } });
+    this.send({
+      id: 1,
+      method: 'initialize',
+      params: { processId: null, rootUri: null, capabilities: { textDocument: { hover: { contentFormat: ['markdown', 'plaintext'] } } } },
+    });
     await this.response(1);
     this.send({ method: 'initialized', params: {} });
     this.send({ method: 'textDocument/didOpen', params: { textDocument: { uri: URI, languageId: 'yaml', version: 1, text: TEXT } } });
@@ -93,36 +97,40 @@ describe('language server and a misbehaving client', () => {
     client = null;
   });
 
-  it.skipIf(process.platform !== 'linux')('a client that stops reading: server memory stays flat, and every request is answered once it reads again', { timeout: 180_000 }, async () => {
-    const c = (client = new RawClient());
-    await c.start();
-    await sleep(1500);
-    // Stop reading: the pipe fills and the server's output has nowhere to go.
-    c.proc.stdout.pause();
-    const before = c.rssMb();
-    const ids: number[] = [];
-    for (let id = 100; id < 4100; id++) {
-      ids.push(id);
-      // Plot data: curves of the whole schedule, tens of kilobytes per answer.
-      c.send({ id, method: 'noiselint/plotData', params: { uri: URI } });
-      if (id % 50 === 0) await sleep(20);
-    }
-    // Long enough for the server to work through what it can read (the old server held ~250 MB).
-    let peak = 0;
-    for (let t = 0; t < 20; t++) {
-      await sleep(1000);
-      peak = Math.max(peak, c.rssMb());
-    }
-    expect(peak - before, `RSS ${before.toFixed(0)} -> peak ${peak.toFixed(0)} MB`).toBeLessThan(80);
-    // Reading again: every request is answered, with its result or a ServerCancelled error.
-    c.proc.stdout.resume();
-    await c.response(ids[ids.length - 1], 120_000);
-    const answers = new Map(c.messages.filter((m) => m.method === undefined).map((m) => [m.id, m]));
-    expect(ids.filter((i) => !answers.has(i))).toEqual([]);
-    const errors = ids.map((i) => answers.get(i)!.error).filter((e) => e !== undefined);
-    for (const e of errors) expect(e!.code).toBe(-32802);
-    expect(errors.length).toBeLessThan(ids.length);
-  });
+  it.skipIf(process.platform !== 'linux')(
+    'a client that stops reading: server memory stays flat, and every request is answered once it reads again',
+    { timeout: 180_000 },
+    async () => {
+      const c = (client = new RawClient());
+      await c.start();
+      await sleep(1500);
+      // Stop reading: the pipe fills and the server's output has nowhere to go.
+      c.proc.stdout.pause();
+      const before = c.rssMb();
+      const ids: number[] = [];
+      for (let id = 100; id < 4100; id++) {
+        ids.push(id);
+        // Plot data: curves of the whole schedule, tens of kilobytes per answer.
+        c.send({ id, method: 'noiselint/plotData', params: { uri: URI } });
+        if (id % 50 === 0) await sleep(20);
+      }
+      // Long enough for the server to work through what it can read (the old server held ~250 MB).
+      let peak = 0;
+      for (let t = 0; t < 20; t++) {
+        await sleep(1000);
+        peak = Math.max(peak, c.rssMb());
+      }
+      expect(peak - before, `RSS ${before.toFixed(0)} -> peak ${peak.toFixed(0)} MB`).toBeLessThan(80);
+      // Reading again: every request is answered, with its result or a ServerCancelled error.
+      c.proc.stdout.resume();
+      await c.response(ids[ids.length - 1]!, 120_000);
+      const answers = new Map(c.messages.filter((m) => m.method === undefined).map((m) => [m.id, m]));
+      expect(ids.filter((i) => !answers.has(i))).toEqual([]);
+      const errors = ids.map((i) => answers.get(i)!.error).filter((e) => e !== undefined);
+      for (const e of errors) expect(e.code).toBe(-32802);
+      expect(errors.length).toBeLessThan(ids.length);
+    },
+  );
 
   it('a header without Content-Length is logged in one line and the server keeps answering', async () => {
     const c = (client = new RawClient());

@@ -88,7 +88,7 @@ export class LspTestClient {
       cwd: opts.cwd ?? REPO,
       stdio: ['pipe', 'pipe', 'pipe'],
     });
-    const connection = createMessageConnection(new StreamMessageReader(proc.stdout!), new StreamMessageWriter(proc.stdin!));
+    const connection = createMessageConnection(new StreamMessageReader(proc.stdout), new StreamMessageWriter(proc.stdin));
     const client = new LspTestClient(proc, connection, opts.settings);
     connection.listen();
     const params: InitializeParams = {
@@ -102,7 +102,10 @@ export class LspTestClient {
           synchronization: { didSave: true, dynamicRegistration: false },
           publishDiagnostics: { versionSupport: true, relatedInformation: true, codeDescriptionSupport: true },
           hover: { contentFormat: ['markdown', 'plaintext'] },
-          codeAction: { codeActionLiteralSupport: { codeActionKind: { valueSet: ['quickfix', 'source', 'source.fixAll'] } }, isPreferredSupport: true },
+          codeAction: {
+            codeActionLiteralSupport: { codeActionKind: { valueSet: ['quickfix', 'source', 'source.fixAll'] } },
+            isPreferredSupport: true,
+          },
           inlayHint: {},
           codeLens: {},
         },

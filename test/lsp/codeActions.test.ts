@@ -40,7 +40,7 @@ function diagnosticOf(finding: Finding): Diagnostic {
 }
 
 function params(diagnostics: Diagnostic[]): CodeActionParams {
-  return { textDocument: { uri }, range: diagnostics[0].range, context: { diagnostics } };
+  return { textDocument: { uri }, range: diagnostics[0]!.range, context: { diagnostics } };
 }
 
 const syntaxErrors = (text: string) => parseText(text, 'yaml').problems.filter((p) => p.severity === 'error');
@@ -56,7 +56,13 @@ describe('code actions parse the result of what they hand out', () => {
     const { current: cur, skip } = current();
     const actions = quickFixes(params([diagnosticOf(skip)]), cur, true);
     expect(actions.map((a) => a.title)).toEqual(['Set the timestep spacing to trailing (sampling only)']);
-    const fixed = applyEdits(SAMPLE_LEADING, editsFor(actions[0].edit, uri).map((e) => ({ span: { start: mapper.offsetAt(e.range.start), end: mapper.offsetAt(e.range.end) }, newText: e.newText })));
+    const fixed = applyEdits(
+      SAMPLE_LEADING,
+      editsFor(actions[0]!.edit, uri).map((e) => ({
+        span: { start: mapper.offsetAt(e.range.start), end: mapper.offsetAt(e.range.end) },
+        newText: e.newText,
+      })),
+    );
     expect(fixed).toContain('  timestep_spacing: trailing\n');
     expect(syntaxErrors(fixed)).toEqual([]);
   });
@@ -77,7 +83,10 @@ describe('code actions parse the result of what they hand out', () => {
     const action = fixAllAction(cur, false);
     expect(action).not.toBeNull();
     const edits = editsFor(action!.edit, uri);
-    const fixed = applyEdits(SAMPLE_LEADING, edits.map((e) => ({ span: { start: mapper.offsetAt(e.range.start), end: mapper.offsetAt(e.range.end) }, newText: e.newText })));
+    const fixed = applyEdits(
+      SAMPLE_LEADING,
+      edits.map((e) => ({ span: { start: mapper.offsetAt(e.range.start), end: mapper.offsetAt(e.range.end) }, newText: e.newText })),
+    );
     expect(fixed).toContain('  timestep_spacing: trailing\n');
     expect(fixed).not.toContain('[trailing');
     expect(syntaxErrors(fixed)).toEqual([]);

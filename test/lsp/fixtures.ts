@@ -49,7 +49,7 @@ export function positionOf(text: string, needle: string, delta = 0): { line: num
   if (offset < 0) throw new Error(`"${needle}" is not in the text`);
   const before = text.slice(0, offset + delta);
   const lines = before.split('\n');
-  return { line: lines.length - 1, character: lines[lines.length - 1].length };
+  return { line: lines.length - 1, character: lines[lines.length - 1]!.length };
 }
 
 export function lineOf(text: string, needle: string): number {

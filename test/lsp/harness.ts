@@ -7,12 +7,12 @@
 import { spawn, type ChildProcess } from 'node:child_process';
 import { pathToFileURL } from 'node:url';
 import { createMessageConnection, StreamMessageReader, StreamMessageWriter, type MessageConnection } from 'vscode-jsonrpc/node';
-import {
-  type ClientCapabilities,
-  type InitializeResult,
-  type PublishDiagnosticsParams,
-  type Range,
-  type TextDocumentContentChangeEvent,
+import type {
+  ClientCapabilities,
+  InitializeResult,
+  PublishDiagnosticsParams,
+  Range,
+  TextDocumentContentChangeEvent,
 } from 'vscode-languageserver-protocol';
 import { ensureServerBuilt, REPO_ROOT } from './buildServer';
 
@@ -76,9 +76,9 @@ export class LspClient {
   static async start(options: StartOptions = {}): Promise<LspClient> {
     const bundle = ensureServerBuilt();
     const proc = spawn(process.execPath, [bundle, 'lsp', '--stdio'], { cwd: REPO_ROOT, stdio: ['pipe', 'pipe', 'pipe'] });
-    const conn = createMessageConnection(new StreamMessageReader(proc.stdout!), new StreamMessageWriter(proc.stdin!));
+    const conn = createMessageConnection(new StreamMessageReader(proc.stdout), new StreamMessageWriter(proc.stdin));
     const client = new LspClient(conn, proc, options.settings);
-    proc.stderr!.on('data', (d: Buffer) => (client.stderr += d.toString()));
+    proc.stderr.on('data', (d: Buffer) => (client.stderr += d.toString()));
     proc.on('exit', () => {
       client.exited = true;
       client.poke();
@@ -121,14 +121,17 @@ export class LspClient {
     const died = new Promise<never>((_, reject) =>
       proc.once('exit', (code) => reject(new Error(`the server exited (code ${code}) before initialize finished: ${client.stderr}`))),
     );
-    client.initializeResult = await Promise.race([died, conn.sendRequest<InitializeResult>('initialize', {
-      processId: process.pid,
-      rootUri: folders[0] ? fileUri(folders[0]) : null,
-      capabilities: options.capabilities ?? DEFAULT_CAPABILITIES,
-      ...(options.clientInfo ? { clientInfo: options.clientInfo } : {}),
-      ...(options.initializationOptions !== undefined ? { initializationOptions: options.initializationOptions } : {}),
-      workspaceFolders: folders.map((f, i) => ({ uri: fileUri(f), name: `folder${i}` })),
-    })]);
+    client.initializeResult = await Promise.race([
+      died,
+      conn.sendRequest<InitializeResult>('initialize', {
+        processId: process.pid,
+        rootUri: folders[0] ? fileUri(folders[0]) : null,
+        capabilities: options.capabilities ?? DEFAULT_CAPABILITIES,
+        ...(options.clientInfo ? { clientInfo: options.clientInfo } : {}),
+        ...(options.initializationOptions !== undefined ? { initializationOptions: options.initializationOptions } : {}),
+        workspaceFolders: folders.map((f, i) => ({ uri: fileUri(f), name: `folder${i}` })),
+      }),
+    ]);
     died.catch(() => undefined);
     await conn.sendNotification('initialized', {});
     return client;
@@ -194,7 +197,7 @@ export class LspClient {
   }
 
   request<R>(method: string, params: unknown): Promise<R> {
-    return this.conn.sendRequest(method, params) as Promise<R>;
+    return this.conn.sendRequest<R>(method, params);
   }
 
   notify(method: string, params: unknown): void {

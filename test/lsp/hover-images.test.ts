@@ -22,7 +22,10 @@ async function hoverWith(options: StartOptions): Promise<MarkupContent> {
   const since = client.diagnostics.length;
   client.open(uri, TRAIN_LEAKY);
   await client.waitForDiagnostics(uri, (p) => p.version === 1, since);
-  const hover = await client.request<Hover | null>('textDocument/hover', { textDocument: { uri }, position: positionOf(TRAIN_LEAKY, 'beta_schedule', 3) });
+  const hover = await client.request<Hover | null>('textDocument/hover', {
+    textDocument: { uri },
+    position: positionOf(TRAIN_LEAKY, 'beta_schedule', 3),
+  });
   expect(hover).not.toBeNull();
   const content = hover!.contents as MarkupContent;
   // Lin et al. 2023, Table 1 (recalled from memory): sqrt(abar_T) = 0.068265 for this schedule.
@@ -50,9 +53,13 @@ describe('hover images follow the client', () => {
   });
 
   it('initializationOptions turn the chart on or off', async () => {
-    expect((await hoverWith({ clientInfo: { name: 'Neovim' }, initializationOptions: { hover: { images: true } } })).value).toContain('data:image/svg+xml');
+    expect((await hoverWith({ clientInfo: { name: 'Neovim' }, initializationOptions: { hover: { images: true } } })).value).toContain(
+      'data:image/svg+xml',
+    );
     await client?.stop();
-    expect((await hoverWith({ clientInfo: { name: 'code-server' }, initializationOptions: { hover: { images: false } } })).value).not.toContain('data:image');
+    expect((await hoverWith({ clientInfo: { name: 'code-server' }, initializationOptions: { hover: { images: false } } })).value).not.toContain(
+      'data:image',
+    );
   });
 
   it('the hover.images setting overrides the client default per document', async () => {
@@ -62,7 +69,11 @@ describe('hover images follow the client', () => {
   });
 
   it('a plain-text client gets plain text and never an image, whatever it asks', async () => {
-    const content = await hoverWith({ capabilities: plainOnly, clientInfo: { name: 'Visual Studio Code' }, initializationOptions: { hover: { images: true } } });
+    const content = await hoverWith({
+      capabilities: plainOnly,
+      clientInfo: { name: 'Visual Studio Code' },
+      initializationOptions: { hover: { images: true } },
+    });
     expect(content.kind).toBe('plaintext');
     expect(content.value).not.toContain('data:image');
     expect(content.value).not.toContain('|');

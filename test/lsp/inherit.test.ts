@@ -64,7 +64,10 @@ describe('inherited schedule over LSP', () => {
     // 7.5 guidance on the inherited zero-SNR schedule, and no mismatch on what the file never wrote.
     expect(published.diagnostics.map((d) => d.code)).toEqual(['guidance-overexposure']);
     expect((await hints()).map(label)).toContain('SNR_T 0 from train-stills.yaml');
-    const hover = await client.request<Hover>('textDocument/hover', { textDocument: { uri: sampleUri }, position: positionOf(SAMPLE, 'trailing', 2) });
+    const hover = await client.request<Hover>('textDocument/hover', {
+      textDocument: { uri: sampleUri },
+      position: positionOf(SAMPLE, 'trailing', 2),
+    });
     const text = (hover.contents as MarkupContent).value;
     expect(text).toContain('(from training file train-stills.yaml)');
     expect(text).toContain('zeroTerminalSnr true');

@@ -44,11 +44,17 @@ describe('pull diagnostics', () => {
     expect(first.items.map((d) => d.code)).toContain('terminal-snr-leak');
     expect(typeof first.resultId).toBe('string');
 
-    const again = await client.request<DocumentDiagnosticReport>('textDocument/diagnostic', { textDocument: { uri }, previousResultId: first.resultId });
+    const again = await client.request<DocumentDiagnosticReport>('textDocument/diagnostic', {
+      textDocument: { uri },
+      previousResultId: first.resultId,
+    });
     expect(again.kind).toBe('unchanged');
 
     client.replace(uri, 2, TRAIN_LEAKY.replace('prediction_type: epsilon', 'prediction_type: epsilon\n  rescale_betas_zero_snr: true'));
-    const second = (await client.request<DocumentDiagnosticReport>('textDocument/diagnostic', { textDocument: { uri }, previousResultId: first.resultId })) as Full;
+    const second = (await client.request<DocumentDiagnosticReport>('textDocument/diagnostic', {
+      textDocument: { uri },
+      previousResultId: first.resultId,
+    })) as Full;
     expect(second.kind).toBe('full');
     expect(second.items.map((d) => d.code)).toEqual(['epsilon-at-zero-snr']);
 
@@ -66,7 +72,10 @@ describe('pull diagnostics', () => {
     severity = 'error';
     client.notify('workspace/didChangeConfiguration', { settings: null });
     await client.waitUntil(() => client.diagnosticRefreshes > refreshes, 'workspace/diagnostic/refresh');
-    const after = (await client.request<DocumentDiagnosticReport>('textDocument/diagnostic', { textDocument: { uri }, previousResultId: before.resultId })) as Full;
+    const after = (await client.request<DocumentDiagnosticReport>('textDocument/diagnostic', {
+      textDocument: { uri },
+      previousResultId: before.resultId,
+    })) as Full;
     expect(after.kind).toBe('full');
     expect(after.items.find((d) => d.code === 'terminal-snr-leak')?.severity).toBe(1);
   });
@@ -74,7 +83,10 @@ describe('pull diagnostics', () => {
   it('gives plain-text hovers to a client without markdown', async () => {
     const uri = 'untitled:/lanternfish/plain-hover.yaml';
     client.open(uri, TRAIN_LEAKY);
-    const hover = await client.request<Hover | null>('textDocument/hover', { textDocument: { uri }, position: positionOf(TRAIN_LEAKY, 'beta_end', 2) });
+    const hover = await client.request<Hover | null>('textDocument/hover', {
+      textDocument: { uri },
+      position: positionOf(TRAIN_LEAKY, 'beta_end', 2),
+    });
     const content = hover!.contents as MarkupContent;
     expect(content.kind).toBe('plaintext');
     // Lin et al. 2023, Table 1 (recalled from memory): sqrt(abar_T) 0.068265, SNR_T 0.004682.

@@ -14,7 +14,7 @@ import { DEFAULT_CAPABILITIES, LspClient, fileUri } from './harness';
 import { applyLspEdits, editsFor } from './edits';
 import { analysePair, RUN_PAIRS } from '../run/pairs';
 
-const pair = RUN_PAIRS[0];
+const pair = RUN_PAIRS[0]!;
 let dir: string;
 let trainUri: string;
 let sampleUri: string;
@@ -63,7 +63,7 @@ describe('run rescale code action', () => {
     expect(changes.find((c) => c.textDocument.uri === trainUri)!.textDocument.version).toBe(1);
     expect(changes.find((c) => c.textDocument.uri === sampleUri)!.textDocument.version).toBeNull();
     for (const c of changes) for (const e of c.edits as AnnotatedTextEdit[]) expect(e.annotationId).toBe('noiselint.runRescale');
-    const annotation = run.edit!.changeAnnotations!['noiselint.runRescale'];
+    const annotation = run.edit!.changeAnnotations!['noiselint.runRescale']!;
     expect(annotation.needsConfirmation).toBe(true);
     expect(annotation.label).toContain('The model needs fine-tuning');
     expect(annotation.description).toContain('Lin et al. 2023 fine-tune for this');

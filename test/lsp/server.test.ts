@@ -4,7 +4,6 @@
  * actions applied to the text, fix-all, and robustness against bad requests.
  */
 import { spawnSync } from 'node:child_process';
-import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import {
   DiagnosticSeverity,
@@ -127,8 +126,8 @@ describe('diagnostics', () => {
     client.edit(uri, 2, { start, end: { line: start.line, character: start.character + 5 } }, '1.5');
     const next = await client.waitForDiagnostics(uri, (p) => p.version === 2, since);
     expect(codes(next.diagnostics)).toEqual(['schedule-invalid']);
-    expect(next.diagnostics[0].message).toContain('1.5');
-    expect(next.diagnostics[0].range.start).toEqual({ line: start.line, character: start.character - 'beta_end: '.length });
+    expect(next.diagnostics[0]!.message).toContain('1.5');
+    expect(next.diagnostics[0]!.range.start).toEqual({ line: start.line, character: start.character - 'beta_end: '.length });
     client.close(uri);
   });
 
@@ -141,13 +140,16 @@ describe('diagnostics', () => {
     const { published } = await openAndWait('broken-train.yaml', BROKEN_CONFIG);
     const parse = published.diagnostics.filter((d) => d.code === 'parse-error');
     expect(parse.length).toBeGreaterThan(0);
-    expect(parse[0].severity).toBe(DiagnosticSeverity.Error);
-    expect(parse[0].range.start.line).toBe(lineOf(BROKEN_CONFIG, 'beta_start'));
+    expect(parse[0]!.severity).toBe(DiagnosticSeverity.Error);
+    expect(parse[0]!.range.start.line).toBe(lineOf(BROKEN_CONFIG, 'beta_start'));
   });
 
   it('reads JSON documents too', async () => {
     const json = JSON.stringify(
-      { run: 'lanternfish-stills-json', scheduler: { num_train_timesteps: 1000, beta_schedule: 'scaled_linear', beta_start: 0.00085, beta_end: 0.012 } },
+      {
+        run: 'lanternfish-stills-json',
+        scheduler: { num_train_timesteps: 1000, beta_schedule: 'scaled_linear', beta_start: 0.00085, beta_end: 0.012 },
+      },
       null,
       2,
     );
@@ -185,7 +187,7 @@ describe('hover', () => {
     expect(content.value).toMatch(/needs fine-tuning/);
     const image = /!\[[^\]]*\]\(data:image\/svg\+xml;base64,([A-Za-z0-9+/=]+)\)/.exec(content.value);
     expect(image).not.toBeNull();
-    const svg = Buffer.from(image![1], 'base64').toString('utf8');
+    const svg = Buffer.from(image![1]!, 'base64').toString('utf8');
     expect(svg.startsWith('<svg')).toBe(true);
     expect(svg.match(/<polyline/g)?.length).toBe(2);
     expect(hover!.range?.start.line).toBe(lineOf(TRAIN_LEAKY, 'beta_schedule'));
@@ -219,7 +221,10 @@ scheduler:
 `;
     const { uri } = await openAndWait('hover-guidance.yaml', text);
     const at = async (needle: string) =>
-      ((await client.request<Hover>('textDocument/hover', { textDocument: { uri }, position: positionOf(text, needle, 2) })).contents as MarkupContent).value;
+      (
+        (await client.request<Hover>('textDocument/hover', { textDocument: { uri }, position: positionOf(text, needle, 2) }))
+          .contents as MarkupContent
+      ).value;
     const guidance = await at('guidance_scale');
     expect(guidance).toContain('Guidance scale 7.5, guidance rescale not set');
     // Guidance 7.5 with rescale 0.7 works well (common practice).
@@ -270,8 +275,8 @@ describe('inlay hints and code lens', () => {
     const { uri } = await openAndWait('lens-train.yaml', TRAIN_LEAKY);
     const lenses = await client.request<CodeLens[]>('textDocument/codeLens', { textDocument: { uri } });
     expect(lenses).toHaveLength(1);
-    expect(lenses[0].command).toEqual({ title: 'Show noise schedule', command: 'noiselint.showSchedule', arguments: [uri] });
-    expect(lenses[0].range.start.line).toBe(lineOf(TRAIN_LEAKY, 'num_train_timesteps'));
+    expect(lenses[0]!.command).toEqual({ title: 'Show noise schedule', command: 'noiselint.showSchedule', arguments: [uri] });
+    expect(lenses[0]!.range.start.line).toBe(lineOf(TRAIN_LEAKY, 'num_train_timesteps'));
     const none = await openAndWait('lens-none.yaml', NOT_A_CONFIG);
     expect(await client.request<CodeLens[]>('textDocument/codeLens', { textDocument: { uri: none.uri } })).toEqual([]);
   });
@@ -283,7 +288,7 @@ describe('custom requests', () => {
     const plot = await client.request<PlotData | null>('noiselint/plotData', { uri });
     expect(plot?.uri).toBe(uri);
     expect(plot?.version).toBe(1);
-    const doc = plot!.documents[0];
+    const doc = plot!.documents[0]!;
     expect(doc.trainSteps).toBe(1000);
     expect(doc.t).toHaveLength(1000);
     expect(doc.t[999]).toBe(999);
@@ -301,7 +306,7 @@ describe('custom requests', () => {
     const long = TRAIN_LEAKY.replace('num_train_timesteps: 1000', 'num_train_timesteps: 4000');
     const { uri } = await openAndWait('plot-long.yaml', long);
     const plot = await client.request<PlotData | null>('noiselint/plotData', { uri });
-    const doc = plot!.documents[0];
+    const doc = plot!.documents[0]!;
     expect(doc.t.length).toBeLessThanOrEqual(1000);
     expect(doc.t[0]).toBe(0);
     expect(doc.t[doc.t.length - 1]).toBe(3999);
@@ -334,12 +339,12 @@ describe('code actions', () => {
       context: { diagnostics: [skip], only: ['quickfix'] },
     });
     expect(actions.length).toBeGreaterThanOrEqual(1);
-    expect(actions.every((a) => a.kind === 'quickfix' && a.diagnostics?.[0].code === 'sampler-skips-last-step')).toBe(true);
+    expect(actions.every((a) => a.kind === 'quickfix' && a.diagnostics?.[0]!.code === 'sampler-skips-last-step')).toBe(true);
     expect(actions.filter((a) => a.isPreferred)).toHaveLength(1);
     const preferred = actions.find((a) => a.isPreferred)!;
     const fixed = applyLspEdits(SAMPLE_LEADING, editsFor(preferred.edit, uri));
     const reread = readFile(fixed, { path: 'actions-sample.yaml' });
-    const doc = reread.documents[0];
+    const doc = reread.documents[0]!;
     expect(valueOf(doc.setup, 'timestepSpacing')).toBe('trailing');
     // Lin et al. 2023, Table 2 (recalled from memory): trailing starts at the last step, 999 (0-based).
     expect(doc.analysis.sampling?.firstTimestep).toBe(999);
@@ -357,8 +362,8 @@ describe('code actions', () => {
     const quickfixes = actions.filter((a) => a.kind === 'quickfix');
     expect(quickfixes.length).toBeGreaterThanOrEqual(1);
     for (const a of quickfixes) expect(a.title).toMatch(/fine-tun|retrain/i);
-    const fixed = applyLspEdits(TRAIN_LEAKY, editsFor(quickfixes[0].edit, uri));
-    const doc = readFile(fixed, { path: 'actions-train.yaml' }).documents[0];
+    const fixed = applyLspEdits(TRAIN_LEAKY, editsFor(quickfixes[0]!.edit, uri));
+    const doc = readFile(fixed, { path: 'actions-train.yaml' }).documents[0]!;
     expect(valueOf(doc.setup, 'zeroTerminalSnr')).toBe(true);
     // Lin et al. 2023, Algorithm 1: the rescaled schedule has SNR_T = 0 exactly.
     expect(doc.analysis.schedule?.terminalSnr).toBe(0);
@@ -383,10 +388,10 @@ describe('code actions', () => {
       context: { diagnostics: [], only: ['source.fixAll.noiselint'] },
     });
     expect(actions).toHaveLength(1);
-    expect(actions[0].kind).toBe('source.fixAll.noiselint');
-    expect(actions[0].title).toBe('noiselint: apply every sampling-only fix (the checkpoint stays valid)');
-    const fixed = applyLspEdits(SAMPLE_LEADING, editsFor(actions[0].edit, uri));
-    const doc = readFile(fixed, { path: 'fixall-sample.yaml' }).documents[0];
+    expect(actions[0]!.kind).toBe('source.fixAll.noiselint');
+    expect(actions[0]!.title).toBe('noiselint: apply every sampling-only fix (the checkpoint stays valid)');
+    const fixed = applyLspEdits(SAMPLE_LEADING, editsFor(actions[0]!.edit, uri));
+    const doc = readFile(fixed, { path: 'fixall-sample.yaml' }).documents[0]!;
     expect(valueOf(doc.setup, 'timestepSpacing')).toBe('trailing');
     // The schedule rescale and the target switch need fine-tuning: fix-all leaves them alone.
     expect(valueOf(doc.setup, 'zeroTerminalSnr')).not.toBe(true);
@@ -400,8 +405,14 @@ describe('documents analysed long ago', () => {
   async function views(uri: string, diagnostics: Diagnostic[]) {
     const skip = diagnostics.find((d) => d.code === 'sampler-skips-last-step');
     return {
-      hover: await client.request<Hover | null>('textDocument/hover', { textDocument: { uri }, position: positionOf(SAMPLE_LEADING, 'beta_schedule', 3) }),
-      spacing: await client.request<Hover | null>('textDocument/hover', { textDocument: { uri }, position: positionOf(SAMPLE_LEADING, 'leading', 2) }),
+      hover: await client.request<Hover | null>('textDocument/hover', {
+        textDocument: { uri },
+        position: positionOf(SAMPLE_LEADING, 'beta_schedule', 3),
+      }),
+      spacing: await client.request<Hover | null>('textDocument/hover', {
+        textDocument: { uri },
+        position: positionOf(SAMPLE_LEADING, 'leading', 2),
+      }),
       hints: await client.request<InlayHint[]>('textDocument/inlayHint', {
         textDocument: { uri },
         range: { start: { line: 0, character: 0 }, end: { line: 100, character: 0 } },
@@ -430,7 +441,7 @@ describe('documents analysed long ago', () => {
     expect(fresh.hover).not.toBeNull();
     expect(fresh.hints.length).toBe(2);
     expect(fresh.lenses).toHaveLength(1);
-    expect(fresh.plot?.documents[0].sampled.map((p) => p.t)).toEqual([901, 801, 701, 601, 501, 401, 301, 201, 101, 1]);
+    expect(fresh.plot?.documents[0]!.sampled.map((p) => p.t)).toEqual([901, 801, 701, 601, 501, 401, 301, 201, 101, 1]);
     expect(fresh.quickFixes.length).toBeGreaterThanOrEqual(1);
     expect(fresh.fixAll).toHaveLength(1);
     // Many more documents analysed since: far more than the server keeps in full.
@@ -451,9 +462,13 @@ describe('robustness', () => {
     client.notify('textDocument/didChange', { textDocument: { uri: 'untitled:/never-opened.yaml', version: 3 }, contentChanges: [{ text: 'x' }] });
     client.notify('textDocument/didOpen', { textDocument: null });
     client.notify('workspace/didChangeWatchedFiles', { changes: 'nonsense' });
-    expect(await client.request('textDocument/hover', { textDocument: { uri: 'untitled:/unknown.yaml' }, position: { line: 0, character: 0 } })).toBeNull();
+    expect(
+      await client.request('textDocument/hover', { textDocument: { uri: 'untitled:/unknown.yaml' }, position: { line: 0, character: 0 } }),
+    ).toBeNull();
     expect(await client.request('noiselint/plotData', { uri: 'untitled:/unknown.yaml' })).toBeNull();
-    expect(await client.request('textDocument/codeAction', { textDocument: { uri: 'untitled:/unknown.yaml' }, range: null, context: null })).toEqual([]);
+    expect(await client.request('textDocument/codeAction', { textDocument: { uri: 'untitled:/unknown.yaml' }, range: null, context: null })).toEqual(
+      [],
+    );
     // Still alive and correct afterwards.
     const { published } = await openAndWait('after-errors.yaml', TRAIN_LEAKY);
     expect(codes(published.diagnostics)).toContain('terminal-snr-leak');
@@ -463,7 +478,15 @@ describe('robustness', () => {
   it('survives hostile text: deep nesting and an alias bomb give findings, not a crash', async () => {
     const deep = `noise_scheduler:\n  num_train_timesteps: 1000\n  extra: ${'['.repeat(5000)}${']'.repeat(5000)}\n`;
     const bomb = ['a: &a ["x","x","x","x","x","x","x","x","x","x"]']
-      .concat(Array.from({ length: 8 }, (_, i) => `${String.fromCharCode(98 + i)}: &${String.fromCharCode(98 + i)} [${Array(10).fill(`*${String.fromCharCode(97 + i)}`).join(',')}]`))
+      .concat(
+        Array.from(
+          { length: 8 },
+          (_, i) =>
+            `${String.fromCharCode(98 + i)}: &${String.fromCharCode(98 + i)} [${Array(10)
+              .fill(`*${String.fromCharCode(97 + i)}`)
+              .join(',')}]`,
+        ),
+      )
       .concat(['num_train_timesteps: 1000', 'beta_schedule: scaled_linear'])
       .join('\n');
     await openAndWait('deep.yaml', deep);

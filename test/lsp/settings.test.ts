@@ -40,10 +40,23 @@ describe('PushedSettings and settingsFromClient', () => {
     expect((await settingsFromClient(async () => null, pushed)).rules).toEqual(STRICT.rules);
     expect((await settingsFromClient(async () => [null], pushed)).rules).toEqual(STRICT.rules);
     const errors: unknown[] = [];
-    expect((await settingsFromClient(() => Promise.reject(new Error('no')), pushed, (e) => errors.push(e))).rules).toEqual(STRICT.rules);
+    expect(
+      (
+        await settingsFromClient(
+          () => Promise.reject(new Error('no')),
+          pushed,
+          (e) => errors.push(e),
+        )
+      ).rules,
+    ).toEqual(STRICT.rules);
     expect(errors).toHaveLength(1);
     const started = Date.now();
-    const silent = await settingsFromClient(() => new Promise(() => {}), pushed, () => {}, 50);
+    const silent = await settingsFromClient(
+      () => new Promise(() => {}),
+      pushed,
+      () => {},
+      50,
+    );
     expect(silent.rules).toEqual(STRICT.rules);
     expect(Date.now() - started).toBeGreaterThanOrEqual(45);
   });

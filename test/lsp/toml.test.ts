@@ -70,12 +70,15 @@ describe('a TOML document in the language server', () => {
     const { published } = await openAndWait('broken-args.toml', broken);
     const parse = published.diagnostics.filter((d) => d.code === 'parse-error');
     expect(parse.length).toBe(1);
-    expect(parse[0].range.start.line).toBe(lineOf(broken, 'beta_end = 0.02'));
+    expect(parse[0]!.range.start.line).toBe(lineOf(broken, 'beta_end = 0.02'));
   });
 
   it('hovers the schedule field with its numbers', async () => {
     const { uri } = await openAndWait('hover-args.toml', NIGHT_ARGS);
-    const hover = await client.request<Hover | null>('textDocument/hover', { textDocument: { uri }, position: positionOf(NIGHT_ARGS, 'beta_schedule', 3) });
+    const hover = await client.request<Hover | null>('textDocument/hover', {
+      textDocument: { uri },
+      position: positionOf(NIGHT_ARGS, 'beta_schedule', 3),
+    });
     expect(hover).not.toBeNull();
     const content = hover!.contents as MarkupContent;
     // Lin et al. 2023, Table 1 (recalled from memory): sqrt(abar_T) 0.068265, SNR_T 0.004682.
@@ -117,10 +120,10 @@ describe('a TOML document in the language server', () => {
       context: { diagnostics: [leak], only: ['quickfix'] },
     });
     expect(leakActions.length).toBeGreaterThanOrEqual(1);
-    const rescaled = applyLspEdits(NIGHT_ARGS, editsFor(leakActions[0].edit, uri));
+    const rescaled = applyLspEdits(NIGHT_ARGS, editsFor(leakActions[0]!.edit, uri));
     expect(parseText(rescaled, 'toml').problems).toEqual([]);
     expect(rescaled).toContain('prediction_type = "v_prediction"\nrescale_betas_zero_snr = true\n\n[sampling]');
-    const doc = readFile(rescaled, { path: 'actions-args.toml' }).documents[0];
+    const doc = readFile(rescaled, { path: 'actions-args.toml' }).documents[0]!;
     expect(valueOf(doc.setup, 'zeroTerminalSnr')).toBe(true);
     // Lin et al. 2023, Algorithm 1: the rescaled schedule has SNR_T = 0 exactly.
     expect(doc.analysis.schedule?.terminalSnr).toBe(0);

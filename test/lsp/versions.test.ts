@@ -39,7 +39,7 @@ describe('rapid edits', () => {
     const plot = await client.request<PlotData>('noiselint/plotData', { uri });
     expect(plot.version).toBe(1001);
     // Lin et al. 2023, Algorithm 1: the rescaled schedule ends at SNR 0 exactly.
-    expect(plot.documents[0].terminalSnr).toBe(0);
+    expect(plot.documents[0]!.terminalSnr).toBe(0);
 
     // One more edit, then look at the whole sequence: nothing older arrived after something newer.
     client.edit(uri, 1002, { start: after, end: { line: after.line + 1, character: '  rescale_betas_zero_snr: true'.length } }, '');
@@ -47,7 +47,7 @@ describe('rapid edits', () => {
     expect(codesOf(final)).toEqual(['terminal-snr-leak']);
 
     const versions = client.publicationsFor(uri).map((p) => p.version ?? -1);
-    for (let i = 1; i < versions.length; i++) expect(versions[i]).toBeGreaterThanOrEqual(versions[i - 1]);
+    for (let i = 1; i < versions.length; i++) expect(versions[i]).toBeGreaterThanOrEqual(versions[i - 1]!);
     // Every intermediate publication matches the text of its own version (all leak).
     for (const p of client.publicationsFor(uri)) {
       if (p.version === 1001) continue;

@@ -91,8 +91,8 @@ describe('workspace', () => {
     expect(mismatch!.message).toContain('train-night.yaml');
     const related = mismatch!.relatedInformation ?? [];
     expect(related).toHaveLength(1);
-    expect(related[0].location.uri).toBe(trainUri);
-    expect(related[0].location.range.start.line).toBe(lineOf(TRAIN, 'prediction_type'));
+    expect(related[0]!.location.uri).toBe(trainUri);
+    expect(related[0]!.location.range.start.line).toBe(lineOf(TRAIN, 'prediction_type'));
   });
 
   it('re-checks the sampling file when the training file is edited, saved or closed', async () => {
@@ -134,7 +134,7 @@ describe('workspace', () => {
       { textDocument: { uri: sampleUri }, range: mismatch.range, context: { diagnostics: [mismatch], only: ['quickfix'] } },
     );
     expect(actions).toHaveLength(1);
-    expect(actions[0].edit.documentChanges[0].edits.map((e) => e.newText).join('')).toContain('v_prediction');
+    expect(actions[0]!.edit.documentChanges[0]!.edits.map((e) => e.newText).join('')).toContain('v_prediction');
   });
 
   it('refreshes every document when the configuration changes', async () => {

@@ -41,7 +41,7 @@ export function packAndInstall(): InstalledCli {
     execFileSync('npm', args, { cwd, env, encoding: 'utf8', stdio: ['ignore', 'pipe', 'pipe'], timeout: 180_000 });
   // The bundle is already built; --ignore-scripts keeps `prepare` from rebuilding it under other tests.
   const packed = JSON.parse(npm(['pack', '--ignore-scripts', '--json', '--pack-destination', dir], REPO_ROOT)) as { filename: string }[];
-  const tarball = join(dir, packed[0].filename);
+  const tarball = join(dir, packed[0]!.filename);
   const prefix = join(dir, 'prefix');
   const install = spawnSync('npm', ['install', '-g', '--prefix', prefix, '--offline', '--no-audit', '--no-fund', tarball], {
     cwd: dir,

@@ -19,7 +19,7 @@ function snippet(heading: RegExp): string {
   const at = README.search(heading);
   expect(at, `README has a snippet under ${heading}`).toBeGreaterThanOrEqual(0);
   const block = /```lua\n([\s\S]*?)```/.exec(README.slice(at));
-  return block![1];
+  return block![1]!;
 }
 
 const SNIPPET_07 = snippet(/^Neovim 0\.7\+/m);
@@ -93,7 +93,7 @@ describe.skipIf(!tool.ok)('README Neovim snippets in a real Neovim', () => {
     return { work, env };
   }
 
-  it('the 0.7+ snippet starts the installed server, which reports with the snippet\'s settings', () => {
+  it("the 0.7+ snippet starts the installed server, which reports with the snippet's settings", () => {
     expect(SNIPPET_07).toContain("cmd = { 'noiselint', 'lsp', '--stdio' }");
     expect(SNIPPET_07).not.toMatch(/npx|vim\.fs\.|vim\.lsp\.config|vim\.lsp\.enable/);
     const { work, env } = homeFor('nvim-07');
@@ -103,7 +103,11 @@ describe.skipIf(!tool.ok)('README Neovim snippets in a real Neovim', () => {
     writeFileSync(init, SNIPPET_07);
     writeFileSync(probe, PROBE);
     const run = nvim(['-u', init, '-c', `luafile ${probe}`, 'preview-sampler.yaml'], work, env);
-    let result: { waited: boolean; diagnostics: { code: string; severity: number; lnum: number; message: string; source: string }[]; clients: string[] };
+    let result: {
+      waited: boolean;
+      diagnostics: { code: string; severity: number; lnum: number; message: string; source: string }[];
+      clients: string[];
+    };
     try {
       result = JSON.parse(readFileSync(env.NOISELINT_NVIM_OUT!, 'utf8'));
     } catch {

@@ -6,15 +6,7 @@
  */
 import Decimal from 'decimal.js';
 import { describe, expect, it } from 'vitest';
-import {
-  alphaBarFromBetas,
-  computeSchedule,
-  cosineBetas,
-  karrasSigmas,
-  linearBetas,
-  scaledLinearBetas,
-  sigmoidBetas,
-} from '@noiselint/shared-math';
+import { alphaBarFromBetas, computeSchedule, cosineBetas, karrasSigmas, linearBetas, scaledLinearBetas, sigmoidBetas } from '@noiselint/shared-math';
 import { expectRelative } from './digits';
 
 const D = Decimal.clone({ precision: 50 });
@@ -113,7 +105,10 @@ describe('Karras et al. 2022, eq. (5) against decimal.js (50 digits)', () => {
     const maxRoot = new D(smax).pow(new D(1).div(rho));
     const minRoot = new D(smin).pow(new D(1).div(rho));
     for (let i = 0; i < N; i++) {
-      const exact = maxRoot.plus(new D(i).div(N - 1).times(minRoot.minus(maxRoot))).pow(rho).toNumber();
+      const exact = maxRoot
+        .plus(new D(i).div(N - 1).times(minRoot.minus(maxRoot)))
+        .pow(rho)
+        .toNumber();
       // decimal.js at 50 digits (npm), Karras et al. 2022 eq. (5): 1e-12 relative
       expectRelative(sigmas[i]!, exact, 1e-12, `sigma[${i}]`);
     }

@@ -14,7 +14,7 @@ import { runOnly } from './harness';
 
 const HEADINGS = [...RULE_DOC_HEADINGS];
 
-it('the headings are the project\'s own set', () => {
+it("the headings are the project's own set", () => {
   expect(HEADINGS).toEqual([
     'What triggers it',
     'What the run loses',
@@ -41,7 +41,7 @@ function sections(docs: string): Map<string, string> {
 function codeBlocks(section: string): { info: string; body: string }[] {
   const out: { info: string; body: string }[] = [];
   const re = /^```([^\n]*)\n([\s\S]*?)^```$/gm;
-  for (let m = re.exec(section); m; m = re.exec(section)) out.push({ info: m[1].trim(), body: m[2] });
+  for (let m = re.exec(section); m; m = re.exec(section)) out.push({ info: m[1]!.trim(), body: m[2]! });
   return out;
 }
 
@@ -87,7 +87,7 @@ describe.each(ALL_RULE_METAS.map((m) => [m.id, m] as const))('docs of %s', (id, 
       const { findings, ruleErrors } = runOnly(id, block.body, { partners: partnersOf(meta), pairRole: partnersOf(meta) ? 'sampling' : undefined });
       expect(ruleErrors).toEqual([]);
       expect(findings.map((f) => `${f.rule}: ${f.message}`)).toHaveLength(1);
-      expect(findings[0].rule).toBe(id);
+      expect(findings[0]!.rule).toBe(id);
       expect(block.body).toContain('Lanternfish Pictures');
     }
   });

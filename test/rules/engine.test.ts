@@ -24,7 +24,10 @@ function project(rules: Record<string, RuleSetting>, extra: Partial<ResolvedProj
 }
 
 function fakeRule(id: string, check: Rule['check'], options: Rule['meta']['options'] = {}): Rule {
-  return { meta: { id, summary: id, defaultSeverity: 'warning', repair: { effects: ['sampling-only'], everyFinding: false }, options, docs: '' }, check };
+  return {
+    meta: { id, summary: id, defaultSeverity: 'warning', repair: { effects: ['sampling-only'], everyFinding: false }, options, docs: '' },
+    check,
+  };
 }
 
 function run(text: string, rules: readonly Rule[], opts: { project?: ResolvedProject; path?: string } = {}) {
@@ -62,12 +65,16 @@ describe('a failing rule', () => {
       throw new Error('rule bug');
     });
     const file = readFile(LEAKY, { path: 'c.yaml' });
-    const findings = runRules(file, { path: 'c.yaml' }, {
-      rules: [boom, getRule('terminal-snr-leak')!],
-      onRuleError: () => {
-        throw new Error('logger bug');
+    const findings = runRules(
+      file,
+      { path: 'c.yaml' },
+      {
+        rules: [boom, getRule('terminal-snr-leak')!],
+        onRuleError: () => {
+          throw new Error('logger bug');
+        },
       },
-    });
+    );
     expect(findings).toHaveLength(1);
   });
 });
@@ -95,10 +102,14 @@ describe('severity and options', () => {
 
   it('passes merged options to the rule', () => {
     let seen: Record<string, unknown> = {};
-    const spy = fakeRule('spy', (ctx) => {
-      seen = ctx.options;
-      return [];
-    }, { a: { default: 1, description: '' }, b: { default: 'x', description: '' } });
+    const spy = fakeRule(
+      'spy',
+      (ctx) => {
+        seen = ctx.options;
+        return [];
+      },
+      { a: { default: 1, description: '' }, b: { default: 'x', description: '' } },
+    );
     run(LEAKY, [spy], { project: project({ spy: { options: { a: 2 } } }) });
     expect(seen).toEqual({ a: 2, b: 'x' });
   });
@@ -118,34 +129,34 @@ sampling:
 
   it('covers `key: value` of a scalar field', () => {
     const { findings } = run(text, [at({ message: 'm', at: 'trainSteps' })]);
-    expect(slice(text, findings[0])).toBe('num_train_timesteps: 1000');
+    expect(slice(text, findings[0]!)).toBe('num_train_timesteps: 1000');
   });
 
   it('covers only the key of a field whose value is a block list', () => {
     const t2 = text.replace('num_train_timesteps: 1000', 'num_train_timesteps: 2');
     const { findings } = run(t2, [at({ message: 'm', at: 'betas' })]);
-    expect(slice(t2, findings[0])).toBe('trained_betas');
+    expect(slice(t2, findings[0]!)).toBe('trained_betas');
   });
 
-  it('falls back to the key of the section holding the concept\'s group siblings', () => {
+  it("falls back to the key of the section holding the concept's group siblings", () => {
     const { findings } = run(text, [at({ message: 'm', at: 'zeroTerminalSnr' })]);
-    expect(slice(text, findings[0])).toBe('noise_scheduler');
+    expect(slice(text, findings[0]!)).toBe('noise_scheduler');
     const { findings: f2 } = run(text, [at({ message: 'm', at: 'guidanceScale' })]);
-    expect(slice(text, f2[0])).toBe('sampling');
+    expect(slice(text, f2[0]!)).toBe('sampling');
   });
 
   it('falls back to the first content line when the siblings sit at the root (or there are none)', () => {
     const flat = `# Lanternfish Pictures: flat file\n\nnum_train_timesteps: 1000\nbeta_schedule: linear\n`;
     const { findings } = run(flat, [at({ message: 'm', at: 'zeroTerminalSnr' })]);
-    expect(slice(flat, findings[0])).toBe('num_train_timesteps: 1000');
+    expect(slice(flat, findings[0]!)).toBe('num_train_timesteps: 1000');
     const { findings: f2 } = run(flat, [at({ message: 'm' })]);
-    expect(slice(flat, f2[0])).toBe('num_train_timesteps: 1000');
+    expect(slice(flat, f2[0]!)).toBe('num_train_timesteps: 1000');
   });
 
   it('uses a key that is present but empty (`key:` / null) for its concept', () => {
     const t2 = `noise_scheduler:\n  num_train_timesteps: 1000\n  rescale_betas_zero_snr: null\n  beta_schedule: linear\n`;
     const { findings } = run(t2, [at({ message: 'm', at: 'zeroTerminalSnr' })]);
-    expect(slice(t2, findings[0])).toBe('rescale_betas_zero_snr: null');
+    expect(slice(t2, findings[0]!)).toBe('rescale_betas_zero_snr: null');
   });
 
   it('resolves related concepts and drops those the file does not set', () => {
@@ -159,7 +170,7 @@ sampling:
         ],
       }),
     ]);
-    expect(findings[0].related.map((r) => [slice(text, { ...findings[0], span: r.span }), r.message])).toEqual([
+    expect(findings[0]!.related.map((r) => [slice(text, { ...findings[0]!, span: r.span }), r.message])).toEqual([
       ['num_inference_steps: 30', 'steps here'],
     ]);
   });
@@ -184,7 +195,7 @@ describe('fixes', () => {
       },
     ]);
     const { findings } = run(text, [rule]);
-    expect(findings[0].fixes.map((f) => [f.title, f.preferred])).toEqual([
+    expect(findings[0]!.fixes.map((f) => [f.title, f.preferred])).toEqual([
       ['first', false],
       ['second', true],
     ]);
@@ -200,7 +211,13 @@ describe('fixes', () => {
           { title: 'c', effect: 'sampling-only', preferred: true, edits: [{ kind: 'set', concept: 'sampleSteps', value: 30 }] },
         ],
       },
-      { message: 'n', fixes: [{ title: 'only', effect: 'sampling-only', edits: [setSpacing] }, { title: 'next', effect: 'sampling-only', edits: [setSpacing] }] },
+      {
+        message: 'n',
+        fixes: [
+          { title: 'only', effect: 'sampling-only', edits: [setSpacing] },
+          { title: 'next', effect: 'sampling-only', edits: [setSpacing] },
+        ],
+      },
     ]);
     const { findings } = run(text, [rule]);
     const m = findings.find((f) => f.message === 'm')!;
@@ -210,15 +227,20 @@ describe('fixes', () => {
   });
 
   it('puts the written value into a title with {newText}', () => {
-    const rule = fakeRule('title', () => [{ message: 'm', fixes: [{ title: 'Write {newText} instead', effect: 'sampling-only', edits: [setSpacing] }] }]);
+    const rule = fakeRule('title', () => [
+      { message: 'm', fixes: [{ title: 'Write {newText} instead', effect: 'sampling-only', edits: [setSpacing] }] },
+    ]);
     const { findings } = run(text, [rule]);
-    expect(findings[0].fixes[0].title).toBe('Write "trailing" instead');
+    expect(findings[0]!.fixes[0]!.title).toBe('Write "trailing" instead');
   });
 });
 
 describe('suppressions, order and duplicates', () => {
   it('drops findings on the line after a deliberate comment, and everywhere with deliberate throughout', () => {
-    const text = LEAKY.replace('  beta_schedule:', '  # noiselint: deliberate terminal-snr-leak because the base checkpoint cannot change\n  beta_schedule:');
+    const text = LEAKY.replace(
+      '  beta_schedule:',
+      '  # noiselint: deliberate terminal-snr-leak because the base checkpoint cannot change\n  beta_schedule:',
+    );
     expect(run(text, RULES).findings.map((f) => f.rule)).toEqual([]);
     const other = LEAKY.replace('  beta_schedule:', '  # noiselint: deliberate sampler-skips-last-step\n  beta_schedule:');
     expect(run(other, RULES).findings.map((f) => f.rule)).toEqual(['terminal-snr-leak']);
@@ -232,16 +254,21 @@ describe('suppressions, order and duplicates', () => {
   });
 
   it('reports a misspelled rule id in a deliberate comment at the id, with the closest id', () => {
-    const text = LEAKY.replace('  beta_schedule:', '  # noiselint: deliberate terminal-snr-leek, sampler-skips-last-step because kept\n  beta_schedule:');
+    const text = LEAKY.replace(
+      '  beta_schedule:',
+      '  # noiselint: deliberate terminal-snr-leek, sampler-skips-last-step because kept\n  beta_schedule:',
+    );
     const { findings } = run(text, RULES);
     // Nothing is kept quiet by the misspelled id: the leak is still reported.
     expect(findings.map((f) => f.rule)).toEqual(['unknown-rule-in-comment', 'terminal-snr-leak']);
-    const typo = findings[0];
+    const typo = findings[0]!;
     expect(slice(text, typo)).toBe('terminal-snr-leek');
     expect(typo.severity).toBe('warning');
-    expect(typo.message).toBe('"terminal-snr-leek" in this noiselint comment names no rule, so it keeps nothing quiet (did you mean "terminal-snr-leak"?)');
+    expect(typo.message).toBe(
+      '"terminal-snr-leek" in this noiselint comment names no rule, so it keeps nothing quiet (did you mean "terminal-snr-leak"?)',
+    );
     const far = run(LEAKY.replace('  beta_schedule:', '  # noiselint: deliberate brightness\n  beta_schedule:'), RULES).findings;
-    expect(far[0].message).toContain('`noiselint rules` lists the rule ids');
+    expect(far[0]!.message).toContain('`noiselint rules` lists the rule ids');
     // Not in files that hold no diffusion config.
     expect(run('title: notes\n# noiselint: deliberate terminal-snr-leek\n', RULES).findings).toEqual([]);
   });

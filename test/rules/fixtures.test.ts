@@ -38,8 +38,14 @@ describe('fixture layout', () => {
   it('has at least one fixture with and one without findings per rule', () => {
     for (const id of RULE_IDS) {
       const mine = fixtures.filter((f) => f.rule === id).map((f) => JSON.parse(readFileSync(f.expectedFile, 'utf8')) as FixtureExpectation);
-      expect(mine.some((e) => e.findings.length > 0), `${id}: a fixture that fires`).toBe(true);
-      expect(mine.some((e) => e.findings.length === 0), `${id}: a fixture that stays quiet`).toBe(true);
+      expect(
+        mine.some((e) => e.findings.length > 0),
+        `${id}: a fixture that fires`,
+      ).toBe(true);
+      expect(
+        mine.some((e) => e.findings.length === 0),
+        `${id}: a fixture that stays quiet`,
+      ).toBe(true);
     }
   });
 });
@@ -51,12 +57,9 @@ describe.each(fixtures.map((f) => [`${f.rule}/${f.name}`, f] as const))('%s', (_
     expect(validateExpectation(fixture.rule, expectation)).toEqual([]);
     const text = readFileSync(fixture.inputFile, 'utf8');
     const project = projectFor(expectation, fixture.rule);
-    const partners = expectation.partner
-      ? partnerDocuments(join(fixture.dir, expectation.partner), expectation.partner, project)
-      : undefined;
+    const partners = expectation.partner ? partnerDocuments(join(fixture.dir, expectation.partner), expectation.partner, project) : undefined;
     const pairRole = expectation.pairRole ?? (expectation.partner ? 'sampling' : undefined);
-    const run = (t: string) =>
-      runOnly(fixture.rule, t, { path: fixture.inputFile, format: fixture.format, project, partners, pairRole });
+    const run = (t: string) => runOnly(fixture.rule, t, { path: fixture.inputFile, format: fixture.format, project, partners, pairRole });
     const { findings, ruleErrors } = run(text);
     expect(ruleErrors).toEqual([]);
 
@@ -64,7 +67,7 @@ describe.each(fixtures.map((f) => [`${f.rule}/${f.name}`, f] as const))('%s', (_
     expect(findings.length, `findings:\n${shown.join('\n')}`).toBe(expectation.findings.length);
 
     expectation.findings.forEach((want, i) => {
-      const got = findings[i];
+      const got = findings[i]!;
       const where = `finding ${i} (${shown[i]})`;
       expect(got.rule, where).toBe(want.rule);
       expect(got.severity, where).toBe(want.severity);
@@ -75,7 +78,7 @@ describe.each(fixtures.map((f) => [`${f.rule}/${f.name}`, f] as const))('%s', (_
       const related = want.related ?? [];
       expect(got.related.length, `${where}: related`).toBe(related.length);
       related.forEach((r, k) => {
-        const rel = got.related[k];
+        const rel = got.related[k]!;
         expect(rel.path, `${where}: related ${k} path`).toBe(r.path);
         const relText = r.path ? readFileSync(join(fixture.dir, r.path), 'utf8') : text;
         expect(relText.slice(rel.span.start, rel.span.end), `${where}: related ${k}`).toBe(r.text);
@@ -86,7 +89,7 @@ describe.each(fixtures.map((f) => [`${f.rule}/${f.name}`, f] as const))('%s', (_
       expect(got.fixes.length, `${where}: fixes ${JSON.stringify(titles)}`).toBe(want.fixes.length);
       expect(got.fixes.filter((f) => f.preferred).length, `${where}: preferred fixes`).toBeLessThanOrEqual(1);
       want.fixes.forEach((wantFix, k) => {
-        const fix = got.fixes[k];
+        const fix = got.fixes[k]!;
         expect(fix.title, `${where}: fix ${k}`).toBe(wantFix.title);
         expect(fix.effect, `${where}: fix ${k} effect`).toBe(wantFix.effect);
         expect(fix.touchesComment, `${where}: fix ${k} touches a comment`).toBe(wantFix.touchesComment ?? false);
@@ -102,7 +105,10 @@ describe.each(fixtures.map((f) => [`${f.rule}/${f.name}`, f] as const))('%s', (_
         expect(after, `${where}: text after fix ${k} (${wantFix.after})`).toBe(expectedAfter);
         // The fixed text parses cleanly.
         const reparsed = runOnly('parse-error', after, { path: fixture.inputFile, format: fixture.format });
-        expect(reparsed.findings.map((f) => f.message), `${where}: fix ${k} leaves readable text`).toEqual([]);
+        expect(
+          reparsed.findings.map((f) => f.message),
+          `${where}: fix ${k} leaves readable text`,
+        ).toEqual([]);
         if (fix.preferred) {
           // The preferred fix removes this finding.
           const again = run(after).findings;

@@ -20,6 +20,7 @@ describe('fmt: 2-3 significant digits for messages', () => {
     [0.012, '0.012'],
     [0.00085, '8.5e-4'],
     [1e-4, '1e-4'],
+    // eslint-disable-next-line no-loss-of-precision -- the double next above 4096 is the point
     [4096.0000000000005, '4096'],
     [14.56, '14.6'],
     [-1.386294, '-1.39'],

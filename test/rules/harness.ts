@@ -147,7 +147,8 @@ export function validateExpectation(rule: string, e: FixtureExpectation): string
     for (const [j, fix] of (f.fixes ?? []).entries()) {
       for (const k of Object.keys(fix)) if (!FIX_KEYS.has(k)) problems.push(`finding ${i} fix ${j}: unknown key "${k}"`);
       if (!FIX_EFFECTS.includes(fix.effect)) problems.push(`finding ${i} fix ${j}: "effect" must be one of ${FIX_EFFECTS.join(', ')}`);
-      if (typeof fix.after !== 'string' || !AFTER_FILE.test(fix.after)) problems.push(`finding ${i} fix ${j}: "after" must name a <name>.after-<k>.<ext> file`);
+      if (typeof fix.after !== 'string' || !AFTER_FILE.test(fix.after))
+        problems.push(`finding ${i} fix ${j}: "after" must name a <name>.after-<k>.<ext> file`);
     }
   }
   return problems;

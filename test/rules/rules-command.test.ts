@@ -32,7 +32,7 @@ describe('noiselint rules', () => {
     expect(lines.find((l) => l.startsWith('resolution-shift-hint '))).toMatch(/ info +none +/);
   });
 
-  it('prints one rule\'s documentation', async () => {
+  it("prints one rule's documentation", async () => {
     const { code, out } = await run(['terminal-snr-leak']);
     expect(code).toBe(0);
     expect(out).toContain('terminal-snr-leak: The last training step still carries signal');

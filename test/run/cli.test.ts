@@ -7,7 +7,7 @@ import { useTempTrees } from '../workspace/helpers';
 import { RUN_PAIRS } from './pairs';
 
 const tree = useTempTrees();
-const yaml = RUN_PAIRS[0];
+const yaml = RUN_PAIRS[0]!;
 
 describe('noiselint rescale-run', () => {
   it('prints one diff across the run, the before/after table and the cautions, and writes nothing', async () => {
@@ -17,8 +17,8 @@ describe('noiselint rescale-run', () => {
     expect(r.stdout).toContain('--- a/night/train-ft.yaml');
     expect(r.stdout).toContain('--- a/night/sample-ft.yaml');
     expect(r.stdout).toContain('+  rescale_betas_zero_snr: true');
-    expect(r.stdout).toContain('-  timestep_spacing: leading   # the preview job\'s default');
-    expect(r.stdout).toContain('+  timestep_spacing: trailing   # the preview job\'s default');
+    expect(r.stdout).toContain("-  timestep_spacing: leading   # the preview job's default");
+    expect(r.stdout).toContain("+  timestep_spacing: trailing   # the preview job's default");
     // The table: terminal SNR 0.004682 -> 0 (Lin et al. 2023, Table 1 and Algorithm 1); leading with
     // 30 steps and offset 1 starts at 29 * floor(1000 / 30) + 1 = 958 (DESIGN section 4), trailing at 999.
     expect(r.stdout).toMatch(/terminal SNR \(SNR_T\)\s+0\.004682\s+0\n/);

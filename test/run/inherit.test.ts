@@ -40,7 +40,7 @@ const yaml = { format: 'yaml' as const, ext: 'yaml' as const };
 describe('a sampling-only file takes its partner schedule', () => {
   it('reads T, the schedule, the rescale and the target from the training file, each with its origin', () => {
     const { sample } = analysePair(yaml, ZERO_SNR_V_TRAIN, SAMPLING_ONLY);
-    const setup = sample.documents[0].setup;
+    const setup = sample.documents[0]!.setup;
     expect(setup.inherited?.from).toBe('train.yaml');
     expect(setup.fields.betaSchedule).toMatchObject({ value: 'scaled_linear', assumed: false, source: null });
     expect(setup.fields.betaSchedule?.inherited).toEqual({ from: 'train.yaml', key: 'noise_scheduler.beta_schedule', assumedThere: false });
@@ -49,7 +49,7 @@ describe('a sampling-only file takes its partner schedule', () => {
     expect(setup.fields.trainSteps?.value).toBe(1000);
     expect(setup.assumed).not.toContain('betaSchedule');
     // The numbers are the partner's: exactly zero terminal SNR (Lin et al. 2023, Algorithm 1).
-    const schedule = sample.documents[0].analysis.schedule!;
+    const schedule = sample.documents[0]!.analysis.schedule!;
     const reference = computeSchedule({ kind: 'scaled_linear', trainSteps: 1000, betaStart: 0.00085, betaEnd: 0.012, rescaleZeroSnr: true });
     expect(reference.ok).toBe(true);
     if (!reference.ok) return;
@@ -99,7 +99,7 @@ timestep_spacing: trailing
       expect.stringContaining("the sampling file's beta schedule is linear but the training file train.yaml uses scaled_linear"),
     ]);
     // Its own family stays; the range the training file writes explicitly is taken, T and the rescale too.
-    const setup = sample.documents[0].setup;
+    const setup = sample.documents[0]!.setup;
     expect(setup.fields.betaSchedule?.value).toBe('linear');
     expect(setup.fields.betaStart?.inherited?.key).toBe('noise_scheduler.beta_start');
     expect(setup.fields.zeroTerminalSnr?.inherited).toBeDefined();
@@ -115,8 +115,8 @@ guidance_rescale: 0.7
 `;
     const { train, sample } = analysePair(yaml, ZERO_SNR_V_TRAIN, sampling);
     expect(sample.findings).toEqual([]);
-    expect(sample.documents[0].setup.fields.predictionTarget?.inherited).toBeUndefined();
-    expect(train.documents[0].setup.inherited).toBeUndefined();
+    expect(sample.documents[0]!.setup.fields.predictionTarget?.inherited).toBeUndefined();
+    expect(train.documents[0]!.setup.inherited).toBeUndefined();
     expect(train.inheritance).toBeNull();
   });
 
@@ -124,14 +124,14 @@ guidance_rescale: 0.7
     const train = `{"trained_betas": [0.0001, 0.001, 0.01, 0.1, 0.5], "prediction_type": "v_prediction", "snr_gamma": 5}`;
     const sampling = `{"num_inference_steps": 5, "timestep_spacing": "trailing"}`;
     const { sample } = analysePair({ format: 'json', ext: 'json' }, train, sampling);
-    const setup = sample.documents[0].setup;
+    const setup = sample.documents[0]!.setup;
     expect(setup.fields.betas?.value).toEqual([0.0001, 0.001, 0.01, 0.1, 0.5]);
     expect(setup.fields.betaSchedule).toBeUndefined();
     expect(setup.fields.betaStart).toBeUndefined();
     expect(setup.fields.trainSteps).toMatchObject({ value: 5, inherited: { from: 'train.json', assumedThere: true } });
-    expect(sample.documents[0].analysis.schedule?.kind).toBe('explicit');
+    expect(sample.documents[0]!.analysis.schedule?.kind).toBe('explicit');
     // trailing with T = N = 5 visits every step from the last (DESIGN section 4: round(arange(T, 0, -T/N)) - 1).
-    expect(sample.documents[0].analysis.sampling?.timesteps).toEqual([4, 3, 2, 1, 0]);
+    expect(sample.documents[0]!.analysis.sampling?.timesteps).toEqual([4, 3, 2, 1, 0]);
   });
 
   it('a flow-matching training file hands down its target, not betas; a continuous-sigma one nothing', () => {
@@ -140,7 +140,7 @@ guidance_rescale: 0.7
     const inh = inheritanceFrom(p, 'sampling');
     expect(inh?.family).toBe('flow');
     const sample = readFile('num_inference_steps: 28\nguidance_scale: 3.5\n', { path: 's.yaml' });
-    const setup = inheritSetup(sample.documents[0].setup, inh!);
+    const setup = inheritSetup(sample.documents[0]!.setup, inh!);
     expect(setup.fields.predictionTarget?.value).toBe('flow');
     expect(setup.fields.betaSchedule?.inherited).toBeUndefined();
     const sigma = partnersOf({ format: 'yaml', ext: 'yaml', train: 'sigma_min: 0.002\nsigma_max: 80\nrho: 7\nresolution: 512\n' });
@@ -151,15 +151,15 @@ guidance_rescale: 0.7
   it('analyzeRead applies the partner values to a reading made without them (the role probe), as analyzeText does', () => {
     const partners = partnersOf({ format: 'yaml', ext: 'yaml', train: ZERO_SNR_V_TRAIN });
     const probe = readFile(SAMPLING_ONLY, { path: 'sample.yaml' });
-    expect(probe.documents[0].setup.fields.betaSchedule?.value).toBe('linear');
+    expect(probe.documents[0]!.setup.fields.betaSchedule?.value).toBe('linear');
     const later = analyzeRead(probe, { path: 'sample.yaml', partners, pairRole: 'sampling' });
     const direct = analyzeText(SAMPLING_ONLY, { path: 'sample.yaml', partners, pairRole: 'sampling' });
-    expect(later.documents[0].setup.fields.betaSchedule?.value).toBe('scaled_linear');
+    expect(later.documents[0]!.setup.fields.betaSchedule?.value).toBe('scaled_linear');
     expect(later.findings.map((f) => f.message)).toEqual(direct.findings.map((f) => f.message));
     // Read again without partners: back to the file's own reading.
     const alone = analyzeRead(later, { path: 'sample.yaml', inherit: null });
-    expect(alone.documents[0].setup.fields.betaSchedule?.value).toBe('linear');
-    expect(alone.documents[0].setup.inherited).toBeUndefined();
+    expect(alone.documents[0]!.setup.fields.betaSchedule?.value).toBe('linear');
+    expect(alone.documents[0]!.setup.inherited).toBeUndefined();
   });
 });
 
@@ -187,20 +187,28 @@ describe('the views show the inherited values', () => {
 
   it('plot data: the partner curve, labelled with its origin', () => {
     const plot = plotDataFor(sample, 'file:///sample.yaml', 1);
-    expect(plot.documents[0].inheritedFrom).toBe('train.yaml');
-    expect(plot.documents[0].label).toContain('from training file train.yaml');
-    expect(plot.documents[0].terminalSnr).toBe(0);
+    expect(plot.documents[0]!.inheritedFrom).toBe('train.yaml');
+    expect(plot.documents[0]!.label).toContain('from training file train.yaml');
+    expect(plot.documents[0]!.terminalSnr).toBe(0);
     // The first sampled step is T - 1 = 999 at SNR 0 (zero terminal SNR).
-    expect(plot.documents[0].sampled[0]).toMatchObject({ t: 999, snr: snrFromAlphaBar(0) });
+    expect(plot.documents[0]!.sampled[0]).toMatchObject({ t: 999, snr: snrFromAlphaBar(0) });
   });
 
   it('explain: text and JSON name the inherited concepts and their file', () => {
     const text = formatExplainText(sample);
     expect(text).toContain('betaSchedule      scaled_linear  (from training file train.yaml: noise_scheduler.beta_schedule)');
     expect(text).toContain('schedule: scaled_linear, T = 1000, rescaled to zero terminal SNR');
-    const json = explainDocumentJson(sample.documents[0]);
+    const json = explainDocumentJson(sample.documents[0]!);
     expect(json.setup.inheritedFrom).toBe('train.yaml');
-    expect([...json.setup.inherited].sort()).toEqual(['betaEnd', 'betaSchedule', 'betaStart', 'latentSpace', 'predictionTarget', 'trainSteps', 'zeroTerminalSnr']);
+    expect([...json.setup.inherited].sort()).toEqual([
+      'betaEnd',
+      'betaSchedule',
+      'betaStart',
+      'latentSpace',
+      'predictionTarget',
+      'trainSteps',
+      'zeroTerminalSnr',
+    ]);
     expect(json.schedule?.terminalSnr).toBe(0);
   });
 });

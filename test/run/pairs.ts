@@ -143,7 +143,9 @@ export function analysePair(
   const sampleLabel = `sample.${pair.ext}`;
   const trainDocs = partnersOf({ ...trainSide, train: trainText }, trainText, trainLabel);
   const sampleRead = readFile(sampleText, { path: sampleLabel, format: pair.format });
-  const sampleDocs = sampleRead.documents.filter((d) => d.setup.isDiffusionConfig).map((d) => ({ path: sampleLabel, setup: d.setup, analysis: d.analysis }));
+  const sampleDocs = sampleRead.documents
+    .filter((d) => d.setup.isDiffusionConfig)
+    .map((d) => ({ path: sampleLabel, setup: d.setup, analysis: d.analysis }));
   return {
     train: analyzeText(trainText, { path: trainLabel, format: trainSide.format, partners: sampleDocs, pairRole: 'training' }),
     sample: analyzeText(sampleText, { path: sampleLabel, format: pair.format, partners: trainDocs, pairRole: 'sampling' }),

@@ -17,7 +17,11 @@ function inputs(pair: Pick<RunPair, 'format' | 'ext'>, train: string, sample: st
   const partners = partnersOf({ ...pair, train }, train, trainPath);
   return [
     { path: trainPath, side: 'training', reading: readFile(train, { path: trainPath, format: pair.format }) },
-    { path: `sample.${pair.ext}`, side: 'sampling', reading: readFile(sample, { path: `sample.${pair.ext}`, format: pair.format, partners, pairRole: 'sampling' }) },
+    {
+      path: `sample.${pair.ext}`,
+      side: 'sampling',
+      reading: readFile(sample, { path: `sample.${pair.ext}`, format: pair.format, partners, pairRole: 'sampling' }),
+    },
   ];
 }
 
@@ -44,11 +48,11 @@ describe.each(RUN_PAIRS)('run rescale: $name', (pair) => {
     const fixed = [...after.train.findings, ...after.sample.findings].filter((f) => RUN_FIXED_RULES.includes(f.rule));
     expect(fixed.map((f) => `${f.rule}: ${f.message}`)).toEqual([]);
     // The training file really is rescaled with a velocity target, and the sampler starts at T - 1.
-    const t = after.train.documents[0];
+    const t = after.train.documents[0]!;
     expect(t.analysis.schedule?.rescaleApplied).toBe(true);
     expect(t.setup.fields.predictionTarget?.value).toBe('v');
     expect(t.setup.fields.offsetNoise).toBeUndefined();
-    expect(after.sample.documents[0].analysis.sampling?.firstTimestep).toBe(999);
+    expect(after.sample.documents[0]!.analysis.sampling?.firstTimestep).toBe(999);
   });
 
   it('a second run changes nothing', () => {
@@ -63,7 +67,7 @@ describe.each(RUN_PAIRS)('run rescale: $name', (pair) => {
       [pair.train, train],
       [pair.sample, sample],
     ]) {
-      expect(comments(after, pair.format)).toEqual(comments(before, pair.format));
+      expect(comments(after!, pair.format)).toEqual(comments(before!, pair.format));
     }
   });
 
@@ -86,22 +90,22 @@ describe.each(RUN_PAIRS)('run rescale: $name', (pair) => {
     const trailing = samplingTimesteps('trailing', 1000, steps, 0);
     expect(trailing.ok && trailing.value[0]).toBe(999);
     expect(row.firstTimestep.after).toBe(999);
-    expect(row.snrAtFirst.after).toBe(snrFromAlphaBar(rescaled.value.alphaBar[999]));
+    expect(row.snrAtFirst.after).toBe(snrFromAlphaBar(rescaled.value.alphaBar[999]!));
     expect(row.snrAtFirst.after).toBe(0);
     // Before: the file's own first step on the leaky schedule, its SNR from the same curve.
     const first = row.firstTimestep.before!;
-    expect(row.snrAtFirst.before).toBeCloseTo(snrFromAlphaBar(ref.value.alphaBar[first]), 12);
+    expect(row.snrAtFirst.before).toBeCloseTo(snrFromAlphaBar(ref.value.alphaBar[first]!), 12);
     // 0.7 where guidance > 1 (common practice, Lin et al. 2023 use 0.7 with 7.5).
     expect(row.guidanceRescale).toEqual({ before: 0, after: 0.7 });
   });
 
   function after(p: RunPair) {
-    return readFile(p.sample, { path: 's', format: p.format, partners: partnersOf(p), pairRole: 'sampling' }).documents[0].analysis;
+    return readFile(p.sample, { path: 's', format: p.format, partners: partnersOf(p), pairRole: 'sampling' }).documents[0]!.analysis;
   }
 });
 
 describe('run rescale: variants', () => {
-  const yaml = RUN_PAIRS[0];
+  const yaml = RUN_PAIRS[0]!;
 
   it('sampling-only changes only spacing and guidance rescale, and the training file not at all', () => {
     const plan = planRunRescale(inputs(yaml, yaml.train, yaml.sample), { samplingOnly: true });
@@ -161,7 +165,7 @@ noise_offset: 0.1
 `;
     const plan = planRunRescale([{ path: 'all.yaml', side: 'alone', reading: readFile(text, { path: 'all.yaml' }) }]);
     const after = applied(plan, 'all.yaml', text);
-    expect(readFile(after, { path: 'all.yaml' }).documents[0].setup.fields.zeroTerminalSnr?.value).toBe(true);
+    expect(readFile(after, { path: 'all.yaml' }).documents[0]!.setup.fields.zeroTerminalSnr?.value).toBe(true);
     const findings = analysePair({ format: 'yaml', ext: 'yaml' }, 'x: 1\n', after).sample.findings;
     expect(findings.filter((f) => RUN_FIXED_RULES.includes(f.rule))).toEqual([]);
     expect(planRunRescale([{ path: 'all.yaml', side: 'alone', reading: readFile(after, { path: 'all.yaml' }) }]).empty).toBe(true);

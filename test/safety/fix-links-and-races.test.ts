@@ -28,7 +28,10 @@ const SMALL = [
 function largeConfig(n = 5_000): string {
   const betas: string[] = [];
   for (let i = 0; i < n; i++) betas.push((1e-4 + ((0.02 - 1e-4) * i) / (n - 1)).toPrecision(8));
-  return SMALL.replace('num_train_timesteps: 1000', `num_train_timesteps: ${n}`).replace(/beta_schedule.*\nbeta_start.*\nbeta_end.*\n/, `trained_betas: [${betas.join(', ')}]\n`);
+  return SMALL.replace('num_train_timesteps: 1000', `num_train_timesteps: ${n}`).replace(
+    /beta_schedule.*\nbeta_start.*\nbeta_end.*\n/,
+    `trained_betas: [${betas.join(', ')}]\n`,
+  );
 }
 
 /** Runs `fix --accept-retraining file` and, as soon as its temporary file appears, saves `edited` into the file. */
@@ -67,7 +70,9 @@ describe('fix and the file system', () => {
       const mine = original.replace('guidance_scale: 7.5', `guidance_scale: ${5 + k} # edited while fixing`);
       const r = await fixWhileEditing(dir, 'long.yaml', mine);
       const now = readFileSync(join(dir, 'long.yaml'), 'utf8');
-      outcomes.push(`run ${k}: exit ${r.code}, edits ${r.edits}, file ${now === mine ? 'edited' : now === original ? 'ORIGINAL' : 'FIXED (edit lost)'}: ${r.stderr.trim()}`);
+      outcomes.push(
+        `run ${k}: exit ${r.code}, edits ${r.edits}, file ${now === mine ? 'edited' : now === original ? 'ORIGINAL' : 'FIXED (edit lost)'}: ${r.stderr.trim()}`,
+      );
       if (r.edits > 0) edited++;
       expect(now, outcomes.join('\n')).toBe(mine);
       for (const n of readdirSync(dir)) expect(n, outcomes.join('\n')).toBe('long.yaml');

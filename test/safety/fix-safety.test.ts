@@ -59,7 +59,12 @@ function* delays(seed: number, maxMs: number): Generator<number> {
  * Runs `fix --accept-retraining --accept-comment-edits file` in `cwd` and kills it with SIGKILL: `afterWriteStartsMs` after the
  * temporary file appears (the write window), or, when that is null, `fallbackMs` after spawning.
  */
-function runFixAndKill(cwd: string, file: string, afterWriteStartsMs: number | null, fallbackMs: number): Promise<{ code: number | null; signal: NodeJS.Signals | null; sawTemp: boolean }> {
+function runFixAndKill(
+  cwd: string,
+  file: string,
+  afterWriteStartsMs: number | null,
+  fallbackMs: number,
+): Promise<{ code: number | null; signal: NodeJS.Signals | null; sawTemp: boolean }> {
   return new Promise((resolve) => {
     const child = spawn(process.execPath, [CLI, 'fix', '--accept-retraining', '--accept-comment-edits', file], { cwd, stdio: 'ignore' });
     let sawTemp = false;

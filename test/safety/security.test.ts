@@ -62,7 +62,13 @@ describe('security', () => {
       ].join('\n'),
     );
     const project = loadProject(join(root, 'runs', 'sample.yaml'));
-    for (const written of ['../secret-train.yaml', 'runs/../../secret-train.yaml', join(outer, 'secret-train.yaml'), 'runs/linked-train.yaml', 'up/secret-train.yaml']) {
+    for (const written of [
+      '../secret-train.yaml',
+      'runs/../../secret-train.yaml',
+      join(outer, 'secret-train.yaml'),
+      'runs/linked-train.yaml',
+      'up/secret-train.yaml',
+    ]) {
       const r = resolvePairPath(project, written);
       expect(r.ok, written).toBe(false);
     }
@@ -87,7 +93,10 @@ describe('security', () => {
 
   it('through the CLI, an escaping pair is a warning and the outside file is never read into findings', () => {
     const { outer, root } = layout();
-    writeFileSync(join(root, 'noiselint.project.yaml'), 'autoPair: false\npairs:\n  - {training: ../secret-train.yaml, sampling: runs/sample.yaml}\n');
+    writeFileSync(
+      join(root, 'noiselint.project.yaml'),
+      'autoPair: false\npairs:\n  - {training: ../secret-train.yaml, sampling: runs/sample.yaml}\n',
+    );
     const r = runCli(['check', 'runs/sample.yaml', '--format', 'json'], { cwd: root });
     expect(describeCrash(r)).toBeNull();
     expect(r.stdout + r.stderr).toMatch(/leaves the project folder/);
@@ -110,7 +119,15 @@ describe('security', () => {
     writeFileSync(join(dir, 'train.yaml'), TRAIN);
     writeFileSync(join(dir, 'sample.yaml'), SAMPLE);
     const nodeArgs = ['--require', NO_NETWORK];
-    for (const args of [['check', '.'], ['check', '.', '--format', 'sarif'], ['fix', '--dry-run', '.'], ['explain', 'train.yaml'], ['rules'], ['rules', 'terminal-snr-leak'], ['--version']]) {
+    for (const args of [
+      ['check', '.'],
+      ['check', '.', '--format', 'sarif'],
+      ['fix', '--dry-run', '.'],
+      ['explain', 'train.yaml'],
+      ['rules'],
+      ['rules', 'terminal-snr-leak'],
+      ['--version'],
+    ]) {
       const r = runCli(args, { cwd: dir, nodeArgs });
       expect(describeCrash(r), args.join(' ')).toBeNull();
       expect(r.stderr, args.join(' ')).not.toMatch(/NOISELINT-(NETWORK|SUBPROCESS)-ATTEMPT/);
@@ -168,8 +185,9 @@ describe('security', () => {
     const bundleHits: string[] = [];
     for (const [re, what] of forbidden.slice(0, 6)) {
       for (const m of bundle.matchAll(new RegExp(re.source, 'g'))) {
-        const module = moduleAt(m.index!);
-        if (!ALLOWED_BUNDLE_MODULES.has(module)) bundleHits.push(`${what} in ${module}: ${bundle.slice(Math.max(0, m.index! - 60), m.index! + 60).replace(/\s+/g, ' ')}`);
+        const module = moduleAt(m.index);
+        if (!ALLOWED_BUNDLE_MODULES.has(module))
+          bundleHits.push(`${what} in ${module}: ${bundle.slice(Math.max(0, m.index - 60), m.index + 60).replace(/\s+/g, ' ')}`);
       }
     }
     expect(bundleHits).toEqual([]);

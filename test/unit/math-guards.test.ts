@@ -126,12 +126,15 @@ describe('beta values', () => {
   it('an empty list and an absurd length are refused without reading elements', () => {
     expect(checkBetas([])).toBe('the beta list is empty');
     let reads = 0;
-    const huge = new Proxy({ length: 1e12 } as ArrayLike<number>, {
-      get(target, key) {
-        if (key !== 'length') reads++;
-        return Reflect.get(target, key);
+    const huge = new Proxy(
+      { length: 1e12 },
+      {
+        get(target, key) {
+          if (key !== 'length') reads++;
+          return Reflect.get(target, key);
+        },
       },
-    });
+    );
     expect(checkBetas(huge)).toContain('at most 100000');
     expect(reads).toBe(0);
   });

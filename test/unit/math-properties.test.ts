@@ -4,14 +4,7 @@
  */
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import {
-  computeSchedule,
-  guidanceRescale,
-  karrasSigmas,
-  populationStd,
-  samplingTimesteps,
-  type ScheduleParams,
-} from '@noiselint/shared-math';
+import { computeSchedule, guidanceRescale, karrasSigmas, populationStd, samplingTimesteps, type ScheduleParams } from '@noiselint/shared-math';
 
 const RUNS = { numRuns: 150 };
 
@@ -84,9 +77,7 @@ describe('schedules', () => {
 });
 
 describe('sampling spacings', () => {
-  const tn = fc
-    .integer({ min: 2, max: 5000 })
-    .chain((T) => fc.record({ T: fc.constant(T), N: fc.integer({ min: 1, max: T }) }));
+  const tn = fc.integer({ min: 2, max: 5000 }).chain((T) => fc.record({ T: fc.constant(T), N: fc.integer({ min: 1, max: T }) }));
 
   function expectStrictlyDecreasingWithin(steps: number[], T: number): void {
     for (let k = 0; k < steps.length; k++) {

@@ -36,7 +36,13 @@ function comparable(text: string, exact: boolean, format: SourceFormat = 'yaml')
   const parsed = parseText(text, format, undefined, { exact });
   return JSON.parse(
     JSON.stringify(
-      { documents: parsed.documents, problems: parsed.problems, comments: parsed.comments, suppressions: parsed.suppressions, lineEnding: parsed.lineEnding },
+      {
+        documents: parsed.documents,
+        problems: parsed.problems,
+        comments: parsed.comments,
+        suppressions: parsed.suppressions,
+        lineEnding: parsed.lineEnding,
+      },
       (_k, v) => (typeof v === 'number' && !Number.isFinite(v) ? `number:${v}` : v),
     ),
   );
@@ -80,7 +86,7 @@ describe('fast YAML reader agrees with the exact reader', () => {
       'a:\nb: ~\nc: null\n',
       'a: {}\nb: []\nc: [ ]\nd: { x: 1 , }\n',
       'a: [1, [2, 3], {b: c}]  # after\n',
-      'a: "x # y"  # real\nb: \'it\'\'s\'\n',
+      "a: \"x # y\"  # real\nb: 'it''s'\n",
       '"k": 1\n\'q\': 2\n',
       'a: multi\n  line plain\nb: "multi\n  line quoted"\n',
       'list:\n- 1\n- two\n-   three\n',
@@ -120,15 +126,66 @@ describe('fast YAML reader agrees with the exact reader', () => {
 
   it('on generated configs (property)', () => {
     const key = fc.constantFrom(
-      'num_train_timesteps', 'beta_schedule', 'beta_start', 'beta_end', 'prediction_type', 'timestep_spacing',
-      'num_inference_steps', 'guidance_scale', 'guidance_rescale', 'steps_offset', 'sampler', 'run', 'lr', 'notes',
-      'rescale_betas_zero_snr', 'noise_offset', '"quoted key"', "'single key'", 'numTrainTimesteps', 'a-b', '1', 'true',
+      'num_train_timesteps',
+      'beta_schedule',
+      'beta_start',
+      'beta_end',
+      'prediction_type',
+      'timestep_spacing',
+      'num_inference_steps',
+      'guidance_scale',
+      'guidance_rescale',
+      'steps_offset',
+      'sampler',
+      'run',
+      'lr',
+      'notes',
+      'rescale_betas_zero_snr',
+      'noise_offset',
+      '"quoted key"',
+      "'single key'",
+      'numTrainTimesteps',
+      'a-b',
+      '1',
+      'true',
     );
     const scalar = fc.oneof(
       fc.constantFrom(
-        '1000', '0.00085', '1e-4', '1.0e-4', '.5', '-0', '+12', '0x1F', '0o17', '1_000', '.inf', '-.Inf', '.nan', '~', 'null',
-        'Null', 'true', 'False', 'yes', 'off', 'scaled_linear', 'v_prediction', 'trailing', 'euler a', '007', '1.', '12:30',
-        '"7.5"', "'it''s'", '"tab\\tand \\u00e9"', '""', "''", '"a # not a comment"', 'x#y', '"multi word"',
+        '1000',
+        '0.00085',
+        '1e-4',
+        '1.0e-4',
+        '.5',
+        '-0',
+        '+12',
+        '0x1F',
+        '0o17',
+        '1_000',
+        '.inf',
+        '-.Inf',
+        '.nan',
+        '~',
+        'null',
+        'Null',
+        'true',
+        'False',
+        'yes',
+        'off',
+        'scaled_linear',
+        'v_prediction',
+        'trailing',
+        'euler a',
+        '007',
+        '1.',
+        '12:30',
+        '"7.5"',
+        "'it''s'",
+        '"tab\\tand \\u00e9"',
+        '""',
+        "''",
+        '"a # not a comment"',
+        'x#y',
+        '"multi word"',
       ),
       fc.integer({ min: -5, max: 5000 }).map(String),
       fc.double({ min: 0, max: 1, noNaN: true }).map(String),
@@ -136,7 +193,10 @@ describe('fast YAML reader agrees with the exact reader', () => {
     const comment = fc.constantFrom('', '', '  # note', ' # noiselint: deliberate terminal-snr-leak because kept', ' #');
     type Tree = { [k: string]: Tree | string | string[] };
     const tree: fc.Arbitrary<Tree> = fc.letrec<{ t: Tree }>((tie) => ({
-      t: fc.dictionary(key, fc.oneof({ depthSize: 'small' }, scalar, scalar, fc.array(scalar, { maxLength: 4 }), tie('t')), { minKeys: 1, maxKeys: 6 }),
+      t: fc.dictionary(key, fc.oneof({ depthSize: 'small' }, scalar, scalar, fc.array(scalar, { maxLength: 4 }), tie('t')), {
+        minKeys: 1,
+        maxKeys: 6,
+      }),
     })).t;
     const render = (t: Tree, indent: number, comments: string[], flow: boolean): string => {
       const pad = ' '.repeat(indent);
@@ -149,7 +209,10 @@ describe('fast YAML reader agrees with the exact reader', () => {
             if (flow || v.length === 0) return `${pad}${name}: [${v.join(', ')}]${c}`;
             return `${pad}${name}:${c}\n${v.map((x) => `${pad}  - ${x}`).join('\n')}`;
           }
-          if (flow) return `${pad}${name}: {${Object.entries(v).map(([a, b]) => `${a}: ${typeof b === 'string' ? b : '1'}`).join(', ')}}`;
+          if (flow)
+            return `${pad}${name}: {${Object.entries(v)
+              .map(([a, b]) => `${a}: ${typeof b === 'string' ? b : '1'}`)
+              .join(', ')}}`;
           return `${pad}${name}:${c}\n${render(v, indent + 2, comments, flow)}`;
         })
         .join('\n');
@@ -157,13 +220,20 @@ describe('fast YAML reader agrees with the exact reader', () => {
     let runs = 0;
     let fast = 0;
     fc.assert(
-      fc.property(tree, fc.array(comment, { minLength: 1, maxLength: 4 }), fc.boolean(), fc.boolean(), fc.boolean(), (t, comments, flow, crlf, header) => {
-        let text = `${header ? '# Lanternfish Pictures (generated)\n\n' : ''}${render(t, 0, comments, flow)}\n`;
-        if (crlf) text = text.replace(/\n/g, '\r\n');
-        runs++;
-        if (takesFastPath(text)) fast++;
-        expectSameReading(text);
-      }),
+      fc.property(
+        tree,
+        fc.array(comment, { minLength: 1, maxLength: 4 }),
+        fc.boolean(),
+        fc.boolean(),
+        fc.boolean(),
+        (t, comments, flow, crlf, header) => {
+          let text = `${header ? '# Lanternfish Pictures (generated)\n\n' : ''}${render(t, 0, comments, flow)}\n`;
+          if (crlf) text = text.replace(/\n/g, '\r\n');
+          runs++;
+          if (takesFastPath(text)) fast++;
+          expectSameReading(text);
+        },
+      ),
       { numRuns: 300, seed: 12 },
     );
     // The property is about the fast reader: most generated configs must reach it.
@@ -175,7 +245,9 @@ describe('fast JSON reader agrees with the exact reader', () => {
   const takesFastJson = (text: string, format: SourceFormat) => readJsonFast(text, format, resolveLimits()) !== null;
 
   it('on every JSON and JSONC fixture and example of the repository', () => {
-    const files = [...filesUnder(join(repo, 'test'), 'jsonc?'), ...filesUnder(join(repo, 'examples'), 'jsonc?')].filter((f) => !f.endsWith('.expected.json'));
+    const files = [...filesUnder(join(repo, 'test'), 'jsonc?'), ...filesUnder(join(repo, 'examples'), 'jsonc?')].filter(
+      (f) => !f.endsWith('.expected.json'),
+    );
     let fast = 0;
     for (const file of files) {
       const text = readFileSync(file, 'utf8');

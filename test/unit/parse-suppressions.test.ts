@@ -34,9 +34,9 @@ describe('YAML deliberate comments', () => {
     for (const s of file.suppressions) {
       for (const { id, span } of s.ids) expect(text.slice(span.start, span.end)).toBe(id);
     }
-    expect(file.suppressions[1].ids.map((i) => i.id)).toEqual(['terminal-snr-leak', 'epsilon-at-zero-snr']);
+    expect(file.suppressions[1]!.ids.map((i) => i.id)).toEqual(['terminal-snr-leak', 'epsilon-at-zero-snr']);
     // `all` is no rule id to check.
-    expect(file.suppressions[3].ids).toEqual([]);
+    expect(file.suppressions[3]!.ids).toEqual([]);
   });
 
   it('ignores the comment form inside a quoted string', () => {
@@ -65,8 +65,8 @@ describe('YAML deliberate comments', () => {
 
   it('the reason starts after the word because (or because:) and may hold any text', () => {
     const f = parseText('# noiselint: deliberate terminal-snr-leak because: v-target, see run 12 -- kept\na: 1\n', 'yaml');
-    expect(f.suppressions[0].rules).toEqual(['terminal-snr-leak']);
-    expect(f.suppressions[0].reason).toBe('v-target, see run 12 -- kept');
+    expect(f.suppressions[0]!.rules).toEqual(['terminal-snr-leak']);
+    expect(f.suppressions[0]!.reason).toBe('v-target, see run 12 -- kept');
   });
 
   it('reports a comment that names no rule, and a noiselint comment with another word', () => {
@@ -76,9 +76,10 @@ describe('YAML deliberate comments', () => {
     for (const word of ['allow terminal-snr-leak', 'deliberat terminal-snr-leak', 'allow-file all']) {
       const f = parseText(`# noiselint: ${word}\na: 1\n`, 'yaml');
       expect(f.suppressions, word).toEqual([]);
-      expect(f.problems.map((p) => p.message), word).toEqual([
-        `"noiselint: ${word.split(' ')[0]}" is not a noiselint comment; write "noiselint: deliberate <rule ids> because <reason>".`,
-      ]);
+      expect(
+        f.problems.map((p) => p.message),
+        word,
+      ).toEqual([`"noiselint: ${word.split(' ')[0]}" is not a noiselint comment; write "noiselint: deliberate <rule ids> because <reason>".`]);
     }
   });
 });
@@ -98,7 +99,7 @@ describe('JSONC deliberate comments', () => {
       { scope: 'next-line', line: 1, targetLine: 2, rules: ['guidance-overexposure'] },
       { scope: 'file', line: 3, targetLine: 4, rules: ['*'] },
     ]);
-    const [{ span }] = f.suppressions[0].ids;
+    const { span } = f.suppressions[0]!.ids[0]!;
     expect(text.slice(span.start, span.end)).toBe('guidance-overexposure');
   });
 });

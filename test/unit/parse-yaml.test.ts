@@ -244,7 +244,12 @@ describe('aliases', () => {
   it('stops an alias bomb with a problem and a bounded tree', () => {
     // Each level repeats the previous one nine times: 9^12 nodes if fully expanded.
     const lines = ['l0: &l0 [x, x, x, x, x, x, x, x, x]'];
-    for (let i = 1; i <= 12; i++) lines.push(`l${i}: &l${i} [${Array(9).fill(`*l${i - 1}`).join(', ')}]`);
+    for (let i = 1; i <= 12; i++)
+      lines.push(
+        `l${i}: &l${i} [${Array(9)
+          .fill(`*l${i - 1}`)
+          .join(', ')}]`,
+      );
     const file = parseText(lines.join('\n'), 'yaml');
     expect(file.problems.some((p) => p.code === 'alias-limit')).toBe(true);
     // Walk the tree as a consumer would (shared nodes visited each time) with a cap.

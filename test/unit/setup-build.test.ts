@@ -102,16 +102,8 @@ describe('recognition', () => {
       'name: ci\non:\n  push:\n  schedule:\n    - cron: "0 3 * * *"\njobs:\n  test:\n    runs-on: ubuntu-latest\n    timeout-minutes: 30\n    steps:\n      - uses: actions/checkout@v4\n      - run: npm test\n',
       'yaml',
     ],
-    [
-      'package.json',
-      '{"name": "lanternfish-tools", "version": "1.0.0", "scripts": {"test": "vitest"}, "dependencies": {"yaml": "2.9.1"}}',
-      'json',
-    ],
-    [
-      'tsconfig.json',
-      '{"compilerOptions": {"target": "ES2022", "module": "ESNext", "strict": true}, "include": ["src"]}',
-      'jsonc',
-    ],
+    ['package.json', '{"name": "lanternfish-tools", "version": "1.0.0", "scripts": {"test": "vitest"}, "dependencies": {"yaml": "2.9.1"}}', 'json'],
+    ['tsconfig.json', '{"compilerOptions": {"target": "ES2022", "module": "ESNext", "strict": true}, "include": ["src"]}', 'jsonc'],
     ['docker-compose.yml', 'services:\n  renderer:\n    image: lanternfish/renderer\n    deploy:\n      replicas: 2\n', 'yaml'],
     ['animation.yaml', 'clip:\n  timesteps: 48\n  shift: 2\n', 'yaml'],
   ];

@@ -20,7 +20,9 @@ function validator() {
 
 const VALID: Record<string, string> = {
   'the demo workspace': readFileSync(join(REPO_ROOT, 'examples/noiselint.project.yaml'), 'utf8'),
-  'the documented example': /```yaml\n(# noiselint\.project\.yaml[\s\S]*?)```/.exec(readFileSync(join(REPO_ROOT, 'docs/project-file.md'), 'utf8'))![1],
+  'the documented example': /```yaml\n(# noiselint\.project\.yaml[\s\S]*?)```/.exec(
+    readFileSync(join(REPO_ROOT, 'docs/project-file.md'), 'utf8'),
+  )![1]!,
   'an empty file': '',
   'a single glob as a string': 'include: "configs/**"\n',
   'rule options': 'rules:\n  terminal-snr-leak:\n    severity: error\n    options: { warnSignal: 0.02 }\n',

@@ -9,7 +9,8 @@ import { useTempTrees } from './helpers';
 
 const tree = useTempTrees();
 
-const TRAIN = 'training:\n  learning_rate: 1.0e-5\nnoise_scheduler:\n  num_train_timesteps: 1000\n  beta_schedule: scaled_linear\n  beta_start: 0.00085\n  beta_end: 0.012\n  prediction_type: epsilon\n';
+const TRAIN =
+  'training:\n  learning_rate: 1.0e-5\nnoise_scheduler:\n  num_train_timesteps: 1000\n  beta_schedule: scaled_linear\n  beta_start: 0.00085\n  beta_end: 0.012\n  prediction_type: epsilon\n';
 const SAMPLE = 'sampler:\n  num_inference_steps: 30\n  timestep_spacing: trailing\n  guidance_scale: 5.0\n';
 
 function countingFs(reads: Map<string, number>): WorkspaceFs {
@@ -62,7 +63,10 @@ describe('workspace session', () => {
     // The open, unsaved training text lost its schedule: no longer a training file.
     const open = new Map([[train, 'notes: nothing here\n']]);
     const fs = overlayFs({ textOf: (p) => open.get(p), namesIn: () => undefined });
-    const session: WorkspaceSession = new WorkspaceSession({ fs, knownRole: (p): FileRole | undefined => (open.has(p) ? session.readRole(p) : undefined) });
+    const session: WorkspaceSession = new WorkspaceSession({
+      fs,
+      knownRole: (p): FileRole | undefined => (open.has(p) ? session.readRole(p) : undefined),
+    });
     expect(session.roleOf(train)).toBe('none');
     expect(session.partnersOf(sample, session.projectFor(sample).project).partners).toEqual([]);
     open.set(train, TRAIN);
@@ -73,8 +77,16 @@ describe('workspace session', () => {
   it('lists open documents that are not on disk yet in their folder', () => {
     const root = tree({ 'night/sample.yaml': SAMPLE });
     const fresh = join(root, 'night/train.yaml');
-    const fs = overlayFs({ textOf: (p) => (p === fresh ? TRAIN : undefined), namesIn: (f) => (f === join(root, 'night') ? ['train.yaml'] : undefined) });
-    expect(fs.readDir(join(root, 'night')).map((e) => e.name).sort()).toEqual(['sample.yaml', 'train.yaml']);
+    const fs = overlayFs({
+      textOf: (p) => (p === fresh ? TRAIN : undefined),
+      namesIn: (f) => (f === join(root, 'night') ? ['train.yaml'] : undefined),
+    });
+    expect(
+      fs
+        .readDir(join(root, 'night'))
+        .map((e) => e.name)
+        .sort(),
+    ).toEqual(['sample.yaml', 'train.yaml']);
     const session = new WorkspaceSession({ fs });
     const sample = join(root, 'night/sample.yaml');
     expect(session.partnersOf(sample, session.projectFor(sample).project).paths).toEqual([fresh]);

@@ -122,7 +122,7 @@ function curvePoints(t: number[], values: (number | null)[]): PlotPoint[] {
   const points: PlotPoint[] = [];
   for (let i = 0; i < t.length; i++) {
     const y = values[i];
-    points.push({ x: t[i], y: typeof y === 'number' && Number.isFinite(y) ? y : null });
+    points.push({ x: t[i]!, y: typeof y === 'number' && Number.isFinite(y) ? y : null });
   }
   return points;
 }
@@ -216,7 +216,7 @@ function chartConfig(
         x: {
           type: 'linear',
           min: xRange?.min ?? Math.min(0, doc.t[0] ?? 0),
-          max: xRange?.max ?? Math.max(lastT, ...doc.sampled.map((s) => s.t)),
+          max: xRange?.max ?? Math.max(lastT!, ...doc.sampled.map((s) => s.t)),
           title: { display: true, text: doc.family === 'discrete' ? 't (training timestep, 0 = clean)' : 't', color: colors.muted },
           ticks: { color: colors.muted },
           grid: { color: colors.grid },
@@ -237,9 +237,11 @@ function chartConfig(
             sort: (a, b) => (a.datasetIndex ?? 0) - (b.datasetIndex ?? 0),
             // Per-point styles would give the legend the first point's marker; show a plain dot.
             generateLabels: (chart) =>
-              Chart.defaults.plugins.legend.labels.generateLabels(chart).map((label) =>
-                label.pointStyle === 'line' ? label : { ...label, pointStyle: 'circle', fillStyle: colors.sampled, strokeStyle: colors.sampled },
-              ),
+              Chart.defaults.plugins.legend.labels
+                .generateLabels(chart)
+                .map((label) =>
+                  label.pointStyle === 'line' ? label : { ...label, pointStyle: 'circle', fillStyle: colors.sampled, strokeStyle: colors.sampled },
+                ),
           },
         },
         tooltip: {
@@ -297,10 +299,7 @@ function render(): void {
   document.body.classList.remove('empty');
 
   const first = doc.sampled[0];
-  const parts = [
-    `${doc.label}.`,
-    `Terminal SNR ${formatNumber(doc.terminalSnr)}, signal at the last step √ᾱ = ${formatNumber(doc.terminalSignal)}.`,
-  ];
+  const parts = [`${doc.label}.`, `Terminal SNR ${formatNumber(doc.terminalSnr)}, signal at the last step √ᾱ = ${formatNumber(doc.terminalSignal)}.`];
   if (first) {
     parts.push(
       `The sampler visits ${plural(doc.sampled.length, 'step')}, starting at t = ${first.t}` +
@@ -308,7 +307,9 @@ function render(): void {
     );
   }
   if (doc.skipped) {
-    parts.push(`Shaded: t = ${doc.skipped.lastVisited + 1} to ${doc.skipped.lastStep}, ${plural(doc.skipped.count, 'training step')} the sampler never visits.`);
+    parts.push(
+      `Shaded: t = ${doc.skipped.lastVisited + 1} to ${doc.skipped.lastStep}, ${plural(doc.skipped.count, 'training step')} the sampler never visits.`,
+    );
   }
   summaryEl.textContent = parts.join(' ');
   if (doc.problems.length > 0) {
@@ -342,8 +343,18 @@ function render(): void {
     signalSets.push(lineDataset('zero terminal SNR rescale', curvePoints(doc.t, doc.rescaled.signal), colors.rescaled, true));
   }
   if (doc.sampled.length > 0) {
-    logSnrSets.push(sampledDataset(sampledPoints(doc.sampled, (s) => s.logSnr, floor), colors));
-    signalSets.push(sampledDataset(sampledPoints(doc.sampled, (s) => s.signal, 0), colors));
+    logSnrSets.push(
+      sampledDataset(
+        sampledPoints(doc.sampled, (s) => s.logSnr, floor),
+        colors,
+      ),
+    );
+    signalSets.push(
+      sampledDataset(
+        sampledPoints(doc.sampled, (s) => s.signal, 0),
+        colors,
+      ),
+    );
   }
   logSnrChart = new Chart(
     logSnrCanvas,
@@ -359,10 +370,23 @@ function render(): void {
   ];
   if (doc.rescaled) tailSets.push(lineDataset('zero terminal SNR rescale', inTail(curvePoints(doc.t, doc.rescaled.signal)), colors.rescaled, true));
   const tailSteps = doc.sampled.filter((s) => s.t >= tail.from);
-  if (tailSteps.length > 0) tailSets.push(sampledDataset(sampledPoints(tailSteps, (s) => s.signal, 0), colors));
+  if (tailSteps.length > 0)
+    tailSets.push(
+      sampledDataset(
+        sampledPoints(tailSteps, (s) => s.signal, 0),
+        colors,
+      ),
+    );
   tailChart = new Chart(
     tailCanvas,
-    chartConfig(doc, tailSets, `√ᾱ, t ≥ ${tail.from} (0 to ${formatNumber(tail.signalMax)})`, colors, { min: 0, max: tail.signalMax }, { min: tail.from, max: Math.max(tail.to, ...tailSteps.map((s) => s.t)) }),
+    chartConfig(
+      doc,
+      tailSets,
+      `√ᾱ, t ≥ ${tail.from} (0 to ${formatNumber(tail.signalMax)})`,
+      colors,
+      { min: 0, max: tail.signalMax },
+      { min: tail.from, max: Math.max(tail.to, ...tailSteps.map((s) => s.t)) },
+    ),
   );
 
   const drawn = doc.current.signal.length;

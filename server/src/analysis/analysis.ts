@@ -8,7 +8,14 @@
  * hold one copy of its 1,000-point curves between them. Every array in an Analysis is read only
  * (ReadonlyFloat64Array); copy it with `.slice()` before changing it.
  */
-import { ASSUMED_SAMPLE_STEPS, DEFAULT_FLOW_SHIFT, DEFAULT_KARRAS, DEFAULT_SPACING, DEFAULT_STEPS_OFFSET, DEFAULT_TRAIN_STEPS } from '../setup/defaults';
+import {
+  ASSUMED_SAMPLE_STEPS,
+  DEFAULT_FLOW_SHIFT,
+  DEFAULT_KARRAS,
+  DEFAULT_SPACING,
+  DEFAULT_STEPS_OFFSET,
+  DEFAULT_TRAIN_STEPS,
+} from '../setup/defaults';
 import {
   checkSampleSteps,
   checkTrainSteps,
@@ -194,8 +201,8 @@ function analyzeDiscrete(setup: Setup, out: Analysis): void {
     };
   }
   analyzeDiscreteSampling(setup, out);
-  const sigmaMax = sigmaFromAlphaBar(n.alphaBar[n.alphaBar.length - 1]);
-  const sigmaMin = sigmaFromAlphaBar(n.alphaBar[0]);
+  const sigmaMax = sigmaFromAlphaBar(n.alphaBar[n.alphaBar.length - 1]!);
+  const sigmaMin = sigmaFromAlphaBar(n.alphaBar[0]!);
   if (isSigmaSpaceSampler(setup)) {
     let karras: number[] | null = null;
     if (valueOf(setup, 'karrasSigmas') === true && out.sampling && Number.isFinite(sigmaMax)) {
@@ -230,7 +237,7 @@ function analyzeDiscreteSampling(setup: Setup, out: Analysis): void {
     return;
   }
   const timesteps = Array.from(ts.value);
-  const first = timesteps[0];
+  const first = timesteps[0]!;
   const inRange = (t: number) => Number.isInteger(t) && t >= 0 && t <= T - 1;
   const abarFirst = inRange(first) ? schedule.curve.alphaBar[first] : NaN;
   out.sampling = {
@@ -240,8 +247,8 @@ function analyzeDiscreteSampling(setup: Setup, out: Analysis): void {
     stepsOffset,
     timesteps,
     firstTimestep: first,
-    snrAtFirst: inRange(first) ? snrFromAlphaBar(abarFirst) : NaN,
-    signalAtFirst: inRange(first) ? Math.sqrt(abarFirst) : NaN,
+    snrAtFirst: inRange(first) ? snrFromAlphaBar(abarFirst!) : NaN,
+    signalAtFirst: inRange(first) ? Math.sqrt(abarFirst!) : NaN,
     outOfRange: timesteps.filter((t) => !inRange(t)),
     startsAtLastStep: first === T - 1,
   };
@@ -270,11 +277,11 @@ function analyzeFlow(setup: Setup, out: Analysis): void {
     rescaleApplied: false,
     curve,
     betas: null,
-    terminalSignal: signal[last],
+    terminalSignal: signal[last]!,
     terminalNoise: 1,
     terminalSnr: flowSnr(1),
-    logSnrMax: logSnr[0],
-    logSnrMin: logSnr[last],
+    logSnrMax: logSnr[0]!,
+    logSnrMin: logSnr[last]!,
     reachesZeroSnr: true,
   };
   const stepsField = setup.fields.sampleSteps;
@@ -297,7 +304,7 @@ function analyzeFlow(setup: Setup, out: Analysis): void {
     stepsAssumed: false,
     stepsOffset: 0,
     timesteps,
-    firstTimestep: timesteps[0],
+    firstTimestep: timesteps[0]!,
     snrAtFirst: 0,
     signalAtFirst: 0,
     outOfRange: [],
@@ -339,10 +346,10 @@ function karrasCurve(sigmaMin: number, sigmaMax: number, rho: number): KarrasCur
   const logSnr = new Float64Array(n);
   const signal = new Float64Array(n);
   for (let i = 0; i < n; i++) {
-    const snr = snrFromSigma(sigmas[i], KARRAS_SIGMA_DATA);
+    const snr = snrFromSigma(sigmas[i]!, KARRAS_SIGMA_DATA);
     alphaBar[i] = snr / (1 + snr);
     logSnr[i] = Math.log(snr);
-    signal[i] = Math.sqrt(alphaBar[i]);
+    signal[i] = Math.sqrt(alphaBar[i]!);
   }
   const entry: KarrasCurve = Object.freeze({ curve: Object.freeze({ alphaBar, logSnr, signal }), sigmas });
   karrasCurves.set(key, entry);
@@ -368,11 +375,11 @@ function analyzeKarras(setup: Setup, out: Analysis): void {
     rescaleApplied: false,
     curve,
     betas: null,
-    terminalSignal: signal[n - 1],
-    terminalNoise: Math.sqrt(1 - alphaBar[n - 1]),
+    terminalSignal: signal[n - 1]!,
+    terminalNoise: Math.sqrt(1 - alphaBar[n - 1]!),
     terminalSnr: snrFromSigma(sigmaMax, KARRAS_SIGMA_DATA),
-    logSnrMax: logSnr[0],
-    logSnrMin: logSnr[n - 1],
+    logSnrMax: logSnr[0]!,
+    logSnrMin: logSnr[n - 1]!,
     reachesZeroSnr: false,
   };
   const N = valueOf(setup, 'sampleSteps');
@@ -385,14 +392,14 @@ function analyzeKarras(setup: Setup, out: Analysis): void {
   const sigmas = Array.from(k.value);
   // Index of each sampled sigma on the dense curve (x axis of the plot).
   const timesteps = sigmas.map((s) => nearestIndex(sig, s));
-  const snrFirst = snrFromSigma(sigmas[0], KARRAS_SIGMA_DATA);
+  const snrFirst = snrFromSigma(sigmas[0]!, KARRAS_SIGMA_DATA);
   out.sampling = {
     spacing: 'karras',
     steps: N,
     stepsAssumed: false,
     stepsOffset: 0,
     timesteps,
-    firstTimestep: timesteps[0],
+    firstTimestep: timesteps[0]!,
     snrAtFirst: snrFirst,
     signalAtFirst: Math.sqrt(snrFirst / (1 + snrFirst)),
     outOfRange: [],
@@ -406,9 +413,9 @@ function nearestIndex(ascending: ReadonlyFloat64Array, value: number): number {
   let hi = ascending.length - 1;
   while (lo < hi) {
     const mid = (lo + hi) >> 1;
-    if (ascending[mid] < value) lo = mid + 1;
+    if (ascending[mid]! < value) lo = mid + 1;
     else hi = mid;
   }
-  if (lo > 0 && Math.abs(ascending[lo - 1] - value) < Math.abs(ascending[lo] - value)) return lo - 1;
+  if (lo > 0 && Math.abs(ascending[lo - 1]! - value) < Math.abs(ascending[lo]! - value)) return lo - 1;
   return lo;
 }

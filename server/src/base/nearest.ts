@@ -31,13 +31,13 @@ export function editDistance(a: string, b: string, max = Infinity): number {
     let rowMin = cur[0];
     for (let j = 1; j <= b.length; j++) {
       const cost = a[i - 1] === b[j - 1] ? 0 : 1;
-      let d = Math.min(prev[j] + 1, cur[j - 1] + 1, prev[j - 1] + cost);
-      if (i > 1 && j > 1 && a[i - 1] === b[j - 2] && a[i - 2] === b[j - 1]) d = Math.min(d, prev2[j - 2] + 1);
+      let d = Math.min(prev[j]! + 1, cur[j - 1]! + 1, prev[j - 1]! + cost);
+      if (i > 1 && j > 1 && a[i - 1] === b[j - 2] && a[i - 2] === b[j - 1]) d = Math.min(d, prev2[j - 2]! + 1);
       cur[j] = d;
       if (d < rowMin) rowMin = d;
     }
     if (rowMin > max) return max + 1;
     [prev2, prev, cur] = [prev, cur, prev2];
   }
-  return prev[b.length];
+  return prev[b.length]!;
 }

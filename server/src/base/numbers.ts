@@ -59,8 +59,8 @@ function trimFixed(s: string): string {
 function trimExponent(s: string): string {
   // "4.0e-5" -> "4e-5", "1.2e+7" -> "1.2e7"
   const [mantissa, exponent] = s.split('e');
-  const m = mantissa.includes('.') ? mantissa.replace(/0+$/, '').replace(/\.$/, '') : mantissa;
-  return `${m}e${exponent.replace(/^\+/, '')}`;
+  const m = mantissa!.includes('.') ? mantissa!.replace(/0+$/, '').replace(/\.$/, '') : mantissa;
+  return `${m}e${exponent!.replace(/^\+/, '')}`;
 }
 
 /** "1 step" / "8 steps" */
@@ -71,5 +71,5 @@ export function plural(n: number, word: string): string {
 /** First few values of a list, e.g. "901, 801, 701, ..., 1". */
 export function fmtList(values: readonly number[], head = 3): string {
   if (values.length <= head + 1) return values.map(fmt).join(', ');
-  return `${values.slice(0, head).map(fmt).join(', ')}, ..., ${fmt(values[values.length - 1])}`;
+  return `${values.slice(0, head).map(fmt).join(', ')}, ..., ${fmt(values[values.length - 1]!)}`;
 }

@@ -61,9 +61,11 @@ export async function main(argv: string[], io: CliIO): Promise<number> {
       io.stdout(usage());
       return 0;
     }
-    const entry = COMMANDS[rest[0]];
+    const entry = COMMANDS[rest[0]!];
     if (!entry) {
-      io.stderr(`noiselint help: unknown command "${rest[0]}"; the closest is ${closestCommand(rest[0])} (commands: ${Object.keys(COMMANDS).join(', ')})\n`);
+      io.stderr(
+        `noiselint help: unknown command "${rest[0]}"; the closest is ${closestCommand(rest[0]!)} (commands: ${Object.keys(COMMANDS).join(', ')})\n`,
+      );
       return 2;
     }
     io.stdout(helpText(entry.spec));
@@ -76,7 +78,9 @@ export async function main(argv: string[], io: CliIO): Promise<number> {
   const entry = COMMANDS[name];
   if (!entry) {
     const what = name.startsWith('-') ? 'option' : 'command';
-    io.stderr(`noiselint: unknown ${what} "${name}"; the closest command is ${closestCommand(name)} (commands: ${Object.keys(COMMANDS).join(', ')}; noiselint --help)\n`);
+    io.stderr(
+      `noiselint: unknown ${what} "${name}"; the closest command is ${closestCommand(name)} (commands: ${Object.keys(COMMANDS).join(', ')}; noiselint --help)\n`,
+    );
     return 2;
   }
   // `<command> --help` anywhere before `--`: the command's page, whatever else is on the line.

@@ -55,7 +55,7 @@ function flagOf(o: OptionSpec): string {
 
 /** The known option nearest to `given` (prefixes first, then edit distance). */
 export function closestOption(given: string, options: readonly OptionSpec[]): OptionSpec | undefined {
-  const bare = given.replace(/^-+/, '').split('=')[0].toLowerCase();
+  const bare = given.replace(/^-+/, '').split('=')[0]!.toLowerCase();
   if (given.startsWith('-') && !given.startsWith('--') && bare.length === 1) {
     const byShort = options.find((o) => o.short?.toLowerCase() === bare);
     if (byShort) return byShort;

@@ -28,4 +28,3 @@ export function consumerChoiceFor(project: ConsumerSettings | undefined, path: s
   }
   return undefined;
 }
-

@@ -5,7 +5,7 @@
  */
 import type { LocatedMap, LocatedNode, ParsedDocument, SourceFormat } from '../parse/types';
 import { DIALECTS, type DialectId } from './dialects';
-import { FAMILIES, GENERIC_FAMILY, SCHEDULER_META_KEYS, familyById } from './profiles';
+import { GENERIC_FAMILY, SCHEDULER_META_KEYS, familyById } from './profiles';
 import type { ConsumerClass, ConsumerDecision, ConsumerFamily, FamilyId } from './types';
 
 /** What the project file says for a path (already matched against its globs). */
@@ -132,8 +132,10 @@ export function decideConsumer(doc: ParsedDocument, format: SourceFormat, path: 
     const family = familyById(choice.family);
     const root = doc.root && doc.root.kind === 'map' ? doc.root : null;
     const wanted = choice.className ?? (detected?.family.id === family.id ? detected.cls?.name : undefined);
-    const cls = wanted ? (family.classes.find((c) => c.name === wanted) ?? null) : (detected?.family.id === family.id ? detected.cls : null);
-    const evidence = [`project file: ${choice.glob ? `"${choice.glob}" ` : ''}sets consumer ${family.id}${choice.className ? ` (${choice.className})` : ''}`];
+    const cls = wanted ? (family.classes.find((c) => c.name === wanted) ?? null) : detected?.family.id === family.id ? detected.cls : null;
+    const evidence = [
+      `project file: ${choice.glob ? `"${choice.glob}" ` : ''}sets consumer ${family.id}${choice.className ? ` (${choice.className})` : ''}`,
+    ];
     if (detected && detected.family.id === family.id) evidence.push(...detected.evidence);
     detected = { family, cls, section: detected?.family.id === family.id ? detected.section : root, evidence };
     basis = 'project';

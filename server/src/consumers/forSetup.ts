@@ -46,12 +46,8 @@ function short(source: string): string {
   return i > 0 ? source.slice(0, i) : source;
 }
 
-function shown(value: unknown): string {
-  return typeof value === 'string' ? `"${value}"` : String(value);
-}
-
 /** The basis of a class default: `DDIMScheduler's default for an absent timestep_spacing (diffusers 0.30, ...)`. */
-export function classDefaultNote(cls: ConsumerClass, concept: Concept, value: unknown): string {
+export function classDefaultNote(cls: ConsumerClass, concept: Concept, _value: unknown): string {
   const key = cls.conceptKeys[concept];
   if (!key) {
     const hint = cls.cannotExpress?.[concept];
@@ -63,7 +59,7 @@ export function classDefaultNote(cls: ConsumerClass, concept: Concept, value: un
 export function classDefaults(cls: ConsumerClass): { concept: Concept; value: ConceptValues[Concept]; note: string }[] {
   const out: { concept: Concept; value: ConceptValues[Concept]; note: string }[] = [];
   for (const concept of CONCEPTS) {
-    let value = cls.defaults[concept] as ConceptValues[Concept] | undefined;
+    let value = cls.defaults[concept];
     if (concept === 'timestepSpacing' && value === undefined && cls.fixedSpacing) value = cls.fixedSpacing;
     if (value === undefined) continue;
     const note =

@@ -73,14 +73,21 @@ export function resolveInterpolations(root: LocatedNode | null): Interpolation[]
     const e = expr.trim();
     if (e.startsWith('oc.env:')) {
       const [name, ...rest] = e.slice('oc.env:'.length).split(',');
-      if (rest.length === 0) return { problem: `\${${e}} needs the environment variable ${name.trim()}, which is not known here and has no default` };
-      const def = rest.join(',').trim().replace(/^(['"])(.*)\1$/, '$2');
+      if (rest.length === 0)
+        return { problem: `\${${e}} needs the environment variable ${name!.trim()}, which is not known here and has no default` };
+      const def = rest
+        .join(',')
+        .trim()
+        .replace(/^(['"])(.*)\1$/, '$2');
       return { value: def === 'null' ? null : def };
     }
     if (/^[A-Za-z_][\w.]*:/.test(e)) return { problem: `\${${e}} uses a resolver this tool does not run` };
     let segments: string[];
     const dots = /^\.+/.exec(e)?.[0].length ?? 0;
-    const rest = e.slice(dots).split('.').filter((s) => s !== '');
+    const rest = e
+      .slice(dots)
+      .split('.')
+      .filter((s) => s !== '');
     if (dots === 0) segments = rest;
     else {
       const up = dots - 1;
@@ -101,7 +108,7 @@ export function resolveInterpolations(root: LocatedNode | null): Interpolation[]
 
   const resolveString = (text: string, container: string[], depth: number): { value: ScalarValue } | { problem: string } => {
     const full = FULL.exec(text.trim());
-    if (full) return resolveExpr(full[1], container, depth);
+    if (full) return resolveExpr(full[1]!, container, depth);
     let problem: string | null = null;
     const joined = text.replace(ANY, (_m, expr: string) => {
       const r = resolveExpr(expr, container, depth);

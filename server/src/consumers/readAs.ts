@@ -48,11 +48,11 @@ export function readAs(root: LocatedNode | null, format: SourceFormat, dialectId
     const { node, path } = stack.pop()!;
     if (node.kind === 'map') {
       for (let i = node.entries.length - 1; i >= 0; i--) {
-        const e = node.entries[i];
+        const e = node.entries[i]!;
         if (e.value) stack.push({ node: e.value, path: path ? `${path}.${e.key}` : e.key });
       }
     } else if (node.kind === 'list') {
-      for (let i = node.items.length - 1; i >= 0; i--) stack.push({ node: node.items[i], path: `${path}[${i}]` });
+      for (let i = node.items.length - 1; i >= 0; i--) stack.push({ node: node.items[i]!, path: `${path}[${i}]` });
     } else if (node.style === 'plain' && !seen.has(node)) {
       seen.add(node);
       const raw = { source: node.raw, style: node.style };
@@ -69,7 +69,15 @@ export function readAs(root: LocatedNode | null, format: SourceFormat, dialectId
       const looks: TypedValue = { value: i.raw, kind: 'str' };
       const reading: LoaderReading = i.resolved
         ? { span: { ...i.scalar.span }, raw: i.scalar.raw, looks, loaded: typedOf(i.resolved.value), path: i.path, interpolation: true }
-        : { span: { ...i.scalar.span }, raw: i.scalar.raw, looks, loaded: { value: null, kind: 'null' }, path: i.path, interpolation: true, unresolved: i.problem };
+        : {
+            span: { ...i.scalar.span },
+            raw: i.scalar.raw,
+            looks,
+            loaded: { value: null, kind: 'null' },
+            path: i.path,
+            interpolation: true,
+            unresolved: i.problem,
+          };
       const at = out.findIndex((r) => r.span.start === reading.span.start);
       if (at >= 0) out.splice(at, 1);
       out.push(reading);

@@ -18,13 +18,7 @@ export type TimestepsResult = { ok: true; value: number[] } | { ok: false; probl
  *   first step is never T - 1 unless c = 1, and T = 1000, N = 30 gives 31 steps.
  * - otherwise the standard spacings.
  */
-export function consumerTimesteps(
-  rule: TimestepRule,
-  spacing: TimestepSpacing,
-  T: number,
-  N: number,
-  offset: number,
-): TimestepsResult {
+export function consumerTimesteps(rule: TimestepRule, spacing: TimestepSpacing, T: number, N: number, offset: number): TimestepsResult {
   const standard = samplingTimesteps(spacing, T, N, offset);
   if (!standard.ok) return standard;
   if (rule === 'n-plus-one' && (spacing === 'linspace' || spacing === 'leading')) {
@@ -56,9 +50,9 @@ export function consumerTimesteps(
 export function karrasTimesteps(alphaBar: ReadonlyFloat64Array, N: number, rho = 7): TimestepsResult {
   const T = alphaBar.length;
   const logSigma = new Float64Array(T);
-  for (let i = 0; i < T; i++) logSigma[i] = 0.5 * Math.log((1 - alphaBar[i]) / alphaBar[i]);
-  const smin = Math.exp(logSigma[0]);
-  const smax = Math.exp(logSigma[T - 1]);
+  for (let i = 0; i < T; i++) logSigma[i] = 0.5 * Math.log((1 - alphaBar[i]!) / alphaBar[i]!);
+  const smin = Math.exp(logSigma[0]!);
+  const smax = Math.exp(logSigma[T - 1]!);
   if (!Number.isFinite(smax)) return { ok: false, problem: 'the largest training sigma is infinite (zero terminal SNR)' };
   const k = karrasSigmas(N, smin, smax, rho);
   if (!k.ok) return k;
@@ -66,8 +60,8 @@ export function karrasTimesteps(alphaBar: ReadonlyFloat64Array, N: number, rho =
   for (const sigma of k.value) {
     const ls = Math.log(sigma);
     let lo = 0;
-    while (lo < T - 2 && logSigma[lo + 1] <= ls) lo++;
-    const w = Math.min(1, Math.max(0, (ls - logSigma[lo]) / (logSigma[lo + 1] - logSigma[lo])));
+    while (lo < T - 2 && logSigma[lo + 1]! <= ls) lo++;
+    const w = Math.min(1, Math.max(0, (ls - logSigma[lo]!) / (logSigma[lo + 1]! - logSigma[lo]!)));
     out.push(Math.round(lo + w));
   }
   out[0] = T - 1;

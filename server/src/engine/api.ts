@@ -24,7 +24,8 @@ export function readFile(text: string, options: AnalyzeOptions): FileReading {
   const choice = consumerChoiceFor(options.project, options.path);
   // A loader chosen in the project file types the scalars while parsing; otherwise the consumer
   // stage decides it from the tree and re-types them (consumers/readAs.ts).
-  const parseOptions = choice?.dialect && !options.parse?.interpret ? { ...options.parse, interpret: DIALECTS[choice.dialect].interpret } : options.parse;
+  const parseOptions =
+    choice?.dialect && !options.parse?.interpret ? { ...options.parse, interpret: DIALECTS[choice.dialect].interpret } : options.parse;
   const parsed = parseText(text, format, { ...options.project?.limits, ...options.limits }, parseOptions);
   const inheritance = inheritanceOf(options);
   const readings = parsed.documents.map((doc) => readDocument(doc, parsed, options.path, choice));
@@ -33,8 +34,8 @@ export function readFile(text: string, options: AnalyzeOptions): FileReading {
     let setup = buildSetup(doc, {
       extraAliases: options.project?.aliases,
       latentSpaceDefault: options.project?.latentSpace,
-      consumer: readings[i].reading,
-      loaderReadings: readings[i].loaderReadings,
+      consumer: readings[i]!.reading,
+      loaderReadings: readings[i]!.loaderReadings,
     });
     if (inheritance) setup = inheritSetup(setup, inheritance);
     return { index: doc.index, setup, analysis: analyzeSetup(setup) };
@@ -52,9 +53,10 @@ function sameInheritance(a: ScheduleInheritance | null, b: ScheduleInheritance |
   if (a === b) return true;
   if (!a || !b || a.from !== b.from || a.family !== b.family || a.values.length !== b.values.length) return false;
   return a.values.every((v, i) => {
-    const w = b.values[i];
+    const w = b.values[i]!;
     if (v.concept !== w.concept || v.key !== w.key || v.assumedThere !== w.assumedThere) return false;
-    if (Array.isArray(v.value) && Array.isArray(w.value)) return v.value.length === w.value.length && v.value.every((x, k) => x === (w.value as number[])[k]);
+    if (Array.isArray(v.value) && Array.isArray(w.value))
+      return v.value.length === w.value.length && v.value.every((x, k) => x === (w.value as number[])[k]);
     return v.value === w.value;
   });
 }

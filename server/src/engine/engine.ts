@@ -270,7 +270,7 @@ function renderFixes(fixes: ConceptFix[], parsed: ParsedFile, setup: Setup, onFa
       edits = null;
     }
     if (!edits || edits.length === 0) continue;
-    let title = fix.title.replace('{newText}', edits.length === 1 ? quoted(edits[0].newText) : 'the suggested value');
+    let title = fix.title.replace('{newText}', edits.length === 1 ? quoted(edits[0]!.newText) : 'the suggested value');
     // An edit that would drop a comment the user wrote needs their consent, whatever its effect.
     const touchesComment = editsTouchComment(parsed, edits);
     if (touchesComment) title += ' (also removes a comment)';
@@ -278,7 +278,10 @@ function renderFixes(fixes: ConceptFix[], parsed: ParsedFile, setup: Setup, onFa
     const effect = fix.effect === 'sampling-only' ? 'sampling-only' : 'needs-retraining';
     rendered.push({ title, effect, touchesComment, preferred: false, edits, wanted: fix.preferred === true });
   }
-  const preferredIndex = Math.max(0, rendered.findIndex((f) => f.wanted));
+  const preferredIndex = Math.max(
+    0,
+    rendered.findIndex((f) => f.wanted),
+  );
   return rendered.map(({ wanted: _wanted, ...f }, i) => {
     const proposal = { ...f, preferred: i === preferredIndex };
     // Where the fix is handed out (LSP code actions), its result is parsed in full from here.
@@ -356,9 +359,7 @@ function finish(findings: Finding[], parsed: ParsedFile, lines: LineIndex): Find
   const suppressed = (f: Finding) => {
     if (suppressions.length === 0) return false;
     const line = lines.lineAt(f.span.start);
-    return suppressions.some(
-      (s) => (s.rules.includes('*') || s.rules.includes(f.rule)) && (s.scope === 'file' || s.targetLine === line),
-    );
+    return suppressions.some((s) => (s.rules.includes('*') || s.rules.includes(f.rule)) && (s.scope === 'file' || s.targetLine === line));
   };
   const seen = new Set<string>();
   const kept: Finding[] = [];

@@ -56,12 +56,7 @@ export const KEY_ALIASES: Record<Concept, KeyAlias[]> = {
   // `betas` alone is also the Adam optimizer's pair: it needs a list of at least 3 numbers.
   betas: [key('trained_betas'), key('given_betas', 'short'), ambiguous('betas')],
   zeroTerminalSnr: [key('rescale_betas_zero_snr'), key('zero_terminal_snr')],
-  predictionTarget: [
-    key('prediction_type'),
-    key('parameterization', 'short'),
-    key('v_parameterization'),
-    ambiguous('objective'),
-  ],
+  predictionTarget: [key('prediction_type'), key('parameterization', 'short'), key('v_parameterization'), ambiguous('objective')],
   timestepSpacing: [key('timestep_spacing')],
   stepsOffset: [key('steps_offset')],
   sampleSteps: [

@@ -58,7 +58,7 @@ function buildIndex(extra: Partial<Record<Concept, string[]>> | undefined): Map<
   const index = new Map<string, Candidate[]>();
   const add = (c: Candidate) => {
     if (c.segs.length === 0) return;
-    const last = c.segs[c.segs.length - 1];
+    const last = c.segs[c.segs.length - 1]!;
     const list = index.get(last) ?? [];
     list.push(c);
     index.set(last, list);
@@ -75,12 +75,7 @@ function buildIndex(extra: Partial<Record<Concept, string[]>> | undefined): Map<
     for (const alias of KEY_ALIASES[concept]) add({ concept, alias, segs: keySegments(alias.spelling), extra: false });
   }
   for (const list of index.values()) {
-    list.sort(
-      (a, b) =>
-        Number(b.extra) - Number(a.extra) ||
-        b.segs.length - a.segs.length ||
-        KIND_ORDER[a.alias.kind] - KIND_ORDER[b.alias.kind],
-    );
+    list.sort((a, b) => Number(b.extra) - Number(a.extra) || b.segs.length - a.segs.length || KIND_ORDER[a.alias.kind] - KIND_ORDER[b.alias.kind]);
   }
   return index;
 }
@@ -145,10 +140,7 @@ interface ListFrame {
   foreign: boolean;
 }
 
-export function findConcepts(
-  root: LocatedNode | null,
-  extraAliases?: Partial<Record<Concept, string[]>>,
-): ConceptHit[] {
+export function findConcepts(root: LocatedNode | null, extraAliases?: Partial<Record<Concept, string[]>>): ConceptHit[] {
   const hits: ConceptHit[] = [];
   if (!root || root.kind === 'scalar') return hits;
   const hasExtra = extraAliases && Object.values(extraAliases).some((v) => Array.isArray(v) && v.length > 0);
@@ -157,7 +149,7 @@ export function findConcepts(
   const stack: (MapFrame | ListFrame)[] = [frameFor(root, NO_SEGMENTS, '', false)];
   let steps = 0;
   while (stack.length > 0 && steps < MAX_WALK_STEPS) {
-    const top = stack[stack.length - 1];
+    const top = stack[stack.length - 1]!;
     steps++;
     if (top.kind === 'list') {
       if (top.i >= top.items.length) {
@@ -165,7 +157,7 @@ export function findConcepts(
         continue;
       }
       const i = top.i++;
-      const item = top.items[i];
+      const item = top.items[i]!;
       if (item.kind !== 'scalar') stack.push(frameFor(item, top.segs, `${top.path}[${i}]`, top.foreign));
       continue;
     }
@@ -173,8 +165,8 @@ export function findConcepts(
       stack.pop();
       continue;
     }
-    const entry = top.entries[top.i];
-    const parent = top.parents ? top.parents[top.i] : top.map;
+    const entry = top.entries[top.i]!;
+    const parent = top.parents ? top.parents[top.i]! : top.map;
     top.i++;
     // The common case, a key that names no concept and holds a scalar, allocates nothing.
     const ownSegs = keySegmentsOf(entry.key);
@@ -213,11 +205,11 @@ function frameFor(node: LocatedNode, segs: readonly string[], path: string, fore
 function ownEntriesSuffice(map: LocatedMap): boolean {
   const entries = map.entries;
   const n = entries.length;
-  for (let i = 0; i < n; i++) if (entries[i].key === '<<') return false;
+  for (let i = 0; i < n; i++) if (entries[i]!.key === '<<') return false;
   if (n <= 16) {
     for (let i = 1; i < n; i++) {
-      const k = normalizedKeyOf(entries[i].key);
-      for (let j = 0; j < i; j++) if (normalizedKeyOf(entries[j].key) === k) return false;
+      const k = normalizedKeyOf(entries[i]!.key);
+      for (let j = 0; j < i; j++) if (normalizedKeyOf(entries[j]!.key) === k) return false;
     }
     return true;
   }

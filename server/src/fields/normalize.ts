@@ -48,7 +48,10 @@ const NORMALIZED_MEMO = new Map<string, string>();
 
 /** An enum value in comparable form: lower case, `++` read as `pp`, separators dropped. */
 export function normalizeValue(value: string): string {
-  return value.toLowerCase().replace(/\+\+/g, 'pp').replace(/[^a-z0-9]/g, '');
+  return value
+    .toLowerCase()
+    .replace(/\+\+/g, 'pp')
+    .replace(/[^a-z0-9]/g, '');
 }
 
 export { editDistance } from '../base/nearest';

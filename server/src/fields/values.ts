@@ -186,7 +186,7 @@ function readBoolean(node: LocatedNode, key: string): Plain<boolean> {
 function readNumberList(items: LocatedNode[], key: string): ReadResult {
   const out: number[] = new Array(items.length);
   for (let i = 0; i < items.length; i++) {
-    const r = readNumber(items[i], `${key}[${i}]`);
+    const r = readNumber(items[i]!, `${key}[${i}]`);
     if (r.status !== 'ok') return r;
     out[i] = r.value;
   }
@@ -198,10 +198,10 @@ function readResolutionList(items: LocatedNode[], key: string): ReadResult {
   if (items.length === 0) return problem('wrong-type', `${key}: expected a number, found an empty list`);
   let max = -Infinity;
   for (let i = 0; i < items.length; i++) {
-    const r = readNumber(items[i], `${key}[${i}]`);
+    const r = readNumber(items[i]!, `${key}[${i}]`);
     if (r.status !== 'ok') return r;
     const v = r.value;
-    if (!Number.isInteger(v)) return problem('not-an-integer', `${key}[${i}]: ${describe(items[i])} is not a whole number`);
+    if (!Number.isInteger(v)) return problem('not-an-integer', `${key}[${i}]: ${describe(items[i]!)} is not a whole number`);
     max = Math.max(max, v);
   }
   return ok('resolution', max);
@@ -306,7 +306,9 @@ function readSampler(node: LocatedNode, key: string, alias: KeyAlias): ReadResul
   let core = last;
   if (isClass) core = core.replace(/(scheduler|sampler)$/i, '');
   if (isFunction) core = core.slice('sample_'.length);
-  let n = normalizeValue(core).replace(/discrete/g, '').replace(/gpu$/, '');
+  let n = normalizeValue(core)
+    .replace(/discrete/g, '')
+    .replace(/gpu$/, '');
   if (KARRAS.has(n)) {
     return alias.kind === 'class-name' ? { status: 'skip' } : ok('karrasSigmas', true);
   }
@@ -322,5 +324,5 @@ function readSampler(node: LocatedNode, key: string, alias: KeyAlias): ReadResul
     return { status: 'ok', values };
   }
   if (UNMODELLED.has(n) || alias.kind === 'class-name') return { status: 'skip' };
-  return unknown(node as LocatedScalar, key, strict, n, written, ENUM_TABLES.sampler!);
+  return unknown(node, key, strict, n, written, ENUM_TABLES.sampler!);
 }

@@ -25,7 +25,7 @@ function firstEndingAfter(spans: Span[], pos: number): number {
   let hi = spans.length;
   while (lo < hi) {
     const mid = (lo + hi) >>> 1;
-    if (spans[mid].end > pos) hi = mid;
+    if (spans[mid]!.end > pos) hi = mid;
     else lo = mid + 1;
   }
   return lo;
@@ -35,7 +35,7 @@ function firstEndingAfter(spans: Span[], pos: number): number {
 export function rangeHasComment(parsed: ParsedFile, start: number, end: number): boolean {
   const spans = commentSpans(parsed);
   for (let i = firstEndingAfter(spans, start); i < spans.length; i++) {
-    const c = spans[i];
+    const c = spans[i]!;
     if (c.start >= Math.max(start, end)) break;
     if (start === end ? c.start < start && start < c.end : c.start < end && start < c.end) return true;
   }

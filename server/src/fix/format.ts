@@ -46,9 +46,9 @@ export function formatNumber(n: number, ctx: NumberContext): string | null {
 
 function exponential(n: number, keepDot: boolean, padExponent: boolean): string {
   let [mantissa, exponent] = Number(n.toPrecision(12)).toExponential().split('e');
-  if (!mantissa.includes('.') && keepDot) mantissa += '.0';
-  const sign = exponent.startsWith('-') ? '-' : '+';
-  let digits = exponent.replace(/^[-+]/, '');
+  if (!mantissa!.includes('.') && keepDot) mantissa += '.0';
+  const sign = exponent!.startsWith('-') ? '-' : '+';
+  let digits = exponent!.replace(/^[-+]/, '');
   if (padExponent && digits.length < 2) digits = `0${digits}`;
   return `${mantissa}e${sign}${digits}`;
 }
@@ -56,7 +56,7 @@ function exponential(n: number, keepDot: boolean, padExponent: boolean): string 
 /** The way a boolean is spelled in this file (`true`, `True` or `TRUE`); JSON is always lower case. */
 export function formatBoolean(b: boolean, spelling: 'lower' | 'title' | 'upper'): string {
   const s = b ? 'true' : 'false';
-  if (spelling === 'title') return s[0].toUpperCase() + s.slice(1);
+  if (spelling === 'title') return s[0]!.toUpperCase() + s.slice(1);
   if (spelling === 'upper') return s.toUpperCase();
   return s;
 }
@@ -65,7 +65,7 @@ const YAML_RESERVED = /^(true|false|yes|no|on|off|y|n|null|~|nan|\.nan|inf|\.inf
 
 /** True when `s` can be written as a YAML plain scalar and reads back as the same string. */
 export function isPlainSafe(s: string): boolean {
-  return /^[A-Za-z_][A-Za-z0-9_.+\-]*$/.test(s) && !YAML_RESERVED.test(s);
+  return /^[A-Za-z_][A-Za-z0-9_.+-]*$/.test(s) && !YAML_RESERVED.test(s);
 }
 
 /** A string in the requested quoting (plain falls back to double quotes when it must). */

@@ -96,7 +96,8 @@ function renderFlowInsert(ctx: InsertContext, p: PendingInsert): void {
   const keySpan = keySpanWithQuotes(text, anchor.keySpan);
   const valueStart = anchor.value ? anchor.value.span.start : keySpan.end;
   const colonText = text.slice(keySpan.end, valueStart);
-  const colon = ctx.format === 'toml' ? (/^[ \t]*=[ \t]*$/.test(colonText) ? colonText : ' = ') : /^[ \t]*:[ \t]*$/.test(colonText) ? colonText : ': ';
+  const colon =
+    ctx.format === 'toml' ? (/^[ \t]*=[ \t]*$/.test(colonText) ? colonText : ' = ') : /^[ \t]*:[ \t]*$/.test(colonText) ? colonText : ': ';
   const after = anchor.span.end;
   // What follows the sibling on its line: an optional comma, then maybe a comment.
   let p1 = skipSpaces(text, after);
@@ -120,9 +121,11 @@ function renderFlowInsert(ctx: InsertContext, p: PendingInsert): void {
     return;
   }
   // Members on one line: `, key: value` right after the sibling, with the map's comma spacing.
-  const sepMatch = /,([ \t]*)/.exec(text.slice(map.entries[0].span.end, map.span.end));
+  const sepMatch = /,([ \t]*)/.exec(text.slice(map.entries[0]!.span.end, map.span.end));
   const spacing = map.entries.length > 1 && sepMatch ? sepMatch[1] : ' ';
-  const inline = members(colon).map((m) => `,${spacing}${m}`).join('');
+  const inline = members(colon)
+    .map((m) => `,${spacing}${m}`)
+    .join('');
   ctx.edits.push({ span: { start: after, end: after }, newText: inline });
 }
 
@@ -143,10 +146,10 @@ function renderTomlInsert(ctx: InsertContext, p: PendingInsert): void {
   const separator = text.slice(keyEnd, anchor.value.span.start);
   const m = /^([ \t]*)=([ \t]*)$/.exec(separator);
   if (!m) giveUp('unusual separator after the sibling key');
-  const eqColumn = keyEnd + m[1].length - lineStart;
+  const eqColumn = keyEnd + m[1]!.length - lineStart;
   const lines = p.members.map((member) => {
     const key = ctx.keyText(member.key, anchor);
-    const pad = m[1].length > 1 ? Math.max(1, eqColumn - (indent.length + key.length)) : m[1].length;
+    const pad = m[1]!.length > 1 ? Math.max(1, eqColumn - (indent.length + key.length)) : m[1]!.length;
     return `${indent}${key}${' '.repeat(pad)}=${m[2]}${member.value}`;
   });
   const end = anchor.span.end;

@@ -61,14 +61,28 @@ export function fixText(text: string, analyze: Analyze, options: FixLoopOptions)
   const allow = allowedFix(options);
   let result = analyze(text);
   const parseError = firstParseError(result);
-  const out: FixLoopResult = { text, applied: [], parseError, initialFindings: result.findings, brokeText: false, remaining: 0, heldForRetraining: 0, heldForComments: 0 };
+  const out: FixLoopResult = {
+    text,
+    applied: [],
+    parseError,
+    initialFindings: result.findings,
+    brokeText: false,
+    remaining: 0,
+    heldForRetraining: 0,
+    heldForComments: 0,
+  };
   if (parseError) return out;
   const seen = new Set<string>([text]);
   let current = text;
   for (let pass = 0; pass < maxPasses; pass++) {
     // A fix whose edits collide with one already chosen waits for the next round.
     const { edits: chosen, selected } = selectFixes(result.findings, current.length, allow);
-    const appliedNow: AppliedFix[] = selected.map(({ finding, fix }) => ({ rule: finding.rule, title: fix.title, effect: fix.effect, touchesComment: fix.touchesComment }));
+    const appliedNow: AppliedFix[] = selected.map(({ finding, fix }) => ({
+      rule: finding.rule,
+      title: fix.title,
+      effect: fix.effect,
+      touchesComment: fix.touchesComment,
+    }));
     if (chosen.length === 0) break;
     let next: string;
     try {

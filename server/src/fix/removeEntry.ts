@@ -41,7 +41,7 @@ export function removeTomlLine(ctx: RemovalContext, entry: LocatedEntry, keepCom
   const m = /^([ \t]*)(#.*)?$/.exec(rest);
   if (!m) giveUp('text after the entry on its line');
   if (m[2] && keepComment) {
-    ctx.edits.push({ span: { start: keyStart, end: end + m[1].length }, newText: '' });
+    ctx.edits.push({ span: { start: keyStart, end: end + m[1]!.length }, newText: '' });
     return;
   }
   let from = lineStart;
@@ -53,7 +53,6 @@ export function removeTomlLine(ctx: RemovalContext, entry: LocatedEntry, keepCom
   }
   ctx.edits.push({ span: { start: from, end: to }, newText: '' });
 }
-
 
 export function remove(ctx: RemovalContext, concept: Concept, keepComment: boolean): void {
   const source = ctx.sourceOf(concept);
@@ -93,7 +92,7 @@ export function removeBlock(ctx: RemovalContext, entry: LocatedEntry, map: Locat
   }
   if (isBlank(before)) {
     let from = lineStart;
-    let to = valueEndsLine ? end : nextLineStart(text, end);
+    const to = valueEndsLine ? end : nextLineStart(text, end);
     if (to === text.length && !text.endsWith('\n') && lineStart > 0) {
       // Last line without a line break: take the break before it instead, keeping the ending.
       from = lineStart - 1;
@@ -104,7 +103,7 @@ export function removeBlock(ctx: RemovalContext, entry: LocatedEntry, map: Locat
   }
   if (/^[ \t]*-[ \t]+$/.test(before) && index === 0) {
     // First key of a list item (`- key: value`): the next key moves up behind the dash.
-    const next = map.entries[1];
+    const next = map.entries[1]!;
     const nextStart = keySpanWithQuotes(text, next.keySpan).start;
     if (rangeHasComment(ctx.parsed, keyStart, nextStart)) giveUp('comment between list-item keys');
     ctx.risky('next key moves up behind a list dash');
@@ -136,7 +135,7 @@ export function removeFlow(ctx: RemovalContext, entry: LocatedEntry, map: Locate
     if (keepFrom >= 0) ctx.edits.push({ span: { start: keyStart, end: keepFrom }, newText: '' });
     else ctx.edits.push({ span: { start: lineStart, end: nextLineStart(text, p) }, newText: '' });
     if (!hasComma && index > 0) {
-      const comma = commaAfter(text, map.entries[index - 1].span.end, ctx.parsed);
+      const comma = commaAfter(text, map.entries[index - 1]!.span.end, ctx.parsed);
       if (comma < 0) giveUp('no comma after the previous member');
       ctx.removedCommas.add(comma);
       ctx.edits.push({ span: { start: comma, end: comma + 1 }, newText: '' });
@@ -146,7 +145,7 @@ export function removeFlow(ctx: RemovalContext, entry: LocatedEntry, map: Locate
   if (hasComma) {
     ctx.edits.push({ span: { start: keyStart, end: skipSpaces(text, commaEnd) }, newText: '' });
   } else if (index > 0) {
-    const comma = commaAfter(text, map.entries[index - 1].span.end, ctx.parsed);
+    const comma = commaAfter(text, map.entries[index - 1]!.span.end, ctx.parsed);
     if (comma < 0) giveUp('no comma after the previous member');
     ctx.removedCommas.add(comma);
     ctx.edits.push({ span: { start: comma, end: after }, newText: '' });

@@ -161,7 +161,7 @@ class Renderer implements RemovalContext, InsertContext {
         if (entry.value === null && spellings.has(normalizeKeySegment(entry.key))) found.push({ entry, key: entry.key, parent: map });
       }
     });
-    return found.length === 1 ? found[0] : null;
+    return found.length === 1 ? found[0]! : null;
   }
 
   private replace(concept: Concept, value: ConceptValues[Concept], source: Pick<FieldSource, 'entry' | 'key' | 'parent'>): void {
@@ -246,7 +246,7 @@ class Renderer implements RemovalContext, InsertContext {
 
   /** How the file spells booleans: the replaced value's casing, else the first boolean found. */
   private booleanStyle(old: LocatedScalar | null): 'lower' | 'title' | 'upper' {
-    const casing = (raw: string) => (raw === raw.toUpperCase() ? 'upper' : raw[0] === raw[0].toUpperCase() ? 'title' : 'lower');
+    const casing = (raw: string) => (raw === raw.toUpperCase() ? 'upper' : raw[0] === raw[0]!.toUpperCase() ? 'title' : 'lower');
     if (old && typeof old.value === 'boolean' && old.style === 'plain') return casing(old.raw);
     if (this.booleanSpelling === undefined) {
       this.booleanSpelling = 'lower';
@@ -269,7 +269,8 @@ class Renderer implements RemovalContext, InsertContext {
         if (typeof s.value === 'string' && s.style !== 'block' && /^[A-Za-z_]/.test(s.value)) counts[s.style]++;
         return false;
       });
-      this.insertQuote = counts.double > counts.plain && counts.double >= counts.single ? 'double' : counts.single > counts.plain ? 'single' : 'plain';
+      this.insertQuote =
+        counts.double > counts.plain && counts.double >= counts.single ? 'double' : counts.single > counts.plain ? 'single' : 'plain';
     }
     return this.insertQuote;
   }
@@ -293,8 +294,8 @@ class Renderer implements RemovalContext, InsertContext {
         this.edits.push({ span: { ...list.span }, newText: `[${written.join(', ')}]` });
         return;
       }
-      const prefix = text.slice(open + 1, items[0].span.start);
-      const suffix = text.slice(items[items.length - 1].span.end, close);
+      const prefix = text.slice(open + 1, items[0]!.span.start);
+      const suffix = text.slice(items[items.length - 1]!.span.end, close);
       // Group the original items by line to keep the wrapping: items per line and the break.
       let line = 0;
       let perLine = 0;
@@ -303,7 +304,7 @@ class Renderer implements RemovalContext, InsertContext {
       let lineSep: string | null = null;
       for (let i = 0; i < items.length; i++) {
         if (i > 0) {
-          const gap = text.slice(items[i - 1].span.end, items[i].span.start);
+          const gap = text.slice(items[i - 1]!.span.end, items[i]!.span.start);
           if (gap.includes('\n')) {
             line++;
             lineSep ??= gap;
@@ -338,10 +339,10 @@ class Renderer implements RemovalContext, InsertContext {
       if (/[\r\n]/.test(text.slice(item.span.start, item.span.end))) giveUp('multi-line list item');
     }
     if (dashPrefix === null) giveUp('empty block list');
-    const sep = items.length > 1 ? text.slice(items[0].span.end, items[1].span.start) : this.eol + dashPrefix;
+    const sep = items.length > 1 ? text.slice(items[0]!.span.end, items[1]!.span.start) : this.eol + dashPrefix;
     if (sep !== '\n' + dashPrefix && sep !== '\r\n' + dashPrefix) giveUp('blank lines inside the list');
-    const first = items[0].span.start;
-    const last = items[items.length - 1].span.end;
+    const first = items[0]!.span.start;
+    const last = items[items.length - 1]!.span.end;
     this.edits.push({ span: { start: first, end: last }, newText: written.join(sep) });
   }
 
@@ -354,7 +355,7 @@ class Renderer implements RemovalContext, InsertContext {
     const consumerKeys = this.setup.consumer?.insertKeys;
     const key = consumerKeys ? (consumerKeys[concept] ?? null) : insertKeyFor(concept, this.setup.keyStyle, keys);
     if (key === null) giveUp(`no key to write ${concept}`);
-    const squash = (s: string) => s.toLowerCase().replace(/[_\-]/g, '');
+    const squash = (s: string) => s.toLowerCase().replace(/[_-]/g, '');
     if (keys.some((k) => squash(k) === squash(key))) giveUp(`the map already has a key like ${key}`);
     const valueText = this.valueText(concept, value, null, key);
     let pending = this.inserts.find((p) => p.map === map && p.anchor === anchor);
@@ -403,7 +404,7 @@ class Renderer implements RemovalContext, InsertContext {
     const root = this.setup.rootMap;
     if (!root) giveUp('the document has no map to insert into');
     const live = root.entries.filter((e) => !this.removed.has(e));
-    return { map: root, anchor: live.length > 0 ? live[live.length - 1] : null };
+    return { map: root, anchor: live.length > 0 ? live[live.length - 1]! : null };
   }
 
   keyText(key: string, like: LocatedEntry | null): string {
@@ -444,8 +445,8 @@ class Renderer implements RemovalContext, InsertContext {
       merged.push(edit);
     }
     for (let i = 0; i < merged.length; i++) {
-      for (let j = i + 1; j < merged.length && merged[j].span.start < merged[i].span.end; j++) {
-        if (editsConflict(merged[i], merged[j])) giveUp('edits overlap');
+      for (let j = i + 1; j < merged.length && merged[j]!.span.start < merged[i]!.span.end; j++) {
+        if (editsConflict(merged[i]!, merged[j]!)) giveUp('edits overlap');
       }
     }
     if (this.crOut) for (const e of merged) e.newText = e.newText.replace(/\n/g, '\r');

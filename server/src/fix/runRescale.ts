@@ -171,7 +171,7 @@ function writes(setup: Setup, c: Concept): boolean {
 }
 
 function setEdit<C extends Concept>(concept: C, value: ConceptValues[C]): ConceptEdit {
-  return { kind: 'set', concept, value } as ConceptEdit;
+  return { kind: 'set', concept, value };
 }
 
 const ALIGNED: readonly Concept[] = ['trainSteps', 'betaSchedule', 'betaStart', 'betaEnd', 'betas', 'zeroTerminalSnr', 'predictionTarget'];
@@ -186,19 +186,24 @@ interface TrainingAfter {
 }
 
 function sameValue(a: unknown, b: unknown): boolean {
-  if (Array.isArray(a) && Array.isArray(b)) return a.length === b.length && a.every((x, i) => Math.abs(x - b[i]) <= 1e-12 * Math.max(Math.abs(x), Math.abs(b[i])));
+  if (Array.isArray(a) && Array.isArray(b))
+    return a.length === b.length && a.every((x, i) => Math.abs(x - b[i]) <= 1e-12 * Math.max(Math.abs(x), Math.abs(b[i])));
   if (typeof a === 'number' && typeof b === 'number') return a === b || Math.abs(a - b) <= 1e-9 * Math.max(Math.abs(a), Math.abs(b));
   return a === b;
 }
 
 /** The training side's changes (schedule, target, offset noise) of one document. */
-function trainingChanges(doc: DocumentResult, answers: ReaderAnswers, samplingOnly: boolean): { change: DocumentChange; after: TrainingAfter | null } {
+function trainingChanges(
+  doc: DocumentResult,
+  answers: ReaderAnswers,
+  samplingOnly: boolean,
+): { change: DocumentChange; after: TrainingAfter | null } {
   const { setup, analysis } = doc;
   const change: DocumentChange = { documentIndex: doc.index, edits: [], what: [] };
   const schedule = analysis.schedule;
   const params = schedule?.family === 'discrete' ? paramsOf(setup) : null;
   const values: TrainingAfter['values'] = {};
-  for (const c of ALIGNED) if (setup.fields[c]) values[c] = setup.fields[c]!.value;
+  for (const c of ALIGNED) if (setup.fields[c]) values[c] = setup.fields[c].value;
   // A document that writes no schedule field holds nothing to rescale (its schedule is elsewhere).
   const hasOwnSchedule = (['betaSchedule', 'betas', 'betaStart', 'betaEnd', 'trainSteps', 'zeroTerminalSnr'] as const).some((c) => writes(setup, c));
   let rescaled = schedule?.rescaleApplied === true || schedule?.reachesZeroSnr === true;
@@ -216,7 +221,13 @@ function trainingChanges(doc: DocumentResult, answers: ReaderAnswers, samplingOn
     rescaled = true;
   }
   const target = setup.fields.predictionTarget?.value;
-  if (!samplingOnly && schedule?.family === 'discrete' && rescaled && (target === undefined || target === 'epsilon') && !setup.fields.predictionTarget?.inherited) {
+  if (
+    !samplingOnly &&
+    schedule?.family === 'discrete' &&
+    rescaled &&
+    (target === undefined || target === 'epsilon') &&
+    !setup.fields.predictionTarget?.inherited
+  ) {
     change.edits.push(setEdit('predictionTarget', 'v'));
     values.predictionTarget = 'v';
     change.what.push('switch the prediction target to velocity (Salimans & Ho 2022)');
@@ -247,7 +258,7 @@ function samplingChanges(
       if (!writes(setup, c)) continue;
       const want = training.values[c];
       if (want === undefined || sameValue(setup.fields[c]!.value, want)) continue;
-      change.edits.push(setEdit(c, want as ConceptValues[Concept]));
+      change.edits.push(setEdit(c, want));
       change.what.push(`align ${c} with the training file ${training.path}`);
     }
   }
@@ -282,7 +293,9 @@ function samplingChanges(
       change.what.push(bound.note);
     } else {
       const who = setup.fields.sampler?.value ? `the ${setup.fields.sampler.value} sampler` : 'the sampler';
-      notes.push(`${path}: ${who} steps in sigma, which is infinite at the last step of the rescaled schedule; the sampling code must ${bound.instruction}.`);
+      notes.push(
+        `${path}: ${who} steps in sigma, which is infinite at the last step of the rescaled schedule; the sampling code must ${bound.instruction}.`,
+      );
     }
   }
   return change;
@@ -313,7 +326,7 @@ function numbersFor(path: string, doc: DocumentResult, paramsAfter: Params | nul
     if (spacing !== 'flow' && spacing !== 'karras') {
       const ts = samplingTimesteps(spacing, afterNumbers.alphaBar.length, before.sampling.steps, offset);
       if (ts.ok) {
-        firstAfter = ts.value[0];
+        firstAfter = ts.value[0]!;
         const abar = afterNumbers.alphaBar[firstAfter];
         if (abar !== undefined) {
           snrFirstAfter = snrFromAlphaBar(abar);
@@ -375,11 +388,15 @@ export function planRunRescale(files: readonly RunFileInput[], options: RunOptio
       const partner = file.side === 'sampling' ? training : null;
       const paramsAfter = partner?.params ?? paramsOf(setup);
       const rescaledAfter = samplingOnly
-        ? (partner ? partner.setup.fields.zeroTerminalSnr?.value === true || !!doc.analysis.schedule?.reachesZeroSnr : !!doc.analysis.schedule?.rescaleApplied || !!doc.analysis.schedule?.reachesZeroSnr)
+        ? partner
+          ? partner.setup.fields.zeroTerminalSnr?.value === true || !!doc.analysis.schedule?.reachesZeroSnr
+          : !!doc.analysis.schedule?.rescaleApplied || !!doc.analysis.schedule?.reachesZeroSnr
         : partner
           ? partner.rescaled
           : own
-            ? own.edits.some((e) => e.kind === 'set' && (e.concept === 'zeroTerminalSnr' || e.concept === 'betas')) || !!doc.analysis.schedule?.rescaleApplied || !!doc.analysis.schedule?.reachesZeroSnr
+            ? own.edits.some((e) => e.kind === 'set' && (e.concept === 'zeroTerminalSnr' || e.concept === 'betas')) ||
+              !!doc.analysis.schedule?.rescaleApplied ||
+              !!doc.analysis.schedule?.reachesZeroSnr
             : !!doc.analysis.schedule?.rescaleApplied;
       const change = own ?? { documentIndex: doc.index, edits: [], what: [] };
       if (setup.role !== 'training') {
@@ -406,7 +423,8 @@ export function planRunRescale(files: readonly RunFileInput[], options: RunOptio
     if (textEdits === null) blocked.push(file.path);
     plans.push({ path: file.path, side: file.side, changes, textEdits: textEdits && sortEdits(textEdits) });
   }
-  const learns = (e: ConceptEdit) => e.kind === 'remove' || e.concept === 'zeroTerminalSnr' || e.concept === 'betas' || e.concept === 'predictionTarget';
+  const learns = (e: ConceptEdit) =>
+    e.kind === 'remove' || e.concept === 'zeroTerminalSnr' || e.concept === 'betas' || e.concept === 'predictionTarget';
   const changesTraining = plans.some((p) => p.side !== 'sampling' && p.changes.some((c) => c.edits.some(learns)));
   return {
     files: plans,

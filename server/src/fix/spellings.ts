@@ -116,11 +116,7 @@ function squash(s: string): string {
  * Spelling of an enum value of `concept`. `oldValue` is the raw value being replaced (unquoted),
  * `key` the key it sits under. Returns null when the value cannot be written in that place.
  */
-export function spellEnum(
-  concept: Concept,
-  value: string,
-  context: { key: string | null; oldValue: string | null; style: KeyStyle },
-): string | null {
+export function spellEnum(concept: Concept, value: string, context: { key: string | null; oldValue: string | null; style: KeyStyle }): string | null {
   const old = context.oldValue?.trim() ?? null;
   switch (concept) {
     case 'predictionTarget': {

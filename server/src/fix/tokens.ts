@@ -12,7 +12,6 @@ export function giveUp(why: string): never {
   throw new GiveUp(why);
 }
 
-
 export const JSON_NUMBER = /^-?(?:0|[1-9]\d*)(?:\.\d+)?(?:[eE][-+]?\d+)?$/;
 export const YAML_NUMBER = /^[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?$/;
 /** A JSON string, without the raw characters some YAML readers take for line breaks. */
@@ -47,9 +46,8 @@ export function isScalarToken(text: string, format: SourceFormat): boolean {
 /** `[n, n, ...]` of number tokens (an inserted beta list). */
 export function isNumberList(text: string, format: SourceFormat): boolean {
   const m = /^\[(.*)\]$/.exec(text);
-  return m !== null && m[1].split(', ').every((n) => isNumberToken(n, format));
+  return m !== null && m[1]!.split(', ').every((n) => isNumberToken(n, format));
 }
-
 
 export function skipSpaces(text: string, pos: number): number {
   while (pos < text.length && (text[pos] === ' ' || text[pos] === '\t')) pos++;
@@ -98,11 +96,11 @@ export function walkScalars(root: LocatedNode | null, visit: (s: LocatedScalar) 
       if (visit(node)) return;
     } else if (node.kind === 'map') {
       for (let i = node.entries.length - 1; i >= 0; i--) {
-        const v = node.entries[i].value;
+        const v = node.entries[i]!.value;
         if (v) stack.push(v);
       }
     } else {
-      for (let i = node.items.length - 1; i >= 0; i--) stack.push(node.items[i]);
+      for (let i = node.items.length - 1; i >= 0; i--) stack.push(node.items[i]!);
     }
   }
 }

@@ -82,9 +82,7 @@ export function kindRequested(only: string[] | undefined, kind: string): boolean
 }
 
 function sameRange(a: Diagnostic['range'], b: Diagnostic['range']): boolean {
-  return (
-    a.start.line === b.start.line && a.start.character === b.start.character && a.end.line === b.end.line && a.end.character === b.end.character
-  );
+  return a.start.line === b.start.line && a.start.character === b.start.character && a.end.line === b.end.line && a.end.character === b.end.character;
 }
 
 function workspaceEdit(uri: string, version: number, edits: LspTextEdit[], versioned: boolean): WorkspaceEdit {

@@ -15,7 +15,6 @@ import { baseName } from '../workspace/selection';
 /** How an analysis read its text: enough to read it again the same way (partners only change findings). */
 export type ReadOptions = Omit<AnalyzeOptions, 'partners' | 'pairRole'>;
 
-
 /** One analysis of an open document, tied to the version and settings generation it used. */
 export interface Analyzed {
   /** Unique per computation: the pull result id. */

@@ -39,7 +39,17 @@ import { isPosition, requireUri } from './util';
 import { runCodeActions, type RunContext } from './runAction';
 
 /** Schedule fields, in the order the "Show noise schedule" lens looks for them. */
-const SCHEDULE_FIELDS: readonly Concept[] = ['betaSchedule', 'betas', 'trainSteps', 'betaStart', 'betaEnd', 'zeroTerminalSnr', 'sigmaMax', 'sigmaMin', 'flowShift'];
+const SCHEDULE_FIELDS: readonly Concept[] = [
+  'betaSchedule',
+  'betas',
+  'trainSteps',
+  'betaStart',
+  'betaEnd',
+  'zeroTerminalSnr',
+  'sigmaMax',
+  'sigmaMin',
+  'flowShift',
+];
 
 /** What the handlers need of the server. */
 export interface ViewContext extends RunContext {
@@ -53,7 +63,11 @@ export interface ViewContext extends RunContext {
   settingsFor(uri: string): Promise<EditorSettings>;
 }
 
-export async function pullDiagnostics(ctx: ViewContext, params: DocumentDiagnosticParams, token: CancellationToken): Promise<DocumentDiagnosticReport> {
+export async function pullDiagnostics(
+  ctx: ViewContext,
+  params: DocumentDiagnosticParams,
+  token: CancellationToken,
+): Promise<DocumentDiagnosticReport> {
   const uri = requireUri(params, true);
   const od = ctx.docs.get(uri);
   if (!od) return { kind: 'full', items: [] };

@@ -41,7 +41,16 @@ import {
 import { TextDocument } from 'vscode-languageserver-textdocument';
 import { LruCache } from '@noiselint/shared-math';
 import type { Finding } from '../base/findings';
-import { EXPLAIN_REQUEST, FIX_ALL_KIND, PLOT_CHANGED_NOTIFICATION, PLOT_DATA_REQUEST, SUMMARY_REQUEST, RUN_RESCALE_REQUEST, type RunRescaleParams, type UriParams } from '../base/protocol';
+import {
+  EXPLAIN_REQUEST,
+  FIX_ALL_KIND,
+  PLOT_CHANGED_NOTIFICATION,
+  PLOT_DATA_REQUEST,
+  SUMMARY_REQUEST,
+  RUN_RESCALE_REQUEST,
+  type RunRescaleParams,
+  type UriParams,
+} from '../base/protocol';
 import { analyzeRead, analyzeText, findingsAsData, readFile, type AnalyzeOptions, type FileReading, type FileResult } from '../engine/api';
 import { VERSION } from '../base/version';
 import { isConfigFileName, isProjectFileName } from '../workspace/discover';
@@ -57,14 +66,21 @@ import { NO_CAPABILITIES, readCapabilities, type Capabilities } from './capabili
 import { findingToDiagnostic, type PositionMapper } from './convert';
 import { cancelPending, OpenDocuments, type Analyzed, type OpenDocument } from './documents';
 import * as requests from './requests';
-import { DEFAULT_DEBOUNCE_MS, defaultSettings, mergeSettingsIntoProject, PushedSettings, SETTINGS_SECTION, settingsFromClient, type EditorSettings } from './settings';
+import {
+  DEFAULT_DEBOUNCE_MS,
+  defaultSettings,
+  mergeSettingsIntoProject,
+  PushedSettings,
+  SETTINGS_SECTION,
+  settingsFromClient,
+  type EditorSettings,
+} from './settings';
 import { errorMessage, fileFinding, formatOf, isRuleId, notificationGuard, requestGuard, requireUri, uriToPath, visibleFindings } from './util';
 import { WorkspaceIndex } from './workspaceIndex';
 
 const WATCH_GLOBS = ['**/*.{yaml,yml,json,jsonc,toml}', '**/noiselint.project.{yaml,yml,json}'];
 /** Documents whose full reading (tree, setups, analysis) is kept for the views; others are read again. */
 const RECENT_READS = 8;
-
 
 export class NoiselintServer {
   caps: Capabilities = NO_CAPABILITIES;
@@ -106,11 +122,25 @@ export class NoiselintServer {
     c.onCodeAction(this.guard('codeAction', (p: CodeActionParams) => requests.codeActions(this, p)));
     c.onCodeLens(this.guard('codeLens', (p: CodeLensParams) => requests.codeLenses(this, p)));
     c.languages.inlayHint.on(this.guard('inlayHint', (p: InlayHintParams) => requests.inlayHints(this, p)));
-    c.languages.diagnostics.on(this.guard('diagnostic', (p: DocumentDiagnosticParams, token: CancellationToken) => requests.pullDiagnostics(this, p, token)));
-    c.onRequest(PLOT_DATA_REQUEST, this.guard(PLOT_DATA_REQUEST, (p: UriParams) => requests.plotData(this, p)));
-    c.onRequest(EXPLAIN_REQUEST, this.guard(EXPLAIN_REQUEST, (p: UriParams) => requests.explain(this, p)));
-    c.onRequest(SUMMARY_REQUEST, this.guard(SUMMARY_REQUEST, (p: UriParams) => requests.summary(this, p)));
-    c.onRequest(RUN_RESCALE_REQUEST, this.guard(RUN_RESCALE_REQUEST, (p: RunRescaleParams) => runRescaleRequest(this, p)));
+    c.languages.diagnostics.on(
+      this.guard('diagnostic', (p: DocumentDiagnosticParams, token: CancellationToken) => requests.pullDiagnostics(this, p, token)),
+    );
+    c.onRequest(
+      PLOT_DATA_REQUEST,
+      this.guard(PLOT_DATA_REQUEST, (p: UriParams) => requests.plotData(this, p)),
+    );
+    c.onRequest(
+      EXPLAIN_REQUEST,
+      this.guard(EXPLAIN_REQUEST, (p: UriParams) => requests.explain(this, p)),
+    );
+    c.onRequest(
+      SUMMARY_REQUEST,
+      this.guard(SUMMARY_REQUEST, (p: UriParams) => requests.summary(this, p)),
+    );
+    c.onRequest(
+      RUN_RESCALE_REQUEST,
+      this.guard(RUN_RESCALE_REQUEST, (p: RunRescaleParams) => runRescaleRequest(this, p)),
+    );
     c.listen();
   }
 
@@ -151,7 +181,9 @@ export class NoiselintServer {
   private async initialized(): Promise<void> {
     const c = this.connection;
     if (this.caps.configurationDynamic) {
-      await c.client.register(DidChangeConfigurationNotification.type, { section: SETTINGS_SECTION }).catch((e: unknown) => this.logError('register', e));
+      await c.client
+        .register(DidChangeConfigurationNotification.type, { section: SETTINGS_SECTION })
+        .catch((e: unknown) => this.logError('register', e));
     }
     if (this.caps.watchedFilesDynamic) {
       await c.client
@@ -403,7 +435,9 @@ export class NoiselintServer {
     } catch {
       reading = null; // analyzeText below reports it
     }
-    const pairing = od.path ? this.workspace.pairingFor(od.path, project, (err) => this.logError('pairing', err)) : { partners: [], paths: [] as string[] };
+    const pairing = od.path
+      ? this.workspace.pairingFor(od.path, project, (err) => this.logError('pairing', err))
+      : { partners: [], paths: [] as string[] };
     const options: AnalyzeOptions = {
       path: od.path ?? od.uri,
       format: od.format,
@@ -507,8 +541,6 @@ export class NoiselintServer {
     const file = analyzeText(read.text, { path, project, partners: pairing.partners, pairRole: pairing.role, limits: settings.limits });
     return { file, shown: visibleFindings(file, null), version: null };
   }
-
-
 }
 
 /**

@@ -26,7 +26,16 @@ export const DEFAULT_DEBOUNCE_MS = 150;
 const MAX_DEBOUNCE_MS = 10_000;
 
 export function defaultSettings(): EditorSettings {
-  return { enable: true, rules: {}, thresholds: {}, files: { include: [], exclude: [] }, limits: {}, debounceMs: DEFAULT_DEBOUNCE_MS, docsBaseUrl: '', hover: { images: 'auto' } };
+  return {
+    enable: true,
+    rules: {},
+    thresholds: {},
+    files: { include: [], exclude: [] },
+    limits: {},
+    debounceMs: DEFAULT_DEBOUNCE_MS,
+    docsBaseUrl: '',
+    hover: { images: 'auto' },
+  };
 }
 
 function isRecord(v: unknown): v is Record<string, unknown> {
@@ -95,7 +104,8 @@ export function normalizeSettings(raw: unknown): EditorSettings {
 /** The project file's settings with the editor's rule severities, options and limits on top. */
 export function mergeSettingsIntoProject(project: ResolvedProject, settings: EditorSettings): ResolvedProject {
   const rules: Record<string, RuleSetting> = {};
-  for (const [id, setting] of Object.entries(project.rules)) rules[id] = { ...setting, options: setting.options ? { ...setting.options } : undefined };
+  for (const [id, setting] of Object.entries(project.rules))
+    rules[id] = { ...setting, options: setting.options ? { ...setting.options } : undefined };
   for (const [id, severity] of Object.entries(settings.rules)) rules[id] = { ...rules[id], severity };
   for (const [id, options] of Object.entries(settings.thresholds)) {
     rules[id] = { ...rules[id], options: { ...rules[id]?.options, ...options } };

@@ -160,7 +160,9 @@ class ResyncingReader extends AbstractMessageReader implements MessageReader {
       }
       const headerLength = end + HEADER_END.length;
       if (length < 0) {
-        this.log(`a message header has no valid Content-Length (${JSON.stringify(shorten(head.subarray(0, end).toString('latin1'), 80))}); skipped up to the next Content-Length header`);
+        this.log(
+          `a message header has no valid Content-Length (${JSON.stringify(shorten(head.subarray(0, end).toString('latin1'), 80))}); skipped up to the next Content-Length header`,
+        );
         this.resync(headerLength);
         continue;
       }
@@ -213,7 +215,7 @@ class ResyncingReader extends AbstractMessageReader implements MessageReader {
   }
 
   private peek(n: number): Buffer {
-    if (this.chunks[0].length >= n) return this.chunks[0].subarray(0, n);
+    if (this.chunks[0]!.length >= n) return this.chunks[0]!.subarray(0, n);
     const joined = Buffer.concat(this.chunks, this.buffered);
     this.chunks = [joined];
     return joined.subarray(0, n);
@@ -221,7 +223,7 @@ class ResyncingReader extends AbstractMessageReader implements MessageReader {
 
   private take(n: number): Buffer {
     const out = this.peek(n);
-    const first = this.chunks[0];
+    const first = this.chunks[0]!;
     if (first.length === n) this.chunks.shift();
     else this.chunks[0] = first.subarray(n);
     this.buffered -= n;
@@ -269,7 +271,11 @@ class BoundedWriter extends AbstractMessageWriter implements MessageWriter {
     }
     let body = serialise(msg);
     if (this.heldBytes + body.length > MAX_HELD_BYTES && m.method === undefined && m.id !== undefined) {
-      body = serialise({ jsonrpc: '2.0', id: m.id, error: { code: SERVER_CANCELLED, message: 'the client stopped reading; this answer was dropped, ask again' } } as Message);
+      body = serialise({
+        jsonrpc: '2.0',
+        id: m.id,
+        error: { code: SERVER_CANCELLED, message: 'the client stopped reading; this answer was dropped, ask again' },
+      } as Message);
     }
     this.held.push(body);
     this.heldBytes += body.length;
@@ -302,7 +308,11 @@ class BoundedWriter extends AbstractMessageWriter implements MessageWriter {
     for (const msg of held) this.send(msg);
     for (const msg of diagnostics) this.send(msg);
     if (this.dropped > 0) {
-      this.send({ jsonrpc: '2.0', method: 'window/logMessage', params: { type: 3, message: `noiselint: the client did not read; ${this.dropped} log messages were dropped` } } as Message);
+      this.send({
+        jsonrpc: '2.0',
+        method: 'window/logMessage',
+        params: { type: 3, message: `noiselint: the client did not read; ${this.dropped} log messages were dropped` },
+      } as Message);
       this.dropped = 0;
     }
     if (this.output.writableLength > this.highWater) {

@@ -25,7 +25,7 @@ export function formatOf(languageId: string | undefined, uri: string): SourceFor
 }
 
 export function errorMessage(err: unknown): string {
-  return (err instanceof Error ? err.message : String(err)).split('\n')[0];
+  return (err instanceof Error ? err.message : String(err)).split('\n')[0]!;
 }
 
 export function requireUri(params: unknown, nested: boolean): string {

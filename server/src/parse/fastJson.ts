@@ -56,13 +56,14 @@ class Reader {
       this.skipSpace();
       if (this.pos >= text.length) break;
       const c = text.charCodeAt(this.pos);
-      const top = stack[stack.length - 1];
+      const top = stack[stack.length - 1]!;
       if (c === 0x7b /* { */ || c === 0x5b /* [ */) {
         if (!top && root) giveUp();
         this.expectValueSlot(top);
         if (stack.length + 1 > this.limits.maxNesting) giveUp();
         const span = { start: this.pos, end: this.pos };
-        const node: LocatedMap | LocatedList = c === 0x7b ? { kind: 'map', entries: [], style: 'flow', span } : { kind: 'list', items: [], style: 'flow', span };
+        const node: LocatedMap | LocatedList =
+          c === 0x7b ? { kind: 'map', entries: [], style: 'flow', span } : { kind: 'list', items: [], style: 'flow', span };
         this.pos++;
         stack.push({ node, key: null, filled: false, comma: false });
         continue;
@@ -186,7 +187,7 @@ class Reader {
       value = Number(m[0]);
     }
     // A literal runs into a letter or digit (`truex`, `1a`): not JSON.
-    if (this.pos < text.length && /[A-Za-z0-9_.$+-]/.test(text[this.pos])) giveUp();
+    if (this.pos < text.length && /[A-Za-z0-9_.$+-]/.test(text[this.pos]!)) giveUp();
     return { kind: 'scalar', value, raw: text.slice(start, this.pos), style: 'plain', span: { start, end: this.pos } };
   }
 

@@ -123,7 +123,7 @@ function build(text: string, events: Event[], limits: ParseLimits, interpret: Sc
   };
 
   for (let i = 0; i < events.length; i++) {
-    const e = events[i];
+    const e = events[i]!;
     switch (e.type) {
       case DOCUMENT:
         if (++documents > 1 || e.explicitStart || e.explicitEnd || e.directives.length > 0) throw new Unsupported('document markers');
@@ -226,9 +226,9 @@ function findComments(text: string, scalars: Span[]): SourceComment[] {
   let s = 0;
   let i = text.indexOf('#');
   while (i !== -1) {
-    while (s < scalars.length && scalars[s].end <= i) s++;
-    if (s < scalars.length && scalars[s].start <= i) {
-      i = text.indexOf('#', scalars[s].end);
+    while (s < scalars.length && scalars[s]!.end <= i) s++;
+    if (s < scalars.length && scalars[s]!.start <= i) {
+      i = text.indexOf('#', scalars[s]!.end);
       continue;
     }
     const prev = i === 0 ? 10 : text.charCodeAt(i - 1);

@@ -8,15 +8,7 @@
 import { createScanner, parseTree, printParseErrorCode } from 'jsonc-parser';
 import type { Node as JsonNode, ParseError } from 'jsonc-parser';
 import type { LocatedEntry, LocatedNode, ParsedDocument, ParseLimits, ParseProblem, SourceFormat, Span } from './types';
-import {
-  blankRegions,
-  dropDuplicateKeys,
-  placeholderFor,
-  tooDeepProblem,
-  tooLongProblem,
-  type Cut,
-  type SourceComment,
-} from './shared';
+import { blankRegions, dropDuplicateKeys, placeholderFor, tooDeepProblem, tooLongProblem, type Cut, type SourceComment } from './shared';
 
 export interface JsonReadResult {
   documents: ParsedDocument[];
@@ -114,10 +106,7 @@ const NON_FINITE_TOKEN = /-?(?:NaN|Infinity)(?![A-Za-z0-9_$])/y;
 /** jsonc-parser's SyntaxKind.Unknown: a token outside the JSON grammar. */
 const UNKNOWN = 16;
 
-function scanJson(
-  text: string,
-  maxNesting: number,
-): { comments: SourceComment[]; cuts: Cut[]; trailingCommas: number[]; nonFinite: Cut[] } {
+function scanJson(text: string, maxNesting: number): { comments: SourceComment[]; cuts: Cut[]; trailingCommas: number[]; nonFinite: Cut[] } {
   const nonFinite: Cut[] = [];
   let nonFiniteEnd = -1;
   const comments: SourceComment[] = [];
@@ -220,9 +209,9 @@ class JsonConverter {
     if (n.type === 'array') {
       const count = Math.min(kids.length, this.limits.maxListLength);
       const items: LocatedNode[] = [];
-      for (let i = 0; i < count; i++) items.push(this.convert(kids[i], depth + 1));
+      for (let i = 0; i < count; i++) items.push(this.convert(kids[i]!, depth + 1));
       if (kids.length > count) {
-        this.problems.push(tooLongProblem({ start: kids[count].offset, end: span.end }, kids.length, this.limits.maxListLength));
+        this.problems.push(tooLongProblem({ start: kids[count]!.offset, end: span.end }, kids.length, this.limits.maxListLength));
       }
       return { kind: 'list', items, style: 'flow', span };
     }
@@ -240,7 +229,7 @@ class JsonConverter {
 
   private afterColon(keyEnd: number): number {
     let i = keyEnd;
-    while (i < this.text.length && /\s/.test(this.text[i])) i++;
+    while (i < this.text.length && /\s/.test(this.text[i]!)) i++;
     return this.text[i] === ':' ? i + 1 : keyEnd;
   }
 }

@@ -38,16 +38,16 @@ export class LineIndex {
   lineStart(line: number): number {
     if (line <= 0) return 0;
     if (line >= this.starts.length) return this.length;
-    return this.starts[line];
+    return this.starts[line]!;
   }
 
   /** Offset just past the last character of `line`, before its line break. */
   lineEnd(line: number): number {
     if (line < 0) return 0;
     if (line >= this.starts.length - 1) return this.length;
-    let end = this.starts[line + 1];
+    let end = this.starts[line + 1]!;
     if (this.text.charCodeAt(end - 1) === 10) end--;
-    if (end > this.starts[line] && this.text.charCodeAt(end - 1) === 13) end--;
+    if (end > this.starts[line]! && this.text.charCodeAt(end - 1) === 13) end--;
     return end;
   }
 
@@ -59,7 +59,7 @@ export class LineIndex {
     let hi = starts.length - 1;
     while (lo < hi) {
       const mid = (lo + hi + 1) >> 1;
-      if (starts[mid] <= offset) lo = mid;
+      if (starts[mid]! <= offset) lo = mid;
       else hi = mid - 1;
     }
     return lo;
@@ -68,15 +68,15 @@ export class LineIndex {
   positionAt(offset: number): Position {
     const clamped = Math.max(0, Math.min(Math.floor(offset), this.length));
     const line = this.lineAt(clamped);
-    return { line, character: clamped - this.starts[line] };
+    return { line, character: clamped - this.starts[line]! };
   }
 
   /** Characters past the end of a line clamp to the line's last offset (including its break). */
   offsetAt(position: Position): number {
     if (position.line < 0) return 0;
     if (position.line >= this.starts.length) return this.length;
-    const start = this.starts[position.line];
+    const start = this.starts[position.line]!;
     const next = position.line + 1 < this.starts.length ? this.starts[position.line + 1] : this.length;
-    return Math.max(start, Math.min(start + Math.max(0, position.character), next));
+    return Math.max(start, Math.min(start + Math.max(0, position.character), next!));
   }
 }

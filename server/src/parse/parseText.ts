@@ -16,7 +16,7 @@ export function formatFromPath(path: string): SourceFormat | null {
   const clean = path.replace(/[?#].*$/, '');
   const m = /\.([A-Za-z]+)$/.exec(clean);
   if (!m) return null;
-  switch (m[1].toLowerCase()) {
+  switch (m[1]!.toLowerCase()) {
     case 'yaml':
     case 'yml':
       return 'yaml';
@@ -59,7 +59,7 @@ export function parseText(text: string, format: SourceFormat, limits?: Partial<P
     const interpret = options.interpret ?? coreScalar;
     const read =
       format === 'yaml'
-        ? ((!options.exact && readYamlFast(safeText, lim, interpret)) || readYaml(safeText, lim, interpret))
+        ? (!options.exact && readYamlFast(safeText, lim, interpret)) || readYaml(safeText, lim, interpret)
         : format === 'toml'
           ? readToml(safeText, lim, bom)
           : (!options.exact && readJsonFast(safeText, format, lim)) || readJson(safeText, format, lim, bom);

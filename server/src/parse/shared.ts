@@ -1,5 +1,5 @@
 /** Helpers shared by the YAML and JSON readers. */
-import type { LocatedNode, LocatedScalar, ParseLimits, ParseProblem, Span } from './types';
+import type { LocatedScalar, ParseLimits, ParseProblem, Span } from './types';
 import { DEFAULT_PARSE_LIMITS } from './types';
 
 /**
@@ -99,10 +99,7 @@ export function tooLongProblem(span: Span, length: number, maxListLength: number
  * Removes all but the last entry of each key, reporting the dropped ones. The last wins because
  * that is what the programs that read these files (common YAML and JSON loaders) do.
  */
-export function dropDuplicateKeys<E extends { key: string; keySpan: Span }>(
-  entries: E[],
-  problems: ParseProblem[],
-): E[] {
+export function dropDuplicateKeys<E extends { key: string; keySpan: Span }>(entries: E[], problems: ParseProblem[]): E[] {
   if (entries.length < 2) return entries;
   const lastIndex = new Map<string, number>();
   entries.forEach((e, i) => lastIndex.set(e.key, i));

@@ -24,12 +24,7 @@ const PREFIX = /^(\s*noiselint\s*:\s*)(\S*)/i;
 const RULE_ID = /^[a-z0-9][a-z0-9-]*$/i;
 const USAGE = `write "noiselint: ${DIRECTIVE_WORD} <rule ids> ${REASON_WORD} <reason>"`;
 
-export function readSuppressions(
-  text: string,
-  comments: SourceComment[],
-  lines: LineIndex,
-  problems: ParseProblem[],
-): Suppression[] {
+export function readSuppressions(text: string, comments: SourceComment[], lines: LineIndex, problems: ParseProblem[]): Suppression[] {
   if (comments.length === 0) return [];
   // Lines whose first non-blank content is a comment.
   const commentLines = new Set<number>();
@@ -49,7 +44,7 @@ export function readSuppressions(
     const head = PREFIX.exec(c.text);
     if (!head) return;
     const span = { start: c.start, end: c.end };
-    const word = head[2].toLowerCase();
+    const word = head[2]!.toLowerCase();
     if (word !== DIRECTIVE_WORD) {
       problems.push({
         code: 'bad-suppression',

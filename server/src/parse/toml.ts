@@ -52,7 +52,12 @@ function syntaxProblem(e: unknown, length: number): ParseProblem {
   if (e instanceof RangeError) {
     return { code: 'internal-error', severity: 'error', span: { start: 0, end: 0 }, message: `The file could not be read: ${message}` };
   }
-  return { code: 'toml-syntax', severity: 'error', span: { start: at, end: Math.min(at + 1, length) }, message: message.endsWith('.') ? message : `${message}.` };
+  return {
+    code: 'toml-syntax',
+    severity: 'error',
+    span: { start: at, end: Math.min(at + 1, length) },
+    message: message.endsWith('.') ? message : `${message}.`,
+  };
 }
 
 /**
@@ -108,7 +113,7 @@ export function scanToml(text: string, maxNesting: number): { comments: SourceCo
 
 /** Offset just past the string that starts at `at` (basic, literal, or their multi-line forms). */
 function skipString(text: string, at: number): number {
-  const q = text[at];
+  const q = text[at]!;
   const n = text.length;
   if (text.startsWith(q + q + q, at)) {
     let i = at + 3;
@@ -197,7 +202,7 @@ class TreeBuilder {
         this.problems.push(tooDeepProblem({ start, end }, this.limits.maxNesting));
         return null;
       }
-      const part = parts[i];
+      const part = parts[i]!;
       const name = this.keyName(part);
       let entry = this.index.get(current)?.get(name);
       if (!entry) {
@@ -207,7 +212,7 @@ class TreeBuilder {
       }
       const value = entry.value;
       if (value?.kind === 'map') current = value;
-      else if (value?.kind === 'list' && value.items.length > 0 && value.items[value.items.length - 1].kind === 'map') {
+      else if (value?.kind === 'list' && value.items.length > 0 && value.items[value.items.length - 1]!.kind === 'map') {
         current = value.items[value.items.length - 1] as LocatedMap;
       } else return null;
       if (current.style === 'block' && current.span.end < end) current.span.end = end;
@@ -272,15 +277,16 @@ class TreeBuilder {
     if (cut) return placeholderFor(this.text, cut);
     if (depth > this.limits.maxNesting && node.type !== 'TOMLValue') {
       // The scan reported a cut inside already when there is one.
-      if (![...this.cutStarts.values()].some((c) => c.start >= span.start && c.end <= span.end)) this.problems.push(tooDeepProblem(span, this.limits.maxNesting));
+      if (![...this.cutStarts.values()].some((c) => c.start >= span.start && c.end <= span.end))
+        this.problems.push(tooDeepProblem(span, this.limits.maxNesting));
       return placeholderFor(this.text, span);
     }
     if (node.type === 'TOMLArray') {
       const count = Math.min(node.elements.length, this.limits.maxListLength);
       const items: LocatedNode[] = [];
-      for (let i = 0; i < count; i++) items.push(this.convert(node.elements[i], depth + 1));
+      for (let i = 0; i < count; i++) items.push(this.convert(node.elements[i]!, depth + 1));
       if (node.elements.length > count) {
-        this.problems.push(tooLongProblem({ start: node.elements[count].range[0], end: span.end }, node.elements.length, this.limits.maxListLength));
+        this.problems.push(tooLongProblem({ start: node.elements[count]!.range[0], end: span.end }, node.elements.length, this.limits.maxListLength));
       }
       return { kind: 'list', items, style: 'flow', span };
     }

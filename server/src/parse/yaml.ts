@@ -40,9 +40,7 @@ export interface YamlReadResult {
   comments: SourceComment[];
 }
 
-const CORE_TAGS = new Set(
-  ['str', 'int', 'float', 'bool', 'null', 'map', 'seq'].map((t) => `tag:yaml.org,2002:${t}`),
-);
+const CORE_TAGS = new Set(['str', 'int', 'float', 'bool', 'null', 'map', 'seq'].map((t) => `tag:yaml.org,2002:${t}`));
 
 export function readYaml(text: string, limits: ParseLimits, interpret: ScalarInterpreter = coreScalar): YamlReadResult {
   const problems: ParseProblem[] = [];
@@ -97,7 +95,11 @@ const CORE_TAG_MISMATCH = 'core-tag: ';
  */
 const EXPLICIT_CORE_TAGS: ScalarTag[] = (
   [
-    ['int', (s: string) => (typeof resolveCorePlain(s) === 'number' && /^[-+]?(0o[0-7]+|0x[0-9a-fA-F]+|[0-9]+)$/.test(s.trim()) ? resolveCorePlain(s) : undefined)],
+    [
+      'int',
+      (s: string) =>
+        typeof resolveCorePlain(s) === 'number' && /^[-+]?(0o[0-7]+|0x[0-9a-fA-F]+|[0-9]+)$/.test(s.trim()) ? resolveCorePlain(s) : undefined,
+    ],
     ['float', (s: string) => (typeof resolveCorePlain(s) === 'number' ? resolveCorePlain(s) : undefined)],
     ['bool', (s: string) => (typeof resolveCorePlain(s) === 'boolean' ? resolveCorePlain(s) : undefined)],
     ['null', (s: string) => (resolveCorePlain(s) === null ? null : undefined)],
@@ -232,9 +234,9 @@ class DocumentConverter {
     }
     this.inProgress.add(node);
     try {
-      if (isMap(node)) result = this.convertMap(node as YAMLMap, depth);
-      else if (isSeq(node)) result = this.convertSeq(node as YAMLSeq, depth);
-      else result = { node: this.convertScalar(node as Scalar), stats: SCALAR_STATS };
+      if (isMap(node)) result = this.convertMap(node, depth);
+      else if (isSeq(node)) result = this.convertSeq(node, depth);
+      else result = { node: this.convertScalar(node), stats: SCALAR_STATS };
     } finally {
       this.inProgress.delete(node);
     }
@@ -251,7 +253,7 @@ class DocumentConverter {
     if (style === 'block') {
       // Keep the trailing line break out of the span (entries end at the value's last character).
       let end = span.end;
-      while (end > span.start && /[\r\n \t]/.test(this.text[end - 1])) end--;
+      while (end > span.start && /[\r\n \t]/.test(this.text[end - 1]!)) end--;
       span = { start: span.start, end };
     }
     value = this.scalarValue(node, span);
@@ -327,7 +329,7 @@ class DocumentConverter {
       aliases += c.stats.aliases;
     }
     if (all.length > count) {
-      const first = all[count] as YamlNode | undefined;
+      const first = all[count];
       const from = first?.range ? first.range[0] : span.start;
       this.problems.push(tooLongProblem({ start: from, end: span.end }, all.length, this.limits.maxListLength));
     }

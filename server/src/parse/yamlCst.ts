@@ -3,7 +3,7 @@
  * an explicit stack (the CST can be arbitrarily deep, the library's composer recurses per level).
  */
 import type { CST } from 'yaml';
-import { type Cut, type SourceComment } from './shared';
+import type { Cut, SourceComment } from './shared';
 
 type AnyToken = CST.Token | CST.SourceToken;
 
@@ -54,11 +54,11 @@ export function scanCst(tokens: CST.Token[], maxNesting: number): { comments: So
   const comments: SourceComment[] = [];
   const cuts: Cut[] = [];
   const stack: { t: AnyToken; depth: number }[] = [];
-  for (let i = tokens.length - 1; i >= 0; i--) stack.push({ t: tokens[i], depth: 0 });
+  for (let i = tokens.length - 1; i >= 0; i--) stack.push({ t: tokens[i]!, depth: 0 });
   while (stack.length > 0) {
     const { t, depth } = stack.pop()!;
     if (t.type === 'comment') {
-      collectComment(t as CST.SourceToken, comments);
+      collectComment(t, comments);
       continue;
     }
     let childDepth = depth;
@@ -71,7 +71,7 @@ export function scanCst(tokens: CST.Token[], maxNesting: number): { comments: So
       }
     }
     const kids = children(t);
-    for (let i = kids.length - 1; i >= 0; i--) stack.push({ t: kids[i], depth: childDepth });
+    for (let i = kids.length - 1; i >= 0; i--) stack.push({ t: kids[i]!, depth: childDepth });
   }
   cuts.sort((a, b) => a.start - b.start);
   comments.sort((a, b) => a.start - b.start);
@@ -90,7 +90,7 @@ function extentOf(root: AnyToken, comments: SourceComment[]): Cut | null {
   while (stack.length > 0) {
     const t = stack.pop()!;
     if ('source' in t && typeof t.source === 'string') {
-      if (t.type === 'comment') collectComment(t as CST.SourceToken, comments);
+      if (t.type === 'comment') collectComment(t, comments);
       else if (t.type !== 'space' && t.type !== 'newline' && t.source.length > 0) {
         start = Math.min(start, t.offset);
         end = Math.max(end, t.offset + t.source.length);

@@ -53,11 +53,12 @@ export function ruleDocs(meta: RuleMeta): string {
   const bodyStart = at + OPTIONS_HEADING.length;
   const next = docs.indexOf('\n## ', bodyStart);
   // "None." is what the generated list says for a rule without options; a note never repeats it.
-  const note = docs.slice(bodyStart, next < 0 ? docs.length : next).trim().replace(/^None\.\s*/, '');
+  const note = docs
+    .slice(bodyStart, next < 0 ? docs.length : next)
+    .trim()
+    .replace(/^None\.\s*/, '');
   const options = Object.entries(meta.options);
-  const list = options.length
-    ? options.map(([name, o]) => `- \`${name}\` (default ${optionText(o.default)}): ${o.description}`).join('\n')
-    : 'None.';
+  const list = options.length ? options.map(([name, o]) => `- \`${name}\` (default ${optionText(o.default)}): ${o.description}`).join('\n') : 'None.';
   const section = [OPTIONS_HEADING, '', list, ...(note ? ['', note] : [])].join('\n');
   return `${docs.slice(0, at)}${section}${next < 0 ? '' : `\n${docs.slice(next)}`}`;
 }
@@ -73,9 +74,7 @@ export function renderRulePage(meta: RuleMeta): string {
     '',
     `- Default severity: ${meta.defaultSeverity}`,
     `- Repair: ${repairLabel(meta)}`,
-    options.length
-      ? `- Options: ${options.map(([name, o]) => `\`${name}\` (default ${optionText(o.default)})`).join(', ')}`
-      : '- Options: none',
+    options.length ? `- Options: ${options.map(([name, o]) => `\`${name}\` (default ${optionText(o.default)})`).join(', ')}` : '- Options: none',
     '',
     ruleDocs(meta),
     '',

@@ -86,9 +86,7 @@ export const epsilonAtZeroSnr = defineRule({
           assumedNote(setup, ['predictionTarget']) +
           scheduleOrigin(setup),
         at: 'predictionTarget',
-        fixes: [
-          velocityTargetFix(),
-        ],
+        fixes: [velocityTargetFix()],
       },
     ];
   },

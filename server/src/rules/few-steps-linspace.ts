@@ -78,7 +78,7 @@ export const fewStepsLinspace = defineRule({
     if (N < 2 || N > maxSteps || N > schedule.trainSteps) return [];
     const last = sampling.timesteps[sampling.timesteps.length - 1];
     if (last !== 0) return [];
-    const abar0 = schedule.curve.alphaBar[0];
+    const abar0 = schedule.curve.alphaBar[0]!;
     const snr0 = abar0 / (1 - abar0);
     const fix = trailingFix(setup, schedule, sampling);
     return [

@@ -72,7 +72,10 @@ const meta = {
   defaultSeverity: 'warning',
   repair: { effects: ['sampling-only'], everyFinding: true },
   options: {
-    nearZeroSignal: { default: 1e-3, description: 'Last-step signal amplitude below which the schedule counts as (near) zero SNR. A project default.' },
+    nearZeroSignal: {
+      default: 1e-3,
+      description: 'Last-step signal amplitude below which the schedule counts as (near) zero SNR. A project default.',
+    },
     suggestedRescale: { default: 0.7, description: 'The guidance rescale the fix writes (Lin et al. 2023 use 0.7).' },
   },
   docs,

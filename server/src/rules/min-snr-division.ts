@@ -85,9 +85,7 @@ export const minSnrDivision = defineRule({
           assumedNote(setup, ['predictionTarget']),
         at: 'minSnrGamma',
         related: [{ concept: 'predictionTarget', message: 'the epsilon target is set here' }],
-        fixes: [
-          velocityTargetFix(),
-        ],
+        fixes: [velocityTargetFix()],
       },
     ];
   },

@@ -62,7 +62,7 @@ shift and, for flow schedules, the matching shift value.
 
 const meta = {
   id: 'resolution-shift-hint',
-  summary: 'Training resolution well above the schedule\'s reference resolution without a shift.',
+  summary: "Training resolution well above the schedule's reference resolution without a shift.",
   defaultSeverity: 'info',
   repair: null,
   options: {
@@ -84,9 +84,7 @@ export const resolutionShiftHint = defineRule({
     const shift = setup.fields.flowShift;
     if (family === 'flow' && shift && !shift.assumed && shift.value !== 1) return [];
     const latent = setup.fields.latentSpace?.value === true;
-    const reference = latent
-      ? ctx.options.latentReferenceResolution
-      : ctx.options.pixelReferenceResolution;
+    const reference = latent ? ctx.options.latentReferenceResolution : ctx.options.pixelReferenceResolution;
     const factor = ctx.options.factor;
     const r = resolution.value;
     if (!(reference > 0) || r < factor * reference) return [];

@@ -121,7 +121,8 @@ export const scheduleInvalid = defineRule({
       const b1 = setup.fields.betaEnd?.value;
       if ((usable('betaStart') || usable('betaEnd')) && b0 !== undefined && b1 !== undefined && b0 > 0 && b1 <= 1 && b0 > b1) {
         out.push({
-          message: `betaStart ${fmt(b0)} is larger than betaEnd ${fmt(b1)}: noise would be added fastest at the start and slowest at the end` +
+          message:
+            `betaStart ${fmt(b0)} is larger than betaEnd ${fmt(b1)}: noise would be added fastest at the start and slowest at the end` +
             assumedNote(setup, ['betaStart', 'betaEnd']),
           at: usable('betaStart') ? 'betaStart' : 'betaEnd',
           related: usable('betaStart') && usable('betaEnd') ? [{ concept: 'betaEnd', message: `betaEnd is ${fmt(b1)} here` }] : [],
@@ -158,8 +159,7 @@ export const scheduleInvalid = defineRule({
     }
 
     // Whatever else stopped the schedule, unless a finding above (or another rule's value problem) explains it.
-    const explained =
-      out.length > 0 || setup.problems.some((p) => CONCEPT_GROUP[p.concept] === 'schedule' || p.concept === 'trainSteps');
+    const explained = out.length > 0 || setup.problems.some((p) => CONCEPT_GROUP[p.concept] === 'schedule' || p.concept === 'trainSteps');
     if (!explained) {
       for (const problem of analysis.scheduleProblems) {
         out.push({ message: `the schedule cannot be computed: ${problem}`, at: explicit ? 'betas' : 'betaSchedule' });

@@ -79,12 +79,11 @@ export const stepsOutOfRange = defineRule({
     const T = schedule.trainSteps;
     if (N > T) {
       out.push({
-        message: `${fmt(N)} sampling steps is more than the ${T} training steps: a discrete sampler can visit each training timestep at most once` +
+        message:
+          `${fmt(N)} sampling steps is more than the ${T} training steps: a discrete sampler can visit each training timestep at most once` +
           assumedNote(setup, ['trainSteps']),
         at: 'sampleSteps',
-        fixes: [
-          stepsToTrainStepsFix(T),
-        ],
+        fixes: [stepsToTrainStepsFix(T)],
       });
     }
     return out;

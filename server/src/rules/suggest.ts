@@ -1,10 +1,5 @@
 /** The concept edit that writes an unknown value's suggested spelling. */
-import {
-  BETA_SCHEDULE_SPELLINGS,
-  PREDICTION_TARGET_SPELLINGS,
-  SAMPLER_SPELLINGS,
-  TIMESTEP_SPACING_SPELLINGS,
-} from '../fields/aliases';
+import { BETA_SCHEDULE_SPELLINGS, PREDICTION_TARGET_SPELLINGS, SAMPLER_SPELLINGS, TIMESTEP_SPACING_SPELLINGS } from '../fields/aliases';
 import type { Concept } from '../fields/concepts';
 import { normalizeValue } from '../fields/normalize';
 import type { ConceptEdit } from './types';

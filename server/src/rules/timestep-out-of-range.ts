@@ -1,5 +1,5 @@
 import { samplingTimesteps } from '@noiselint/shared-math';
-import { fmt, fmtList } from './format';
+import { fmtList } from './format';
 import { defineRule, type ConceptFix, type RuleMeta } from './types';
 import { stepsToTrainStepsFix } from './fixes';
 import { assumedNote, discreteSchedule, isSet, trailingFix } from './util';
@@ -80,7 +80,11 @@ export const timestepOutOfRange = defineRule({
     if (sampling.stepsOffset !== 0 && isSet(setup, 'stepsOffset')) {
       const zero = samplingTimesteps(sampling.spacing as 'leading', T, N, 0);
       if (zero.ok && inRange(zero.value)) {
-        fixes.push({ title: 'Set the steps offset to 0 (sampling only)', effect: 'sampling-only', edits: [{ kind: 'set', concept: 'stepsOffset', value: 0 }] });
+        fixes.push({
+          title: 'Set the steps offset to 0 (sampling only)',
+          effect: 'sampling-only',
+          edits: [{ kind: 'set', concept: 'stepsOffset', value: 0 }],
+        });
       }
     }
     if (sampling.spacing !== 'trailing') {
@@ -100,13 +104,14 @@ export const timestepOutOfRange = defineRule({
           `outside 0..${T - 1}: the sampler would index past the schedule (a crash, or a wrap to the wrong end)` +
           stepsNote +
           assumedNote(setup, ['timestepSpacing', 'trainSteps']),
-        at: sampling.stepsOffset !== 0 && isSet(setup, 'stepsOffset')
-          ? 'stepsOffset'
-          : N > T && isSet(setup, 'sampleSteps')
-            ? 'sampleSteps'
-            : isSet(setup, 'timestepSpacing')
-              ? 'timestepSpacing'
-              : 'sampleSteps',
+        at:
+          sampling.stepsOffset !== 0 && isSet(setup, 'stepsOffset')
+            ? 'stepsOffset'
+            : N > T && isSet(setup, 'sampleSteps')
+              ? 'sampleSteps'
+              : isSet(setup, 'timestepSpacing')
+                ? 'timestepSpacing'
+                : 'sampleSteps',
         fixes,
       },
     ];

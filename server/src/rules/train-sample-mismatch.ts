@@ -107,7 +107,7 @@ function close(a: number, b: number): boolean {
 
 function same(a: ConceptValues[Concept], b: ConceptValues[Concept]): boolean {
   if (typeof a === 'number' && typeof b === 'number') return close(a, b);
-  if (Array.isArray(a) && Array.isArray(b)) return a.length === b.length && a.every((x, i) => close(x, b[i]));
+  if (Array.isArray(a) && Array.isArray(b)) return a.length === b.length && a.every((x, i) => close(x, b[i]!));
   return a === b;
 }
 
@@ -128,8 +128,8 @@ function showPair(a: ConceptValues[Concept], b: ConceptValues[Concept]): [string
 /** "has 5 entries where", "differs at beta[3] (0.5 where ... has 0.4) from" */
 function betasDifference(mine: number[], theirs: number[]): string {
   if (mine.length !== theirs.length) return `has ${mine.length} entries where ${theirs.length} come from`;
-  const i = mine.findIndex((x, k) => !close(x, theirs[k]));
-  const [x, y] = showPair(mine[i], theirs[i]);
+  const i = mine.findIndex((x, k) => !close(x, theirs[k]!));
+  const [x, y] = showPair(mine[i]!, theirs[i]!);
   return `differs at beta[${i}] (${x} where the training list has ${y}) from`;
 }
 
@@ -144,7 +144,8 @@ function comparable(concept: Concept, sampling: Setup, training: Setup): boolean
   if (concept === 'betas') return explicitS || explicitT;
   if (concept === 'betaSchedule' || concept === 'betaStart' || concept === 'betaEnd') {
     if (explicitS || explicitT) return false;
-    if (concept !== 'betaSchedule' && (sampling.fields.betaSchedule?.value === 'cosine' || training.fields.betaSchedule?.value === 'cosine')) return false;
+    if (concept !== 'betaSchedule' && (sampling.fields.betaSchedule?.value === 'cosine' || training.fields.betaSchedule?.value === 'cosine'))
+      return false;
   }
   return true;
 }

@@ -76,7 +76,6 @@ export interface RuleContext<V = Record<string, OptionValue>> {
   pairRole?: 'training' | 'sampling';
 }
 
-
 export interface RepairMeta {
   effects: readonly FixEffect[];
   everyFinding: boolean;
@@ -111,5 +110,5 @@ export interface Rule<O extends RuleOptions = RuleOptions> {
  * drops any of the wrong type, so the check needs no fallback of its own.
  */
 export function defineRule<O extends RuleOptions>(rule: Rule<O>): Rule {
-  return rule as unknown as Rule;
+  return rule;
 }

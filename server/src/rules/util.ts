@@ -101,9 +101,7 @@ export function scheduleConcepts(setup: Setup): Concept[] {
 
 /** True when the file sets at least one field that shapes the schedule (not all assumed). */
 export function setsSchedule(setup: Setup): boolean {
-  return (['trainSteps', 'betaSchedule', 'betaStart', 'betaEnd', 'betas', 'zeroTerminalSnr'] as const).some((c) =>
-    isSet(setup, c),
-  );
+  return (['trainSteps', 'betaSchedule', 'betaStart', 'betaEnd', 'betas', 'zeroTerminalSnr'] as const).some((c) => isSet(setup, c));
 }
 
 /** True when the file sets a field of the given group. */
@@ -199,7 +197,6 @@ export function trailingFix(setup: Setup, schedule: ScheduleAnalysis, sampling: 
   }
   return { title: 'Set the timestep spacing to trailing (sampling only)', effect: 'sampling-only', edits };
 }
-
 
 /** Which rule reports a value problem of the setup. */
 export type ProblemRule = 'schedule-invalid' | 'steps-out-of-range' | 'unknown-value';

@@ -320,16 +320,10 @@ function shown(hit: ConceptHit): string {
   return v && v.kind === 'scalar' ? v.raw.trim() : 'an unreadable value';
 }
 
-function setField<C extends Concept>(
-  fields: SetupFields,
-  concept: C,
-  value: ConceptValues[C],
-  source: FieldSource | null,
-  note?: string,
-): void {
+function setField<C extends Concept>(fields: SetupFields, concept: C, value: ConceptValues[C], source: FieldSource | null, note?: string): void {
   const field: ResolvedField<C> = { concept, value, assumed: source === null, source };
   if (note) field.note = note;
-  (fields as Record<string, ResolvedField>)[concept] = field as unknown as ResolvedField;
+  (fields as Record<string, ResolvedField>)[concept] = field;
 }
 
 /** `linear` next to linear_start / linear_end means scaled_linear (see defaults.ts). */
@@ -411,10 +405,7 @@ function assumeDefaults(setup: Setup, decided: Map<Concept, Decided>, root: Loca
     setup.assumed.push(concept);
   };
 
-  const isFlow =
-    fields.predictionTarget?.value === 'flow' ||
-    present('flowShift') ||
-    fields.sampler?.value === 'flow-euler';
+  const isFlow = fields.predictionTarget?.value === 'flow' || present('flowShift') || fields.sampler?.value === 'flow-euler';
   const hasBetaParams = present('betaSchedule') || present('betas') || present('betaStart') || present('betaEnd');
   const isSigma = (present('sigmaMin') || present('sigmaMax')) && !hasBetaParams;
 
@@ -432,9 +423,7 @@ function assumeDefaults(setup: Setup, decided: Map<Concept, Decided>, root: Loca
     const schedule = fields.betaSchedule;
     if (schedule) {
       const shortFamily =
-        schedule.value === 'scaled_linear' &&
-        usesShortRange(decided) &&
-        (schedule.assumed || schedule.note === SHORT_FAMILY_LINEAR_NOTE);
+        schedule.value === 'scaled_linear' && usesShortRange(decided) && (schedule.assumed || schedule.note === SHORT_FAMILY_LINEAR_NOTE);
       const range = shortFamily ? SHORT_FAMILY_RANGE : DEFAULT_BETA_RANGE[schedule.value];
       if (range) {
         const label = shortFamily ? 'this schedule' : `the ${schedule.value} schedule`;
@@ -460,9 +449,7 @@ function assumeDefaults(setup: Setup, decided: Map<Concept, Decided>, root: Loca
 
   if (!present('latentSpace')) {
     const inferred =
-      opts.latentSpaceDefault !== undefined
-        ? { value: opts.latentSpaceDefault, note: 'from the project setting' }
-        : inferLatentSpace(fields, root);
+      opts.latentSpaceDefault !== undefined ? { value: opts.latentSpaceDefault, note: 'from the project setting' } : inferLatentSpace(fields, root);
     assume('latentSpace', inferred.value, inferred.note);
   }
 }

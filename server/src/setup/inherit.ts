@@ -58,11 +58,7 @@ export interface PartnerSetup {
  * partner(s) that is not a sampling setup, else the first diffusion document.
  */
 export function trainingDocumentOf<P extends PartnerSetup>(partners: readonly P[]): P | null {
-  return (
-    partners.find((p) => p.setup.isDiffusionConfig && p.setup.role !== 'sampling') ??
-    partners.find((p) => p.setup.isDiffusionConfig) ??
-    null
-  );
+  return partners.find((p) => p.setup.isDiffusionConfig && p.setup.role !== 'sampling') ?? partners.find((p) => p.setup.isDiffusionConfig) ?? null;
 }
 
 function familyOf(setup: Setup): ScheduleInheritance['family'] {
@@ -76,7 +72,10 @@ function familyOf(setup: Setup): ScheduleInheritance['family'] {
  * What a file on the sampling side of a pair inherits, or null (no pair, the training side, no
  * usable training document).
  */
-export function inheritanceFrom(partners: readonly PartnerSetup[] | undefined, pairRole: 'training' | 'sampling' | undefined): ScheduleInheritance | null {
+export function inheritanceFrom(
+  partners: readonly PartnerSetup[] | undefined,
+  pairRole: 'training' | 'sampling' | undefined,
+): ScheduleInheritance | null {
   if (pairRole !== 'sampling' || !partners || partners.length === 0) return null;
   const training = trainingDocumentOf(partners);
   if (!training) return null;
@@ -122,7 +121,7 @@ export function inheritSetup(setup: Setup, inheritance: ScheduleInheritance): Se
       source: null,
       note: inheritedNote(inheritance.from, item),
       inherited: { from: inheritance.from, assumedThere: item.assumedThere, ...(item.key ? { key: item.key } : {}) },
-    } as ResolvedField;
+    };
     (fields as Record<string, ResolvedField>)[c] = field;
     removed.add(c);
     taken.push(c);

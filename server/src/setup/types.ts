@@ -48,13 +48,7 @@ export interface InheritedOrigin {
   assumedThere: boolean;
 }
 
-export type ValueProblemKind =
-  | 'not-a-number'
-  | 'not-finite'
-  | 'not-an-integer'
-  | 'wrong-type'
-  | 'unknown-value'
-  | 'duplicate';
+export type ValueProblemKind = 'not-a-number' | 'not-finite' | 'not-an-integer' | 'wrong-type' | 'unknown-value' | 'duplicate';
 
 /** A value the setup could not use. Rules turn these into findings (unknown-value, schedule-invalid). */
 export interface ValueProblem {
@@ -132,9 +126,9 @@ export interface Setup {
 
 /** Typed accessor; returns undefined when the concept is neither set nor assumed. */
 export function fieldOf<C extends Concept>(setup: Setup, concept: C): ResolvedField<C> | undefined {
-  return setup.fields[concept] as ResolvedField<C> | undefined;
+  return setup.fields[concept];
 }
 
 export function valueOf<C extends Concept>(setup: Setup, concept: C): ConceptValues[C] | undefined {
-  return (setup.fields[concept] as ResolvedField<C> | undefined)?.value;
+  return setup.fields[concept]?.value;
 }

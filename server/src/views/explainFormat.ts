@@ -3,7 +3,7 @@
  * documented JSON contract (docs/explain-json.md). Pure: file result in, text or data out.
  */
 import { fmtDigits } from '../base/numbers';
-import type { DocumentResult, FileReading, FileResult } from '../engine/api';
+import type { DocumentResult, FileReading } from '../engine/api';
 import type { Analysis } from '../analysis/analysis';
 import { CONCEPTS, type Concept } from '../fields/concepts';
 import type { Setup } from '../setup/types';
@@ -90,11 +90,7 @@ function setupJson(setup: Setup): ExplainDocumentJson['setup'] {
 }
 
 function problemsOf(doc: DocumentResult): string[] {
-  return [
-    ...doc.setup.problems.map((p) => p.message),
-    ...doc.analysis.scheduleProblems,
-    ...doc.analysis.samplingProblems,
-  ];
+  return [...doc.setup.problems.map((p) => p.message), ...doc.analysis.scheduleProblems, ...doc.analysis.samplingProblems];
 }
 
 export function explainDocumentJson(doc: DocumentResult): ExplainDocumentJson {
@@ -114,17 +110,18 @@ export function explainDocumentJson(doc: DocumentResult): ExplainDocumentJson {
       logSnrMax: num(schedule.logSnrMax),
       logSnrMin: num(schedule.logSnrMin),
     },
-    sampling: sampling && schedule && {
-      spacing: sampling.spacing,
-      steps: sampling.steps,
-      stepsAssumed: sampling.stepsAssumed,
-      stepsOffset: sampling.stepsOffset,
-      timesteps: sampling.timesteps,
-      firstTimestep: sampling.firstTimestep,
-      lastTrainStep: schedule.trainSteps - 1,
-      snrAtFirst: num(sampling.snrAtFirst),
-      outOfRange: sampling.outOfRange,
-    },
+    sampling: sampling &&
+      schedule && {
+        spacing: sampling.spacing,
+        steps: sampling.steps,
+        stepsAssumed: sampling.stepsAssumed,
+        stepsOffset: sampling.stepsOffset,
+        timesteps: sampling.timesteps,
+        firstTimestep: sampling.firstTimestep,
+        lastTrainStep: schedule.trainSteps - 1,
+        snrAtFirst: num(sampling.snrAtFirst),
+        outOfRange: sampling.outOfRange,
+      },
     rescaled: rescaled && { terminalSnr: num(rescaled.terminalSnr), terminalSignal: num(rescaled.terminalSignal) },
     consumer: consumerJson(doc.setup),
     problems: problemsOf(doc),
@@ -209,7 +206,7 @@ function samplingLines(analysis: Analysis, lines: string[]): void {
     if (Number.isNaN(t)) return '...';
     const inRange = Number.isInteger(t) && t >= 0 && t < schedule.curve.alphaBar.length;
     if (!inRange) return `${t} (out of range)`;
-    const abar = schedule.curve.alphaBar[t];
+    const abar = schedule.curve.alphaBar[t]!;
     const snr = abar === 1 ? Infinity : abar / (1 - abar);
     return `${t} (${sig(snr, 3)})`;
   });
@@ -233,7 +230,9 @@ function rescaleLines(analysis: Analysis, lines: string[]): void {
     return;
   }
   lines.push('  zero-terminal-SNR rescale (Lin et al. 2023) would change:');
-  lines.push(`    terminal SNR ${sig(schedule.terminalSnr)} -> ${sig(rescaled.terminalSnr)}; signal amplitude at the last step ${sig(schedule.terminalSignal)} -> ${sig(rescaled.terminalSignal)}`);
+  lines.push(
+    `    terminal SNR ${sig(schedule.terminalSnr)} -> ${sig(rescaled.terminalSnr)}; signal amplitude at the last step ${sig(schedule.terminalSignal)} -> ${sig(rescaled.terminalSignal)}`,
+  );
   lines.push(`    log-SNR at the first step stays ${sig(rescaled.logSnrMax, 4)} (the first abar is unchanged)`);
   lines.push('    an epsilon target becomes undefined at the last step: pair it with a velocity target; the model needs fine-tuning');
 }
@@ -264,7 +263,12 @@ function documentText(doc: DocumentResult, count: number): string[] {
   }
   const { schedule } = doc.analysis;
   if (schedule) {
-    const label = schedule.family === 'discrete' ? `${schedule.kind}, T = ${schedule.trainSteps}` : schedule.family === 'flow' ? `flow matching, T = ${schedule.trainSteps}` : `Karras sigmas (sigma_data 0.5)`;
+    const label =
+      schedule.family === 'discrete'
+        ? `${schedule.kind}, T = ${schedule.trainSteps}`
+        : schedule.family === 'flow'
+          ? `flow matching, T = ${schedule.trainSteps}`
+          : `Karras sigmas (sigma_data 0.5)`;
     lines.push(`  schedule: ${label}${schedule.rescaleApplied ? ', rescaled to zero terminal SNR' : ''}`);
     lines.push(`    signal amplitude at the last step  sqrt(abar_T)      ${sig(schedule.terminalSignal)}`);
     lines.push(`    noise amplitude at the last step   sqrt(1 - abar_T)  ${sig(schedule.terminalNoise)}`);

@@ -1,5 +1,5 @@
 /** Which concept's key or value sits at a text offset (hover and friends). */
-import type { FileReading, FileResult, DocumentResult } from '../engine/api';
+import type { FileReading, DocumentResult } from '../engine/api';
 import type { Concept } from '../fields/concepts';
 import type { FieldSource } from '../setup/types';
 import type { Span } from '../parse/types';

@@ -3,7 +3,7 @@
  * cursor, rendered as markdown (with a small log-SNR chart) or as a plain-text table.
  * Protocol-agnostic: offsets and strings only.
  */
-import type { FileReading, FileResult, DocumentResult } from '../engine/api';
+import type { FileReading, DocumentResult } from '../engine/api';
 import type { Analysis } from '../analysis/analysis';
 import type { Concept } from '../fields/concepts';
 import type { Span } from '../parse/types';
@@ -126,7 +126,7 @@ function rescaleNotes(analysis: Analysis): string[] {
   ];
   const p = analysis.sampling;
   if (p && p.firstTimestep >= 0 && p.firstTimestep < r.curve.alphaBar.length && Number.isInteger(p.firstTimestep)) {
-    const abar = r.curve.alphaBar[p.firstTimestep];
+    const abar = r.curve.alphaBar[p.firstTimestep]!;
     notes.push(`After the rescale the first sampling step would have SNR ${num(abar / (1 - abar), 3)}.`);
   }
   return notes;
@@ -143,7 +143,9 @@ function targetNotes(doc: DocumentResult): string[] {
           'A velocity target (Salimans & Ho 2022) stays defined; switching needs fine-tuning.',
       ];
     }
-    return ['Epsilon target: fine on this schedule, but it becomes undefined at the last step once the schedule reaches zero SNR; switch to velocity together with the rescale.'];
+    return [
+      'Epsilon target: fine on this schedule, but it becomes undefined at the last step once the schedule reaches zero SNR; switch to velocity together with the rescale.',
+    ];
   }
   if (target === 'v') return ['Velocity target v = sqrt(abar) eps - sqrt(1 - abar) x0 (Salimans & Ho 2022): defined at zero SNR.'];
   if (target === 'x0') return ['Sample (x0) target: defined at zero SNR.'];
@@ -225,9 +227,7 @@ export function hoverModelAt(file: FileReading, offset: number): HoverModel | nu
     sampling: samplingLines(analysis),
     focus,
     notes,
-    chart: s
-      ? { current: s.curve.logSnr, rescaled: rescaledColumn && analysis.rescaled ? analysis.rescaled.curve.logSnr : null }
-      : null,
+    chart: s ? { current: s.curve.logSnr, rescaled: rescaledColumn && analysis.rescaled ? analysis.rescaled.curve.logSnr : null } : null,
   };
 }
 
@@ -284,5 +284,9 @@ export interface HoverText {
 export function hoverAt(file: FileReading, offset: number, format: 'markdown' | 'plaintext', options: { images?: boolean } = {}): HoverText | null {
   const model = hoverModelAt(file, offset);
   if (!model) return null;
-  return { span: model.span, format, text: format === 'markdown' ? renderHoverMarkdown(model, { images: options.images ?? true }) : renderHoverPlainText(model) };
+  return {
+    span: model.span,
+    format,
+    text: format === 'markdown' ? renderHoverMarkdown(model, { images: options.images ?? true }) : renderHoverPlainText(model),
+  };
 }

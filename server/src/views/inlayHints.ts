@@ -2,7 +2,7 @@
  * Inline numbers shown after fields: `SNR_T 4.7e-3` after the schedule field and
  * `starts at 901/999` after the spacing (or step count) field. Offsets and strings only.
  */
-import type { FileReading, FileResult } from '../engine/api';
+import type { FileReading } from '../engine/api';
 import type { Concept } from '../fields/concepts';
 import { shortNumber } from './displayNumber';
 
@@ -32,7 +32,8 @@ export function inlineHintsFor(file: FileReading): InlineHint[] {
     const origin = from ? ` (schedule from training file ${from})` : '';
     if (schedule) {
       // A file that takes its schedule from its training partner shows it after its first sampling field.
-      const anchor = SCHEDULE_ANCHORS.map((c) => doc.setup.fields[c]?.source).find((s) => !!s) ??
+      const anchor =
+        SCHEDULE_ANCHORS.map((c) => doc.setup.fields[c]?.source).find((s) => !!s) ??
         (from ? SAMPLING_ANCHORS.map((c) => doc.setup.fields[c]?.source).find((s) => !!s) : undefined);
       if (anchor) {
         hints.push({

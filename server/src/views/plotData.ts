@@ -2,7 +2,7 @@
  * Plot data for one file (the `noiselint/plotData` request): log-SNR and signal over t, current and
  * rescaled, plus the steps the sampler visits. Protocol-agnostic: plain data out of an analysis.
  */
-import type { FileReading, FileResult } from '../engine/api';
+import type { FileReading } from '../engine/api';
 import type { ScheduleAnalysis, ScheduleCurve } from '../analysis/analysis';
 import { valueOf } from '../setup/types';
 import type { PlotCurve, PlotData, PlotDocument, PlotSampledStep, PlotSkippedRange, PlotTailWindow } from '../base/protocol';
@@ -29,8 +29,8 @@ export function thinIndices(n: number, max = MAX_PLOT_POINTS): number[] {
 
 function curveAt(curve: ScheduleCurve, indices: number[]): PlotCurve {
   return {
-    logSnr: indices.map((i) => finiteOrNull(curve.logSnr[i])),
-    signal: indices.map((i) => curve.signal[i]),
+    logSnr: indices.map((i) => finiteOrNull(curve.logSnr[i]!)),
+    signal: indices.map((i) => curve.signal[i]!),
   };
 }
 
@@ -41,7 +41,7 @@ function curveAt(curve: ScheduleCurve, indices: number[]): PlotCurve {
 function xPositions(schedule: ScheduleAnalysis, indices: number[]): number[] {
   if (schedule.family !== 'flow') return indices;
   const T = schedule.trainSteps;
-  return indices.map((i) => (1 - schedule.curve.signal[i]) * T - 1);
+  return indices.map((i) => (1 - schedule.curve.signal[i]!) * T - 1);
 }
 
 function sampledSteps(schedule: ScheduleAnalysis, timesteps: number[]): PlotSampledStep[] {
@@ -58,8 +58,8 @@ function sampledSteps(schedule: ScheduleAnalysis, timesteps: number[]): PlotSamp
     }
     const inRange = Number.isInteger(t) && t >= 0 && t < n;
     if (!inRange) return { t, order, logSnr: null, snr: NaN, signal: NaN, outOfRange: true };
-    const abar = curve.alphaBar[t];
-    return { t, order, logSnr: finiteOrNull(curve.logSnr[t]), snr: abar / (1 - abar), signal: curve.signal[t], outOfRange: false };
+    const abar = curve.alphaBar[t]!;
+    return { t, order, logSnr: finiteOrNull(curve.logSnr[t]!), snr: abar / (1 - abar), signal: curve.signal[t]!, outOfRange: false };
   });
 }
 
@@ -83,17 +83,17 @@ export const TAIL_SHARE = 0.1;
 export function tailWindow(t: readonly number[], curves: readonly PlotCurve[], skipped: PlotSkippedRange | null): PlotTailWindow {
   const first = t.length > 0 ? t[0] : 0;
   const last = t.length > 0 ? t[t.length - 1] : 0;
-  let from = last - (last - first) * TAIL_SHARE;
-  if (skipped && skipped.lastVisited < from + (last - first) * 0.02) from = Math.max(first, skipped.lastVisited - (last - first) * 0.02);
+  let from = last! - (last! - first!) * TAIL_SHARE;
+  if (skipped && skipped.lastVisited < from + (last! - first!) * 0.02) from = Math.max(first!, skipped.lastVisited - (last! - first!) * 0.02);
   from = Math.floor(from);
   let high = 0;
   for (const curve of curves) {
     for (let i = 0; i < t.length; i++) {
-      const v = curve.signal[i];
-      if (t[i] >= from && Number.isFinite(v) && v > high) high = v;
+      const v = curve.signal[i]!;
+      if (t[i]! >= from && Number.isFinite(v) && v > high) high = v;
     }
   }
-  return { from, to: last, signalMax: niceCeiling(high * 1.1) };
+  return { from, to: last!, signalMax: niceCeiling(high * 1.1) };
 }
 
 /** 1, 2, 2.5 or 5 times a power of ten, at or above x (1 for x <= 0 or above 1). */

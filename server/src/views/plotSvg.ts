@@ -85,22 +85,33 @@ function tickLabel(v: number): string {
 }
 
 /** Polylines through the finite points inside the x window (a null or non-finite value breaks the line). */
-function polylines(box: PanelBox, t: readonly number[], values: readonly (number | null)[], from: number, cls: string, colour: string, dashed: boolean, width: number): string[] {
+function polylines(
+  box: PanelBox,
+  t: readonly number[],
+  values: readonly (number | null)[],
+  from: number,
+  cls: string,
+  colour: string,
+  dashed: boolean,
+  width: number,
+): string[] {
   const out: string[] = [];
   let run: string[] = [];
   const flush = () => {
     if (run.length > 1) {
-      out.push(`<polyline class="curve ${cls}" fill="none" stroke="${colour}" stroke-width="${width}"${dashed ? ' stroke-dasharray="7 4"' : ''} stroke-linejoin="round" points="${run.join(' ')}"/>`);
+      out.push(
+        `<polyline class="curve ${cls}" fill="none" stroke="${colour}" stroke-width="${width}"${dashed ? ' stroke-dasharray="7 4"' : ''} stroke-linejoin="round" points="${run.join(' ')}"/>`,
+      );
     }
     run = [];
   };
   for (let i = 0; i < t.length; i++) {
     const v = values[i];
-    if (t[i] < from || typeof v !== 'number' || !Number.isFinite(v)) {
+    if (t[i]! < from || typeof v !== 'number' || !Number.isFinite(v)) {
       flush();
       continue;
     }
-    run.push(`${n(xPixel(box, t[i]))},${n(yPixel(box, Math.min(box.yMax, Math.max(box.yMin, v))))}`);
+    run.push(`${n(xPixel(box, t[i]!))},${n(yPixel(box, Math.min(box.yMax, Math.max(box.yMin, v))))}`);
   }
   flush();
   return out;
@@ -111,15 +122,23 @@ function frameAndGrid(box: PanelBox, xTicks: number[], yTicks: number[], labels:
   const bottom = box.top + box.height;
   for (const y of yTicks) {
     const py = n(yPixel(box, y));
-    out.push(`<line class="grid" x1="${n(box.left)}" y1="${py}" x2="${n(box.left + box.width)}" y2="${py}" stroke="${COLOURS.grid}" stroke-width="1"/>`);
-    out.push(`<text x="${n(box.left - 6)}" y="${py}" dy="0.32em" text-anchor="end" font-size="${labels ? 11 : 9.5}" fill="${COLOURS.muted}" ${FONT}>${esc(tickLabel(y))}</text>`);
+    out.push(
+      `<line class="grid" x1="${n(box.left)}" y1="${py}" x2="${n(box.left + box.width)}" y2="${py}" stroke="${COLOURS.grid}" stroke-width="1"/>`,
+    );
+    out.push(
+      `<text x="${n(box.left - 6)}" y="${py}" dy="0.32em" text-anchor="end" font-size="${labels ? 11 : 9.5}" fill="${COLOURS.muted}" ${FONT}>${esc(tickLabel(y))}</text>`,
+    );
   }
   for (const x of xTicks) {
     const px = n(xPixel(box, x));
     out.push(`<line class="grid" x1="${px}" y1="${n(box.top)}" x2="${px}" y2="${n(bottom)}" stroke="${COLOURS.grid}" stroke-width="1"/>`);
-    out.push(`<text x="${px}" y="${n(bottom + (labels ? 16 : 13))}" text-anchor="middle" font-size="${labels ? 11 : 9.5}" fill="${COLOURS.muted}" ${FONT}>${esc(tickLabel(x))}</text>`);
+    out.push(
+      `<text x="${px}" y="${n(bottom + (labels ? 16 : 13))}" text-anchor="middle" font-size="${labels ? 11 : 9.5}" fill="${COLOURS.muted}" ${FONT}>${esc(tickLabel(x))}</text>`,
+    );
   }
-  out.push(`<rect class="frame" x="${n(box.left)}" y="${n(box.top)}" width="${n(box.width)}" height="${n(box.height)}" fill="none" stroke="${COLOURS.frame}" stroke-width="1"/>`);
+  out.push(
+    `<rect class="frame" x="${n(box.left)}" y="${n(box.top)}" width="${n(box.width)}" height="${n(box.height)}" fill="none" stroke="${COLOURS.frame}" stroke-width="1"/>`,
+  );
   return out;
 }
 
@@ -149,11 +168,15 @@ function markers(box: PanelBox, steps: readonly PlotSampledStep[], pick: (s: Plo
     const v = pick(step);
     if (typeof v === 'number' && Number.isFinite(v)) {
       const y = yPixel(box, Math.min(box.yMax, Math.max(box.yMin, v)));
-      out.push(`<circle class="sampled" data-t="${step.t}" cx="${n(x)}" cy="${n(y)}" r="${r}" fill="${COLOURS.sampled}" stroke="${COLOURS.background}" stroke-width="0.8"/>`);
+      out.push(
+        `<circle class="sampled" data-t="${step.t}" cx="${n(x)}" cy="${n(y)}" r="${r}" fill="${COLOURS.sampled}" stroke="${COLOURS.background}" stroke-width="0.8"/>`,
+      );
     } else {
       // Zero SNR: log-SNR is -Infinity; a triangle on the panel floor.
       const y = box.top + box.height;
-      out.push(`<path class="sampled at-zero-snr" data-t="${step.t}" d="M${n(x)},${n(y - 2 * r)}L${n(x - r)},${n(y)}L${n(x + r)},${n(y)}Z" fill="${COLOURS.sampled}"/>`);
+      out.push(
+        `<path class="sampled at-zero-snr" data-t="${step.t}" d="M${n(x)},${n(y - 2 * r)}L${n(x - r)},${n(y)}L${n(x + r)},${n(y)}Z" fill="${COLOURS.sampled}"/>`,
+      );
     }
   }
   return out;
@@ -190,9 +213,9 @@ function panelGroup(name: string, box: PanelBox, body: string[]): string {
 function xDomain(doc: PlotDocument): [number, number] {
   const first = doc.t.length > 0 ? doc.t[0] : 0;
   const last = doc.t.length > 0 ? doc.t[doc.t.length - 1] : doc.trainSteps - 1;
-  let max = Math.max(last, doc.trainSteps - 1);
+  let max = Math.max(last!, doc.trainSteps - 1);
   for (const s of doc.sampled) if (Number.isFinite(s.t) && s.t > max) max = s.t;
-  return [Math.min(0, first), max];
+  return [Math.min(0, first!), max];
 }
 
 function logSnrPanel(doc: PlotDocument, top: number): { svg: string; box: PanelBox } {
@@ -200,7 +223,16 @@ function logSnrPanel(doc: PlotDocument, top: number): { svg: string; box: PanelB
   const range = finiteRange([doc.current.logSnr, doc.rescaled?.logSnr ?? [], doc.sampled.map((s) => s.logSnr)]) ?? [-1, 1];
   const pad = Math.max(0.5, (range[1] - range[0]) * 0.06);
   const yTicks = niceTicks(range[0] - pad, range[1] + pad, 6);
-  const box: PanelBox = { left: LEFT, top, width: SVG_WIDTH - LEFT - RIGHT, height: PANEL_HEIGHT, xMin, xMax, yMin: Math.min(yTicks[0], range[0] - pad), yMax: Math.max(yTicks[yTicks.length - 1], range[1] + pad) };
+  const box: PanelBox = {
+    left: LEFT,
+    top,
+    width: SVG_WIDTH - LEFT - RIGHT,
+    height: PANEL_HEIGHT,
+    xMin,
+    xMax,
+    yMin: Math.min(yTicks[0]!, range[0] - pad),
+    yMax: Math.max(yTicks[yTicks.length - 1]!, range[1] + pad),
+  };
   const body = [
     ...bandRect(box, doc),
     ...frameAndGrid(box, niceTicks(xMin, xMax, 8), yTicks, true),
@@ -209,7 +241,9 @@ function logSnrPanel(doc: PlotDocument, top: number): { svg: string; box: PanelB
     `<text x="${n(LEFT - 56)}" y="${n(top + PANEL_HEIGHT / 2)}" transform="rotate(-90 ${n(LEFT - 56)} ${n(top + PANEL_HEIGHT / 2)})" text-anchor="middle" font-size="12" fill="${COLOURS.text}" ${FONT}>log-SNR (natural log)</text>`,
   ];
   if (doc.current.logSnr.length > 0 && doc.current.logSnr[doc.current.logSnr.length - 1] === null) {
-    body.push(`<text x="${n(box.left + box.width - 6)}" y="${n(top + PANEL_HEIGHT - 8)}" text-anchor="end" font-size="10.5" fill="${COLOURS.muted}" ${FONT}>zero SNR at the last step: log-SNR is −∞ there</text>`);
+    body.push(
+      `<text x="${n(box.left + box.width - 6)}" y="${n(top + PANEL_HEIGHT - 8)}" text-anchor="end" font-size="10.5" fill="${COLOURS.muted}" ${FONT}>zero SNR at the last step: log-SNR is −∞ there</text>`,
+    );
   }
   return { svg: panelGroup('log-snr', box, body), box };
 }
@@ -217,7 +251,16 @@ function logSnrPanel(doc: PlotDocument, top: number): { svg: string; box: PanelB
 function insetBox(outer: PanelBox, tail: PlotTailWindow): PanelBox {
   const width = Math.round(outer.width * 0.36);
   const height = Math.round(outer.height * 0.38);
-  return { left: outer.left + outer.width - width - 14, top: outer.top + 24, width, height, xMin: tail.from, xMax: Math.max(tail.to, outer.xMax), yMin: 0, yMax: tail.signalMax };
+  return {
+    left: outer.left + outer.width - width - 14,
+    top: outer.top + 24,
+    width,
+    height,
+    xMin: tail.from,
+    xMax: Math.max(tail.to, outer.xMax),
+    yMin: 0,
+    yMax: tail.signalMax,
+  };
 }
 
 function signalPanel(doc: PlotDocument, top: number): { svg: string; box: PanelBox; inset: PanelBox | null } {
@@ -250,7 +293,7 @@ function signalPanel(doc: PlotDocument, top: number): { svg: string; box: PanelB
       `<text x="${n(inset.left)}" y="${n(inset.top - 8)}" font-size="11" fill="${COLOURS.text}" ${FONT}>tail, t ≥ ${esc(tickLabel(tail.from))} (zoomed: 0 to ${esc(tickLabel(tail.signalMax))})</text>`,
     ];
     if (doc.terminalSignal > 0) {
-      const lastX = doc.t[doc.t.length - 1];
+      const lastX = doc.t[doc.t.length - 1]!;
       const px = xPixel(inset, lastX);
       const py = yPixel(inset, Math.min(inset.yMax, doc.terminalSignal));
       // Above the curves, in the empty top of the window, with a leader down to the last point.
@@ -274,7 +317,11 @@ function legend(doc: PlotDocument, y: number): string {
     x += 42 + label.length * 6.4;
   };
   add(`<line x1="@X" y1="@Y" x2="${n(x + 24)}" y2="@Y" stroke="${COLOURS.current}" stroke-width="2"/>`, 'current schedule');
-  if (doc.rescaled) add(`<line x1="@X" y1="@Y" x2="${n(x + 24)}" y2="@Y" stroke="${COLOURS.rescaled}" stroke-width="2" stroke-dasharray="7 4"/>`, 'rescaled to zero terminal SNR (Lin et al. 2023)');
+  if (doc.rescaled)
+    add(
+      `<line x1="@X" y1="@Y" x2="${n(x + 24)}" y2="@Y" stroke="${COLOURS.rescaled}" stroke-width="2" stroke-dasharray="7 4"/>`,
+      'rescaled to zero terminal SNR (Lin et al. 2023)',
+    );
   if (doc.sampled.length > 0) add(`<circle cx="${n(x + 12)}" cy="@Y" r="3.5" fill="${COLOURS.sampled}"/>`, 'sampled timesteps');
   if (doc.skipped) add(`<rect x="@X" y="${n(y - 6)}" width="24" height="12" fill="${COLOURS.band}" fill-opacity="0.13"/>`, 'never sampled');
   return `<g class="legend">\n${items.join('\n')}\n</g>`;
@@ -288,7 +335,8 @@ function headerLines(doc: PlotDocument, fileName: string): [string, string, stri
   let sampler = 'no sampling steps in this file';
   if (first) {
     sampler = `the sampler visits ${doc.sampled.length} step${doc.sampled.length === 1 ? '' : 's'} from t = ${first.t}`;
-    if (doc.skipped) sampler += `, never t = ${doc.skipped.lastVisited + 1}..${doc.skipped.lastStep} (${doc.skipped.count} step${doc.skipped.count === 1 ? '' : 's'})`;
+    if (doc.skipped)
+      sampler += `, never t = ${doc.skipped.lastVisited + 1}..${doc.skipped.lastStep} (${doc.skipped.count} step${doc.skipped.count === 1 ? '' : 's'})`;
   }
   return [title, schedule, sampler];
 }
@@ -311,7 +359,9 @@ function documentSvg(doc: PlotDocument, fileName: string, top: number): string {
     xLabelAt(top + HEADER + PANEL_HEIGHT + GAP),
     legend(doc, top + HEADER + 2 * PANEL_HEIGHT + GAP + 52),
   ];
-  doc.problems.slice(0, 1).forEach((problem) => parts.push(`<text x="${LEFT}" y="${n(top + 85)}" font-size="11" fill="${COLOURS.sampled}" ${FONT}>${esc(problem)}</text>`));
+  doc.problems
+    .slice(0, 1)
+    .forEach((problem) => parts.push(`<text x="${LEFT}" y="${n(top + 85)}" font-size="11" fill="${COLOURS.sampled}" ${FONT}>${esc(problem)}</text>`));
   parts.push('</g>');
   return parts.join('\n');
 }

@@ -34,4 +34,3 @@ export function formatRunNumbers(plan: RunPlan): string {
   }
   return lines.length ? `${lines.join('\n')}\n` : '';
 }
-

@@ -20,7 +20,7 @@ function thin(values: ArrayLike<number>, max: number): { x: number; y: number }[
   const count = Math.min(n, max);
   for (let k = 0; k < count; k++) {
     const i = count === 1 ? 0 : Math.round((k * (n - 1)) / (count - 1));
-    out.push({ x: n === 1 ? 0 : i / (n - 1), y: values[i] });
+    out.push({ x: n === 1 ? 0 : i / (n - 1), y: values[i]! });
   }
   return out;
 }
@@ -65,8 +65,8 @@ export function logSnrSparkline(current: ArrayLike<number>, rescaled: ArrayLike<
     `<polyline fill="none" stroke="${colour}" stroke-width="1.6"${dashed ? ' stroke-dasharray="4 3"' : ''} points="${curve
       .map((p) => `${px(p.x)},${py(p.y)}`)
       .join(' ')}"/>`;
-  if (curves[1].length > 0) parts.push(polyline(curves[1], RESCALED_COLOUR, true));
-  parts.push(polyline(curves[0], CURRENT_COLOUR, false));
+  if (curves[1]!.length > 0) parts.push(polyline(curves[1]!, RESCALED_COLOUR, true));
+  parts.push(polyline(curves[0]!, CURRENT_COLOUR, false));
   parts.push('</svg>');
   return parts.join('');
 }

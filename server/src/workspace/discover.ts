@@ -198,7 +198,7 @@ function walk(root: string, state: WalkState, select: ((file: string) => boolean
       }
     }
     // Reverse so that popping visits sub-folders in name order.
-    for (let i = subdirs.length - 1; i >= 0; i--) stack.push({ dir: subdirs[i], layers });
+    for (let i = subdirs.length - 1; i >= 0; i--) stack.push({ dir: subdirs[i]!, layers });
   }
   return accepted;
 }

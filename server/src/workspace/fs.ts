@@ -100,7 +100,7 @@ export function readBounded(path: string, maxBytes: number): Buffer {
       chunks.push(Buffer.from(READ_SCRATCH.subarray(0, n)));
       total += n;
     }
-    return chunks.length === 1 ? chunks[0] : Buffer.concat(chunks, total);
+    return chunks.length === 1 ? chunks[0]! : Buffer.concat(chunks, total);
   } finally {
     closeSync(fd);
   }
@@ -153,7 +153,11 @@ export function readTextFile(fs: WorkspaceFs, path: string, maxBytes: number = D
   // A FIFO would block the read forever and a device (/dev/zero) would never end it.
   if (st.kind !== 'file') return { ok: false, kind: 'io', problem: 'not a regular file (a pipe, socket or device)' };
   if (st.size > maxBytes) {
-    return { ok: false, kind: 'skipped', problem: `skipped: ${formatBytes(st.size)} is above the ${formatBytes(maxBytes)} limit (limits.maxFileBytes)` };
+    return {
+      ok: false,
+      kind: 'skipped',
+      problem: `skipped: ${formatBytes(st.size)} is above the ${formatBytes(maxBytes)} limit (limits.maxFileBytes)`,
+    };
   }
   let bytes: Uint8Array;
   try {
@@ -181,7 +185,11 @@ const UTF16 = {
  */
 export function decodeText(bytes: Uint8Array): TextReadResult {
   const encoding: TextEncoding | null =
-    bytes.length >= 2 && bytes[0] === 0xff && bytes[1] === 0xfe ? 'utf-16le' : bytes.length >= 2 && bytes[0] === 0xfe && bytes[1] === 0xff ? 'utf-16be' : null;
+    bytes.length >= 2 && bytes[0] === 0xff && bytes[1] === 0xfe
+      ? 'utf-16le'
+      : bytes.length >= 2 && bytes[0] === 0xfe && bytes[1] === 0xff
+        ? 'utf-16be'
+        : null;
   if (encoding) {
     let text: string;
     try {
@@ -224,7 +232,7 @@ export function describeFsError(err: unknown): string {
     case 'ELOOP':
       return 'too many symbolic links';
     default:
-      return code ?? (err instanceof Error ? err.message.split('\n')[0] : String(err));
+      return code ?? (err instanceof Error ? err.message.split('\n')[0]! : String(err));
   }
 }
 

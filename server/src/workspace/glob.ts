@@ -187,8 +187,8 @@ function splitPattern(p: string): string[] {
 function tokenize(seg: string): Token[] {
   const tokens: Token[] = [];
   for (let i = 0; i < seg.length; i++) {
-    const c = seg[i];
-    if (c === '\\' && i + 1 < seg.length) tokens.push({ kind: 'lit', ch: seg[++i] });
+    const c = seg[i]!;
+    if (c === '\\' && i + 1 < seg.length) tokens.push({ kind: 'lit', ch: seg[++i]! });
     else if (c === '*') {
       if (tokens[tokens.length - 1]?.kind !== 'star') tokens.push({ kind: 'star' });
     } else if (c === '?') tokens.push({ kind: 'any' });
@@ -208,13 +208,13 @@ function tokenize(seg: string): Token[] {
       let first = true;
       while (j < close || (first && seg[j] === ']')) {
         first = false;
-        let lo = seg[j];
-        if (lo === '\\') lo = seg[++j];
+        let lo = seg[j]!;
+        if (lo === '\\') lo = seg[++j]!;
         j++;
         if (seg[j] === '-' && j + 1 < close) {
-          let hi = seg[j + 1];
+          let hi = seg[j + 1]!;
           j += 2;
-          if (hi === '\\') hi = seg[j++];
+          if (hi === '\\') hi = seg[j++]!;
           ranges.push([lo, hi]);
         } else ranges.push([lo, lo]);
       }
@@ -253,10 +253,10 @@ function matchSegment(seg: Extract<Segment, { kind: 'seg' }>, name: string, dot:
   let starT = -1;
   let starN = 0;
   while (n < name.length) {
-    if (t < tokens.length && tokens[t].kind !== 'star' && tokenMatches(tokens[t], name[n])) {
+    if (t < tokens.length && tokens[t]!.kind !== 'star' && tokenMatches(tokens[t]!, name[n]!)) {
       t++;
       n++;
-    } else if (t < tokens.length && tokens[t].kind === 'star') {
+    } else if (t < tokens.length && tokens[t]!.kind === 'star') {
       starT = t++;
       starN = n;
     } else if (starT >= 0) {
@@ -264,7 +264,7 @@ function matchSegment(seg: Extract<Segment, { kind: 'seg' }>, name: string, dot:
       n = ++starN;
     } else return false;
   }
-  while (t < tokens.length && tokens[t].kind === 'star') t++;
+  while (t < tokens.length && tokens[t]!.kind === 'star') t++;
   return t === tokens.length;
 }
 
@@ -277,19 +277,19 @@ function matchSegments(segments: Segment[], parts: string[], dot: boolean): bool
   const S = segments.length;
   let reach = new Uint8Array(S + 1);
   reach[0] = 1;
-  for (let i = 0; i < S && segments[i].kind === 'globstar'; i++) reach[i + 1] = 1;
+  for (let i = 0; i < S && segments[i]!.kind === 'globstar'; i++) reach[i + 1] = 1;
   for (let j = 0; j < parts.length; j++) {
     const next = new Uint8Array(S + 1);
-    const name = parts[j];
+    const name = parts[j]!;
     for (let i = 0; i < S; i++) {
-      const seg = segments[i];
+      const seg = segments[i]!;
       if (seg.kind === 'globstar') {
         // The globstar at i takes this segment too (it was reached with or without it).
         if ((reach[i] || reach[i + 1]) && (dot || !name.startsWith('.'))) next[i + 1] = 1;
       } else if (reach[i] && matchSegment(seg, name, dot)) next[i + 1] = 1;
     }
     // A globstar may also take nothing after a match.
-    for (let i = 0; i < S; i++) if (next[i] && segments[i].kind === 'globstar') next[i + 1] = 1;
+    for (let i = 0; i < S; i++) if (next[i] && segments[i]!.kind === 'globstar') next[i + 1] = 1;
     reach = next;
     let any = false;
     for (let i = 0; i <= S; i++) if (reach[i]) any = true;
@@ -327,7 +327,7 @@ export function parseIgnore(text: string, name = '.gitignore'): IgnoreRules {
   let refused = 0;
   let firstRefused = '';
   for (let n = 0; n < lines.length; n++) {
-    let line = lines[n];
+    let line = lines[n]!;
     if (line === '' || line.startsWith('#')) continue;
     // Trailing spaces are dropped unless escaped.
     line = line.replace(/(?<!\\)\s+$/, '');
@@ -361,7 +361,7 @@ export function parseIgnore(text: string, name = '.gitignore'): IgnoreRules {
 
   const verdictOf = (path: string, isDir: boolean): IgnoreVerdict => {
     for (let i = rules.length - 1; i >= 0; i--) {
-      const r = rules[i];
+      const r = rules[i]!;
       if (r.dirOnly && !isDir) continue;
       if (r.match(path)) return { ignored: !r.negated, unignored: r.negated };
     }

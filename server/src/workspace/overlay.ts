@@ -37,6 +37,7 @@ export function overlayFs(open: OpenTexts, base: WorkspaceFs = nodeFs): Workspac
           }
         }
       }
+      // eslint-disable-next-line @typescript-eslint/only-throw-error -- rethrows what readDir threw
       if (failure && !added) throw failure;
       return entries;
     },

@@ -105,7 +105,10 @@ function validatePairsWith(project: ResolvedProject, memo: PairingMemo): Validat
   project.pairs.forEach((pair, i) => {
     const training = resolvePairPathWith(project, pair.training, memo);
     const sampling = resolvePairPathWith(project, pair.sampling, memo);
-    for (const [side, r] of [['training', training], ['sampling', sampling]] as const) {
+    for (const [side, r] of [
+      ['training', training],
+      ['sampling', sampling],
+    ] as const) {
       if (!r.ok) warnings.push(`${project.file ?? 'project'}: pairs[${i}].${side}: ${r.problem}; pair ignored`);
     }
     if (training.ok && sampling.ok) {
@@ -288,12 +291,12 @@ function autoMatch(file: string, project: ResolvedProject, memo: PairingMemo, ro
   const other: PairRole = role === 'training' ? 'sampling' : 'training';
   const sameRole = candidates.filter((c) => roles.get(c) === role);
   const otherRole = candidates.filter((c) => roles.get(c) === other);
-  if (sameRole.length === 1 && otherRole.length === 1) return { role, partners: [otherRole[0]], how: 'auto-role' };
+  if (sameRole.length === 1 && otherRole.length === 1) return { role, partners: [otherRole[0]!], how: 'auto-role' };
   const keyOf = (p: string) => found.keys.get(p);
   const key = keyOf(self);
   const sameKey = sameRole.filter((c) => keyOf(c) === key);
   const otherKey = otherRole.filter((c) => keyOf(c) === key);
-  if (sameKey.length === 1 && otherKey.length === 1) return { role, partners: [otherKey[0]], how: 'auto-name' };
+  if (sameKey.length === 1 && otherKey.length === 1) return { role, partners: [otherKey[0]!], how: 'auto-name' };
   return null;
 }
 
@@ -312,7 +315,7 @@ export function runFilesOf(file: string, pairsOf: (path: string) => { pairRole?:
   const own = pairsOf(file);
   if (!own.pairRole || own.paths.length === 0) return { training: null, sampling: [] };
   if (own.pairRole === 'training') return { training: file, sampling: [...own.paths] };
-  const training = own.paths[0];
+  const training = own.paths[0]!;
   const back = pairsOf(training);
   const sampling = back.pairRole === 'training' ? [...back.paths] : [];
   if (!sampling.includes(file)) sampling.unshift(file);

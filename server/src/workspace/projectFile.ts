@@ -157,7 +157,7 @@ function ruleSettings(value: unknown, catalog: Catalog | null, fail: Fail): Reco
       fail(at, `must be a severity (${levels.join(', ')}) or { severity, options }, not ${describe(setting)}`);
     }
     const rule: RuleSetting = {};
-    for (const [key, v] of Object.entries(setting as Record<string, unknown>)) {
+    for (const [key, v] of Object.entries(setting)) {
       if (key === 'severity') {
         if (typeof v !== 'string' || !levels.includes(v)) fail(`${at}.severity`, `must be one of ${levels.join(', ')}, not ${describe(v)}`);
         rule.severity = v as Severity | 'off';
@@ -190,7 +190,7 @@ function ruleOptions(value: unknown, at: string, meta: RuleMeta | undefined, fai
     } else if (typeof v !== 'string' && typeof v !== 'boolean') {
       fail(field, `must be a number, a string or true/false, not ${describe(v)}`);
     }
-    out[name] = v as number | string | boolean;
+    out[name] = v;
   }
   return out;
 }
@@ -223,7 +223,7 @@ function pairList(value: unknown, fail: Fail): FilePair[] {
     for (const key of ['training', 'sampling'] as const) {
       const p = item[key];
       if (typeof p !== 'string' || p.trim() === '') fail(`${at}.${key}`, `must be a path relative to the project folder, not ${describe(p)}`);
-      pair[key] = p as string;
+      pair[key] = p;
     }
     return pair;
   });
@@ -237,25 +237,29 @@ function consumerList(value: unknown, fail: Fail): ConsumerSetting[] {
     const at = `consumers[${i}]`;
     if (!isPlainObject(item)) return fail(at, `must be { files, consumer, class, dialect }, not ${describe(item)}`);
     for (const key of Object.keys(item)) {
-      if (!CONSUMER_FIELDS.includes(key)) fail(`${at}.${key}`, `unknown field${closest(key, CONSUMER_FIELDS)}; fields: ${CONSUMER_FIELDS.join(', ')}`);
+      if (!CONSUMER_FIELDS.includes(key))
+        fail(`${at}.${key}`, `unknown field${closest(key, CONSUMER_FIELDS)}; fields: ${CONSUMER_FIELDS.join(', ')}`);
     }
     if (item.files === undefined) fail(`${at}.files`, 'is required (a glob or a list of globs)');
     const setting: ConsumerSetting = { files: globList(item.files, `${at}.files`, fail) };
     if (item.consumer !== undefined) {
       const families = FAMILY_IDS as readonly string[];
       if (typeof item.consumer !== 'string' || !families.includes(item.consumer)) {
-        fail(`${at}.consumer`, `must be one of ${families.join(', ')}, not ${describe(item.consumer)}${typeof item.consumer === 'string' ? closest(item.consumer, families) : ''}`);
+        fail(
+          `${at}.consumer`,
+          `must be one of ${families.join(', ')}, not ${describe(item.consumer)}${typeof item.consumer === 'string' ? closest(item.consumer, families) : ''}`,
+        );
       }
       setting.consumer = item.consumer as FamilyId;
     }
     if (item.class !== undefined) {
       const family = FAMILIES.find((f) => f.id === setting.consumer);
       if (!family) fail(`${at}.class`, 'needs a consumer family (consumer:) to belong to');
-      const names = family!.classes.map((c) => c.name);
+      const names = family.classes.map((c) => c.name);
       if (typeof item.class !== 'string' || !names.includes(item.class)) {
         fail(`${at}.class`, `must be a class of ${setting.consumer} (${names.join(', ')}), not ${describe(item.class)}`);
       }
-      setting.class = item.class as string;
+      setting.class = item.class;
     }
     if (item.dialect !== undefined) {
       const ids = DIALECT_IDS as readonly string[];
@@ -279,7 +283,7 @@ function limitTable(value: unknown, fail: Fail): Partial<ParseLimits> {
     if (typeof v !== 'number' || !Number.isInteger(v) || v < range[0] || v > range[1]) {
       fail(at, `must be an integer in [${range[0]}, ${range[1]}], not ${describe(v)}`);
     }
-    out[key as keyof ParseLimits] = v as number;
+    out[key as keyof ParseLimits] = v;
   }
   return out;
 }
@@ -336,9 +340,9 @@ export function findProjectFile(folder: string, fs: WorkspaceFs = nodeFs): strin
     const found = PROJECT_FILE_NAMES.map((name) => join(dir, name)).filter((p) => fs.stat(p)?.kind === 'file');
     if (found.length > 1) {
       const names = found.map((p) => p.slice(dir.length + 1)).join(' and ');
-      return new ProjectFileError(found[0], '', `${names} are both in ${dir}; keep one`);
+      return new ProjectFileError(found[0]!, '', `${names} are both in ${dir}; keep one`);
     }
-    if (found.length === 1) return found[0];
+    if (found.length === 1) return found[0]!;
     if (dir === top) return null;
     const up = dirname(dir);
     if (up === dir) return null;
@@ -391,7 +395,7 @@ function describe(v: unknown): string {
 
 function firstLine(err: unknown): string {
   const message = err instanceof Error ? err.message : String(err);
-  return message.split('\n')[0].trim();
+  return message.split('\n')[0]!.trim();
 }
 
 /** ` (did you mean "x"?)` for a near miss (edit distance <= 2), else ''. */

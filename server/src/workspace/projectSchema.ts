@@ -75,8 +75,8 @@ export function projectFileSchema(): Schema {
   }
   const path = { type: 'string', minLength: 1, pattern: '\\S' };
   const properties: Record<string, Schema> = {
-    include: globs(FIELD_DESCRIPTIONS.include),
-    exclude: globs(FIELD_DESCRIPTIONS.exclude),
+    include: globs(FIELD_DESCRIPTIONS.include!),
+    exclude: globs(FIELD_DESCRIPTIONS.exclude!),
     rules: { description: FIELD_DESCRIPTIONS.rules, type: 'object', additionalProperties: false, properties: rules },
     aliases: { description: FIELD_DESCRIPTIONS.aliases, type: 'object', additionalProperties: false, properties: aliases },
     latentSpace: { description: FIELD_DESCRIPTIONS.latentSpace, type: 'boolean' },

@@ -245,7 +245,9 @@ export class WorkspaceSession {
       this.pairsChecked.add(project);
       for (const w of memo.pairs(project).warnings) this.warnOnce(w);
     }
-    const match = memo ? findPartners(path, project, { roleOf: this.roleOf, memo }) : findPartners(path, project, { fs: this.fs, roleOf: this.roleOf });
+    const match = memo
+      ? findPartners(path, project, { roleOf: this.roleOf, memo })
+      : findPartners(path, project, { fs: this.fs, roleOf: this.roleOf });
     if (!match) return none;
     const partners: PartnerDocument[] = [];
     const texts = new Map<string, string>();

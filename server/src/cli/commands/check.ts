@@ -47,19 +47,52 @@ export const CHECK_SPEC: CommandSpec = {
     'input; give --as <path> so the project file, pairing and the file type follow that path.',
   ],
   options: [
-    { name: 'format', short: 'f', type: 'string', value: 'text|json|sarif|annotations', choices: CHECK_FORMATS, description: 'Report format (default text). annotations: CI workflow commands (::error file=...).' },
-    { name: 'show', type: 'string', value: 'severity', choices: SEVERITIES, description: 'List findings of this severity or more severe only (default hint: all); the rest still count.' },
-    { name: 'budget', type: 'string', value: 'severity=N', multiple: true, description: 'At most N findings at or above the severity may pass (repeatable); default error=0.' },
-    { name: 'fix-edits', type: 'string', value: 'compact|full|none', choices: EDIT_FORMS, description: 'How the JSON report writes fix edits (default compact).' },
+    {
+      name: 'format',
+      short: 'f',
+      type: 'string',
+      value: 'text|json|sarif|annotations',
+      choices: CHECK_FORMATS,
+      description: 'Report format (default text). annotations: CI workflow commands (::error file=...).',
+    },
+    {
+      name: 'show',
+      type: 'string',
+      value: 'severity',
+      choices: SEVERITIES,
+      description: 'List findings of this severity or more severe only (default hint: all); the rest still count.',
+    },
+    {
+      name: 'budget',
+      type: 'string',
+      value: 'severity=N',
+      multiple: true,
+      description: 'At most N findings at or above the severity may pass (repeatable); default error=0.',
+    },
+    {
+      name: 'fix-edits',
+      type: 'string',
+      value: 'compact|full|none',
+      choices: EDIT_FORMS,
+      description: 'How the JSON report writes fix edits (default compact).',
+    },
     COLOR_OPTION,
     { name: 'as', type: 'string', value: 'path', description: 'With `-`: the path the text on standard input stands for.' },
     { name: 'empty-ok', type: 'boolean', description: 'Exit 0 even when an input holds no diffusion config (e.g. hooks on changed files).' },
-    { name: 'docs-base', type: 'string', value: 'https-url', description: 'Link rule ids in SARIF to <url>/<rule-id>.md (https only; default: no links).' },
+    {
+      name: 'docs-base',
+      type: 'string',
+      value: 'https-url',
+      description: 'Link rule ids in SARIF to <url>/<rule-id>.md (https only; default: no links).',
+    },
   ],
   exitCodes: [
     [0, 'the findings fit every budget (by default: no error)'],
     [1, 'a budget is exceeded'],
-    [2, 'bad arguments, an invalid project file, an input that could not be read or checked (a named file that is binary, over a limit or of another type), or an input with no diffusion config (unless --empty-ok)'],
+    [
+      2,
+      'bad arguments, an invalid project file, an input that could not be read or checked (a named file that is binary, over a limit or of another type), or an input with no diffusion config (unless --empty-ok)',
+    ],
   ],
   examples: [
     'noiselint check configs/',
@@ -105,7 +138,7 @@ function severityArg(flag: string, raw: string): Severity {
 function budgetArg(raw: string): Budget {
   const m = /^\s*([a-z]+)\s*=\s*(\d+)\s*$/.exec(raw);
   if (!m) throw new UsageError(`--budget takes <severity>=<count>, e.g. warning=5, not "${raw}"`);
-  return { severity: severityArg('--budget', m[1]), allowed: Number(m[2]), explicit: true };
+  return { severity: severityArg('--budget', m[1]!), allowed: Number(m[2]), explicit: true };
 }
 
 export function parseCheckArgs(args: string[]): CheckOptions {
@@ -269,7 +302,10 @@ export async function check(options: CheckOptions, io: CliIO, diskFs: WorkspaceF
   // Never green on nothing checked: every input must hold at least one diffusion config.
   if (!options.emptyOk) {
     const empty = (label: string, read: number) =>
-      notice('error', `${label}: no diffusion config found (${read === 0 ? 'no config files' : `${read} ${read === 1 ? 'file' : 'files'} read, none is a training or sampling config`}); --empty-ok accepts that`);
+      notice(
+        'error',
+        `${label}: no diffusion config found (${read === 0 ? 'no config files' : `${read} ${read === 1 ? 'file' : 'files'} read, none is a training or sampling config`}); --empty-ok accepts that`,
+      );
     if (stdin && !checkedConfig.has(stdin.path)) empty(options.stdinPath ?? STDIN_NAME, 1);
     for (const input of inputs) {
       if (discoveryFailed.has(input)) continue;
@@ -286,7 +322,12 @@ export async function check(options: CheckOptions, io: CliIO, diskFs: WorkspaceF
   });
   let hidden: Summary = { errors: 0, warnings: 0, infos: 0, hints: 0 };
   if (stream) {
-    hidden = { errors: 0, warnings: all.warnings - countedListed.warnings, infos: all.infos - countedListed.infos, hints: all.hints - countedListed.hints };
+    hidden = {
+      errors: 0,
+      warnings: all.warnings - countedListed.warnings,
+      infos: all.infos - countedListed.infos,
+      hints: all.hints - countedListed.hints,
+    };
   } else if (options.show !== 'hint') {
     report.files = report.files.map((f) => ({ ...f, findings: f.findings.filter((x) => listed(x.severity)) }));
     const shownCount = summarize(report.files);
@@ -295,7 +336,8 @@ export async function check(options: CheckOptions, io: CliIO, diskFs: WorkspaceF
   report.outcome = { counted: all, hidden, show: options.show, budgets };
 
   if (stream) stream.finish(report);
-  else if (options.format === 'sarif') io.stdout(formatSarif(report, { version: CHECK_TOOL_VERSION, rules: ALL_RULE_METAS, docsBase: options.docsBase }));
+  else if (options.format === 'sarif')
+    io.stdout(formatSarif(report, { version: CHECK_TOOL_VERSION, rules: ALL_RULE_METAS, docsBase: options.docsBase }));
   else if (options.format === 'annotations') io.stdout(formatAnnotations(report));
   else io.stdout(formatText(report, { color: useColor(options.color, io) }));
 

@@ -21,7 +21,14 @@ export const EXPLAIN_SPEC: CommandSpec = {
   usage: '<file...|-> [options]',
   details: ['`-` reads one config from standard input; --as <path> names it (project file, pairing, file type).'],
   options: [
-    { name: 'format', short: 'f', type: 'string', value: 'text|json', choices: EXPLAIN_FORMATS, description: 'Output format (default text; json: docs/explain-json.md).' },
+    {
+      name: 'format',
+      short: 'f',
+      type: 'string',
+      value: 'text|json',
+      choices: EXPLAIN_FORMATS,
+      description: 'Output format (default text; json: docs/explain-json.md).',
+    },
     { name: 'plot-svg', type: 'string', value: 'out.svg', description: 'Also write the schedule plot of the (one) file as a standalone SVG.' },
     { name: 'as', type: 'string', value: 'path', description: 'With `-`: the path the text on standard input stands for.' },
   ],
@@ -29,7 +36,11 @@ export const EXPLAIN_SPEC: CommandSpec = {
     [0, 'every file was explained'],
     [2, 'bad arguments, a file that could not be read, or a plot that could not be written'],
   ],
-  examples: ['noiselint explain configs/train.yaml', 'noiselint explain -f json configs/*.yaml', 'noiselint explain configs/train.yaml --plot-svg plot.svg'],
+  examples: [
+    'noiselint explain configs/train.yaml',
+    'noiselint explain -f json configs/*.yaml',
+    'noiselint explain configs/train.yaml --plot-svg plot.svg',
+  ],
 };
 
 export async function runExplain(args: string[], io: CliIO): Promise<number> {
@@ -44,7 +55,8 @@ export async function runExplain(args: string[], io: CliIO): Promise<number> {
   if (parsed.positionals.filter((p) => p === '-').length > 1) throw new UsageError('`-` (standard input) may be given once');
   if (stdinName !== undefined && !parsed.positionals.includes('-')) throw new UsageError('--as names the file on standard input; add `-` to read it');
   const svgPath = typeof parsed.values['plot-svg'] === 'string' ? parsed.values['plot-svg'] : undefined;
-  if (svgPath !== undefined && (svgPath === '' || parsed.positionals.length !== 1)) throw new UsageError('--plot-svg writes the plot of one file: name one file and an output path');
+  if (svgPath !== undefined && (svgPath === '' || parsed.positionals.length !== 1))
+    throw new UsageError('--plot-svg writes the plot of one file: name one file and an output path');
   let failed = false;
   const results = [];
   // Paired as check pairs them: a sampling file is explained with its training file's schedule.

@@ -35,7 +35,7 @@ import { PARSE_ERROR_ID } from '../../rules';
 import { discoverFiles } from '../../workspace/discover';
 import { describeFsError, encodeText, nodeFs, readTextFile, type TextEncoding } from '../../workspace/fs';
 import { loadProject, ProjectFileError, type ResolvedProject } from '../../workspace/project';
-import { type CliIO } from '../io';
+import type { CliIO } from '../io';
 import { helpText, parseCommandArgs, type CommandSpec } from '../options';
 import { printable, printableLine } from '../output/printable';
 import { displayPath } from '../output/report';
@@ -50,7 +50,11 @@ export const FIX_SPEC: CommandSpec = {
     'fixes that keep every comment are applied: a trained checkpoint stays valid.',
   ],
   options: [
-    { name: 'accept-retraining', type: 'boolean', description: 'Also apply fixes that change what the model learns (the checkpoint then needs fine-tuning or retraining).' },
+    {
+      name: 'accept-retraining',
+      type: 'boolean',
+      description: 'Also apply fixes that change what the model learns (the checkpoint then needs fine-tuning or retraining).',
+    },
     { name: 'accept-comment-edits', type: 'boolean', description: 'Also apply fixes that rewrite or delete part of a comment you wrote.' },
     { name: 'dry-run', short: 'n', type: 'boolean', description: 'Print the changes as a unified diff and write nothing.' },
   ],

@@ -14,7 +14,7 @@ export const LSP_SPEC: CommandSpec = {
   options: [
     { name: 'stdio', type: 'boolean', description: 'Speak LSP on standard input and output.' },
     { name: 'node-ipc', type: 'boolean', description: 'Speak LSP over the Node IPC channel of a parent process.' },
-    { name: 'clientProcessId', type: 'string', value: 'pid', description: 'The editor\'s process id: the server exits with it.' },
+    { name: 'clientProcessId', type: 'string', value: 'pid', description: "The editor's process id: the server exits with it." },
   ],
   exitCodes: [
     [0, 'the client asked the server to shut down and exit'],

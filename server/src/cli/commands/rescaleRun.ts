@@ -41,7 +41,11 @@ export const RESCALE_RUN_SPEC: CommandSpec = {
   options: [
     { name: 'sampling-only', type: 'boolean', description: 'Only the sampling side (the trained checkpoint stays valid).' },
     { name: 'write', type: 'boolean', description: 'Write the change (atomically) instead of printing it only.' },
-    { name: 'accept-retraining', type: 'boolean', description: 'With --write: also write changes to what the model learns (it then needs fine-tuning).' },
+    {
+      name: 'accept-retraining',
+      type: 'boolean',
+      description: 'With --write: also write changes to what the model learns (it then needs fine-tuning).',
+    },
   ],
   exitCodes: [
     [0, 'shown or written'],
@@ -101,7 +105,8 @@ export async function runRescaleRun(args: string[], io: CliIO): Promise<number> 
     { samplingOnly: options.samplingOnly },
   );
   if (plan.blocked.length > 0) {
-    for (const p of plan.blocked) io.stderr(`noiselint rescale-run: ${p}: the change cannot be written without breaking the text or losing a comment; nothing written\n`);
+    for (const p of plan.blocked)
+      io.stderr(`noiselint rescale-run: ${p}: the change cannot be written without breaking the text or losing a comment; nothing written\n`);
     return 1;
   }
   const texts = new Map<string, string>();
@@ -116,7 +121,9 @@ export async function runRescaleRun(args: string[], io: CliIO): Promise<number> 
     ? `run of ${files.find((f) => f.side === 'training')!.shown} (${files.length} ${files.length === 1 ? 'file' : 'files'})`
     : files.map((f) => f.shown).join(', ');
   if (plan.empty) {
-    out.push(`Nothing to change in the ${run}: it is already at zero terminal SNR${options.samplingOnly ? ' as far as sampling-only changes go' : ''}.`);
+    out.push(
+      `Nothing to change in the ${run}: it is already at zero terminal SNR${options.samplingOnly ? ' as far as sampling-only changes go' : ''}.`,
+    );
   } else {
     for (const f of files) {
       const after = texts.get(f.abs);
@@ -131,7 +138,11 @@ export async function runRescaleRun(args: string[], io: CliIO): Promise<number> 
   if (plan.notes.length > 0) out.push('', 'Not expressible in the files:', ...plan.notes.map((n) => `  ${n}`));
   const remaining = remainingAfter(files, texts);
   out.push('');
-  out.push(remaining.length === 0 ? 'Afterwards check reports none of the fixed rules and no mismatch between the files.' : 'Afterwards check would still report:');
+  out.push(
+    remaining.length === 0
+      ? 'Afterwards check reports none of the fixed rules and no mismatch between the files.'
+      : 'Afterwards check would still report:',
+  );
   for (const r of remaining) out.push(`  ${r}`);
   out.push('', 'Cautions:', ...plan.cautions.map((c) => `  - ${c}`));
   io.stdout(`${out.join('\n')}\n`);
@@ -141,7 +152,9 @@ export async function runRescaleRun(args: string[], io: CliIO): Promise<number> 
     return 0;
   }
   if (plan.changesTraining && !options.acceptRetraining) {
-    io.stderr('noiselint rescale-run: not written: the change alters what the model learns (schedule, target, offset noise); add --accept-retraining, or --sampling-only\n');
+    io.stderr(
+      'noiselint rescale-run: not written: the change alters what the model learns (schedule, target, offset noise); add --accept-retraining, or --sampling-only\n',
+    );
     return 1;
   }
   let notWritten = false;

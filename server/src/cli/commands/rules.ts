@@ -8,7 +8,7 @@ import { helpText, parseCommandArgs, type CommandSpec } from '../options';
 
 export const RULES_SPEC: CommandSpec = {
   name: 'rules',
-  summary: 'Lists the rules, or prints one rule\'s documentation.',
+  summary: "Lists the rules, or prints one rule's documentation.",
   usage: '[rule-id]',
   options: [],
   exitCodes: [
@@ -21,8 +21,12 @@ export const RULES_SPEC: CommandSpec = {
 function table(metas: readonly RuleMeta[]): string {
   const rows = metas.map((m) => [m.id, m.defaultSeverity, repairLabel(m), m.summary]);
   const head = ['rule', 'default', 'repair', 'what it finds'];
-  const widths = [0, 1, 2].map((i) => Math.max(head[i].length, ...rows.map((r) => r[i].length)));
-  const line = (r: string[]) => `${r.slice(0, 3).map((c, i) => c.padEnd(widths[i])).join('  ')}  ${r[3]}`.trimEnd();
+  const widths = [0, 1, 2].map((i) => Math.max(head[i]!.length, ...rows.map((r) => r[i]!.length)));
+  const line = (r: string[]) =>
+    `${r
+      .slice(0, 3)
+      .map((c, i) => c.padEnd(widths[i]!))
+      .join('  ')}  ${r[3]}`.trimEnd();
   return [line(head), ...rows.map(line)].join('\n') + '\n';
 }
 
@@ -44,7 +48,7 @@ export async function runRulesCommand(args: string[], io: CliIO): Promise<number
     io.stdout(table(ALL_RULE_METAS));
     return 0;
   }
-  const meta = getRuleMeta(positional[0]);
+  const meta = getRuleMeta(positional[0]!);
   if (!meta) {
     io.stderr(`noiselint rules: unknown rule "${positional[0]}" (run \`noiselint rules\` for the list)\n`);
     return 2;

@@ -52,6 +52,8 @@ export function formatAnnotations(report: CheckReport): string {
   }
   const s = summarize(report.files);
   const configs = report.files.filter((f) => f.isDiffusionConfig).length;
-  lines.push(`noiselint: ${s.errors} errors, ${s.warnings} warnings, ${s.infos + s.hints} notes in ${configs} configs checked (${report.files.length} files read).`);
+  lines.push(
+    `noiselint: ${s.errors} errors, ${s.warnings} warnings, ${s.infos + s.hints} notes in ${configs} configs checked (${report.files.length} files read).`,
+  );
   return `${lines.join('\n')}\n`;
 }

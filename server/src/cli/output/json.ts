@@ -53,7 +53,16 @@ export interface JsonOutput {
    * `files`: files checked and listed; `passedOver`: files whose text names no schedule or
    * step-count key, so they were not parsed (and are not listed).
    */
-  summary: { errors: number; warnings: number; infos: number; hints: number; files: number; passedOver: number; hidden: number; budgets: JsonBudget[] };
+  summary: {
+    errors: number;
+    warnings: number;
+    infos: number;
+    hints: number;
+    files: number;
+    passedOver: number;
+    hidden: number;
+    budgets: JsonBudget[];
+  };
 }
 
 export interface JsonBudget {

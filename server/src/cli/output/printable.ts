@@ -8,7 +8,6 @@
 
 // C0 and C1 controls, DEL, the bidi marks, embeddings, overrides and isolates, and the Unicode
 // line and paragraph separators.
-// eslint-disable-next-line no-control-regex
 const UNPRINTABLE = /[\u0000-\u001f\u007f-\u009f\u061c\u200e\u200f\u2028\u2029\u202a-\u202e\u2066-\u2069]/g;
 
 export function printable(s: string): string {

@@ -43,12 +43,14 @@ function uriOf(displayed: string): string {
 /** What a rule finds: the first paragraph under "What triggers it", as plain text. */
 function fullDescription(meta: RuleMeta): string {
   const match = /##\s*What triggers it\s*\n+([\s\S]*?)(\n\s*\n|\n##|$)/.exec(meta.docs);
-  const text = (match ? match[1] : meta.summary).replace(/\s*\n\s*/g, ' ').trim();
+  const text = (match ? match[1]! : meta.summary).replace(/\s*\n\s*/g, ' ').trim();
   return text || meta.summary;
 }
 
 function plainHelp(meta: RuleMeta): string {
-  return `${meta.summary}\n\n${ruleDocs(meta).replace(/^#+\s*/gm, '').trim()}`;
+  return `${meta.summary}\n\n${ruleDocs(meta)
+    .replace(/^#+\s*/gm, '')
+    .trim()}`;
 }
 
 function helpUri(ruleId: string, base: string | undefined): { helpUri?: string } {

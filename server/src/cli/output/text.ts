@@ -25,7 +25,6 @@ const SGR = {
 
 const SEVERITY_COLOR: Record<Severity, string> = { error: SGR.red, warning: SGR.yellow, info: SGR.blue, hint: SGR.dim };
 
-
 export function formatText(report: CheckReport, options: TextOptions): string {
   const paint = (code: string, s: string) => (options.color ? `${code}${s}${SGR.reset}` : s);
   const locate = new Locator(report);
@@ -35,7 +34,9 @@ export function formatText(report: CheckReport, options: TextOptions): string {
     for (const f of file.findings) {
       const { start } = locate.range(file.path, f.span);
       const where = `${path}:${start.line + 1}:${start.character + 1}`;
-      lines.push(`${paint(SGR.bold, `${where}:`)} ${paint(SEVERITY_COLOR[f.severity], `${f.severity}:`)} ${printableLine(f.message)} ${paint(SGR.dim, `(noiselint rules ${f.rule})`)}`);
+      lines.push(
+        `${paint(SGR.bold, `${where}:`)} ${paint(SEVERITY_COLOR[f.severity], `${f.severity}:`)} ${printableLine(f.message)} ${paint(SGR.dim, `(noiselint rules ${f.rule})`)}`,
+      );
     }
   }
   lines.push(summaryLine(report, paint));
@@ -58,13 +59,12 @@ function summaryLine(report: CheckReport, paint: (code: string, s: string) => st
   const skipped =
     (report.skipped.length ? `, ${report.skipped.length} skipped` : '') +
     (report.passedOver ? `, ${count(report.passedOver, 'other file')} passed over (no schedule or step-count key)` : '');
-  const hidden = h && h.warnings + h.infos + h.hints > 0
-    ? ` (${[
-        h.warnings ? count(h.warnings, 'warning') : '',
-        h.infos ? count(h.infos, 'info') : '',
-        h.hints ? count(h.hints, 'hint') : '',
-      ].filter(Boolean).join(', ')} not listed: --show ${report.outcome!.show})`
-    : '';
+  const hidden =
+    h && h.warnings + h.infos + h.hints > 0
+      ? ` (${[h.warnings ? count(h.warnings, 'warning') : '', h.infos ? count(h.infos, 'info') : '', h.hints ? count(h.hints, 'hint') : '']
+          .filter(Boolean)
+          .join(', ')} not listed: --show ${report.outcome!.show})`
+      : '';
   const total = s.errors + s.warnings + s.infos + s.hints;
   // Never green on nothing checked.
   if (total === 0 && !report.files.some((f) => f.isDiffusionConfig)) {

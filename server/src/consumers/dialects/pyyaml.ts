@@ -15,7 +15,8 @@ import { str, unquoted, type Dialect, type TypedValue } from './types';
 const BOOL_TRUE = /^(yes|Yes|YES|true|True|TRUE|on|On|ON)$/;
 const BOOL_FALSE = /^(no|No|NO|false|False|FALSE|off|Off|OFF)$/;
 const INT = /^[-+]?(0b[0-1_]+|0[0-7_]+|(0|[1-9][0-9_]*)|0x[0-9a-fA-F_]+|[1-9][0-9_]*(:[0-5]?[0-9])+)$/;
-const FLOAT = /^([-+]?[0-9][0-9_]*\.[0-9_]*([eE][-+][0-9]+)?|\.[0-9][0-9_]*([eE][-+][0-9]+)?|[-+]?[0-9][0-9_]*(:[0-5]?[0-9])+\.[0-9_]*|[-+]?\.(inf|Inf|INF)|\.(nan|NaN|NAN))$/;
+const FLOAT =
+  /^([-+]?[0-9][0-9_]*\.[0-9_]*([eE][-+][0-9]+)?|\.[0-9][0-9_]*([eE][-+][0-9]+)?|[-+]?[0-9][0-9_]*(:[0-5]?[0-9])+\.[0-9_]*|[-+]?\.(inf|Inf|INF)|\.(nan|NaN|NAN))$/;
 
 function intValue(s: string): number {
   let t = s.replace(/_/g, '');

@@ -17,15 +17,49 @@ import type { ConsumerClass, ConsumerFamily } from '../types';
 const SOURCE = 'stablediffusion (SD 2.x), ldm/models/diffusion/ddpm.py';
 
 const DDPM_KEYS = [
-  'unet_config', 'timesteps', 'beta_schedule', 'loss_type', 'ckpt_path', 'ignore_keys', 'load_only_unet', 'monitor',
-  'use_ema', 'first_stage_key', 'image_size', 'channels', 'log_every_t', 'clip_denoised', 'linear_start', 'linear_end',
-  'cosine_s', 'given_betas', 'original_elbo_weight', 'v_posterior', 'l_simple_weight', 'conditioning_key',
-  'parameterization', 'scheduler_config', 'use_positional_encodings', 'learn_logvar', 'logvar_init', 'make_it_fit',
-  'ucg_training', 'reset_ema', 'reset_num_ema_updates',
+  'unet_config',
+  'timesteps',
+  'beta_schedule',
+  'loss_type',
+  'ckpt_path',
+  'ignore_keys',
+  'load_only_unet',
+  'monitor',
+  'use_ema',
+  'first_stage_key',
+  'image_size',
+  'channels',
+  'log_every_t',
+  'clip_denoised',
+  'linear_start',
+  'linear_end',
+  'cosine_s',
+  'given_betas',
+  'original_elbo_weight',
+  'v_posterior',
+  'l_simple_weight',
+  'conditioning_key',
+  'parameterization',
+  'scheduler_config',
+  'use_positional_encodings',
+  'learn_logvar',
+  'logvar_init',
+  'make_it_fit',
+  'ucg_training',
+  'reset_ema',
+  'reset_num_ema_updates',
 ];
 const LATENT_KEYS = [
-  'first_stage_config', 'cond_stage_config', 'num_timesteps_cond', 'cond_stage_key', 'cond_stage_trainable',
-  'concat_mode', 'cond_stage_forward', 'scale_factor', 'scale_by_std', 'force_null_conditioning',
+  'first_stage_config',
+  'cond_stage_config',
+  'num_timesteps_cond',
+  'cond_stage_key',
+  'cond_stage_trainable',
+  'concat_mode',
+  'cond_stage_forward',
+  'scale_factor',
+  'scale_by_std',
+  'force_null_conditioning',
 ];
 
 const CONCEPT_KEYS = {
@@ -49,9 +83,9 @@ const DEFAULTS = {
 
 const CANNOT = {
   zeroTerminalSnr:
-    'the model class has no zero-SNR flag: pass the rescaled betas as given_betas (a list of timesteps values), ' +
-    'or rescale in the training code',
-  timestepSpacing: 'the DDIM sampler of this code always takes steps (0, c, 2c, ...) + 1 with c = T // N; change the sampling script to start at T - 1',
+    'the model class has no zero-SNR flag: pass the rescaled betas as given_betas (a list of timesteps values), ' + 'or rescale in the training code',
+  timestepSpacing:
+    'the DDIM sampler of this code always takes steps (0, c, 2c, ...) + 1 with c = T // N; change the sampling script to start at T - 1',
   guidanceRescale: 'guidance rescale is an argument of the sampling script, not of the model config',
   offsetNoise: 'offset noise is not a model-class argument here: it lives in the training loop',
 };
@@ -83,8 +117,25 @@ function ldmClass(name: string, keys: string[], what: string): ConsumerClass {
 export const LATENT_DIFFUSION_CLASSES: ConsumerClass[] = [
   ldmClass('ldm.models.diffusion.ddpm.LatentDiffusion', [...DDPM_KEYS, ...LATENT_KEYS], 'LatentDiffusion.__init__ and DDPM.__init__'),
   ldmClass('ldm.models.diffusion.ddpm.DDPM', DDPM_KEYS, 'DDPM.__init__'),
-  ldmClass('ldm.models.diffusion.ddpm.LatentUpscaleDiffusion', [...DDPM_KEYS, ...LATENT_KEYS, 'low_scale_config', 'low_scale_key', 'noise_level_key'], 'LatentUpscaleDiffusion.__init__'),
-  ldmClass('ldm.models.diffusion.ddpm.LatentInpaintDiffusion', [...DDPM_KEYS, ...LATENT_KEYS, 'concat_keys', 'masked_image_key', 'finetune_keys', 'keep_finetune_dims', 'c_concat_log_start', 'c_concat_log_end'], 'LatentInpaintDiffusion.__init__'),
+  ldmClass(
+    'ldm.models.diffusion.ddpm.LatentUpscaleDiffusion',
+    [...DDPM_KEYS, ...LATENT_KEYS, 'low_scale_config', 'low_scale_key', 'noise_level_key'],
+    'LatentUpscaleDiffusion.__init__',
+  ),
+  ldmClass(
+    'ldm.models.diffusion.ddpm.LatentInpaintDiffusion',
+    [
+      ...DDPM_KEYS,
+      ...LATENT_KEYS,
+      'concat_keys',
+      'masked_image_key',
+      'finetune_keys',
+      'keep_finetune_dims',
+      'c_concat_log_start',
+      'c_concat_log_end',
+    ],
+    'LatentInpaintDiffusion.__init__',
+  ),
 ];
 
 export const LATENT_DIFFUSION_FAMILY: ConsumerFamily = {
