@@ -81,10 +81,10 @@ export const TAIL_SHARE = 0.1;
  * fills the window instead of a few pixels of a 0..1 axis.
  */
 export function tailWindow(t: readonly number[], curves: readonly PlotCurve[], skipped: PlotSkippedRange | null): PlotTailWindow {
-  const first = t.length > 0 ? t[0] : 0;
-  const last = t.length > 0 ? t[t.length - 1] : 0;
-  let from = last! - (last! - first!) * TAIL_SHARE;
-  if (skipped && skipped.lastVisited < from + (last! - first!) * 0.02) from = Math.max(first!, skipped.lastVisited - (last! - first!) * 0.02);
+  const first = t.length > 0 ? t[0]! : 0;
+  const last = t.length > 0 ? t[t.length - 1]! : 0;
+  let from = last - (last - first) * TAIL_SHARE;
+  if (skipped && skipped.lastVisited < from + (last - first) * 0.02) from = Math.max(first, skipped.lastVisited - (last - first) * 0.02);
   from = Math.floor(from);
   let high = 0;
   for (const curve of curves) {
@@ -93,7 +93,7 @@ export function tailWindow(t: readonly number[], curves: readonly PlotCurve[], s
       if (t[i]! >= from && Number.isFinite(v) && v > high) high = v;
     }
   }
-  return { from, to: last!, signalMax: niceCeiling(high * 1.1) };
+  return { from, to: last, signalMax: niceCeiling(high * 1.1) };
 }
 
 /** 1, 2, 2.5 or 5 times a power of ten, at or above x (1 for x <= 0 or above 1). */
