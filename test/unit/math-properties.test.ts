@@ -201,11 +201,14 @@ describe('guidance rescale (Lin et al. 2023, eqs. 13-16)', () => {
     fc.assert(
       fc.property(vectors, ({ pos, neg, w }) => {
         const cfg = pos.map((p, i) => neg[i]! + w * (p - neg[i]!));
-        fc.pre(populationStd(cfg) > 1e-6 && populationStd(pos) > 1e-6);
+        // The spread must not vanish next to the values themselves: a std computed from nearly
+        // equal values loses digits to cancellation, and the ratio below would test that, not eq. 14.
+        const scale = (xs: number[]) => 1 + Math.max(...xs.map(Math.abs));
+        fc.pre(populationStd(cfg) > 1e-6 * scale(cfg) && populationStd(pos) > 1e-6 * scale(pos));
         const out = guidanceRescale(pos, neg, w, 1);
         // Lin et al. 2023, eq. 14: std(x_res) = std(x_pos)
         const rel = Math.abs(populationStd(out) - populationStd(pos)) / populationStd(pos);
-        expect(rel).toBeLessThan(1e-12);
+        expect(rel).toBeLessThan(1e-9);
       }),
       RUNS,
     );
