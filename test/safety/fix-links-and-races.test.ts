@@ -7,27 +7,13 @@ import { spawn } from 'node:child_process';
 import { existsSync, linkSync, mkdirSync, readFileSync, readdirSync, statSync, symlinkSync, watch, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { linearBetaTexts, SMALL } from './configs';
 import { CLI, describeCrash, ensureCliBuilt, removeTempDirs, runCli, tempDir } from '../adversarial/helpers';
 
 /** Leading spacing and guidance without rescale on a zero-SNR schedule (invented Lanternfish Pictures data). */
-const SMALL = [
-  '# Lanternfish Pictures: product stills sampler (invented demo data)',
-  'num_train_timesteps: 1000',
-  'beta_schedule: scaled_linear',
-  'beta_start: 0.00085',
-  'beta_end: 0.012',
-  'rescale_betas_zero_snr: true',
-  'prediction_type: v_prediction',
-  'timestep_spacing: leading',
-  'num_inference_steps: 30',
-  'guidance_scale: 7.5',
-  '',
-].join('\n');
-
 /** SMALL with an explicit linear beta list (Ho et al. 2020 endpoints), so the write takes a while. */
 function largeConfig(n = 5_000): string {
-  const betas: string[] = [];
-  for (let i = 0; i < n; i++) betas.push((1e-4 + ((0.02 - 1e-4) * i) / (n - 1)).toPrecision(8));
+  const betas = linearBetaTexts(n);
   return SMALL.replace('num_train_timesteps: 1000', `num_train_timesteps: ${n}`).replace(
     /beta_schedule.*\nbeta_start.*\nbeta_end.*\n/,
     `trained_betas: [${betas.join(', ')}]\n`,

@@ -9,6 +9,7 @@ import { watch } from 'node:fs';
 import { chmodSync, copyFileSync, lstatSync, readFileSync, readdirSync, readlinkSync, statSync, symlinkSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { linearBetaTexts, SMALL } from './configs';
 import { CLI, describeCrash, ensureCliBuilt, runCli, removeTempDirs, tempDir } from '../adversarial/helpers';
 
 /**
@@ -17,8 +18,7 @@ import { CLI, describeCrash, ensureCliBuilt, runCli, removeTempDirs, tempDir } f
  */
 function bigConfig(): string {
   const n = Number(process.env.NOISELINT_KILL_BETAS ?? 10_000);
-  const betas: string[] = [];
-  for (let i = 0; i < n; i++) betas.push((1e-4 + ((0.02 - 1e-4) * i) / (n - 1)).toPrecision(8));
+  const betas = linearBetaTexts(n);
   return [
     '# Lanternfish Pictures: long-schedule experiment (invented demo data)',
     `num_train_timesteps: ${n}`,
@@ -30,21 +30,6 @@ function bigConfig(): string {
     '',
   ].join('\n');
 }
-
-/** A small config with fixable findings (leading spacing skips the last step; guidance without rescale). */
-const SMALL = [
-  '# Lanternfish Pictures: product stills sampler (invented demo data)',
-  'num_train_timesteps: 1000',
-  'beta_schedule: scaled_linear',
-  'beta_start: 0.00085',
-  'beta_end: 0.012',
-  'rescale_betas_zero_snr: true',
-  'prediction_type: v_prediction',
-  'timestep_spacing: leading',
-  'num_inference_steps: 30',
-  'guidance_scale: 7.5',
-  '',
-].join('\n');
 
 /** Deterministic delays (a 32-bit LCG) so that a failing sequence can be re-run. */
 function* delays(seed: number, maxMs: number): Generator<number> {

@@ -1,4 +1,4 @@
-/** The part of picomatch 4 the workspace code uses (the package ships no types). */
+/** The part of picomatch 4 the workspace code and its differential glob test use (the package ships no types; test/tsconfig.json includes this file). */
 declare module 'picomatch' {
   interface PicomatchOptions {
     dot?: boolean;
