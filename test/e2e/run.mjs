@@ -713,10 +713,20 @@ const steps = [
       await ctx.shot('run-preview');
       // Applied: every entry needs confirmation, so the preview starts with them unticked; tick
       // each file (which ticks its changes), then Apply.
+      // The list re-renders after each tick, so a click can land while a row is being replaced:
+      // check that the box really reads ticked, and click again (up to three times) when it does not.
       for (const name of ['train-dusk.yaml', 'sample-dusk.yaml']) {
-        const row = pane.locator('.monaco-list-row', { hasText: name }).first();
-        const box = row.locator('.monaco-custom-toggle, .monaco-checkbox, input[type="checkbox"]').first();
-        await box.click({ timeout: WAIT_UI_MS });
+        for (let attempt = 0; attempt < 3; attempt++) {
+          const row = pane.locator('.monaco-list-row', { hasText: name }).first();
+          const box = row.locator('.monaco-custom-toggle, .monaco-checkbox, input[type="checkbox"]').first();
+          const ticked = async () =>
+            (await box.getAttribute('aria-checked').catch(() => null)) === 'true' ||
+            /\bchecked\b/.test((await box.getAttribute('class').catch(() => null)) ?? '');
+          if (await ticked()) break;
+          await box.click({ timeout: WAIT_UI_MS });
+          await sleep(300);
+          if (await ticked()) break;
+        }
       }
       await ctx.shot('run-confirmed');
       const apply = page.locator('.monaco-button', { hasText: /^Apply$/ }).first();
@@ -727,8 +737,11 @@ const steps = [
       const waitFor = async (file, pred, what) => {
         const deadline = Date.now() + WAIT_UI_MS;
         let text = readFileSync(file, 'utf8');
-        while (Date.now() < deadline && !pred(text)) {
+        // An edit to a file that is not open lands in a background model: save again until it is on
+        // disk (a Save All that ran while the edit was still being applied saved nothing of it).
+        for (let round = 1; Date.now() < deadline && !pred(text); round++) {
           await sleep(300);
+          if (round % 10 === 0) await runCommand(page, 'File: Save All');
           text = readFileSync(file, 'utf8');
         }
         expect(pred(text), `${what}; the file is now:\n${text}`);
