@@ -69,4 +69,24 @@ describe('noiselint rescale-run', () => {
     expect(none.code).toBe(2);
     expect(none.stderr).toBe('noiselint rescale-run: name a training or sampling file: noiselint rescale-run <file...>\n');
   });
+
+  it('a scheduler class with no working rescale: says what to change instead, writes nothing, exit 0', async () => {
+    const config = JSON.stringify({
+      _class_name: 'PNDMScheduler',
+      _diffusers_version: '0.30.3',
+      beta_end: 0.012,
+      beta_schedule: 'scaled_linear',
+      beta_start: 0.00085,
+      num_train_timesteps: 1000,
+      skip_prk_steps: true,
+      steps_offset: 1,
+    });
+    const root = tree({ 'stills/scheduler/scheduler_config.json': config });
+    const r = await runCli(['rescale-run', 'stills/scheduler/scheduler_config.json', '--write', '--accept-retraining'], root);
+    expect(r.code).toBe(0);
+    expect(r.stdout).toMatch(/^Nothing this operation can write in the stills\/scheduler\/scheduler_config\.json/);
+    expect(r.stdout).toContain('PNDMScheduler has no zero-SNR rescale: use a class that takes rescale_betas_zero_snr');
+    expect(r.stderr).not.toContain('cannot be written');
+    expect(readFileSync(join(root, 'stills/scheduler/scheduler_config.json'), 'utf8')).toBe(config);
+  });
 });

@@ -192,14 +192,47 @@ function sameValue(a: unknown, b: unknown): boolean {
   return a === b;
 }
 
+/** Collects a document's edits, leaving out what its reader cannot take (with a note saying what to change instead). */
+class ChangeBuilder {
+  readonly change: DocumentChange;
+  constructor(
+    private readonly doc: DocumentResult,
+    private readonly answers: ReaderAnswers,
+    private readonly notes: string[],
+    private readonly path: string,
+  ) {
+    this.change = { documentIndex: doc.index, edits: [], what: [] };
+  }
+  /** Adds the edits with their line; false (and a note) when the reader cannot take one of them. */
+  add(what: string, ...edits: ConceptEdit[]): boolean {
+    for (const e of edits) {
+      if (e.kind !== 'set') continue;
+      const hint = this.answers.cannot(this.doc.setup, e.concept);
+      if (hint !== null) {
+        this.note(hint);
+        return false;
+      }
+    }
+    this.change.edits.push(...edits);
+    if (what) this.change.what.push(what);
+    return true;
+  }
+  note(text: string): void {
+    const line = `${this.path}: ${text}`;
+    if (!this.notes.includes(line)) this.notes.push(line);
+  }
+}
+
 /** The training side's changes (schedule, target, offset noise) of one document. */
 function trainingChanges(
   doc: DocumentResult,
   answers: ReaderAnswers,
   samplingOnly: boolean,
+  notes: string[],
+  path: string,
 ): { change: DocumentChange; after: TrainingAfter | null } {
   const { setup, analysis } = doc;
-  const change: DocumentChange = { documentIndex: doc.index, edits: [], what: [] };
+  const out = new ChangeBuilder(doc, answers, notes, path);
   const schedule = analysis.schedule;
   const params = schedule?.family === 'discrete' ? paramsOf(setup) : null;
   const values: TrainingAfter['values'] = {};
@@ -208,17 +241,26 @@ function trainingChanges(
   const hasOwnSchedule = (['betaSchedule', 'betas', 'betaStart', 'betaEnd', 'trainSteps', 'zeroTerminalSnr'] as const).some((c) => writes(setup, c));
   let rescaled = schedule?.rescaleApplied === true || schedule?.reachesZeroSnr === true;
   if (!samplingOnly && schedule?.family === 'discrete' && params && hasOwnSchedule && !rescaled) {
-    if (answers.zeroSnrWrite(setup) === 'betas' && params.kind === 'explicit' && analysis.rescaled) {
+    const how = answers.zeroSnrWrite(setup);
+    if (how === 'betas' && analysis.rescaled) {
       const list = Array.from(analysis.rescaled.betas, fmtValue);
-      change.edits.push(setEdit('betas', list));
-      values.betas = list;
-      change.what.push('replace the beta list with its zero-terminal-SNR rescale (Lin et al. 2023, Algorithm 1)');
+      const key = setup.consumer?.insertKeys?.betas;
+      const what =
+        params.kind === 'explicit'
+          ? 'replace the beta list with its zero-terminal-SNR rescale (Lin et al. 2023, Algorithm 1)'
+          : `pass the zero-terminal-SNR rescale of the schedule as the explicit beta list${key ? ` ${key}` : ''} (Lin et al. 2023, Algorithm 1)`;
+      if (out.add(what, setEdit('betas', list))) {
+        values.betas = list;
+        rescaled = true;
+      }
+    } else if (how === 'flag') {
+      if (out.add('rescale the schedule to zero terminal SNR (Lin et al. 2023, Algorithm 1)', setEdit('zeroTerminalSnr', true))) {
+        values.zeroTerminalSnr = true;
+        rescaled = true;
+      }
     } else {
-      change.edits.push(setEdit('zeroTerminalSnr', true));
-      values.zeroTerminalSnr = true;
-      change.what.push('rescale the schedule to zero terminal SNR (Lin et al. 2023, Algorithm 1)');
+      out.note(answers.cannot(setup, 'zeroTerminalSnr') ?? 'the schedule cannot be rescaled in this file');
     }
-    rescaled = true;
   }
   const target = setup.fields.predictionTarget?.value;
   if (
@@ -228,17 +270,14 @@ function trainingChanges(
     (target === undefined || target === 'epsilon') &&
     !setup.fields.predictionTarget?.inherited
   ) {
-    change.edits.push(setEdit('predictionTarget', 'v'));
-    values.predictionTarget = 'v';
-    change.what.push('switch the prediction target to velocity (Salimans & Ho 2022)');
+    if (out.add('switch the prediction target to velocity (Salimans & Ho 2022)', setEdit('predictionTarget', 'v'))) values.predictionTarget = 'v';
   }
   const offset = setup.fields.offsetNoise;
   if (!samplingOnly && offset && offset.source && !offset.assumed && offset.value > 0) {
-    change.edits.push({ kind: 'remove', concept: 'offsetNoise', keepComment: true });
-    change.what.push('remove offset noise (its comment stays)');
+    out.add('remove offset noise (its comment stays)', { kind: 'remove', concept: 'offsetNoise', keepComment: true });
   }
   const after: TrainingAfter | null = params ? { path: '', setup, params, rescaled, values } : null;
-  return { change, after };
+  return { change: out.change, after };
 }
 
 /** The sampling side's changes of one document: alignment, spacing, guidance rescale, sigma bound. */
@@ -252,14 +291,13 @@ function samplingChanges(
   paramsAfter: Params | null,
 ): DocumentChange {
   const { setup, analysis } = doc;
-  const change: DocumentChange = { documentIndex: doc.index, edits: [], what: [] };
+  const out = new ChangeBuilder(doc, answers, notes, path);
   if (training) {
     for (const c of ALIGNED) {
       if (!writes(setup, c)) continue;
       const want = training.values[c];
       if (want === undefined || sameValue(setup.fields[c]!.value, want)) continue;
-      change.edits.push(setEdit(c, want));
-      change.what.push(`align ${c} with the training file ${training.path}`);
+      out.add(`align ${c} with the training file ${training.path}`, setEdit(c, want));
     }
   }
   const sampling = analysis.sampling;
@@ -267,30 +305,28 @@ function samplingChanges(
     const spacing = setup.fields.timestepSpacing?.value;
     if (answers.spacingWrite(setup) === 'trailing' && spacing !== 'trailing') {
       const T = paramsAfter?.trainSteps ?? analysis.schedule.trainSteps;
-      change.edits.push(setEdit('timestepSpacing', 'trailing'));
-      change.what.push('set the timestep spacing to trailing (Lin et al. 2023, section 3.3)');
-      const withOffset = samplingTimesteps('trailing', T, sampling.steps, sampling.stepsOffset);
-      const inRange = withOffset.ok && withOffset.value.every((t) => t >= 0 && t <= T - 1);
-      if (!inRange && sampling.stepsOffset !== 0 && writes(setup, 'stepsOffset')) {
-        change.edits.push(setEdit('stepsOffset', 0));
-        change.what.push('set the steps offset to 0 (trailing with the offset would pass the last step)');
+      if (out.add('set the timestep spacing to trailing (Lin et al. 2023, section 3.3)', setEdit('timestepSpacing', 'trailing'))) {
+        const withOffset = samplingTimesteps('trailing', T, sampling.steps, sampling.stepsOffset);
+        const inRange = withOffset.ok && withOffset.value.every((t) => t >= 0 && t <= T - 1);
+        if (!inRange && sampling.stepsOffset !== 0 && writes(setup, 'stepsOffset')) {
+          out.add('set the steps offset to 0 (trailing with the offset would pass the last step)', setEdit('stepsOffset', 0));
+        }
       }
     }
   }
   const scale = setup.fields.guidanceScale;
   const rescale = setup.fields.guidanceRescale;
   if (scale && !scale.assumed && scale.value > 1 && !(rescale && !rescale.assumed && rescale.value > 0)) {
-    change.edits.push(setEdit('guidanceRescale', RUN_GUIDANCE_RESCALE));
-    change.what.push(`set guidance rescale ${RUN_GUIDANCE_RESCALE} (Lin et al. 2023, eqs. 13-16; common practice)`);
+    out.add(
+      `set guidance rescale ${RUN_GUIDANCE_RESCALE} (Lin et al. 2023, eqs. 13-16; common practice)`,
+      setEdit('guidanceRescale', RUN_GUIDANCE_RESCALE),
+    );
   }
   if (rescaledAfter && isSigmaSpaceSampler(setup)) {
     const bound = answers.sigmaBound(setup);
     if (bound.kind === 'settings') {
-      for (const w of bound.writes) {
-        if (sameValue(setup.fields[w.concept]?.value, w.value) && writes(setup, w.concept)) continue;
-        change.edits.push(setEdit(w.concept, w.value));
-      }
-      change.what.push(bound.note);
+      const edits = bound.writes.filter((w) => !(sameValue(setup.fields[w.concept]?.value, w.value) && writes(setup, w.concept)));
+      out.add(bound.note, ...edits.map((w) => setEdit(w.concept, w.value)));
     } else {
       const who = setup.fields.sampler?.value ? `the ${setup.fields.sampler.value} sampler` : 'the sampler';
       notes.push(
@@ -298,7 +334,7 @@ function samplingChanges(
       );
     }
   }
-  return change;
+  return out.change;
 }
 
 function ba(before: number | undefined | null, after: number | undefined | null): BeforeAfter {
@@ -371,7 +407,7 @@ export function planRunRescale(files: readonly RunFileInput[], options: RunOptio
     const changes: DocumentChange[] = [];
     for (const doc of file.reading.documents) {
       if (!doc.setup.isDiffusionConfig || !ownsSchedule(doc, file.side)) continue;
-      const { change, after } = trainingChanges(doc, answersFor(doc.setup), samplingOnly);
+      const { change, after } = trainingChanges(doc, answersFor(doc.setup), samplingOnly, notes, file.path);
       changes.push(change);
       if (after && file.side === 'training' && !training) training = { ...after, path: file.path };
     }

@@ -120,7 +120,9 @@ export async function runRescaleRun(args: string[], io: CliIO): Promise<number> 
   const run = files.some((f) => f.side === 'training')
     ? `run of ${files.find((f) => f.side === 'training')!.shown} (${files.length} ${files.length === 1 ? 'file' : 'files'})`
     : files.map((f) => f.shown).join(', ');
-  if (plan.empty) {
+  if (plan.empty && plan.notes.length > 0) {
+    out.push(`Nothing this operation can write in the ${run}: what the consuming code cannot take is listed below.`);
+  } else if (plan.empty) {
     out.push(
       `Nothing to change in the ${run}: it is already at zero terminal SNR${options.samplingOnly ? ' as far as sampling-only changes go' : ''}.`,
     );

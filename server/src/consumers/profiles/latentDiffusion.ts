@@ -5,7 +5,9 @@
  * to other components: their sizes and resolutions are not the diffusion's. The class takes a
  * fixed list of keyword arguments (an unknown one is a TypeError at start-up), so a fix never
  * inserts another; the schedule has no zero-SNR flag, and `given_betas` is the way to pass a
- * rescaled schedule.
+ * rescaled schedule, but only from code: register_schedule does `1. - betas` and reads
+ * `betas.shape`, so a list written in the YAML (an OmegaConf ListConfig) fails at start-up. No
+ * fix writes it; the finding says to pass a numpy array from the training code.
  *
  * Recalled from memory of ldm/models/diffusion/ddpm.py (DDPM.__init__, LatentDiffusion.__init__,
  * register_schedule) and ldm/modules/diffusionmodules/util.py (make_beta_schedule,
@@ -83,7 +85,9 @@ const DEFAULTS = {
 
 const CANNOT = {
   zeroTerminalSnr:
-    'the model class has no zero-SNR flag: pass the rescaled betas as given_betas (a list of timesteps values), ' + 'or rescale in the training code',
+    'the model class has no zero-SNR flag, and given_betas cannot come from this file: register_schedule computes ' +
+    '`1. - betas` and `betas.shape`, which a list read from the config rejects at start-up; pass the rescaled betas ' +
+    'as a numpy array from the training code (given_betas=...), or rescale in register_schedule',
   timestepSpacing:
     'the DDIM sampler of this code always takes steps (0, c, 2c, ...) + 1 with c = T // N; change the sampling script to start at T - 1',
   guidanceRescale: 'guidance rescale is an argument of the sampling script, not of the model config',
@@ -109,7 +113,6 @@ function ldmClass(name: string, keys: string[], what: string): ConsumerClass {
     fixedSpacing: 'uniform',
     enums: { parameterization: ['eps', 'x0', 'v'], beta_schedule: ['linear', 'cosine', 'sqrt_linear', 'sqrt'] },
     valueMeanings: VALUE_MEANINGS,
-    rescaleViaBetas: true,
     cannotExpress: CANNOT,
   };
 }

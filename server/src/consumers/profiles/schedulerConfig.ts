@@ -41,9 +41,16 @@ const NOT_A_SCHEDULER_SETTING = {
   guidanceScale: 'guidance scale is an argument of the pipeline call, not of the scheduler config',
   sampleSteps: 'the step count is an argument of the pipeline call (num_inference_steps), not of the scheduler config',
 } as const;
-const ZERO_SNR_ELSEWHERE =
-  'use a class that takes rescale_betas_zero_snr (DDIMScheduler, DDPMScheduler, EulerDiscreteScheduler, ' +
-  'DPMSolverMultistepScheduler, UniPCMultistepScheduler), or pass the rescaled betas as trained_betas';
+/**
+ * What to do instead where a class has no zero-SNR flag. A rescaled `trained_betas` list is no way
+ * around it: it ends at abar = 0, which PNDM's step divides by (sample_coeff = sqrt(abar_prev /
+ * abar_t), read from scheduling_pndm.py) and which makes a sigma-space class's first sigma,
+ * sqrt((1 - abar) / abar), infinite; only the classes with the flag clamp it.
+ */
+const ZERO_SNR_FLAG_CLASSES =
+  'use a class that takes rescale_betas_zero_snr (DDIMScheduler, DDPMScheduler, EulerDiscreteScheduler, DPMSolverMultistepScheduler, UniPCMultistepScheduler)';
+const ZERO_SNR_ELSEWHERE = `${ZERO_SNR_FLAG_CLASSES}; a rescaled trained_betas list would give an infinite first sigma at abar = 0`;
+const ZERO_SNR_ELSEWHERE_PNDM = `${ZERO_SNR_FLAG_CLASSES}; with a rescaled trained_betas list its step would divide by abar = 0 at the last step`;
 
 function cls(c: Omit<ConsumerClass, 'cannotExpress'> & { cannotExpress?: ConsumerClass['cannotExpress'] }): ConsumerClass {
   return { ...c, cannotExpress: { ...NOT_A_SCHEDULER_SETTING, ...c.cannotExpress } };
@@ -123,7 +130,7 @@ export const SCHEDULER_CLASSES: ConsumerClass[] = [
     defaults: { ...LINEAR_DEFAULTS, timestepSpacing: 'leading', stepsOffset: 0, zeroTerminalSnr: false },
     timesteps: 'standard',
     enums: enums(),
-    cannotExpress: { zeroTerminalSnr: `PNDMScheduler has no zero-SNR rescale: ${ZERO_SNR_ELSEWHERE}` },
+    cannotExpress: { zeroTerminalSnr: `PNDMScheduler has no zero-SNR rescale: ${ZERO_SNR_ELSEWHERE_PNDM}` },
   }),
   cls({
     name: 'EulerDiscreteScheduler',
