@@ -1,7 +1,7 @@
 import { fmt } from './format';
 import { defineRule, type RuleMeta } from './types';
 import { velocityTargetFix } from './fixes';
-import { assumedNote, describeSchedule, discreteSchedule, scheduleOrigin } from './util';
+import { assumedNote, describeSchedule, discreteSchedule, scheduleConcepts, scheduleOrigin } from './util';
 
 const docs = `
 ## What triggers it
@@ -83,7 +83,7 @@ export const epsilonAtZeroSnr = defineRule({
         message:
           `the target is epsilon, but the schedule (${describeSchedule(setup, schedule)}) reaches SNR ${fmt(schedule.terminalSnr)} at step ${last}: ` +
           `there the input is pure noise, predicting it teaches nothing, and recovering the image divides by sqrt(abar) = 0` +
-          assumedNote(setup, ['predictionTarget']) +
+          assumedNote(setup, ['predictionTarget', ...scheduleConcepts(setup)]) +
           scheduleOrigin(setup),
         at: 'predictionTarget',
         fixes: [velocityTargetFix()],

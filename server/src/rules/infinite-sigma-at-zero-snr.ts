@@ -1,7 +1,7 @@
 import { ZERO_SNR_ALPHA_BAR_CLAMP, sigmaFromAlphaBar } from '@noiselint/shared-math';
 import { fmt } from './format';
 import { defineRule, type RuleMeta } from './types';
-import { discreteSchedule, isSet, scheduleOrigin } from './util';
+import { assumedNote, discreteSchedule, isSet, scheduleConcepts, scheduleOrigin } from './util';
 
 const docs = `
 ## What triggers it
@@ -99,6 +99,7 @@ export const infiniteSigmaAtZeroSnr = defineRule({
           `${who}${karras ? ' with Karras sigmas' : ''} steps in sigma = sqrt((1 - abar) / abar), which is infinite at step ${schedule.trainSteps - 1} ` +
           `of this zero-SNR schedule: the sampling code must clamp abar there to 2^-24 (sigma ${fmt(clampedSigma)}) and take that step in float32` +
           (karras ? '; Karras spacing between sigma_min and an infinite sigma_max is undefined' : '') +
+          assumedNote(setup, scheduleConcepts(setup)) +
           scheduleOrigin(setup),
         at: karras && isSet(setup, 'karrasSigmas') && !isSet(setup, 'sampler') ? 'karrasSigmas' : 'sampler',
       },

@@ -82,7 +82,7 @@ export const minSnrDivision = defineRule({
         message:
           `min-SNR weighting (gamma ${g}) with an epsilon loss weights each step by min(SNR, ${g}) / SNR, ` +
           `which is 0 / 0 at step ${schedule.trainSteps - 1} where SNR is ${fmt(schedule.terminalSnr)}` +
-          assumedNote(setup, ['predictionTarget']),
+          assumedNote(setup, ['predictionTarget', 'trainSteps']),
         at: 'minSnrGamma',
         related: [{ concept: 'predictionTarget', message: 'the epsilon target is set here' }],
         fixes: [velocityTargetFix()],

@@ -88,7 +88,7 @@ export const minSnrDropsTerminalStep = defineRule({
           `min-SNR weighting (gamma ${g}) with ${target === 'x0' ? 'an' : 'a'} ${target} loss weights each step by ${formula}, which is ${fmt(weight)} ` +
           `at step ${schedule.trainSteps - 1} (SNR ${fmt(schedule.terminalSnr)}): the pure-noise step is never trained; ` +
           `a small floor on the weight keeps it` +
-          assumedNote(setup, ['predictionTarget']),
+          assumedNote(setup, ['predictionTarget', 'trainSteps']),
         at: 'minSnrGamma',
       },
     ];

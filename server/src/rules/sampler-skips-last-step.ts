@@ -1,6 +1,6 @@
 import { fmt, fmtList } from './format';
 import { defineRule, type RuleMeta } from './types';
-import { assumedNote, discreteSchedule, isSet, scheduleOrigin, trailingFix } from './util';
+import { assumedNote, discreteSchedule, isSet, scheduleConcepts, scheduleOrigin, trailingFix } from './util';
 
 const docs = `
 ## What triggers it
@@ -93,7 +93,7 @@ export const samplerSkipsLastStep = defineRule({
           `first sampling step is ${first} of 0..${T - 1} (${snrThere}), not the last training step ${T - 1}: ` +
           `${sampling.spacing} spacing with ${sampling.steps} steps visits ${fmtList(sampling.timesteps)}; ${consequence}` +
           stepsNote +
-          assumedNote(setup, ['timestepSpacing', 'stepsOffset']) +
+          assumedNote(setup, ['timestepSpacing', 'stepsOffset', ...scheduleConcepts(setup), 'zeroTerminalSnr']) +
           scheduleOrigin(setup),
         at: isSet(setup, 'timestepSpacing') || !isSet(setup, 'sampleSteps') ? 'timestepSpacing' : 'sampleSteps',
         severity: zeroSnr ? 'error' : 'warning',
