@@ -112,6 +112,11 @@ export interface Analysis {
   sampling: SamplingAnalysis | null;
   samplingProblems: string[];
   sigmas: SigmaAnalysis | null;
+  /**
+   * T of a discrete setup whenever T itself is usable, also when its betas are not: the step
+   * count and spacing checks need only T, so an invalid beta list does not hide them.
+   */
+  trainSteps: number | null;
 }
 
 const SIGMA_SPACE_SAMPLERS = new Set(['euler', 'euler-ancestral', 'heun', 'dpm-solver', 'dpm-solver-multistep', 'dpm-solver-singlestep', 'lms']);
@@ -130,7 +135,15 @@ export function isSigmaSpaceSampler(setup: Setup): boolean {
 }
 
 export function analyzeSetup(setup: Setup): Analysis {
-  const out: Analysis = { schedule: null, scheduleProblems: [], rescaled: null, sampling: null, samplingProblems: [], sigmas: null };
+  const out: Analysis = {
+    schedule: null,
+    scheduleProblems: [],
+    rescaled: null,
+    sampling: null,
+    samplingProblems: [],
+    sigmas: null,
+    trainSteps: null,
+  };
   if (!setup.isDiffusionConfig) return out;
   const family = scheduleFamilyOf(setup);
   if (family === 'flow') analyzeFlow(setup, out);
@@ -166,12 +179,19 @@ function discreteParams(setup: Setup, problems: string[]): ScheduleParams | null
 }
 
 function analyzeDiscrete(setup: Setup, out: Analysis): void {
+  const T = valueOf(setup, 'trainSteps');
+  if (T !== undefined && !checkTrainSteps(T)) out.trainSteps = T;
   const params = discreteParams(setup, out.scheduleProblems);
-  if (!params) return;
+  if (!params) {
+    analyzeDiscreteSampling(setup, out, null);
+    return;
+  }
   const rescaleApplied = valueOf(setup, 'zeroTerminalSnr') === true;
   const current = computeSchedule({ ...params, rescaleZeroSnr: rescaleApplied });
   if (!current.ok) {
     out.scheduleProblems.push(current.problem);
+    // The timesteps need only T: the step count and spacing are still checked.
+    analyzeDiscreteSampling(setup, out, null);
     return;
   }
   const n = current.value;
@@ -200,7 +220,7 @@ function analyzeDiscrete(setup: Setup, out: Analysis): void {
       betas: r.betas,
     };
   }
-  analyzeDiscreteSampling(setup, out);
+  analyzeDiscreteSampling(setup, out, out.schedule);
   const sigmaMax = sigmaFromAlphaBar(n.alphaBar[n.alphaBar.length - 1]!);
   const sigmaMin = sigmaFromAlphaBar(n.alphaBar[0]!);
   if (isSigmaSpaceSampler(setup)) {
@@ -213,9 +233,14 @@ function analyzeDiscrete(setup: Setup, out: Analysis): void {
   }
 }
 
-function analyzeDiscreteSampling(setup: Setup, out: Analysis): void {
-  const schedule = out.schedule;
-  if (!schedule) return;
+/**
+ * The sampling timesteps of a discrete setup. Without a usable schedule (an invalid beta list)
+ * they are still computed from T, with the SNR and signal at the first step left as NaN; Karras
+ * timesteps need the schedule and are skipped then.
+ */
+function analyzeDiscreteSampling(setup: Setup, out: Analysis, schedule: ScheduleAnalysis | null): void {
+  const T = schedule ? schedule.trainSteps : out.trainSteps;
+  if (T === null) return;
   const stepsField = setup.fields.sampleSteps;
   const spacingField = setup.fields.timestepSpacing;
   const spacingExplicit = !!spacingField?.source;
@@ -223,12 +248,12 @@ function analyzeDiscreteSampling(setup: Setup, out: Analysis): void {
   const steps = stepsField ? stepsField.value : ASSUMED_SAMPLE_STEPS;
   const spacing = spacingField?.value ?? DEFAULT_SPACING;
   const stepsOffset = valueOf(setup, 'stepsOffset') ?? DEFAULT_STEPS_OFFSET;
-  const T = schedule.trainSteps;
   const consumer = setup.consumer;
   // A Karras-sigma sampler starts at the largest training sigma whatever the spacing says.
   const karras = consumer?.karrasStartsAtMax === true && valueOf(setup, 'karrasSigmas') === true;
+  if (karras && !schedule) return;
   const ts = karras
-    ? karrasTimesteps(schedule.curve.alphaBar, steps, valueOf(setup, 'rho') ?? 7)
+    ? karrasTimesteps(schedule!.curve.alphaBar, steps, valueOf(setup, 'rho') ?? 7)
     : consumer
       ? consumerTimesteps(consumer.timesteps, spacing, T, steps, stepsOffset)
       : samplingTimesteps(spacing, T, steps, stepsOffset);
@@ -239,7 +264,7 @@ function analyzeDiscreteSampling(setup: Setup, out: Analysis): void {
   const timesteps = Array.from(ts.value);
   const first = timesteps[0]!;
   const inRange = (t: number) => Number.isInteger(t) && t >= 0 && t <= T - 1;
-  const abarFirst = inRange(first) ? schedule.curve.alphaBar[first] : NaN;
+  const abarFirst = schedule && inRange(first) ? schedule.curve.alphaBar[first] : NaN;
   out.sampling = {
     spacing: karras ? 'karras' : spacing,
     steps,
@@ -247,8 +272,8 @@ function analyzeDiscreteSampling(setup: Setup, out: Analysis): void {
     stepsOffset,
     timesteps,
     firstTimestep: first,
-    snrAtFirst: inRange(first) ? snrFromAlphaBar(abarFirst!) : NaN,
-    signalAtFirst: inRange(first) ? Math.sqrt(abarFirst!) : NaN,
+    snrAtFirst: schedule && inRange(first) ? snrFromAlphaBar(abarFirst!) : NaN,
+    signalAtFirst: schedule && inRange(first) ? Math.sqrt(abarFirst!) : NaN,
     outOfRange: timesteps.filter((t) => !inRange(t)),
     startsAtLastStep: first === T - 1,
   };

@@ -80,7 +80,7 @@ export const fewStepsLinspace = defineRule({
     if (last !== 0) return [];
     const abar0 = schedule.curve.alphaBar[0]!;
     const snr0 = abar0 / (1 - abar0);
-    const fix = trailingFix(setup, schedule, sampling);
+    const fix = trailingFix(setup, schedule.trainSteps, sampling);
     return [
       {
         message:

@@ -73,27 +73,33 @@ export const samplerSkipsLastStep = defineRule({
   meta,
   check(ctx) {
     const { setup, analysis } = ctx;
+    // Only T is needed for the timesteps: an invalid beta list does not hide this finding (the
+    // SNR at the first step is then left out, since the schedule cannot be computed).
     const schedule = discreteSchedule(analysis);
+    const T = schedule?.trainSteps ?? analysis.trainSteps;
     const sampling = analysis.sampling;
-    if (!schedule || !sampling || sampling.startsAtLastStep) return [];
-    const T = schedule.trainSteps;
+    if (T === null || !sampling || sampling.startsAtLastStep) return [];
+    // More steps than T is steps-out-of-range's finding; the stride it gives is its consequence.
+    if (sampling.steps > T) return [];
     const first = sampling.firstTimestep;
     // Outside 0..T-1 is timestep-out-of-range's finding.
     if (!Number.isInteger(first) || first < 0 || first > T - 1) return [];
-    const zeroSnr = schedule.reachesZeroSnr;
+    const zeroSnr = schedule?.reachesZeroSnr === true;
     const stepsNote = sampling.stepsAssumed ? ` (assumed: sampleSteps = ${sampling.steps})` : '';
-    const snrThere = `SNR ${fmt(sampling.snrAtFirst)}, signal amplitude ${fmt(sampling.signalAtFirst)}`;
+    const snrThere = schedule
+      ? ` (SNR ${fmt(sampling.snrAtFirst)}, signal amplitude ${fmt(sampling.signalAtFirst)})`
+      : ' (its SNR is unknown: the schedule itself is invalid)';
     const consequence = zeroSnr
       ? `the schedule reaches zero SNR only at ${T - 1}, so the sampler never takes the one step trained on pure noise`
       : `sampling starts from pure noise at a step that still held signal in training`;
-    const fix = trailingFix(setup, schedule, sampling);
+    const fix = trailingFix(setup, T, sampling);
     return [
       {
         message:
-          `first sampling step is ${first} of 0..${T - 1} (${snrThere}), not the last training step ${T - 1}: ` +
+          `first sampling step is ${first} of 0..${T - 1}${snrThere}, not the last training step ${T - 1}: ` +
           `${sampling.spacing} spacing with ${sampling.steps} steps visits ${fmtList(sampling.timesteps)}; ${consequence}` +
           stepsNote +
-          assumedNote(setup, ['timestepSpacing', 'stepsOffset', ...scheduleConcepts(setup), 'zeroTerminalSnr']) +
+          assumedNote(setup, ['timestepSpacing', 'stepsOffset', ...(schedule ? [...scheduleConcepts(setup), 'zeroTerminalSnr' as const] : [])]) +
           scheduleOrigin(setup),
         at: isSet(setup, 'timestepSpacing') || !isSet(setup, 'sampleSteps') ? 'timestepSpacing' : 'sampleSteps',
         severity: zeroSnr ? 'error' : 'warning',

@@ -74,9 +74,10 @@ export const stepsOutOfRange = defineRule({
       out.push({ message: `${fmt(N)} sampling steps: a sampler needs at least 1`, at: 'sampleSteps' });
       return out;
     }
+    // Only T is needed: an invalid beta list does not hide this finding.
     const schedule = analysis.schedule;
-    if (!schedule || schedule.family !== 'discrete') return out;
-    const T = schedule.trainSteps;
+    const T = schedule ? (schedule.family === 'discrete' ? schedule.trainSteps : null) : analysis.trainSteps;
+    if (T === null) return out;
     if (N > T) {
       out.push({
         message:

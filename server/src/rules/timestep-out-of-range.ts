@@ -70,10 +70,10 @@ export const timestepOutOfRange = defineRule({
   meta,
   check(ctx) {
     const { setup, analysis } = ctx;
-    const schedule = discreteSchedule(analysis);
+    // Only T is needed: an invalid beta list does not hide this finding.
+    const T = discreteSchedule(analysis)?.trainSteps ?? analysis.trainSteps;
     const sampling = analysis.sampling;
-    if (!schedule || !sampling || sampling.outOfRange.length === 0) return [];
-    const T = schedule.trainSteps;
+    if (T === null || !sampling || sampling.outOfRange.length === 0) return [];
     const N = sampling.steps;
     const inRange = (ts: number[]) => ts.every((t) => t >= 0 && t <= T - 1);
     const fixes: ConceptFix[] = [];
@@ -88,7 +88,7 @@ export const timestepOutOfRange = defineRule({
       }
     }
     if (sampling.spacing !== 'trailing') {
-      const trailing = trailingFix(setup, schedule, sampling);
+      const trailing = trailingFix(setup, T, sampling);
       if (trailing) fixes.push(trailing);
     }
     if (fixes.length === 0 && N > T && isSet(setup, 'sampleSteps')) {

@@ -182,8 +182,7 @@ export function zeroSnrFix(ctx: RuleContext, also?: { edits: ConceptEdit[]; titl
 }
 
 /** Spacing -> trailing (plus offset 0 when the offset would push trailing out of range). */
-export function trailingFix(setup: Setup, schedule: ScheduleAnalysis, sampling: SamplingAnalysis): ConceptFix | null {
-  const T = schedule.trainSteps;
+export function trailingFix(setup: Setup, T: number, sampling: SamplingAnalysis): ConceptFix | null {
   const inRange = (ts: number[]) => ts.every((t) => t >= 0 && t <= T - 1);
   const edits: ConceptEdit[] = [{ kind: 'set', concept: 'timestepSpacing', value: 'trailing' }];
   const trailing = samplingTimesteps('trailing', T, sampling.steps, sampling.stepsOffset);
