@@ -138,7 +138,10 @@ function toFinding(
 ): Finding {
   const severity = configuredSeverity(meta.id, project) ?? validSeverity(result.severity) ?? meta.defaultSeverity;
   const gated = gateFixes(setup, result.fixes ?? []);
-  const fixes = renderFixes(gated.fixes, parsed, setup, onFixFailure);
+  // A text that does not parse gets no fixes: `fix` refuses it, so check must not offer them, and
+  // edits placed on a partial tree could land in the wrong spot.
+  const parses = !parsed.problems.some((p) => p.severity === 'error');
+  const fixes = parses ? renderFixes(gated.fixes, parsed, setup, onFixFailure) : [];
   // Only when nothing else is offered: the consumer cannot express the change, so say what to change.
   const hints = fixes.length === 0 && gated.hints.length > 0 ? `; no fix offered: ${gated.hints.join('; ')}` : '';
   return {
