@@ -4,6 +4,7 @@
  * summary the setup carries on.
  */
 import { CONCEPTS, type Concept, type ConceptValues } from '../fields/concepts';
+import { effectiveEntries } from '../fields/findConcepts';
 import type { LocatedEntry, LocatedMap } from '../parse/types';
 import type { LoaderReading } from './readAs';
 import { metaKeysOf, type ConsumerReading } from './decide';
@@ -22,21 +23,33 @@ export function ignoredKeysOf(reading: ConsumerReading): IgnoredKeyInfo[] {
   const meta = new Set(metaKeysOf(family));
   const taken = new Set(cls.keys);
   const out: IgnoredKeyInfo[] = [];
-  for (const e of section.entries) {
+  for (const { entry: e } of effectiveEntries(section)) {
     if (meta.has(e.key) || taken.has(e.key) || e.key === '<<') continue;
     out.push({ key: e.key, path: e.key, reason: `${cls.name} does not take ${e.key}: the key has no effect` });
   }
   return out;
 }
 
+/** The section's entries as its loader sees them: its own, then those merged in with `<<` (memoised per map). */
+const sectionEntries = new WeakMap<LocatedMap, Set<LocatedEntry>>();
+export function entriesOfSection(section: LocatedMap): Set<LocatedEntry> {
+  let set = sectionEntries.get(section);
+  if (!set) {
+    set = new Set(effectiveEntries(section).map((e) => e.entry));
+    sectionEntries.set(section, set);
+  }
+  return set;
+}
+
 /**
  * True when the consumer reads the entry at `path` (a hit of the concept finder). With a class
- * profile only the section's own keys that the class takes count; class-name and metadata keys
- * always count (they name the consumer).
+ * profile only the section's keys that the class takes count: its own, and those merged into it
+ * with `<<` that no own key overrides (the loader hands both to the class). Class-name and
+ * metadata keys always count (they name the consumer).
  */
 export function consumerTakes(reading: ConsumerReading | undefined, entry: LocatedEntry, parent: LocatedMap): boolean {
   if (!reading || !reading.cls || !reading.section) return true;
-  if (parent !== reading.section) return false;
+  if (parent !== reading.section && !entriesOfSection(reading.section).has(entry)) return false;
   if (metaKeysOf(reading.family).includes(entry.key)) return true;
   return reading.cls.keys.includes(entry.key);
 }

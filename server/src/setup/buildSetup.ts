@@ -21,7 +21,7 @@
  * order; a 'duplicate' problem marks the later one when the values differ.
  */
 import type { ConsumerReading } from '../consumers/decide';
-import { classDefaults, consumerTakes, ignoredKeysOf, insertKeysOf } from '../consumers/forSetup';
+import { classDefaults, consumerTakes, entriesOfSection, ignoredKeysOf, insertKeysOf } from '../consumers/forSetup';
 import type { LoaderReading } from '../consumers/readAs';
 import type { Concept, ConceptValues } from '../fields/concepts';
 import { findConcepts, type ConceptHit } from '../fields/findConcepts';
@@ -291,7 +291,7 @@ function assumeClassDefaults(setup: Setup, decided: Map<Concept, Decided>, readi
   const thresholding = fields.thresholding;
   if (thresholding?.value === true) return;
   for (const [key, value] of Object.entries(cls.keyDefaults)) {
-    if (value !== true || section.entries.some((e) => e.key === key)) continue;
+    if (value !== true || [...entriesOfSection(section)].some((e) => e.key === key)) continue;
     const note = `${cls.name}'s default for an absent ${key} (${cls.source.split(' (')[0]})`;
     setField(fields, 'thresholding', true, null, note);
     if (!setup.assumed.includes('thresholding')) setup.assumed.push('thresholding');

@@ -129,6 +129,7 @@ export function explainDocumentJson(doc: DocumentResult): ExplainDocumentJson {
 }
 
 function typedText(t: { value: unknown; kind: string }): string {
+  if (t.kind === 'null') return 'null';
   return t.kind === 'str' ? `the string ${JSON.stringify(t.value)}` : `${t.kind} ${String(t.value)}`;
 }
 
@@ -163,7 +164,10 @@ export function consumerLines(setup: Setup): string[] {
   const dialectHow = d.dialectBasis === 'project' ? 'project file' : d.dialectBasis === 'family' ? `usual loader of ${d.family}` : 'file extension';
   lines.push(`  loader: ${d.dialectTitle} (${dialectHow})`);
   for (const k of c.ignoredKeys) lines.push(`    ignored: ${k.key}: ${k.reason}`);
-  for (const r of c.loaderReadings) lines.push(`    loader reads ${r.path}: ${r.raw} as ${typedText(r.loaded)} (looks like ${typedText(r.looks)})`);
+  for (const r of c.loaderReadings) {
+    const as = r.unresolved ? `nothing: it cannot be resolved (${r.unresolved})` : typedText(r.loaded);
+    lines.push(`    loader reads ${r.path}: ${r.raw} as ${as} (looks like ${typedText(r.looks)})`);
+  }
   return lines;
 }
 
