@@ -85,7 +85,7 @@ export const samplerSkipsLastStep = defineRule({
     // Outside 0..T-1 is timestep-out-of-range's finding.
     if (!Number.isInteger(first) || first < 0 || first > T - 1) return [];
     const zeroSnr = schedule?.reachesZeroSnr === true;
-    const stepsNote = sampling.stepsAssumed ? ` (assumed: sampleSteps = ${sampling.steps})` : '';
+    const stepsAssumed = sampling.stepsAssumed ? [`sampleSteps = ${sampling.steps}`] : [];
     const snrThere = schedule
       ? ` (SNR ${fmt(sampling.snrAtFirst)}, signal amplitude ${fmt(sampling.signalAtFirst)})`
       : ' (its SNR is unknown: the schedule itself is invalid)';
@@ -98,8 +98,11 @@ export const samplerSkipsLastStep = defineRule({
         message:
           `first sampling step is ${first} of 0..${T - 1}${snrThere}, not the last training step ${T - 1}: ` +
           `${sampling.spacing} spacing with ${sampling.steps} steps visits ${fmtList(sampling.timesteps)}; ${consequence}` +
-          stepsNote +
-          assumedNote(setup, ['timestepSpacing', 'stepsOffset', ...(schedule ? [...scheduleConcepts(setup), 'zeroTerminalSnr' as const] : [])]) +
+          assumedNote(
+            setup,
+            ['timestepSpacing', 'stepsOffset', ...(schedule ? [...scheduleConcepts(setup), 'zeroTerminalSnr' as const] : [])],
+            stepsAssumed,
+          ) +
           scheduleOrigin(setup),
         at: isSet(setup, 'timestepSpacing') || !isSet(setup, 'sampleSteps') ? 'timestepSpacing' : 'sampleSteps',
         severity: zeroSnr ? 'error' : 'warning',

@@ -96,14 +96,13 @@ export const timestepOutOfRange = defineRule({
     }
     const outside = Array.from(new Set(sampling.outOfRange));
     const offsetText = sampling.stepsOffset !== 0 ? ` and steps offset ${sampling.stepsOffset}` : '';
-    const stepsNote = sampling.stepsAssumed ? ` (assumed: sampleSteps = ${N})` : '';
+    const stepsAssumed = sampling.stepsAssumed ? [`sampleSteps = ${N}`] : [];
     return [
       {
         message:
           `${sampling.spacing} spacing with ${N} steps${offsetText} gives timestep${outside.length === 1 ? '' : 's'} ${fmtList(outside)}, ` +
           `outside 0..${T - 1}: the sampler would index past the schedule (a crash, or a wrap to the wrong end)` +
-          stepsNote +
-          assumedNote(setup, ['timestepSpacing', 'trainSteps']),
+          assumedNote(setup, ['timestepSpacing', 'trainSteps'], stepsAssumed),
         at:
           sampling.stepsOffset !== 0 && isSet(setup, 'stepsOffset')
             ? 'stepsOffset'

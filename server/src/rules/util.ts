@@ -47,10 +47,12 @@ export function showValue(value: ConceptValues[Concept] | undefined): string {
 
 /**
  * " (assumed: betaSchedule = linear; betaStart = 1e-4)" for those of `concepts` whose value the
- * setup assumed because the file sets none; "" when the finding rests on nothing assumed.
+ * setup assumed because the file sets none, in one parenthesis; "" when the finding rests on
+ * nothing assumed.
  */
-export function assumedNote(setup: Setup, concepts: readonly Concept[]): string {
-  const parts: string[] = [];
+export function assumedNote(setup: Setup, concepts: readonly Concept[], extra: readonly string[] = []): string {
+  // `extra`: assumptions the analysis made that are not setup fields ("sampleSteps = 50").
+  const parts: string[] = [...extra];
   for (const concept of concepts) {
     const field = setup.fields[concept];
     if (!field || !field.assumed) continue;
