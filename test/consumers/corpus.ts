@@ -12,6 +12,7 @@ import type { Finding } from '../../server/src/base/findings';
 import { decideConsumer, type ConsumerChoice } from '../../server/src/consumers/decide';
 import { readAs } from '../../server/src/consumers/readAs';
 import { metaKeysOf } from '../../server/src/consumers/decide';
+import type { ComponentReading } from '../../server/src/consumers/components';
 import { applyEdits } from '../../server/src/fix';
 import type { LocatedNode, ScalarValue } from '../../server/src/parse/types';
 
@@ -90,9 +91,31 @@ export function loadSection(text: string, path: string, choice?: ConsumerChoice)
   const doc = read.parsed.documents[0]!;
   const reading = decideConsumer(doc, read.parsed.format, path, choice);
   readAs(doc.root, read.parsed.format, reading.decision.dialect);
+  if (reading.components) return componentSection(reading.components);
   const section = reading.section ?? (doc.root && doc.root.kind === 'map' ? doc.root : null);
   const values = (section ? plain(section) : {}) as Record<string, unknown>;
   const accepted = reading.cls ? new Set([...reading.cls.keys, ...metaKeysOf(reading.family)]) : null;
+  return { values, accepted };
+}
+
+/**
+ * A config-object document as its classes receive it: each component's class path
+ * (`<path>.target`) and each of its keyword arguments (`<path>.params.<key>`), sub-configs
+ * excepted; accepted are the keys each known class takes.
+ */
+function componentSection(components: readonly ComponentReading[]): { values: Record<string, unknown>; accepted: Set<string> } {
+  const values: Record<string, unknown> = {};
+  const accepted = new Set<string>();
+  for (const c of components) {
+    values[`${c.path}.target`] = c.className;
+    accepted.add(`${c.path}.target`);
+    for (const e of c.params?.entries ?? []) {
+      const isSubConfig = e.value?.kind === 'map' && e.value.entries.some((x) => x.key === 'target');
+      if (!isSubConfig) values[`${c.path}.params.${e.key}`] = plain(e.value);
+    }
+    for (const k of c.cls?.keys ?? []) accepted.add(`${c.path}.params.${k}`);
+    if (!c.cls) for (const e of c.params?.entries ?? []) accepted.add(`${c.path}.params.${e.key}`);
+  }
   return { values, accepted };
 }
 

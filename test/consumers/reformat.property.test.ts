@@ -1,11 +1,12 @@
 /**
  * Property: a correct file stays free of errors and warnings under reformatting. Every clean
- * scheduler config of the corpus is rewritten with its keys shuffled (seeded), compact or
+ * scheduler config (and, below, every clean config-object file) of the corpus is rewritten with its keys shuffled (seeded), compact or
  * indented JSON, and as YAML in block and in flow style with plain or quoted strings; none of the
  * rewrites may give an error or a warning, and the consumer decision must not change.
  */
 import { describe, expect, it } from 'vitest';
 import { analyzeText } from '../../server/src/engine/api';
+import { parse as parseYaml } from 'yaml';
 import { corpusFiles } from './corpus';
 
 function rng(seed: number): () => number {
@@ -87,6 +88,80 @@ describe('reformatting a clean scheduler config keeps it clean', () => {
         const loud = result.findings.filter((x) => x.severity === 'error' || x.severity === 'warning');
         expect(loud.map((x) => `${variant.name}: ${x.rule}: ${x.message}`)).toEqual([]);
         expect(result.documents[0]!.setup.consumer?.decision.className, variant.name).toBe(base.className);
+      }
+    }
+  });
+});
+
+/**
+ * The nested families (config-object): the clean YAML file is read with the yaml package (a
+ * general-purpose YAML 1.2 reader, independent of this tool's parser) and written again with the
+ * keys of every map shuffled (seeded), in block style with plain or quoted strings, in flow style,
+ * and as JSON. Sub-configs keep their place: only the order and the spelling of the text change.
+ */
+function nestedRewrites(text: string, seed: number): { name: string; text: string; path: string }[] {
+  const data = parseYaml(text) as unknown;
+  const r = rng(seed);
+  const order = (keys: string[]) => [...keys].sort(() => r() - 0.5);
+  const block = (v: unknown, indent: string, quote: boolean): string => {
+    if (v && typeof v === 'object' && !Array.isArray(v)) {
+      const keys = order(Object.keys(v));
+      if (keys.length === 0) return ' {}';
+      return keys
+        .map((k) => {
+          const x = (v as Record<string, unknown>)[k];
+          const nested = x && typeof x === 'object' && (!Array.isArray(x) || x.some((i) => i && typeof i === 'object'));
+          return `\n${indent}${k}:${nested ? block(x, `${indent}  `, quote) : ` ${yamlScalar(x, quote)}`}`;
+        })
+        .join('');
+    }
+    if (Array.isArray(v))
+      return v.map((x) => `\n${indent}-${x && typeof x === 'object' ? flow(x, quote).replace(/^/, ' ') : ` ${yamlScalar(x, quote)}`}`).join('');
+    return ` ${yamlScalar(v, quote)}`;
+  };
+  const flow = (v: unknown, quote: boolean): string => {
+    if (Array.isArray(v)) return `[${v.map((x) => flow(x, quote)).join(', ')}]`;
+    if (v && typeof v === 'object') {
+      return `{${order(Object.keys(v))
+        .map((k) => `${k}: ${flow((v as Record<string, unknown>)[k], quote)}`)
+        .join(', ')}}`;
+    }
+    return yamlScalar(v, quote);
+  };
+  const json = (v: unknown): string => {
+    if (Array.isArray(v)) return `[${v.map(json).join(', ')}]`;
+    if (v && typeof v === 'object')
+      return `{${order(Object.keys(v))
+        .map((k) => `${JSON.stringify(k)}: ${json((v as Record<string, unknown>)[k])}`)
+        .join(', ')}}`;
+    return JSON.stringify(v);
+  };
+  return [
+    { name: 'YAML block, plain strings, shuffled', text: `# Lanternfish Pictures: reformatted${block(data, '', false)}\n`, path: 'engine.yaml' },
+    { name: 'YAML block, quoted strings, shuffled', text: `${block(data, '', true).slice(1)}\n`, path: 'engine.yaml' },
+    { name: 'YAML flow', text: `${flow(data, true)}\n`, path: 'engine.yaml' },
+    { name: 'JSON', text: `${json(data)}\n`, path: 'engine.json' },
+  ];
+}
+
+const nestedClean = corpusFiles().filter((f) => f.kind === 'clean' && f.family === 'config-object');
+
+describe('reformatting a clean config-object file keeps it clean', () => {
+  it('has clean files to reformat', () => expect(nestedClean.length).toBeGreaterThanOrEqual(3));
+  it.each(nestedClean.map((f) => [f.name, f] as const))('%s', (_name, file) => {
+    const base = analyzeText(file.text, { path: file.path });
+    const decision = base.documents[0]!.setup.consumer!.decision;
+    const fields = (r: typeof base) =>
+      Object.fromEntries(Object.entries(r.documents[0]!.setup.fields).map(([k, f]) => [k, JSON.stringify(f.value)]));
+    for (let seed = 1; seed <= 3; seed++) {
+      for (const variant of nestedRewrites(file.text, seed)) {
+        const result = analyzeText(variant.text, { path: `/studio/${variant.path}` });
+        const loud = result.findings.filter((x) => x.severity === 'error' || x.severity === 'warning');
+        expect(loud.map((x) => `${variant.name}: ${x.rule}: ${x.message}`)).toEqual([]);
+        expect(result.documents[0]!.setup.consumer?.decision.className, variant.name).toBe(decision.className);
+        // The same values reach the setup, whatever the layout.
+        expect(fields(result), variant.name).toEqual(fields(base));
+        expect(result.findings.map((x) => x.rule).sort(), variant.name).toEqual(base.findings.map((x) => x.rule).sort());
       }
     }
   });

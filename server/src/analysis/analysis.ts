@@ -125,7 +125,8 @@ export function scheduleFamilyOf(setup: Setup): ScheduleFamily {
   const target = valueOf(setup, 'predictionTarget');
   if (target === 'flow' || valueOf(setup, 'sampler') === 'flow-euler' || setup.fields.flowShift?.source) return 'flow';
   const hasBetas = !!(setup.fields.betas || setup.fields.betaSchedule?.source || setup.fields.betaStart?.source || setup.fields.betaEnd?.source);
-  if (!hasBetas && (setup.fields.sigmaMax?.source || setup.fields.sigmaMin?.source || setup.fields.rho?.source)) return 'karras';
+  const sigmaSet = setup.fields.sigmaMax?.source || setup.fields.sigmaMin?.source || setup.fields.rho?.source;
+  if (!hasBetas && (sigmaSet || setup.consumer?.continuousSigmas)) return 'karras';
   return 'discrete';
 }
 

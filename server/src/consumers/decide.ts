@@ -7,6 +7,7 @@ import type { LocatedMap, LocatedNode, ParsedDocument, SourceFormat } from '../p
 import { DIALECTS, type DialectId } from './dialects';
 import { GENERIC_FAMILY, SCHEDULER_META_KEYS, familyById } from './profiles';
 import type { ConsumerClass, ConsumerDecision, ConsumerFamily, FamilyId } from './types';
+import { detectConfigObject, type ComponentReading } from './components';
 
 /** What the project file says for a path (already matched against its globs). */
 export interface ConsumerChoice {
@@ -24,6 +25,10 @@ export interface ConsumerReading {
   cls: ConsumerClass | null;
   /** The map whose keys the consumer reads (null: the whole document, generic reading). */
   section: LocatedMap | null;
+  /** Config-object documents: the sub-configs, each read by its own class (components.ts). */
+  components?: ComponentReading[];
+  /** The document's role when the consumer tells it (an engine trains and samples). */
+  role?: 'training' | 'sampling' | 'both';
 }
 
 interface Detected {
@@ -31,6 +36,8 @@ interface Detected {
   cls: ConsumerClass | null;
   section: LocatedMap | null;
   evidence: string[];
+  components?: ComponentReading[];
+  role?: 'training' | 'sampling' | 'both';
 }
 
 function scalarString(node: LocatedNode | null | undefined): string | null {
@@ -80,19 +87,20 @@ function detectTargetConfig(root: LocatedMap): Detected | null {
     if (!cls) evidence.push(`${target} has no profile: its keys are read the generic way`);
     return { family, cls, section: params, evidence };
   }
-  if (target.startsWith('sgm.')) {
-    const family = familyById('config-object');
-    if (family.id === 'generic') return null;
-    const cls = family.classes.find((c) => c.name === target) ?? family.classes[0] ?? null;
-    return { family, cls, section: params, evidence: [`model.target: ${target}`, 'denoiser, sampler and guider configs are read per component'] };
-  }
   return null;
 }
 
 function detect(doc: ParsedDocument, path: string): Detected | null {
   const root = doc.root;
   if (!root || root.kind !== 'map') return null;
-  return detectSchedulerConfig(root, path) ?? detectTargetConfig(root) ?? detectArgs(root, path);
+  return detectSchedulerConfig(root, path) ?? detectTargetConfig(root) ?? detectComponents(root) ?? detectArgs(root, path);
+}
+
+function detectComponents(root: LocatedMap): Detected | null {
+  const family = familyById('config-object');
+  if (family.id === 'generic') return null;
+  const found = detectConfigObject(root);
+  return found ? { family, ...found } : null;
 }
 
 /** Flat argument files: a training script's arguments, or an older pixel model's argument set. */
@@ -137,7 +145,10 @@ export function decideConsumer(doc: ParsedDocument, format: SourceFormat, path: 
       `project file: ${choice.glob ? `"${choice.glob}" ` : ''}sets consumer ${family.id}${choice.className ? ` (${choice.className})` : ''}`,
     ];
     if (detected && detected.family.id === family.id) evidence.push(...detected.evidence);
-    detected = { family, cls, section: detected?.family.id === family.id ? detected.section : root, evidence };
+    const same = detected?.family.id === family.id ? detected : null;
+    detected = { family, cls, section: same ? same.section : root, evidence };
+    if (same?.components) detected.components = same.components;
+    if (same?.role) detected.role = same.role;
     basis = 'project';
   } else if (detected) {
     basis = 'file';
@@ -161,6 +172,8 @@ export function decideConsumer(doc: ParsedDocument, format: SourceFormat, path: 
     family,
     cls,
     section: detected?.section ?? null,
+    ...(detected?.components ? { components: detected.components } : {}),
+    ...(detected?.role ? { role: detected.role } : {}),
   };
 }
 

@@ -9,6 +9,8 @@ import type { LocatedEntry, LocatedMap } from '../parse/types';
 import type { LoaderReading } from './readAs';
 import { metaKeysOf, type ConsumerReading } from './decide';
 import type { ConsumerClass } from './types';
+import type { ConceptHit } from '../fields/findConcepts';
+import { componentDefaults, componentHits, componentIgnoredKeys, componentSpellings } from './components';
 
 export interface IgnoredKeyInfo {
   key: string;
@@ -23,10 +25,13 @@ export function ignoredKeysOf(reading: ConsumerReading): IgnoredKeyInfo[] {
   const meta = new Set(metaKeysOf(family));
   const taken = new Set(cls.keys);
   const out: IgnoredKeyInfo[] = [];
+  // Config-object classes are called with their params as keyword arguments: an unknown one raises.
+  const effect = reading.components ? 'instantiating it raises a TypeError' : 'the key has no effect';
   for (const { entry: e } of effectiveEntries(section)) {
     if (meta.has(e.key) || taken.has(e.key) || e.key === '<<') continue;
-    out.push({ key: e.key, path: e.key, reason: `${cls.name} does not take ${e.key}: the key has no effect` });
+    out.push({ key: e.key, path: e.key, reason: `${cls.name} does not take ${e.key}: ${effect}` });
   }
+  if (reading.components) out.push(...componentIgnoredKeys(reading.components));
   return out;
 }
 
@@ -39,6 +44,22 @@ export function entriesOfSection(section: LocatedMap): Set<LocatedEntry> {
     sectionEntries.set(section, set);
   }
   return set;
+}
+
+/** The concept hits of a document read per component (config-object), or null for other readings. */
+export function readingHits(reading: ConsumerReading | undefined): ConceptHit[] | null {
+  return reading?.components ? componentHits(reading.components) : null;
+}
+
+/** The consumer's defaults: per component for config-object documents, else the class's own. */
+export function readingDefaults(reading: ConsumerReading): { concept: Concept; value: ConceptValues[Concept]; note: string }[] {
+  if (reading.components) return componentDefaults(reading.components);
+  return reading.cls ? classDefaults(reading.cls) : [];
+}
+
+/** The consumer's own spellings of values a fix writes, per key, when components spell them (class paths). */
+export function readingSpellings(reading: ConsumerReading): Record<string, Record<string, string>> | null {
+  return reading.components ? componentSpellings(reading.components) : null;
 }
 
 /**

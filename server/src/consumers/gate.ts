@@ -8,6 +8,8 @@ import type { Concept } from '../fields/concepts';
 /** The part of a setup the gate reads (the setup stage comes after this one). */
 export interface GateSubject {
   fields: { [C in Concept]?: { source: unknown } };
+  /** Values present but unusable: a fix may rewrite them in place. */
+  problems?: { concept: Concept }[];
   consumer?: {
     decision: { className: string | null };
     insertKeys?: { [C in Concept]?: string | null };
@@ -37,7 +39,8 @@ export function gateFixes<F extends FixLike>(setup: GateSubject, fixes: readonly
   const hints: string[] = [];
   const className = consumer.decision.className ?? 'the consuming code';
   for (const fix of fixes) {
-    const blocked = fix.edits.filter((e) => e.kind === 'set' && consumer.insertKeys![e.concept] === null && !setup.fields[e.concept]?.source);
+    const written = (c: Concept) => !!setup.fields[c]?.source || !!setup.problems?.some((p) => p.concept === c);
+    const blocked = fix.edits.filter((e) => e.kind === 'set' && consumer.insertKeys![e.concept] === null && !written(e.concept));
     if (blocked.length === 0) {
       kept.push(fix);
       continue;

@@ -16,6 +16,12 @@ export type TimestepsResult = { ok: true; value: number[] } | { ok: false; probl
  * - 'ldm-ddim' (latent-diffusion ldm/modules/diffusionmodules/util.py make_ddim_timesteps,
  *   "uniform"): c = floor(T / N), range(0, T, c) + 1, noisiest first (recalled from memory): the
  *   first step is never T - 1 unless c = 1, and T = 1000, N = 30 gives 31 steps.
+ * - 'even-from-last' (config-object code, sgm/modules/diffusionmodules/discretizer.py,
+ *   LegacyDDPMDiscretization.get_sigmas with generate_roughly_equally_spaced_steps): for N < T the
+ *   steps are linspace(T - 1, 0, N, endpoint=False) truncated to integers, i.e. trunc((T - 1) +
+ *   k (0 - (T - 1)) / N) for k = 0..N-1 (numpy's linspace computes k * step + start), noisiest
+ *   first after the code's flip; N = T is every step; N > T raises ValueError in that code.
+ *   The spacing is ignored: the class takes none.
  * - otherwise the standard spacings.
  */
 export function consumerTimesteps(rule: TimestepRule, spacing: TimestepSpacing, T: number, N: number, offset: number): TimestepsResult {
@@ -29,6 +35,17 @@ export function consumerTimesteps(rule: TimestepRule, spacing: TimestepSpacing, 
       const stride = Math.floor(T / (N + 1));
       for (let k = N; k >= 1; k--) out.push(k * stride + offset);
     }
+    return { ok: true, value: out };
+  }
+  if (rule === 'even-from-last') {
+    if (N > T) return { ok: false, problem: `the discretization raises an error for ${N} sampling steps: it has only ${T} training steps` };
+    const out: number[] = [];
+    if (N === T) {
+      for (let t = T - 1; t >= 0; t--) out.push(t);
+      return { ok: true, value: out };
+    }
+    const step = (0 - (T - 1)) / N;
+    for (let k = 0; k < N; k++) out.push(Math.trunc(k * step + (T - 1)));
     return { ok: true, value: out };
   }
   if (rule === 'ldm-ddim') {

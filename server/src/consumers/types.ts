@@ -18,9 +18,11 @@ export type ConceptDefaults = { [C in Concept]?: ConceptValues[C] };
  *   stride floor(T/(N+1)); linspace round(linspace(0, T-1, N+1)) reversed, last dropped);
  * - 'ldm-ddim': the latent-diffusion code's own DDIM selection, uniform stride floor(T/N)
  *   plus one (make_ddim_timesteps adds 1 to each step);
- * - 'flow': flow matching (shifted t from 1 down).
+ * - 'flow': flow matching (shifted t from 1 down);
+ * - 'even-from-last': the config-object code's legacy DDPM discretization, roughly equally spaced
+ *   steps from T - 1 down (see timesteps.ts).
  */
-export type TimestepRule = 'standard' | 'n-plus-one' | 'ldm-ddim' | 'flow';
+export type TimestepRule = 'standard' | 'n-plus-one' | 'ldm-ddim' | 'flow' | 'even-from-last';
 
 /** One consuming class or script (a scheduler class, a model class, an argument parser). */
 export interface ConsumerClass {
@@ -50,6 +52,8 @@ export interface ConsumerClass {
    * sigma is finite (about 4096).
    */
   clampsZeroSnrSigma?: boolean;
+  /** Its schedule is a continuous sigma range (Karras et al. 2022), not a list of betas. */
+  continuousSigmas?: boolean;
   /** No rescale flag, but an explicit beta list key: a zero-SNR fix writes the rescaled list there. */
   rescaleViaBetas?: boolean;
   /** Two keys of the class that one concept stands for but the class reads separately. */
@@ -61,6 +65,36 @@ export interface ConsumerClass {
   cannotExpress?: Partial<Record<Concept, string>>;
 }
 
+/**
+ * One sub-config of a config-object document (`{ target: <class path>, params: {...} }`), e.g. the
+ * denoiser's discretization or the sampler's guider. Its class reads its own keys from `params`.
+ */
+export type ComponentRole =
+  | 'engine'
+  | 'denoiser'
+  | 'scaling'
+  | 'discretization'
+  | 'sampler'
+  | 'sampler-discretization'
+  | 'guider'
+  | 'loss'
+  | 'sigma-sampler'
+  | 'sigma-sampler-discretization'
+  | 'first-stage';
+
+/** A class that a component's `target` may name; the data of a profile (see profiles/configObject.ts). */
+export interface ComponentClass extends ConsumerClass {
+  /** Last segment of the class path (`LegacyDDPMDiscretization`): matched whatever the module prefix. */
+  shortName: string;
+  roles: ComponentRole[];
+  /** What the class itself implies, whatever its keys say (EpsScaling: an epsilon target). */
+  implies?: ConceptDefaults;
+  /** The sentence that explains an implied value. */
+  impliesNote?: string;
+  /** Keys that must be present (no constructor default): absent, the class raises at start-up. */
+  required?: string[];
+}
+
 export interface ConsumerFamily {
   id: FamilyId;
   /** Shown in explain: "scheduler config saved by the open diffusion library". */
@@ -70,6 +104,8 @@ export interface ConsumerFamily {
   /** Where in the document the consumer's keys sit (dotted path from the root; '' for the root). */
   sectionPath?: string;
   classes: ConsumerClass[];
+  /** Words whose presence in the raw text lets a file of this family past the engine's prefilter. */
+  textHints?: string[];
   /** Keys whose presence marks a flat document of this family, and how many must be there. */
   signature?: string[];
   signatureMin?: number;

@@ -17,6 +17,7 @@ import type { Concept } from '../fields/concepts';
 import { KEY_ALIASES } from '../fields/aliases';
 import { keySegments } from '../fields/normalize';
 import { SCHEDULE_CONCEPTS } from '../setup';
+import { FAMILIES } from '../consumers';
 import { detectLineEnding, formatFromPath, hasBom, type ParsedFile } from '../parse';
 import type { FileReading } from './types';
 
@@ -37,6 +38,17 @@ function needlesFor(extra?: Partial<Record<Concept, readonly string[]>>): Needle
       // An alias that normalises to nothing could match any key: nothing may be passed over.
       if (segs.length === 0) return [[]];
       if (seen.has(id)) continue;
+      seen.add(id);
+      out.push(segs);
+    }
+  }
+  // A consumer family whose documents name no concept key (a config-object file that relies on
+  // its classes' defaults) is recognised by its sub-config keys.
+  for (const family of FAMILIES) {
+    for (const hint of family.textHints ?? []) {
+      const segs = keySegments(hint);
+      const id = segs.join('.');
+      if (segs.length === 0 || seen.has(id)) continue;
       seen.add(id);
       out.push(segs);
     }

@@ -1,7 +1,8 @@
 /** The tool's own vocabulary (DESIGN section 3). Alias spellings live in aliases.ts. */
 
 export type BetaScheduleKind = 'linear' | 'scaled_linear' | 'cosine' | 'sigmoid';
-export type PredictionTarget = 'epsilon' | 'v' | 'x0' | 'flow';
+/** 'edm': the preconditioning of Karras et al. 2022 (a class implies it; no key spells it). */
+export type PredictionTarget = 'epsilon' | 'v' | 'x0' | 'flow' | 'edm';
 export type TimestepSpacing = 'leading' | 'linspace' | 'trailing' | 'uniform' | 'quadratic';
 export type SamplerFamily =
   | 'ddim'

@@ -60,7 +60,10 @@ export function insertKeyFor(concept: Concept, style: KeyStyle, keysInTargetMap:
  * Enum value spellings, in families. A fix writes the family of the value it replaces; when that
  * is unknown, the family the key suggests; else the one of the file's key style.
  */
-export const TARGET_SPELLINGS: Record<'long' | 'short' | 'words' | 'pred', Record<PredictionTarget, string>> = {
+/** Targets a key can spell (the EDM preconditioning is implied by a class, never written as a value). */
+type SpelledTarget = Exclude<PredictionTarget, 'edm'>;
+
+export const TARGET_SPELLINGS: Record<'long' | 'short' | 'words' | 'pred', Record<SpelledTarget, string>> = {
   // prediction_type style: epsilon, v_prediction, sample.
   long: { epsilon: 'epsilon', v: 'v_prediction', x0: 'sample', flow: 'flow' },
   // parameterization style: eps, v, x0.
@@ -132,7 +135,7 @@ export function spellEnum(concept: Concept, value: string, context: { key: strin
       }
       family ??= context.key ? TARGET_FAMILY_BY_KEY[squash(context.key)] : undefined;
       family ??= context.style === 'short' ? 'short' : 'long';
-      return TARGET_SPELLINGS[family][target] ?? null;
+      return target === 'edm' ? null : (TARGET_SPELLINGS[family][target] ?? null);
     }
     case 'betaSchedule': {
       const kind = value as BetaScheduleKind;

@@ -21,7 +21,7 @@
  * order; a 'duplicate' problem marks the later one when the values differ.
  */
 import type { ConsumerReading } from '../consumers/decide';
-import { classDefaults, consumerTakes, entriesOfSection, ignoredKeysOf, insertKeysOf } from '../consumers/forSetup';
+import { consumerTakes, entriesOfSection, ignoredKeysOf, insertKeysOf, readingDefaults, readingHits, readingSpellings } from '../consumers/forSetup';
 import type { LoaderReading } from '../consumers/readAs';
 import type { Concept, ConceptValues } from '../fields/concepts';
 import { findConcepts, type ConceptHit } from '../fields/findConcepts';
@@ -113,7 +113,8 @@ const SEPARATE_SETTING_CONCEPTS = new Set<Concept>(['thresholding']);
 
 function build(doc: ParsedDocument, opts: BuildSetupOptions, setup: Setup): Setup {
   const reading = opts.consumer;
-  const hits = findConcepts(doc.root, opts.extraAliases).filter((h) => consumerTakes(reading, h.source.entry, h.source.parent));
+  const hits =
+    readingHits(reading) ?? findConcepts(doc.root, opts.extraAliases).filter((h) => consumerTakes(reading, h.source.entry, h.source.parent));
   const fields: SetupFields = {};
   const problems: ValueProblem[] = [];
   const decided = new Map<Concept, Decided>();
@@ -176,14 +177,14 @@ function build(doc: ParsedDocument, opts: BuildSetupOptions, setup: Setup): Setu
     (present('sampleSteps') && (present('sampler') || present('guidanceScale')));
 
   setup.isDiffusionConfig = isDiffusionConfig;
-  setup.role = roleOf(doc.root, present);
+  setup.role = reading?.role ?? roleOf(doc.root, present);
   setup.fields = fields;
   setup.problems = problems;
   setup.keyStyle = keyStyleOf(hits);
   if (Object.keys(nullKeys).length > 0) setup.nullKeys = nullKeys;
   if (reading) setup.consumer = consumerSummary(reading, opts.loaderReadings ?? []);
   if (isDiffusionConfig) {
-    if (reading?.cls) assumeClassDefaults(setup, decided, reading);
+    if (reading?.cls || reading?.components) assumeClassDefaults(setup, decided, reading);
     assumeDefaults(setup, decided, doc.root, opts);
   }
   return setup;
@@ -268,7 +269,10 @@ function consumerSummary(reading: ConsumerReading, loaderReadings: LoaderReading
     cannotExpress: { ...(cls?.cannotExpress ?? {}) },
   };
   if (cls?.fixedSpacing) out.fixedSpacing = cls.fixedSpacing;
+  if (cls?.continuousSigmas) out.continuousSigmas = true;
   if (cls?.enums) out.enumSpellings = enumSpellingsOf(cls);
+  const spellings = readingSpellings(reading);
+  if (spellings) out.enumSpellings = { ...out.enumSpellings, ...spellings };
   if (cls) out.insertKeys = insertKeysOf(cls);
   return out;
 }
@@ -279,15 +283,15 @@ function consumerSummary(reading: ConsumerReading, loaderReadings: LoaderReading
  * and dynamic thresholding) is on when either key, or the default of an absent one, is on.
  */
 function assumeClassDefaults(setup: Setup, decided: Map<Concept, Decided>, reading: ConsumerReading): void {
-  const cls = reading.cls!;
+  const cls = reading.cls;
   const fields = setup.fields;
-  for (const d of classDefaults(cls)) {
+  for (const d of readingDefaults(reading)) {
     if (decided.has(d.concept) || fields[d.concept]) continue;
     setField(fields, d.concept, d.value, null, d.note);
     setup.assumed.push(d.concept);
   }
   const section = reading.section;
-  if (!section || !cls.keyDefaults) return;
+  if (!cls || !section || !cls.keyDefaults) return;
   const thresholding = fields.thresholding;
   if (thresholding?.value === true) return;
   for (const [key, value] of Object.entries(cls.keyDefaults)) {
@@ -407,7 +411,7 @@ function assumeDefaults(setup: Setup, decided: Map<Concept, Decided>, root: Loca
 
   const isFlow = fields.predictionTarget?.value === 'flow' || present('flowShift') || fields.sampler?.value === 'flow-euler';
   const hasBetaParams = present('betaSchedule') || present('betas') || present('betaStart') || present('betaEnd');
-  const isSigma = (present('sigmaMin') || present('sigmaMax')) && !hasBetaParams;
+  const isSigma = (present('sigmaMin') || present('sigmaMax') || setup.consumer?.continuousSigmas === true) && !hasBetaParams;
 
   if (fields.betas && fields.betas.value.length > 0 && !present('trainSteps')) {
     assume('trainSteps', fields.betas.value.length, 'not set: taken from the length of the beta list');

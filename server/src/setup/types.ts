@@ -78,6 +78,8 @@ export interface SetupConsumer {
   karrasStartsAtMax: boolean;
   /** The consumer has no rescale flag; a zero-SNR fix passes the rescaled betas as its explicit list. */
   rescaleViaBetas: boolean;
+  /** The consumer's schedule is a continuous sigma range (Karras et al. 2022), not a list of betas. */
+  continuousSigmas?: boolean;
   /** The consumer clamps the last abar to 2^-24 itself when its zero-SNR flag is on. */
   clampsZeroSnrSigma: boolean;
   /** The consumer's own spacing when it takes no spacing key. */

@@ -149,6 +149,8 @@ function targetNotes(doc: DocumentResult): string[] {
   }
   if (target === 'v') return ['Velocity target v = sqrt(abar) eps - sqrt(1 - abar) x0 (Salimans & Ho 2022): defined at zero SNR.'];
   if (target === 'x0') return ['Sample (x0) target: defined at zero SNR.'];
+  if (target === 'edm')
+    return ['EDM preconditioning (Karras et al. 2022): the network predicts the clean sample at high noise, so it stays defined at zero SNR.'];
   return ['Flow-matching velocity target: the path reaches zero SNR at t = 1 by construction.'];
 }
 
