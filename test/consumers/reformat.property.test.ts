@@ -151,8 +151,7 @@ describe('reformatting a clean config-object file keeps it clean', () => {
   it.each(nestedClean.map((f) => [f.name, f] as const))('%s', (_name, file) => {
     const base = analyzeText(file.text, { path: file.path });
     const decision = base.documents[0]!.setup.consumer!.decision;
-    const fields = (r: typeof base) =>
-      Object.fromEntries(Object.entries(r.documents[0]!.setup.fields).map(([k, f]) => [k, JSON.stringify(f.value)]));
+    const fields = (r: typeof base) => Object.fromEntries(Object.entries(r.documents[0]!.setup.fields).map(([k, f]) => [k, JSON.stringify(f.value)]));
     for (let seed = 1; seed <= 3; seed++) {
       for (const variant of nestedRewrites(file.text, seed)) {
         const result = analyzeText(variant.text, { path: `/studio/${variant.path}` });
