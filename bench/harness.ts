@@ -3,6 +3,7 @@
  * bundle runs. Each pass walks the corpus from scratch (discovery included) so that the compared
  * figures do the same I/O.
  */
+import { join } from 'node:path';
 import Ajv from 'ajv';
 import { parse as parseJsonc } from 'jsonc-parser';
 import { parse as parseYaml } from 'yaml';
@@ -99,6 +100,8 @@ export async function checkCommand(dir: string, extraArgs: string[] = []): Promi
     stderr: () => undefined,
     isTTY: false,
     env: {},
+    // The CLI build's worker entry (bench/run.mjs builds it first).
+    workerScript: join(process.env.NOISELINT_REPO ?? process.cwd(), 'server/dist/checkWorker.js'),
   };
   const code = await check({ ...parseCheckArgs(['.', '--format', 'json', ...extraArgs]) }, io);
   return { code, outputBytes, summary: reportSummary(tail) };

@@ -21,6 +21,8 @@ const common = {
   mainFields: ['module', 'main'],
 };
 await build({ ...common, entryPoints: [join(root, 'server/src/cli/entry.ts')], outfile: join(root, 'server/dist/noiselint.js') });
+// The worker-thread entry of `check` (cli/checkWorker.ts), loaded from beside the bundle.
+await build({ ...common, entryPoints: [join(root, 'server/src/cli/checkWorker.ts')], outfile: join(root, 'server/dist/checkWorker.js') });
 
 // The schema module is bundled in memory and evaluated as CommonJS (its dependencies are CJS).
 const schemaModule = await build({

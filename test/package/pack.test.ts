@@ -41,6 +41,7 @@ describe('npm pack', () => {
         'package/schemas/noiselint.project.schema.json',
         'package/server/bin/noiselint.js',
         'package/server/dist/noiselint.js',
+        'package/server/dist/checkWorker.js',
       ].sort(),
     );
   });

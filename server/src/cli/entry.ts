@@ -1,4 +1,6 @@
 /** Process entry of the bundled CLI (server/dist/noiselint.js). */
+import { existsSync } from 'node:fs';
+import { join } from 'node:path';
 import { setFlagsFromString } from 'node:v8';
 import { main } from './main';
 import type { CliIO } from './io';
@@ -29,6 +31,9 @@ const io: CliIO = {
     return Buffer.concat(chunks);
   },
 };
+// Built beside this bundle by scripts/build.mjs; without it `check` runs in one thread.
+const workerScript = join(__dirname, 'checkWorker.js');
+if (existsSync(workerScript)) io.workerScript = workerScript;
 
 main(process.argv.slice(2), io).then(
   (code) => {

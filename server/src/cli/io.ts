@@ -10,6 +10,8 @@ export interface CliIO {
   env: Record<string, string | undefined>;
   /** All of standard input, as bytes (for `-`); absent where there is none to read. */
   readStdin?: () => Promise<Uint8Array>;
+  /** The bundled worker-thread entry of `check` (server/dist/checkWorker.js); absent: one thread only. */
+  workerScript?: string;
 }
 
 /** Thrown for bad arguments; main prints the one-line message and exits 2. */

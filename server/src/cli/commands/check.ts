@@ -4,15 +4,14 @@
  * `--show` is the faintest severity listed (the others are still counted); each `--budget` lets
  * at most N findings at or above a severity pass. Without an `error=` budget, no error may pass.
  */
+import { availableParallelism, totalmem } from 'node:os';
 import { resolve } from 'node:path';
-import { findingsAsData, type FileResult } from '../../engine/api';
 import { ALL_RULE_METAS } from '../../rules';
 import { discoverFiles } from '../../workspace/discover';
-import { decodeText, nodeFs, withExtraFile, type TextReadResult, type WorkspaceFs } from '../../workspace/fs';
+import { decodeText, nodeFs, withExtraFile, type WorkspaceFs } from '../../workspace/fs';
 import { loadProject, ProjectFileError, type ResolvedProject } from '../../workspace/project';
 import { httpsDocsBase } from '../../workspace/ruleDocs';
-import { WorkspaceSession, type Pairing } from '../../workspace/session';
-import { mayBeDiffusionConfig } from '../../engine/prefilter';
+import { WorkspaceSession } from '../../workspace/session';
 
 import { UsageError, type CliIO } from '../io';
 import { COLOR_OPTION, useColor, type ColorChoice } from '../color';
@@ -21,6 +20,8 @@ import { formatAnnotations } from '../output/annotations';
 import { EDIT_FORMS, JsonReportWriter, type EditForm } from '../output/json';
 import { atOrAbove, displayPath, summarize, type BudgetResult, type CheckReport, type Summary } from '../output/report';
 import { SEVERITIES, type Severity } from '../../base/findings';
+import { addSummary, emptySummary, FileChecker, type FileCheckSink } from './checkFiles';
+import { checkInWorkers, chunksOf, replay, workerHeapMb, workersFor, WORKER_MIN_FILES } from './checkWorkers';
 import { printableLine } from '../output/printable';
 import { formatSarif } from '../output/sarif';
 import { formatText } from '../output/text';
@@ -76,6 +77,12 @@ export const CHECK_SPEC: CommandSpec = {
       choices: EDIT_FORMS,
       description: 'How the JSON report writes fix edits (default compact).',
     },
+    {
+      name: 'workers',
+      type: 'string',
+      value: 'N',
+      description: `Worker threads for runs of ${WORKER_MIN_FILES} files or more (default: the available cores; 1: this thread only).`,
+    },
     COLOR_OPTION,
     { name: 'as', type: 'string', value: 'path', description: 'With `-`: the path the text on standard input stands for.' },
     { name: 'empty-ok', type: 'boolean', description: 'Exit 0 even when an input holds no diffusion config (e.g. hooks on changed files).' },
@@ -117,6 +124,8 @@ export interface CheckOptions {
   emptyOk?: boolean;
   /** https base of the rule pages linked from SARIF. */
   docsBase?: string;
+  /** Worker threads for large runs (default: the available cores; 1: none). */
+  workers?: number;
   /** `--help` was given. */
   help?: boolean;
 }
@@ -157,6 +166,12 @@ export function parseCheckArgs(args: string[]): CheckOptions {
   const stdinPath = typeof v.as === 'string' ? v.as : undefined;
   if (stdinPath !== undefined && stdinCount === 0) throw new UsageError('--as names the file on standard input; add `-` to read it');
   if (stdinPath !== undefined && stdinPath.trim() === '') throw new UsageError('--as needs a path');
+  let workers: number | undefined;
+  if (typeof v.workers === 'string') {
+    if (!/^\s*\d+\s*$/.test(v.workers) || Number(v.workers) < 1)
+      throw new UsageError(`--workers takes a whole number of threads (1 or more), not "${v.workers}"`);
+    workers = Number(v.workers);
+  }
   const docsBase = typeof v['docs-base'] === 'string' ? v['docs-base'] : undefined;
   if (docsBase !== undefined && !httpsDocsBase(docsBase)) throw new UsageError(`--docs-base must be an https URL, not "${docsBase}"`);
   return {
@@ -169,6 +184,7 @@ export function parseCheckArgs(args: string[]): CheckOptions {
     stdinPath,
     emptyOk: v['empty-ok'] === true,
     docsBase,
+    workers,
   };
 }
 
@@ -238,66 +254,80 @@ export async function check(options: CheckOptions, io: CliIO, diskFs: WorkspaceF
   }
 
   const session = new WorkspaceSession({ fs, stableTree: true, showPath: shown, projects });
-  const listed = (s: Severity) => SEVERITIES.indexOf(s) <= SEVERITIES.indexOf(options.show);
   // JSON is written file by file as the run goes; text and SARIF are written from the whole report.
   const stream = options.format === 'json' ? new JsonReportWriter(io.stdout, io.cwd, options.fixEdits ?? 'compact') : null;
-  const counted: Summary = { errors: 0, warnings: 0, infos: 0, hints: 0 };
-  const countedListed: Summary = { errors: 0, warnings: 0, infos: 0, hints: 0 };
+  const counted = emptySummary();
+  const countedListed = emptySummary();
   const checkedConfig = new Set<string>();
-  const checkOne = (file: string, read: TextReadResult): void => {
-    const project = projects.get(file)!;
-    if (!read.ok) {
-      unchecked.push({ path: file, reason: read.problem });
-      if (read.kind === 'io' || namedFiles.has(file) || file === stdin?.path) notice('error', `${shown(file)}: ${read.problem}`);
-      else {
-        report.skipped.push({ path: file, reason: read.problem });
-        io.stderr(`noiselint check: ${printableLine(`${shown(file)}: ${read.problem}`)}\n`);
-      }
-      return;
-    }
-    // A text that names no schedule or step-count key cannot hold a finding: not parsed at all.
-    if (!mayBeDiffusionConfig(read.text, project.aliases)) {
-      report.passedOver = (report.passedOver ?? 0) + 1;
-      return;
-    }
-    let result: FileResult;
-    let pairing: Pairing;
-    try {
-      // Pairing reads the folder's files (their roles); the file's own check reuses that reading.
-      pairing = session.partnersOf(file, project);
-      result = session.analyze(file, read.text, { project, partners: pairing.partners, pairRole: pairing.pairRole });
-    } catch (err) {
-      // The core never throws by contract; if it does, one file's failure must not end the run.
-      notice('error', `${shown(file)}: internal error while checking: ${err instanceof Error ? err.message.split('\n')[0] : String(err)}`);
-      unchecked.push({ path: file, reason: 'internal error while checking' });
-      return;
-    }
-    if (result.isDiffusionConfig) checkedConfig.add(file);
-    // As data: the report outlives every file's tree.
-    const checked = { path: file, text: read.text, findings: findingsAsData(result.findings), isDiffusionConfig: result.isDiffusionConfig };
-    if (stream) {
-      addCounts(counted, checked.findings);
-      if (options.show !== 'hint') checked.findings = checked.findings.filter((x) => listed(x.severity));
-      addCounts(countedListed, checked.findings);
-      stream.file(checked, pairing.texts);
-    } else {
-      for (const [p, t] of pairing.texts) report.otherTexts.set(p, t);
-      report.files.push(checked);
-    }
+  const isNamed = (file: string) => namedFiles.has(file) || file === stdin?.path;
+  const sink: FileCheckSink = {
+    notice,
+    skipped: (path, reason) => {
+      report.skipped.push({ path, reason });
+      io.stderr(`noiselint check: ${printableLine(`${shown(path)}: ${reason}`)}\n`);
+    },
+    unchecked: (path, reason) => unchecked.push({ path, reason }),
+    passedOver: () => void (report.passedOver = (report.passedOver ?? 0) + 1),
+    config: (path) => checkedConfig.add(path),
+    entry: (json, all, listed) => {
+      addSummary(counted, all);
+      addSummary(countedListed, listed);
+      stream!.entry(json);
+    },
+    checked: (file, texts) => {
+      for (const [p, t] of texts) report.otherTexts.set(p, t);
+      report.files.push(file);
+    },
   };
+  const show = options.show;
+  const fixEdits = options.fixEdits ?? 'compact';
+  const checker = new FileChecker(session, (file) => projects.get(file)!, { cwd: io.cwd, stream: !!stream, fixEdits, show, isNamed });
 
-  if (stdin) checkOne(stdin.path, decodeText(stdin.bytes));
+  if (stdin) checker.check(stdin.path, decodeText(stdin.bytes), sink);
   // Progress goes to stderr when stderr is a terminal, whatever stdout is (a file, a pipe).
   const progress = !!io.stderrIsTTY && files.length >= PROGRESS_MIN_FILES;
-  let done = 0;
-  for (const file of files) {
-    if (progress) io.stderr(`\rchecking ${++done}/${files.length}`);
-    const read = session.readText(file, projects.get(file)!);
-    if (progress && !read.ok) io.stderr('\r\x1b[K');
-    checkOne(file, read);
+  // Workers read the disk themselves: not for a run that reads standard input or another file system.
+  const workers = io.workerScript && !stdin && diskFs === nodeFs ? workersFor(files.length, options.workers ?? availableParallelism()) : 1;
+  const warnings: string[] = [];
+  if (workers > 1) {
+    const seen = new Set<string>();
+    let done = 0;
+    try {
+      await checkInWorkers({
+        script: io.workerScript!,
+        workers,
+        heapMb: workerHeapMb(totalmem(), workers),
+        init: { cwd: io.cwd, stream: !!stream, fixEdits, show },
+        chunks: chunksOf(files, namedFiles),
+        onChunk: (result, chunk) => {
+          if (progress && result.events.some((e) => e[0] === 'skipped' || e[0] === 'notice')) io.stderr('\r\x1b[K');
+          replay(result.events, sink);
+          for (const w of result.warnings) {
+            if (seen.has(w)) continue;
+            seen.add(w);
+            warnings.push(w);
+          }
+          done += chunk.files.length;
+          if (progress) io.stderr(`\rchecking ${done}/${files.length}`);
+        },
+      });
+    } catch (err) {
+      if (progress) io.stderr('\r\x1b[K');
+      io.stderr(`noiselint check: ${printableLine(err instanceof Error ? err.message : String(err))}\n`);
+      return 2;
+    }
+  } else {
+    let done = 0;
+    for (const file of files) {
+      if (progress) io.stderr(`\rchecking ${++done}/${files.length}`);
+      const read = session.readText(file, projects.get(file)!);
+      if (progress && !read.ok) io.stderr('\r\x1b[K');
+      checker.check(file, read, sink);
+    }
+    warnings.push(...session.warnings);
   }
   if (progress) io.stderr('\r\x1b[K');
-  for (const w of session.warnings) notice('warning', relativizeWarning(w, io.cwd));
+  for (const w of warnings) notice('warning', relativizeWarning(w, io.cwd));
 
   // Never green on nothing checked: every input must hold at least one diffusion config.
   if (!options.emptyOk) {
@@ -314,6 +344,7 @@ export async function check(options: CheckOptions, io: CliIO, diskFs: WorkspaceF
     }
   }
 
+  const listed = (s: Severity) => SEVERITIES.indexOf(s) <= SEVERITIES.indexOf(options.show);
   // Budgets and the summary count every finding; the view only decides what is listed.
   const all = stream ? counted : summarize(report.files);
   const budgets: BudgetResult[] = options.budgets.map((b) => {
@@ -343,15 +374,6 @@ export async function check(options: CheckOptions, io: CliIO, diskFs: WorkspaceF
 
   if (report.notices.some((n) => n.level === 'error')) return 2;
   return budgets.some((b) => b.exceeded) ? 1 : 0;
-}
-
-function addCounts(s: Summary, findings: readonly { severity: Severity }[]): void {
-  for (const f of findings) {
-    if (f.severity === 'error') s.errors++;
-    else if (f.severity === 'warning') s.warnings++;
-    else if (f.severity === 'info') s.infos++;
-    else s.hints++;
-  }
 }
 
 /** Pairing warnings name absolute paths; show them relative to the run's folder. */

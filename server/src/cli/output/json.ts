@@ -151,6 +151,12 @@ export function formatJson(report: CheckReport, edits: EditForm = 'compact'): st
   return `${JSON.stringify(toJson(report, edits))}\n`;
 }
 
+/** One file's entry of the streamed report, serialised; `otherTexts` are the texts its related locations point into. */
+export function fileEntryText(file: CheckedFile, otherTexts: ReadonlyMap<string, string>, cwd: string, edits: EditForm): string {
+  const locate = new Locator({ cwd, files: [file], skipped: [], otherTexts: otherTexts as Map<string, string>, notices: [] });
+  return JSON.stringify(fileEntry(file, locate, cwd, edits));
+}
+
 /** Text is handed to the output in pieces of about this size. */
 const FLUSH_CHARS = 64 * 1024;
 
@@ -173,8 +179,12 @@ export class JsonReportWriter {
 
   /** Writes one checked file; `otherTexts` are the texts its related locations point into. */
   file(file: CheckedFile, otherTexts: ReadonlyMap<string, string>): void {
-    const locate = new Locator({ cwd: this.cwd, files: [file], skipped: [], otherTexts: otherTexts as Map<string, string>, notices: [] });
-    this.buffer += (this.files++ === 0 ? '' : ',') + JSON.stringify(fileEntry(file, locate, this.cwd, this.edits));
+    this.entry(fileEntryText(file, otherTexts, this.cwd, this.edits));
+  }
+
+  /** Writes one file entry serialised by `fileEntryText` (a worker thread's). */
+  entry(json: string): void {
+    this.buffer += (this.files++ === 0 ? '' : ',') + json;
     if (this.buffer.length >= FLUSH_CHARS) this.flush();
   }
 
