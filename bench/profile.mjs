@@ -2,7 +2,7 @@
 // Profiles one benchmark measurement with the V8 sampling profiler and prints the functions that
 // dominate (self time and inclusive time). Needs the harness bundle and the corpus that
 // `node bench/run.mjs --only a` leaves behind.
-//   node bench/profile.mjs core|command|parse|ajv|lsp-analyze [--lines 5000] [--dir bench/monorepo]
+//   node bench/profile.mjs core|command|command-workers|parse|ajv|lsp-analyze [--lines 5000] [--dir bench/monorepo]
 import { spawnSync } from 'node:child_process';
 import { mkdtempSync, readdirSync, readFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
@@ -28,7 +28,8 @@ if (values.child) {
   process.env.NOISELINT_REPO = root;
   const H = await import(pathToFileURL(harness).href);
   if (what === 'core') H.coreCheck(corpus);
-  else if (what === 'command') await H.checkCommand(corpus);
+  else if (what === 'command') await H.checkCommand(corpus, ['--workers', '1']);
+  else if (what === 'command-workers') await H.checkCommand(corpus);
   else if (what === 'parse') H.parseOnly(corpus);
   else if (what === 'ajv') H.schemaValidator(JSON.parse(readFileSync(join(root, 'bench/schema.json'), 'utf8')))(corpus);
   else if (what === 'lsp-analyze') H.analyzeTimes(H.configText(7, 7, Number(values.lines)), join(root, 'build/bench/lsp/doc.yaml'), 10);

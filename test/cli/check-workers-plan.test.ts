@@ -28,7 +28,7 @@ describe('--workers', () => {
   it('is on the help page with its default', async () => {
     const r = await runCli(['check', '--help'], process.cwd());
     expect(r.stdout).toMatch(
-      /^ +--workers <N> +Worker threads for runs of \d+ files or more \(default: the available cores; 1: this thread only\)\.$/m,
+      /^ +--workers <N> +Threads for runs of \d+ files or more, this one included \(default: the available cores; 1: this thread only\)\.$/m,
     );
   });
 });
@@ -44,7 +44,7 @@ describe('the plan of a run', () => {
 
   it('bounds each worker heap between 256 MB and 1 GB', () => {
     expect(workerHeapMb(64 * 1024 ** 3, 2)).toBe(1024);
-    expect(workerHeapMb(2 * 1024 ** 3, 2)).toBe(341);
+    expect(workerHeapMb(2 * 1024 ** 3, 2)).toBe(512);
     expect(workerHeapMb(512 * 1024 ** 2, 8)).toBe(256);
   });
 

@@ -21,7 +21,7 @@ describe('noiselint --help', () => {
     expect(check.code).toBe(0);
     expect(check.out).toMatch(/^ +--show <severity> /m);
     expect(check.out).toMatch(/^ +--budget <severity=N> /m);
-    expect(check.out).toMatch(/^ +--workers <N> +Worker threads .*default: the available cores/m);
+    expect(check.out).toMatch(/^ +--workers <N> +Threads .*default: the available cores/m);
     const fix = await run(['fix', '--help']);
     expect(fix.out).toMatch(/^ +--accept-retraining /m);
     expect(fix.out).toMatch(/^ +--accept-comment-edits /m);

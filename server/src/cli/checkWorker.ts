@@ -5,11 +5,10 @@
  */
 import { parentPort, workerData } from 'node:worker_threads';
 import { nodeFs } from '../workspace/fs';
-import { loadProject, type ResolvedProject } from '../workspace/project';
+import { loadProjectOfFile, type ResolvedProject } from '../workspace/project';
 import { WorkspaceSession } from '../workspace/session';
 import { displayPath } from './output/report';
-import { FileChecker } from './commands/checkFiles';
-import { recordingSink, type CheckEvent, type Chunk, type ChunkResult, type WorkerInit } from './commands/checkWorkers';
+import { chunkChecker, type Chunk, type WorkerInit } from './commands/checkWorkers';
 
 const init = workerData as WorkerInit;
 const projects = new Map<string, ResolvedProject>();
@@ -18,30 +17,16 @@ const projects = new Map<string, ResolvedProject>();
 const projectOf = (path: string): ResolvedProject => {
   let project = projects.get(path);
   if (!project) {
-    project = loadProject(path, nodeFs);
+    project = loadProjectOfFile(path, nodeFs);
     projects.set(path, project);
   }
   return project;
 };
 const session = new WorkspaceSession({ fs: nodeFs, stableTree: true, showPath: (p) => displayPath(init.cwd, p), projects });
-let named: ReadonlySet<string> = new Set();
-const checker = new FileChecker(session, projectOf, {
-  cwd: init.cwd,
-  stream: init.stream,
-  fixEdits: init.fixEdits,
-  show: init.show,
-  isNamed: (p) => named.has(p),
-});
-let warningsSent = 0;
+const checkChunk = chunkChecker(session, projectOf, init);
 
 parentPort!.on('message', (chunk: Chunk & { id: number }) => {
-  named = new Set(chunk.named);
-  const events: CheckEvent[] = [];
-  const sink = recordingSink(events);
-  for (const file of chunk.files) checker.checkFile(file, sink);
-  const result: ChunkResult = { id: chunk.id, events, warnings: session.warnings.slice(warningsSent) };
-  warningsSent = session.warnings.length;
-  parentPort!.postMessage(result);
-  // Each project's map is only needed for its own chunk's files.
+  parentPort!.postMessage(checkChunk(chunk, chunk.id));
+  // A project is only looked up by its own chunk's files.
   for (const file of chunk.files) projects.delete(file);
 });

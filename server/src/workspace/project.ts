@@ -6,6 +6,7 @@ export {
   clearProjectCache,
   findProjectFile,
   loadProject,
+  loadProjectOfFile,
   parseProjectFile,
   resolveProjectData,
 } from './projectFile';

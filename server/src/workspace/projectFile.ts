@@ -326,10 +326,58 @@ function cacheFor(fs: WorkspaceFs): Map<string, CacheEntry> {
   return cache;
 }
 
+/** Per file-system view: the project file governing each folder looked at, and each project by its file. */
+const governing = new WeakMap<WorkspaceFs, Map<string, string | null | ProjectFileError>>();
+const byProjectFile = new WeakMap<WorkspaceFs, Map<string, CacheEntry>>();
+
+function mapFor<V>(maps: WeakMap<WorkspaceFs, Map<string, V>>, fs: WorkspaceFs): Map<string, V> {
+  let map = maps.get(fs);
+  if (!map) {
+    map = new Map();
+    maps.set(fs, map);
+  }
+  return map;
+}
+
 /** Forget cached projects (all, or those of one file-system view), e.g. after a project file changed. */
 export function clearProjectCache(fs?: WorkspaceFs): void {
-  if (fs) caches.delete(fs);
-  else caches.delete(nodeFs);
+  for (const maps of [caches, governing, byProjectFile]) maps.delete(fs ?? nodeFs);
+}
+
+/**
+ * findProjectFile, remembered per folder: a folder's answer is its own project file or its
+ * parent's answer, so a walk stops at the first folder already looked at (one walk to the top
+ * per tree, not one per folder).
+ */
+function governingProjectFile(folder: string, fs: WorkspaceFs): string | null | ProjectFileError {
+  const known = mapFor(governing, fs);
+  const walked: string[] = [];
+  let dir = folder;
+  const top = parsePath(dir).root;
+  let answer: string | null | ProjectFileError | undefined;
+  for (;;) {
+    answer = known.get(dir);
+    if (answer !== undefined) break;
+    walked.push(dir);
+    const found = PROJECT_FILE_NAMES.map((name) => join(dir, name)).filter((p) => fs.stat(p)?.kind === 'file');
+    if (found.length > 1) {
+      const names = found.map((p) => p.slice(dir.length + 1)).join(' and ');
+      answer = new ProjectFileError(found[0]!, '', `${names} are both in ${dir}; keep one`);
+      break;
+    }
+    if (found.length === 1) {
+      answer = found[0]!;
+      break;
+    }
+    const up = dirname(dir);
+    if (dir === top || up === dir) {
+      answer = null;
+      break;
+    }
+    dir = up;
+  }
+  for (const d of walked) known.set(d, answer);
+  return answer;
 }
 
 /** The project file that governs `folder`: the nearest one walking up, or null. */
@@ -356,7 +404,15 @@ export function findProjectFile(folder: string, fs: WorkspaceFs = nodeFs): strin
  */
 export function loadProject(forPath: string, fs: WorkspaceFs = nodeFs): ResolvedProject {
   const abs = resolve(forPath);
-  const folder = fs.stat(abs)?.kind === 'dir' ? abs : dirname(abs);
+  return projectOfFolder(fs.stat(abs)?.kind === 'dir' ? abs : dirname(abs), fs);
+}
+
+/** loadProject for a path known to be a file (a discovered one): no stat of the file itself. */
+export function loadProjectOfFile(file: string, fs: WorkspaceFs = nodeFs): ResolvedProject {
+  return projectOfFolder(dirname(resolve(file)), fs);
+}
+
+function projectOfFolder(folder: string, fs: WorkspaceFs): ResolvedProject {
   const cache = cacheFor(fs);
   let entry = cache.get(folder);
   if (!entry) {
@@ -368,8 +424,20 @@ export function loadProject(forPath: string, fs: WorkspaceFs = nodeFs): Resolved
 }
 
 function loadUncached(folder: string, fs: WorkspaceFs): CacheEntry {
-  const found = findProjectFile(folder, fs);
+  const found = governingProjectFile(folder, fs);
   if (found instanceof ProjectFileError) return found;
+  // Every folder a project file (or the defaults of a file-system root) governs shares one project.
+  const key = found ?? `defaults of ${parsePath(folder).root}`;
+  const shared = mapFor(byProjectFile, fs);
+  let entry = shared.get(key);
+  if (!entry) {
+    entry = readProject(folder, found, fs);
+    shared.set(key, entry);
+  }
+  return entry;
+}
+
+function readProject(folder: string, found: string | null, fs: WorkspaceFs): CacheEntry {
   if (found === null) return { ...DEFAULT_PROJECT, root: parsePath(folder).root, rules: {}, aliases: {}, limits: {} };
   const read = readTextFile(fs, found, MAX_PROJECT_FILE_BYTES);
   if (!read.ok) return new ProjectFileError(found, '', read.problem);

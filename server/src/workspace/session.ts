@@ -27,6 +27,8 @@ interface Reading {
   text: string;
   project: ResolvedProject;
   file: FileReading;
+  /** The pre-filter passed the text over (engine/prefilter.ts): nothing was parsed. */
+  passedOver: boolean;
 }
 
 export interface SessionOptions {
@@ -160,15 +162,17 @@ export class WorkspaceSession {
       if (purpose === 'role' && (this.fs.stat(path)?.size ?? 0) > ROLE_PROBE_MAX_BYTES) return null;
       const read = readTextFile(this.fs, path, project.limits.maxFileBytes);
       if (read.ok) {
-        entry =
-          cached && cached.text === read.text && cached.project === project
-            ? cached
-            : {
-                text: read.text,
-                project,
-                // Not parsed when the text cannot hold a diffusion config (engine/prefilter.ts).
-                file: mayBeDiffusionConfig(read.text, project.aliases) ? readFile(read.text, { path, project }) : passedOverReading(path, read.text),
-              };
+        if (cached && cached.text === read.text && cached.project === project) entry = cached;
+        else {
+          // Not parsed when the text cannot hold a diffusion config (engine/prefilter.ts).
+          const passedOver = !mayBeDiffusionConfig(read.text, project.aliases);
+          entry = {
+            text: read.text,
+            project,
+            file: passedOver ? passedOverReading(path, read.text) : readFile(read.text, { path, project }),
+            passedOver,
+          };
+        }
       }
     } catch {
       entry = null;
@@ -277,6 +281,13 @@ export class WorkspaceSession {
     if (read && read.project === project) return { ok: true, text: read.text };
     // Unreadable (the reason is read again) or governed by another project than the probe's.
     return readTextFile(this.fs, path, project.limits.maxFileBytes);
+  }
+
+  /** Whether the pre-filter lets `text` through (engine/prefilter.ts), from the kept reading when it is the same text. */
+  mayBeConfig(path: string, text: string, project: ResolvedProject): boolean {
+    const read = this.readings.get(path);
+    if (read && read.text === text && read.project === project) return !read.passedOver;
+    return mayBeDiffusionConfig(text, project.aliases);
   }
 
   /**

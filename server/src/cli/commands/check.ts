@@ -9,7 +9,7 @@ import { resolve } from 'node:path';
 import { ALL_RULE_METAS } from '../../rules';
 import { discoverFiles } from '../../workspace/discover';
 import { decodeText, nodeFs, withExtraFile, type WorkspaceFs } from '../../workspace/fs';
-import { loadProject, ProjectFileError, type ResolvedProject } from '../../workspace/project';
+import { loadProject, loadProjectOfFile, ProjectFileError, type ResolvedProject } from '../../workspace/project';
 import { httpsDocsBase } from '../../workspace/ruleDocs';
 import { WorkspaceSession } from '../../workspace/session';
 
@@ -21,7 +21,7 @@ import { EDIT_FORMS, JsonReportWriter, type EditForm } from '../output/json';
 import { atOrAbove, displayPath, summarize, type BudgetResult, type CheckReport, type Summary } from '../output/report';
 import { SEVERITIES, type Severity } from '../../base/findings';
 import { addSummary, emptySummary, FileChecker, type FileCheckSink } from './checkFiles';
-import { checkInWorkers, chunksOf, replay, workerHeapMb, workersFor, WORKER_MIN_FILES } from './checkWorkers';
+import { checkInWorkers, chunkChecker, chunksOf, replay, workerHeapMb, workersFor, WORKER_MIN_FILES } from './checkWorkers';
 import { printableLine } from '../output/printable';
 import { formatSarif } from '../output/sarif';
 import { formatText } from '../output/text';
@@ -81,7 +81,7 @@ export const CHECK_SPEC: CommandSpec = {
       name: 'workers',
       type: 'string',
       value: 'N',
-      description: `Worker threads for runs of ${WORKER_MIN_FILES} files or more (default: the available cores; 1: this thread only).`,
+      description: `Threads for runs of ${WORKER_MIN_FILES} files or more, this one included (default: the available cores; 1: this thread only).`,
     },
     COLOR_OPTION,
     { name: 'as', type: 'string', value: 'path', description: 'With `-`: the path the text on standard input stands for.' },
@@ -124,7 +124,7 @@ export interface CheckOptions {
   emptyOk?: boolean;
   /** https base of the rule pages linked from SARIF. */
   docsBase?: string;
-  /** Worker threads for large runs (default: the available cores; 1: none). */
+  /** Threads for large runs, the run's own included (default: the available cores; 1: no workers). */
   workers?: number;
   /** `--help` was given. */
   help?: boolean;
@@ -243,7 +243,7 @@ export async function check(options: CheckOptions, io: CliIO, diskFs: WorkspaceF
   // Every project file first: an invalid one stops the run before any output.
   const projects = new Map<string, ResolvedProject>();
   try {
-    for (const file of files) projects.set(file, loadProject(file, fs));
+    for (const file of files) projects.set(file, loadProjectOfFile(file, fs));
     if (stdin) projects.set(stdin.path, loadProject(stdin.path, fs));
   } catch (err) {
     if (err instanceof ProjectFileError) {
@@ -287,17 +287,19 @@ export async function check(options: CheckOptions, io: CliIO, diskFs: WorkspaceF
   // Progress goes to stderr when stderr is a terminal, whatever stdout is (a file, a pipe).
   const progress = !!io.stderrIsTTY && files.length >= PROGRESS_MIN_FILES;
   // Workers read the disk themselves: not for a run that reads standard input or another file system.
-  const workers = io.workerScript && !stdin && diskFs === nodeFs ? workersFor(files.length, options.workers ?? availableParallelism()) : 1;
+  const threads = io.workerScript && !stdin && diskFs === nodeFs ? workersFor(files.length, options.workers ?? availableParallelism()) : 1;
   const warnings: string[] = [];
-  if (workers > 1) {
+  if (threads > 1) {
     const seen = new Set<string>();
     let done = 0;
+    const init = { cwd: io.cwd, stream: !!stream, fixEdits, show };
     try {
       await checkInWorkers({
         script: io.workerScript!,
-        workers,
-        heapMb: workerHeapMb(totalmem(), workers),
-        init: { cwd: io.cwd, stream: !!stream, fixEdits, show },
+        threads,
+        local: chunkChecker(session, (file) => projects.get(file)!, init),
+        heapMb: workerHeapMb(totalmem(), threads),
+        init,
         chunks: chunksOf(files, namedFiles),
         onChunk: (result, chunk) => {
           if (progress && result.events.some((e) => e[0] === 'skipped' || e[0] === 'notice')) io.stderr('\r\x1b[K');

@@ -4,7 +4,6 @@
  * it and the main thread replay it in file order, and the report is the same either way.
  */
 import { findingsAsData, type FileResult } from '../../engine/api';
-import { mayBeDiffusionConfig } from '../../engine/prefilter';
 import { SEVERITIES, type Severity } from '../../base/findings';
 import type { TextReadResult } from '../../workspace/fs';
 import type { ResolvedProject } from '../../workspace/project';
@@ -85,7 +84,7 @@ export class FileChecker {
       return;
     }
     // A text that names no schedule or step-count key cannot hold a finding: not parsed at all.
-    if (!mayBeDiffusionConfig(read.text, project.aliases)) {
+    if (!this.session.mayBeConfig(file, read.text, project)) {
       sink.passedOver();
       return;
     }

@@ -1,8 +1,8 @@
 /**
  * `check` over many files in worker threads. The sorted file list is cut into chunks at folder
  * boundaries (automatic pairing looks within one folder, so a file and its partners are read by
- * the same worker), the chunks are handed to the workers as they become free, and each chunk's
- * record (checkFiles.ts sinks, replayed) is written in chunk order: the report is the one a single
+ * the same thread), the chunks are handed to the workers and to the run's own thread as each
+ * becomes free, and each chunk's record (checkFiles.ts sinks, replayed) is written in chunk order: the report is the one a single
  * thread writes. At most a few chunks wait for an earlier one, so memory stays bounded; every
  * worker has a heap limit, and a worker that fails ends the run with one line.
  */
@@ -11,23 +11,25 @@ import { Worker } from 'node:worker_threads';
 import type { Severity } from '../../base/findings';
 import type { EditForm } from '../output/json';
 import { displayPath, type CheckedFile, type Summary } from '../output/report';
-import type { FileCheckSink } from './checkFiles';
+import type { ResolvedProject } from '../../workspace/project';
+import type { WorkspaceSession } from '../../workspace/session';
+import { FileChecker, type FileCheckSink } from './checkFiles';
 
 /** Runs with fewer files than this are checked in the run's own thread (starting a worker costs more). */
 export const WORKER_MIN_FILES = 400;
 
-/** A worker is worth starting for about this many files. */
+/** A thread is worth its start for about this many files. */
 const FILES_PER_WORKER = 200;
 
 /** Chunks end at a folder boundary once they hold about this many files. */
 export const CHUNK_FILES = 64;
 
-/** The heap limit of one worker, MB (its old generation). */
-export function workerHeapMb(totalMemoryBytes: number, workers: number): number {
-  return Math.max(256, Math.min(1024, Math.floor(totalMemoryBytes / 1024 / 1024 / (2 * (workers + 1)))));
+/** The heap limit of one worker, MB (its old generation), with `threads` threads in all. */
+export function workerHeapMb(totalMemoryBytes: number, threads: number): number {
+  return Math.max(256, Math.min(1024, Math.floor(totalMemoryBytes / 1024 / 1024 / (2 * threads))));
 }
 
-/** How many workers a run of `files` files gets, given the number asked for. */
+/** How many threads (this one and the workers) a run of `files` files gets, given the number asked for. */
 export function workersFor(files: number, asked: number): number {
   if (asked <= 1 || files < WORKER_MIN_FILES) return 1;
   return Math.max(1, Math.min(asked, Math.floor(files / FILES_PER_WORKER)));
@@ -89,6 +91,26 @@ export function replay(events: readonly CheckEvent[], sink: FileCheckSink): void
   }
 }
 
+/** Checks chunks with one session (a worker's, or the run's own thread's), recording each. */
+export function chunkChecker(
+  session: WorkspaceSession,
+  projectOf: (path: string) => ResolvedProject,
+  init: WorkerInit,
+): (chunk: Chunk, id: number) => ChunkResult {
+  let named: ReadonlySet<string> = new Set();
+  const checker = new FileChecker(session, projectOf, { ...init, isNamed: (p) => named.has(p) });
+  let warningsSent = 0;
+  return (chunk, id) => {
+    named = new Set(chunk.named);
+    const events: CheckEvent[] = [];
+    const sink = recordingSink(events);
+    for (const file of chunk.files) checker.checkFile(file, sink);
+    const result: ChunkResult = { id, events, warnings: session.warnings.slice(warningsSent) };
+    warningsSent = session.warnings.length;
+    return result;
+  };
+}
+
 /** Sorted files cut into chunks of about CHUNK_FILES, only where the folder changes. */
 export function chunksOf(files: readonly string[], named: ReadonlySet<string>, size = CHUNK_FILES): Chunk[] {
   const chunks: Chunk[] = [];
@@ -110,7 +132,10 @@ export function chunksOf(files: readonly string[], named: ReadonlySet<string>, s
 
 export interface WorkerRun {
   script: string;
-  workers: number;
+  /** Threads in all: this one and `threads - 1` workers. */
+  threads: number;
+  /** Checks a chunk in this thread. */
+  local: (chunk: Chunk, id: number) => ChunkResult;
   heapMb: number;
   init: WorkerInit;
   chunks: readonly Chunk[];
@@ -122,11 +147,14 @@ function oneLine(err: unknown): string {
   return (err instanceof Error ? err.message : String(err)).split('\n')[0] ?? '';
 }
 
-/** Checks every chunk in worker threads; rejects with a one-line Error when a worker fails. */
+/**
+ * Checks every chunk: `run.threads - 1` worker threads and this thread (`run.local`) take the next
+ * chunk whenever they are free. Rejects with a one-line Error when a worker fails.
+ */
 export function checkInWorkers(run: WorkerRun): Promise<void> {
   const { chunks } = run;
-  // Chunks handed out ahead of the next one to write: enough to keep every worker busy.
-  const window = 2 * run.workers;
+  // Chunks handed out ahead of the next one to write: enough to keep every thread busy.
+  const window = 2 * run.threads;
   return new Promise<void>((resolvePromise, reject) => {
     const pool: Worker[] = [];
     const idle: Worker[] = [];
@@ -135,6 +163,7 @@ export function checkInWorkers(run: WorkerRun): Promise<void> {
     let next = 0;
     let written = 0;
     let settled = false;
+    let localBusy = false;
     const settle = (err?: Error) => {
       if (settled) return;
       settled = true;
@@ -142,9 +171,42 @@ export function checkInWorkers(run: WorkerRun): Promise<void> {
       if (err) reject(err);
       else resolvePromise();
     };
+    const fail = (err: unknown) => settle(err instanceof Error ? err : new Error(String(err)));
+    const accept = (result: ChunkResult): boolean => {
+      done.set(result.id, result);
+      try {
+        for (let r = done.get(written); r; r = done.get(written)) {
+          done.delete(written);
+          run.onChunk(r, chunks[written]!);
+          written++;
+        }
+      } catch (err) {
+        fail(err);
+        return false;
+      }
+      return true;
+    };
+    const free = () => next < chunks.length && next < written + window;
     const dispatch = () => {
       if (settled) return;
-      while (idle.length && next < chunks.length && next < written + window) {
+      if (!localBusy && free()) {
+        // This thread checks a chunk too, after the pending messages (setImmediate).
+        localBusy = true;
+        const id = next++;
+        setImmediate(() => {
+          if (settled) return;
+          let result: ChunkResult;
+          try {
+            result = run.local(chunks[id]!, id);
+          } catch (err) {
+            fail(err);
+            return;
+          }
+          localBusy = false;
+          if (accept(result)) dispatch();
+        });
+      }
+      while (idle.length && free()) {
         const w = idle.pop()!;
         working.set(w, next);
         w.postMessage({ id: next, ...chunks[next] });
@@ -159,24 +221,14 @@ export function checkInWorkers(run: WorkerRun): Promise<void> {
       const shown = (p: string) => displayPath(run.init.cwd, p);
       return ` while checking ${files.length} files from ${shown(files[0]!)} to ${shown(files[files.length - 1]!)}`;
     };
-    for (let i = 0; i < run.workers; i++) {
+    for (let i = 1; i < run.threads; i++) {
       const w = new Worker(run.script, { workerData: run.init, resourceLimits: { maxOldGenerationSizeMb: run.heapMb } });
       pool.push(w);
       idle.push(w);
       w.on('message', (result: ChunkResult) => {
         if (settled) return;
         working.delete(w);
-        done.set(result.id, result);
-        try {
-          for (let r = done.get(written); r; r = done.get(written)) {
-            done.delete(written);
-            run.onChunk(r, chunks[written]!);
-            written++;
-          }
-        } catch (err) {
-          settle(err instanceof Error ? err : new Error(String(err)));
-          return;
-        }
+        if (!accept(result)) return;
         idle.push(w);
         dispatch();
       });
