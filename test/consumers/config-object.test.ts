@@ -6,7 +6,9 @@
 import { execFileSync } from 'node:child_process';
 import { describe, expect, it } from 'vitest';
 import { consumerTimesteps } from '../../server/src/consumers/timesteps';
-import { analyzeText } from '../../server/src/engine/api';
+import { analyzeText, readFile } from '../../server/src/engine/api';
+import { explainDocumentJson, formatExplainText } from '../../server/src/views/explainFormat';
+import { hoverAt } from '../../server/src/views/hover';
 
 /**
  * numpy 2.4.6: np.linspace(999, 0, N, endpoint=False).astype(int), i.e.
@@ -178,5 +180,28 @@ describe('per-component reading', () => {
     const r = analyzeText(custom, { path: '/studio/engine.yaml' });
     expect(r.findings.filter((f) => f.severity === 'error')).toEqual([]);
     expect(r.documents[0]!.setup.consumer!.decision.evidence.join('\n')).toContain('NightScaling has no profile');
+  });
+});
+
+describe('the decision flows to explain, its JSON and the hover', () => {
+  const text = ENGINE;
+  const reading = readFile(text, { path: '/studio/engine.yaml' });
+
+  it('explain text and JSON name the family, the engine and the per-component evidence', () => {
+    const json = explainDocumentJson(reading.documents[0]!);
+    expect(json.consumer?.family).toBe('config-object');
+    expect(json.consumer?.className).toBe('sgm.models.diffusion.DiffusionEngine');
+    expect(json.consumer?.evidence.join('\n')).toContain('scaling VScaling');
+    expect(json.consumer?.ignoredKeys.map((k) => k.key)).toContain('cfg_rescale');
+    const explained = formatExplainText(reading);
+    expect(explained).toContain('read as: sgm.models.diffusion.DiffusionEngine, config-object');
+    expect(explained).toContain('loader: YAML read by OmegaConf');
+  });
+
+  it('hovering the scaling class explains the target and names the reader', () => {
+    const offset = text.indexOf('denoiser_scaling.VScaling') + 5;
+    const hover = hoverAt(reading, offset, 'plaintext');
+    expect(hover?.text).toContain('Velocity target');
+    expect(hover?.text).toContain('Read as sgm.models.diffusion.DiffusionEngine');
   });
 });

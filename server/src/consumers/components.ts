@@ -8,7 +8,7 @@
  */
 import { nearestName } from '../base/nearest';
 import type { Concept, ConceptValues } from '../fields/concepts';
-import type { ConceptHit } from '../fields/findConcepts';
+import { effectiveEntries, type ConceptHit } from '../fields/findConcepts';
 import type { KeyAlias } from '../fields/aliases';
 import { readValue } from '../fields/values';
 import type { LocatedEntry, LocatedMap, LocatedNode } from '../parse/types';
@@ -55,7 +55,12 @@ const ROLE_CONCEPTS: Partial<Record<ComponentRole, Concept[]>> = {
 };
 
 function entryOf(map: LocatedMap, key: string): LocatedEntry | undefined {
-  return map.entries.find((e) => e.key === key);
+  return map.entries.find((e) => e.key === key) ?? effectiveEntries(map).find((e) => e.entry.key === key)?.entry;
+}
+
+/** An entry of a component's params as OmegaConf sees it (own keys win over `<<` merges), with the map that holds it. */
+function paramEntry(params: LocatedMap, key: string): { entry: LocatedEntry; parent: LocatedMap } | undefined {
+  return effectiveEntries(params).find((e) => e.entry.key === key);
 }
 
 function mapValue(node: LocatedNode | null | undefined): LocatedMap | null {
@@ -288,11 +293,12 @@ export function componentHits(components: readonly ComponentReading[]): ConceptH
       if (!wanted.includes(concept)) continue;
       // Steps of a sampler whose discretization is not known give no timesteps worth checking.
       if (concept === 'sampleSteps' && samplerDiscretization && !samplerDiscretization.cls) continue;
-      const entry = entryOf(c.params, key);
-      if (!entry) continue;
+      const found = paramEntry(c.params, key);
+      if (!found) continue;
+      const { entry, parent } = found;
       const read = readValue(concept, entry.value, key, keyAlias(key));
       if (read.status === 'skip') continue;
-      const hit = hitAt(concept, entry, c.params, `${c.path}.params.${key}`);
+      const hit = hitAt(concept, entry, parent, `${c.path}.params.${key}`);
       if (read.status === 'unset') hit.status = 'unset';
       else if (read.status === 'ok') {
         for (const v of read.values) {
@@ -401,12 +407,69 @@ export function componentIgnoredKeys(components: readonly ComponentReading[]): {
   for (const c of components) {
     if (!c.cls || !c.params) continue;
     const taken = new Set(c.cls.keys);
-    for (const e of c.params.entries) {
+    for (const { entry: e } of effectiveEntries(c.params)) {
       if (taken.has(e.key) || e.key === '<<') continue;
       out.push({
         key: e.key,
         path: `${c.path}.params.${e.key}`,
         reason: `${c.cls.shortName} does not take ${e.key}: instantiating it raises a TypeError`,
+      });
+    }
+  }
+  return out;
+}
+
+export interface ComponentProblem {
+  concept: Concept;
+  kind: 'duplicate';
+  source: ConceptHit['source'];
+  message: string;
+}
+
+const SCHEDULE_KEYS: [Concept, string][] = [
+  ['trainSteps', 'num_timesteps'],
+  ['betaStart', 'linear_start'],
+  ['betaEnd', 'linear_end'],
+];
+
+/**
+ * Discretizations that disagree with the one the schedule is read from: the sampler (or the
+ * loss's sigma sampler) would work on another schedule than the denoiser's. Values compared as
+ * each class receives them (written, or the class default when the key is absent).
+ */
+export function componentProblems(components: readonly ComponentReading[]): ComponentProblem[] {
+  const schedule = scheduleComponent(components);
+  if (!schedule?.cls || schedule.cls.shortName !== 'LegacyDDPMDiscretization' || !schedule.target) return [];
+  const out: ComponentProblem[] = [];
+  const effective = (c: ComponentReading, concept: Concept, key: string) => {
+    const found = c.params ? paramEntry(c.params, key) : undefined;
+    if (found) {
+      const read = readValue(concept, found.entry.value, key, keyAlias(key));
+      return read.status === 'ok' ? { value: read.values[0]?.value, found, written: true } : null;
+    }
+    return { value: c.cls?.defaults[concept], found: null, written: false };
+  };
+  for (const other of components) {
+    if (other === schedule || !SCHEDULE_ROLES.includes(other.role) || other.cls !== schedule.cls || !other.target) continue;
+    for (const [concept, key] of SCHEDULE_KEYS) {
+      const mine = effective(schedule, concept, key);
+      const theirs = effective(other, concept, key);
+      if (!mine || !theirs || mine.value === undefined || theirs.value === undefined || mine.value === theirs.value) continue;
+      const shown = (v: { value: unknown; written: boolean }) => `${String(v.value)}${v.written ? '' : ` (the class default: the key is absent)`}`;
+      const source = theirs.found
+        ? hitAt(concept, theirs.found.entry, theirs.found.parent, `${other.path}.params.${key}`).source
+        : hitAt(concept, other.target, other.config, `${other.path}.target`).source;
+      const consequence =
+        other.role === 'sampler-discretization'
+          ? 'the sampler steps through the sigmas of another schedule than the one the model is trained on'
+          : "training draws its noise levels from another schedule than the denoiser's";
+      out.push({
+        concept,
+        kind: 'duplicate',
+        source,
+        message:
+          `${other.path} gives ${key} ${shown(theirs)}, but ${schedule.path} gives ${shown(mine)}: ${consequence}; ` +
+          `write the same ${key} in every discretization_config`,
       });
     }
   }

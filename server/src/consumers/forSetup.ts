@@ -10,7 +10,7 @@ import type { LoaderReading } from './readAs';
 import { metaKeysOf, type ConsumerReading } from './decide';
 import type { ConsumerClass } from './types';
 import type { ConceptHit } from '../fields/findConcepts';
-import { componentDefaults, componentHits, componentIgnoredKeys, componentSpellings } from './components';
+import { componentDefaults, componentHits, componentIgnoredKeys, componentProblems, componentSpellings, type ComponentProblem } from './components';
 
 export interface IgnoredKeyInfo {
   key: string;
@@ -49,6 +49,11 @@ export function entriesOfSection(section: LocatedMap): Set<LocatedEntry> {
 /** The concept hits of a document read per component (config-object), or null for other readings. */
 export function readingHits(reading: ConsumerReading | undefined): ConceptHit[] | null {
   return reading?.components ? componentHits(reading.components) : null;
+}
+
+/** Problems only the consumer sees (config-object: discretizations that disagree). */
+export function readingProblems(reading: ConsumerReading | undefined): ComponentProblem[] {
+  return reading?.components ? componentProblems(reading.components) : [];
 }
 
 /** The consumer's defaults: per component for config-object documents, else the class's own. */

@@ -21,7 +21,16 @@
  * order; a 'duplicate' problem marks the later one when the values differ.
  */
 import type { ConsumerReading } from '../consumers/decide';
-import { consumerTakes, entriesOfSection, ignoredKeysOf, insertKeysOf, readingDefaults, readingHits, readingSpellings } from '../consumers/forSetup';
+import {
+  consumerTakes,
+  entriesOfSection,
+  ignoredKeysOf,
+  insertKeysOf,
+  readingDefaults,
+  readingHits,
+  readingProblems,
+  readingSpellings,
+} from '../consumers/forSetup';
 import type { LoaderReading } from '../consumers/readAs';
 import type { Concept, ConceptValues } from '../fields/concepts';
 import { findConcepts, type ConceptHit } from '../fields/findConcepts';
@@ -157,6 +166,7 @@ function build(doc: ParsedDocument, opts: BuildSetupOptions, setup: Setup): Setu
     });
   }
 
+  problems.push(...readingProblems(reading));
   applyShortFamilyReading(fields, decided);
   if (reading?.cls?.valueMeanings) applyValueMeanings(fields, reading.cls.name, reading.cls.valueMeanings);
   if (reading?.cls?.enums) checkClassEnums(fields, problems, reading.cls.name, reading.cls.enums);
