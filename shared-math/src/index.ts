@@ -38,6 +38,7 @@ export {
 } from './snr';
 export { rescaleZeroTerminalSnr } from './rescale';
 export { type SpacingKind, SPACING_KINDS, QUADRATIC_SPACING_FRACTION, samplingTimesteps } from './spacing';
+export { respacedTimesteps } from './respacing';
 export { type TargetKind, TARGET_KINDS, noisySample, vFromEpsX0, x0FromV, x0FromEps, epsFromV } from './targets';
 export { guidanceRescale, classifierFreeGuidance, populationStd, mean, COMMON_GUIDANCE_SCALE, COMMON_GUIDANCE_RESCALE } from './guidance';
 export { minSnrWeight, MIN_SNR_GAMMA_DEFAULT } from './weighting';

@@ -17,7 +17,7 @@ import { applyEdits } from '../../server/src/fix';
 import type { LocatedNode, ScalarValue } from '../../server/src/parse/types';
 
 export const CORPUS_ROOT = join(__dirname, 'corpus');
-const INPUT = /\.(json|jsonc|yaml|yml)$/;
+const INPUT = /\.(json|jsonc|yaml|yml|toml)$/;
 const SIDE = /\.(expected\.json|after-\d+\.[a-z]+)$/;
 
 export interface ExpectedFix {
@@ -93,7 +93,14 @@ export function loadSection(text: string, path: string, choice?: ConsumerChoice)
   readAs(doc.root, read.parsed.format, reading.decision.dialect);
   if (reading.components) return componentSection(reading.components);
   const section = reading.section ?? (doc.root && doc.root.kind === 'map' ? doc.root : null);
-  const values = (section ? plain(section) : {}) as Record<string, unknown>;
+  let values = (section ? plain(section) : {}) as Record<string, unknown>;
+  if (reading.flatSections) {
+    // The loader merges the first-level tables into one namespace (sd-scripts read_config_from_file).
+    values = {};
+    for (const map of reading.flatSections) {
+      for (const e of map.entries) if (!(map === section && e.value?.kind === 'map')) values[e.key] = plain(e.value);
+    }
+  }
   const accepted = reading.cls ? new Set([...reading.cls.keys, ...metaKeysOf(reading.family)]) : null;
   return { values, accepted };
 }

@@ -29,6 +29,8 @@ export interface ConsumerReading {
   components?: ComponentReading[];
   /** The document's role when the consumer tells it (an engine trains and samples). */
   role?: 'training' | 'sampling' | 'both';
+  /** When the loader merges the first-level tables into one namespace: the section, then each table. */
+  flatSections?: LocatedMap[];
 }
 
 interface Detected {
@@ -107,14 +109,31 @@ function detectComponents(root: LocatedMap): Detected | null {
 function detectArgs(root: LocatedMap, path: string): Detected | null {
   for (const family of [familyById('pixel-args'), familyById('training-args')]) {
     if (family.id === 'generic' || !family.signature) continue;
-    const keys = new Set(root.entries.map((e) => e.key));
+    const cls = family.classes[0] ?? null;
+    const maps = cls?.args?.flattensSections ? flatMaps(root) : [root];
+    const keys = new Set(maps.flatMap((m) => m.entries.map((e) => e.key)));
     const hits = family.signature.filter((k) => keys.has(k));
     if (hits.length < (family.signatureMin ?? 2)) continue;
-    const cls = family.classes[0] ?? null;
-    void path;
-    return { family, cls, section: root, evidence: [`flat keys ${hits.slice(0, 4).join(', ')}${hits.length > 4 ? ', ...' : ''}`] };
+    const evidence = [`keys of ${cls?.name ?? family.id}: ${hits.slice(0, 4).join(', ')}${hits.length > 4 ? `, ... (${hits.length})` : ''}`];
+    if (maps.length > 1)
+      evidence.push(
+        `tables ${maps
+          .slice(1)
+          .map((m) => `[${root.entries.find((e) => e.value === m)?.key}]`)
+          .join(', ')} are merged into one namespace`,
+      );
+    const name = baseName(path);
+    if (/\.toml$/i.test(name)) evidence.push(`file name ${name} (a --config_file TOML)`);
+    return { family, cls, section: root, evidence };
   }
   return null;
+}
+
+/** The root and its first-level tables, for a loader that merges them into one namespace. */
+export function flatMaps(root: LocatedMap): LocatedMap[] {
+  const out = [root];
+  for (const e of root.entries) if (e.value && e.value.kind === 'map') out.push(e.value);
+  return out;
 }
 
 function chooseDialect(
@@ -123,6 +142,9 @@ function chooseDialect(
   choice: ConsumerChoice | undefined,
 ): { id: DialectId; basis: ConsumerDecision['dialectBasis'] } {
   if (choice?.dialect) return { id: choice.dialect, basis: 'project' };
+  // TOML types its values by its own grammar: one loader whatever the consumer.
+  if (format === 'toml')
+    return { id: family.dialect.toml ?? 'tomllib', basis: family.id !== 'generic' && family.dialect.toml ? 'family' : 'extension' };
   const json = format === 'json' || format === 'jsonc';
   if (family.id !== 'generic') return { id: json ? family.dialect.json : family.dialect.yaml, basis: 'family' };
   return { id: 'generic', basis: 'extension' };
@@ -157,6 +179,8 @@ export function decideConsumer(doc: ParsedDocument, format: SourceFormat, path: 
   const dialect = chooseDialect(format, family, choice);
   const evidence = detected?.evidence ?? ['no class-name key, target class path or known key set: read the generic way'];
   const cls = detected?.cls ?? null;
+  const section = detected?.section ?? null;
+  const flat = cls?.args?.flattensSections && section ? { flatSections: flatMaps(section) } : {};
   return {
     decision: {
       family: family.id,
@@ -171,9 +195,10 @@ export function decideConsumer(doc: ParsedDocument, format: SourceFormat, path: 
     },
     family,
     cls,
-    section: detected?.section ?? null,
+    section,
     ...(detected?.components ? { components: detected.components } : {}),
     ...(detected?.role ? { role: detected.role } : {}),
+    ...flat,
   };
 }
 

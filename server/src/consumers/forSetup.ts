@@ -18,6 +18,12 @@ export interface IgnoredKeyInfo {
   reason: string;
 }
 
+/** The maps whose keys the consumer reads as its own (the section, or all flattened sections). */
+export function consumerMaps(reading: ConsumerReading): LocatedMap[] {
+  if (reading.flatSections) return reading.flatSections;
+  return reading.section ? [reading.section] : [];
+}
+
 /** Keys of the consumer's section the class does not take. */
 export function ignoredKeysOf(reading: ConsumerReading): IgnoredKeyInfo[] {
   const { cls, section, family } = reading;
@@ -27,9 +33,18 @@ export function ignoredKeysOf(reading: ConsumerReading): IgnoredKeyInfo[] {
   const out: IgnoredKeyInfo[] = [];
   // Config-object classes are called with their params as keyword arguments: an unknown one raises.
   const effect = reading.components ? 'instantiating it raises a TypeError' : 'the key has no effect';
-  for (const { entry: e } of effectiveEntries(section)) {
-    if (meta.has(e.key) || taken.has(e.key) || e.key === '<<') continue;
-    out.push({ key: e.key, path: e.key, reason: `${cls.name} does not take ${e.key}: ${effect}` });
+  for (const map of consumerMaps(reading)) {
+    const entries = reading.flatSections ? map.entries : effectiveEntries(map).map((x) => x.entry);
+    for (const e of entries) {
+      if (meta.has(e.key) || taken.has(e.key) || e.key === '<<') continue;
+      // A flattened table is only a heading: its keys are the consumer's.
+      if (reading.flatSections && map === section && e.value?.kind === 'map') continue;
+      out.push({
+        key: e.key,
+        path: map === section ? e.key : `${sectionName(section, map)}.${e.key}`,
+        reason: `${cls.name} does not take ${e.key}: ${effect}`,
+      });
+    }
   }
   if (reading.components) out.push(...componentIgnoredKeys(reading.components));
   return out;
@@ -57,14 +72,18 @@ export function readingProblems(reading: ConsumerReading | undefined): Component
 }
 
 /** The consumer's defaults: per component for config-object documents, else the class's own. */
-export function readingDefaults(reading: ConsumerReading): { concept: Concept; value: ConceptValues[Concept]; note: string }[] {
+export function readingDefaults(reading: ConsumerReading, trainSteps?: number): { concept: Concept; value: ConceptValues[Concept]; note: string }[] {
   if (reading.components) return componentDefaults(reading.components);
-  return reading.cls ? classDefaults(reading.cls) : [];
+  return reading.cls ? classDefaults(reading.cls, trainSteps) : [];
 }
 
 /** The consumer's own spellings of values a fix writes, per key, when components spell them (class paths). */
 export function readingSpellings(reading: ConsumerReading): Record<string, Record<string, string>> | null {
   return reading.components ? componentSpellings(reading.components) : null;
+}
+
+function sectionName(root: LocatedMap, map: LocatedMap): string {
+  return root.entries.find((e) => e.value === map)?.key ?? '';
 }
 
 /**
@@ -75,8 +94,15 @@ export function readingSpellings(reading: ConsumerReading): Record<string, Recor
  */
 export function consumerTakes(reading: ConsumerReading | undefined, entry: LocatedEntry, parent: LocatedMap): boolean {
   if (!reading || !reading.cls || !reading.section) return true;
-  if (parent !== reading.section && !entriesOfSection(reading.section).has(entry)) return false;
+  if (!consumerMaps(reading).includes(parent) && !entriesOfSection(reading.section).has(entry)) return false;
   if (metaKeysOf(reading.family).includes(entry.key)) return true;
+  const args = reading.cls.args;
+  if (args) {
+    // An argument set: only the keys the profile names stand for concepts, and the keys it reads
+    // itself (boolean targets, the respacing string) are read by argsHits.
+    if (args.booleanConcepts?.[entry.key] || entry.key === args.respacingKey) return false;
+    return Object.values(reading.cls.conceptKeys).includes(entry.key);
+  }
   return reading.cls.keys.includes(entry.key);
 }
 
@@ -95,7 +121,7 @@ export function classDefaultNote(cls: ConsumerClass, concept: Concept, _value: u
   return `${cls.name}'s default for an absent ${key} (${short(cls.source)})`;
 }
 
-export function classDefaults(cls: ConsumerClass): { concept: Concept; value: ConceptValues[Concept]; note: string }[] {
+export function classDefaults(cls: ConsumerClass, trainSteps?: number): { concept: Concept; value: ConceptValues[Concept]; note: string }[] {
   const out: { concept: Concept; value: ConceptValues[Concept]; note: string }[] = [];
   for (const concept of CONCEPTS) {
     let value = cls.defaults[concept];
@@ -106,6 +132,15 @@ export function classDefaults(cls: ConsumerClass): { concept: Concept; value: Co
         ? `${cls.name} takes no timestep_spacing: its own step selection is ${cls.fixedSpacing}-like and starts at T - 1 (${short(cls.source)})`
         : classDefaultNote(cls, concept, value);
     out.push({ concept, value, note });
+  }
+  const range = cls.args?.linearRangePerStep;
+  if (range) {
+    // The range follows T: with T taken from the file, or from the class default.
+    const T = trainSteps ?? cls.defaults.trainSteps ?? range.referenceSteps;
+    const scale = range.referenceSteps / T;
+    const why = `${cls.name}: ${range.basis} (T = ${T})`;
+    out.push({ concept: 'betaStart', value: range.start * scale, note: why });
+    out.push({ concept: 'betaEnd', value: range.end * scale, note: why });
   }
   return out;
 }
@@ -118,3 +153,38 @@ export function insertKeysOf(cls: ConsumerClass): { [C in Concept]?: string | nu
 }
 
 export type { LoaderReading };
+
+/** What the setup carries on about an argument set's own reading (the respacing, derived and boolean keys). */
+export function argsSummary(reading: ConsumerReading): {
+  scheduleFromCode?: boolean;
+  respacing?: string;
+  derivedConcepts?: Concept[];
+  writableValues?: { [C in Concept]?: (string | number | boolean)[] };
+  booleanKeys?: Record<string, { whenTrue: string | boolean; whenFalse: string | boolean }>;
+} {
+  const args = reading.cls?.args;
+  if (!args) return {};
+  const out: ReturnType<typeof argsSummary> = { scheduleFromCode: true };
+  if (args.derivedConcepts) out.derivedConcepts = [...args.derivedConcepts];
+  if (args.writableValues) out.writableValues = { ...args.writableValues };
+  const booleans: Record<string, { whenTrue: string | boolean; whenFalse: string | boolean }> = {};
+  for (const [key, b] of Object.entries(args.booleanConcepts ?? {})) booleans[key] = { whenTrue: b.whenTrue, whenFalse: b.whenFalse };
+  if (Object.keys(booleans).length > 0) out.booleanKeys = booleans;
+  const spec = respacingEntry(reading);
+  if (spec && spec.value?.kind === 'scalar' && typeof spec.value.value === 'string' && spec.value.value !== '') out.respacing = spec.value.value;
+  if (spec && spec.value?.kind === 'list') {
+    const counts = spec.value.items.map((i) => (i.kind === 'scalar' ? i.value : null));
+    if (counts.every((c) => typeof c === 'number' && Number.isSafeInteger(c))) out.respacing = counts.join(',');
+  }
+  return out;
+}
+
+function respacingEntry(reading: ConsumerReading): LocatedEntry | null {
+  const key = reading.cls?.args?.respacingKey;
+  if (!key) return null;
+  for (const map of consumerMaps(reading)) {
+    const e = map.entries.find((x) => x.key === key);
+    if (e) return e;
+  }
+  return null;
+}

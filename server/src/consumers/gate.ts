@@ -14,12 +14,15 @@ export interface GateSubject {
     decision: { className: string | null };
     insertKeys?: { [C in Concept]?: string | null };
     cannotExpress: { [C in Concept]?: string };
+    derivedConcepts?: Concept[];
+    writableValues?: { [C in Concept]?: (string | number | boolean)[] };
   };
 }
 
 interface EditLike {
   kind: string;
   concept: Concept;
+  value?: unknown;
 }
 
 interface FixLike {
@@ -32,6 +35,17 @@ export interface GatedFixes<F extends FixLike> {
   hints: string[];
 }
 
+/**
+ * A set edit the consumer can take: a key to write it under (or the file already sets it), not a
+ * concept derived from a compound value, and a value the consumer accepts for it.
+ */
+function writable(consumer: NonNullable<GateSubject['consumer']>, e: EditLike, written: (c: Concept) => boolean): boolean {
+  if (consumer.insertKeys![e.concept] === null && !written(e.concept)) return false;
+  if (consumer.derivedConcepts?.includes(e.concept)) return false;
+  const values = consumer.writableValues?.[e.concept];
+  return !values || values.includes(e.value as string | number | boolean);
+}
+
 export function gateFixes<F extends FixLike>(setup: GateSubject, fixes: readonly F[]): GatedFixes<F> {
   const consumer = setup.consumer;
   if (!consumer?.insertKeys) return { fixes: [...fixes], hints: [] };
@@ -40,7 +54,7 @@ export function gateFixes<F extends FixLike>(setup: GateSubject, fixes: readonly
   const className = consumer.decision.className ?? 'the consuming code';
   for (const fix of fixes) {
     const written = (c: Concept) => !!setup.fields[c]?.source || !!setup.problems?.some((p) => p.concept === c);
-    const blocked = fix.edits.filter((e) => e.kind === 'set' && consumer.insertKeys![e.concept] === null && !written(e.concept));
+    const blocked = fix.edits.filter((e) => e.kind === 'set' && !writable(consumer, e, written));
     if (blocked.length === 0) {
       kept.push(fix);
       continue;

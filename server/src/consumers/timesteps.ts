@@ -2,7 +2,7 @@
  * Sampling timesteps as a consumer derives them, where that differs from the standard spacings of
  * shared-math (DESIGN section 4). Each rule names the code it follows.
  */
-import { karrasSigmas, samplingTimesteps, type ReadonlyFloat64Array } from '@noiselint/shared-math';
+import { karrasSigmas, respacedTimesteps, samplingTimesteps, type ReadonlyFloat64Array } from '@noiselint/shared-math';
 import type { TimestepSpacing } from '../fields/concepts';
 import type { TimestepRule } from './types';
 
@@ -22,9 +22,22 @@ export type TimestepsResult = { ok: true; value: number[] } | { ok: false; probl
  *   k (0 - (T - 1)) / N) for k = 0..N-1 (numpy's linspace computes k * step + start), noisiest
  *   first after the code's flip; N = T is every step; N > T raises ValueError in that code.
  *   The spacing is ignored: the class takes none.
+ * - 'respaced' (improved-diffusion / guided-diffusion respace.py space_timesteps): the steps kept
+ *   by the respacing string, noisiest first (shared-math respacedTimesteps).
  * - otherwise the standard spacings.
  */
-export function consumerTimesteps(rule: TimestepRule, spacing: TimestepSpacing, T: number, N: number, offset: number): TimestepsResult {
+export function consumerTimesteps(
+  rule: TimestepRule,
+  spacing: TimestepSpacing,
+  T: number,
+  N: number,
+  offset: number,
+  respacing?: string,
+): TimestepsResult {
+  if (rule === 'respaced' && respacing !== undefined) {
+    const kept = respacedTimesteps(T, respacing);
+    return kept.ok ? { ok: true, value: kept.value } : kept;
+  }
   const standard = samplingTimesteps(spacing, T, N, offset);
   if (!standard.ok) return standard;
   if (rule === 'n-plus-one' && (spacing === 'linspace' || spacing === 'leading')) {

@@ -21,8 +21,10 @@ export type ConceptDefaults = { [C in Concept]?: ConceptValues[C] };
  * - 'flow': flow matching (shifted t from 1 down);
  * - 'even-from-last': the config-object code's legacy DDPM discretization, roughly equally spaced
  *   steps from T - 1 down (see timesteps.ts).
+ * - 'respaced': the pixel-model code's timestep respacing string (`"ddim50"`, `"250"`,
+ *   `"10,15,20"`), see timesteps.ts.
  */
-export type TimestepRule = 'standard' | 'n-plus-one' | 'ldm-ddim' | 'flow' | 'even-from-last';
+export type TimestepRule = 'standard' | 'n-plus-one' | 'ldm-ddim' | 'flow' | 'even-from-last' | 'respaced';
 
 /** One consuming class or script (a scheduler class, a model class, an argument parser). */
 export interface ConsumerClass {
@@ -63,6 +65,33 @@ export interface ConsumerClass {
    * (e.g. "pass guidance_rescale to the pipeline call").
    */
   cannotExpress?: Partial<Record<Concept, string>>;
+  /** Flat argument sets (see ArgsReading): how the script reads keys the alias table does not know. */
+  args?: ArgsReading;
+}
+
+/**
+ * How a training or sampling script reads a flat argument set, beyond the alias table. Only the
+ * keys named in `conceptKeys` (and here) stand for concepts: a key whose name merely resembles a
+ * concept's (`skip_image_resolution`, `sample_sampler` for a preview scheduler built elsewhere)
+ * is the script's own setting.
+ */
+export interface ArgsReading {
+  /**
+   * Keys the script tests by truth value (`if args.zero_terminal_snr:`), each standing for a
+   * concept value (`predict_xstart: true` -> x0). Python's truth value applies: a non-empty string
+   * such as "false" is true, so a string there is reported rather than read as a word.
+   */
+  booleanConcepts?: Record<string, { concept: Concept; whenTrue: string | boolean; whenFalse: string | boolean }>;
+  /** The key of a timestep respacing string (sampling steps and spacing both come from it). */
+  respacingKey?: string;
+  /** Concepts derived from a compound value: a fix cannot set them on their own. */
+  derivedConcepts?: Concept[];
+  /** Values a fix may write per concept (others cannot be expressed: cannotExpress says what to do). */
+  writableValues?: Partial<Record<Concept, (string | number | boolean)[]>>;
+  /** The linear beta range scales with referenceSteps / T (betaStart = start * referenceSteps / T). */
+  linearRangePerStep?: { start: number; end: number; referenceSteps: number; basis: string };
+  /** The loader merges the first level of tables into one namespace (the TOML sections of a config file). */
+  flattensSections?: boolean;
 }
 
 /**
@@ -100,7 +129,7 @@ export interface ConsumerFamily {
   /** Shown in explain: "scheduler config saved by the open diffusion library". */
   title: string;
   /** Loader assumed for the family when neither the project file nor the file says. */
-  dialect: { yaml: DialectId; json: DialectId };
+  dialect: { yaml: DialectId; json: DialectId; toml?: DialectId };
   /** Where in the document the consumer's keys sit (dotted path from the root; '' for the root). */
   sectionPath?: string;
   classes: ConsumerClass[];

@@ -100,6 +100,11 @@ export function readValue(concept: Concept, node: LocatedNode | null, key: strin
         return ok(concept, node.value);
       }
       if (concept === 'resolution' && node.kind === 'list') return readResolutionList(node.items, key);
+      if (concept === 'resolution' && node.kind === 'scalar' && typeof node.value === 'string') {
+        // "768,512": width,height as one string (training scripts split it on the comma).
+        const m = /^\s*(\d+)\s*,\s*(\d+)\s*$/.exec(node.value);
+        if (m) return ok(concept, Math.max(Number(m[1]), Number(m[2])), `"${node.value.trim()}" is width,height: the larger side counts`);
+      }
       const n = readNumber(node, key);
       if (n.status !== 'ok') return n;
       const v = n.value;

@@ -213,6 +213,12 @@ class Renderer implements RemovalContext, InsertContext {
       if (!Array.isArray(value) || value.length === 0) giveUp('betas needs a non-empty list');
       return `[${value.map((b) => this.number(concept, b, null)).join(', ')}]`;
     }
+    // A key the consumer tests by truth value (consumer profile) is written as a boolean.
+    const flag = key ? this.setup.consumer?.booleanKeys?.[key] : undefined;
+    if (flag) {
+      if (value !== flag.whenTrue && value !== flag.whenFalse) giveUp(`${key} cannot say ${String(value)}`);
+      return formatBoolean(value === flag.whenTrue, this.format === 'yaml' ? this.booleanStyle(oldScalar) : 'lower');
+    }
     if (concept === 'predictionTarget' && typeof oldScalar?.value === 'boolean') {
       // `v_parameterization: true` style.
       const b = targetAsBoolean(value as ConceptValues['predictionTarget']);

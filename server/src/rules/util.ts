@@ -53,13 +53,20 @@ export function showValue(value: ConceptValues[Concept] | undefined): string {
 export function assumedNote(setup: Setup, concepts: readonly Concept[], extra: readonly string[] = []): string {
   // `extra`: assumptions the analysis made that are not setup fields ("sampleSteps = 50").
   const parts: string[] = [...extra];
+  let pendingNote = '';
   for (const concept of concepts) {
     const field = setup.fields[concept];
     if (!field || !field.assumed) continue;
     // An inferred value (or one from the project file) says where it came from; a plain default needs
-    // no more than its value.
-    const how = field.note && !field.note.startsWith('not set') ? `, ${field.note}` : '';
-    parts.push(`${concept} = ${showValue(field.value)}${how}`);
+    // no more than its value. Values that share one basis (a script's fixed schedule) name it once.
+    const how = field.note && !field.note.startsWith('not set') ? field.note : '';
+    const part = `${concept} = ${showValue(field.value)}`;
+    if (how && how === pendingNote && parts.length > 0) {
+      parts[parts.length - 1] = parts[parts.length - 1]!.replace(`, ${how}`, `, ${part}, ${how}`);
+      continue;
+    }
+    parts.push(how ? `${part}, ${how}` : part);
+    pendingNote = how;
   }
   const assumed = parts.length ? ` (assumed: ${parts.join('; ')})` : '';
   return assumed + inheritedNote(setup, concepts);
@@ -101,8 +108,12 @@ export function scheduleConcepts(setup: Setup): Concept[] {
   return out;
 }
 
-/** True when the file sets at least one field that shapes the schedule (not all assumed). */
+/**
+ * True when the file sets at least one field that shapes the schedule (not all assumed), or is the
+ * argument set of a script whose schedule is known without one (the script's own, consumer profile).
+ */
 export function setsSchedule(setup: Setup): boolean {
+  if (setup.consumer?.scheduleFromCode === true) return true;
   return (['trainSteps', 'betaSchedule', 'betaStart', 'betaEnd', 'betas', 'zeroTerminalSnr'] as const).some((c) => isSet(setup, c));
 }
 

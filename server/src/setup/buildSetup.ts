@@ -21,7 +21,9 @@
  * order; a 'duplicate' problem marks the later one when the values differ.
  */
 import type { ConsumerReading } from '../consumers/decide';
+import { argsHits } from '../consumers/argsReading';
 import {
+  argsSummary,
   consumerTakes,
   entriesOfSection,
   ignoredKeysOf,
@@ -122,8 +124,11 @@ const SEPARATE_SETTING_CONCEPTS = new Set<Concept>(['thresholding']);
 
 function build(doc: ParsedDocument, opts: BuildSetupOptions, setup: Setup): Setup {
   const reading = opts.consumer;
-  const hits =
+  const found =
     readingHits(reading) ?? findConcepts(doc.root, opts.extraAliases).filter((h) => consumerTakes(reading, h.source.entry, h.source.parent));
+  // An argument set's own keys (flags, a respacing string), read with the file's T.
+  const fileT = found.find((h) => h.concept === 'trainSteps' && h.status === 'ok')?.value as number | undefined;
+  const hits = reading?.cls?.args ? [...found, ...argsHits(reading, fileT)] : found;
   const fields: SetupFields = {};
   const problems: ValueProblem[] = [];
   const decided = new Map<Concept, Decided>();
@@ -140,6 +145,8 @@ function build(doc: ParsedDocument, opts: BuildSetupOptions, setup: Setup): Setu
       decided.set(hit.concept, { hit, signature });
       if (hit.status === 'ok') {
         setField(fields, hit.concept, hit.value as ConceptValues[Concept], toSource(hit), hit.note);
+        // A value the consumer reads one way although it is written unsafely (a flag as a string).
+        if (hit.problem) problems.push({ concept: hit.concept, kind: hit.problem.kind, source: toSource(hit), message: hit.problem.message });
       } else if (hit.problem) {
         const p: ValueProblem = { concept: hit.concept, kind: hit.problem.kind, source: toSource(hit), message: hit.problem.message };
         if (hit.problem.suggestion !== undefined) p.suggestion = hit.problem.suggestion;
@@ -184,7 +191,9 @@ function build(doc: ParsedDocument, opts: BuildSetupOptions, setup: Setup): Setu
     SCHEDULE_CONCEPTS.some(specific) ||
     (scheduleCount >= 2 && presentSchedule.some((c) => !weak(c))) ||
     (scheduleCount >= 1 && (present('sampler') || present('sampleSteps'))) ||
-    (present('sampleSteps') && (present('sampler') || present('guidanceScale')));
+    (present('sampleSteps') && (present('sampler') || present('guidanceScale'))) ||
+    // A recognised argument set is a diffusion config even when it sets nothing of the schedule.
+    (reading?.cls?.args !== undefined && reading.decision.basis !== 'fallback');
 
   setup.isDiffusionConfig = isDiffusionConfig;
   setup.role = reading?.role ?? roleOf(doc.root, present);
@@ -284,7 +293,7 @@ function consumerSummary(reading: ConsumerReading, loaderReadings: LoaderReading
   const spellings = readingSpellings(reading);
   if (spellings) out.enumSpellings = { ...out.enumSpellings, ...spellings };
   if (cls) out.insertKeys = insertKeysOf(cls);
-  return out;
+  return { ...out, ...argsSummary(reading) };
 }
 
 /**
@@ -295,7 +304,8 @@ function consumerSummary(reading: ConsumerReading, loaderReadings: LoaderReading
 function assumeClassDefaults(setup: Setup, decided: Map<Concept, Decided>, reading: ConsumerReading): void {
   const cls = reading.cls;
   const fields = setup.fields;
-  for (const d of readingDefaults(reading)) {
+  const fileT = fields.trainSteps && !fields.trainSteps.assumed ? fields.trainSteps.value : undefined;
+  for (const d of readingDefaults(reading, fileT)) {
     if (decided.has(d.concept) || fields[d.concept]) continue;
     setField(fields, d.concept, d.value, null, d.note);
     setup.assumed.push(d.concept);
@@ -448,7 +458,8 @@ function assumeDefaults(setup: Setup, decided: Map<Concept, Decided>, root: Loca
   }
 
   assume('predictionTarget', isFlow ? 'flow' : 'epsilon', isFlow ? TARGET_NOTE_FLOW : TARGET_NOTE_EPSILON);
-  if (!isFlow) {
+  // An argument set's script has no spacing or offset setting of its own (its profile derives the steps).
+  if (!isFlow && !opts.consumer?.cls?.args) {
     assume('timestepSpacing', DEFAULT_SPACING, SPACING_NOTE);
     assume('stepsOffset', DEFAULT_STEPS_OFFSET, OFFSET_NOTE);
     assume('zeroTerminalSnr', false, ZERO_SNR_NOTE);

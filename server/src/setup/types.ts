@@ -90,6 +90,16 @@ export interface SetupConsumer {
   enumSpellings?: Record<string, Record<string, string>>;
   /** What to change instead, per concept the consumer cannot take. */
   cannotExpress: { [C in Concept]?: string };
+  /** The respacing string whose kept steps are the sampling timesteps (timesteps rule 'respaced'). */
+  respacing?: string;
+  /** Concepts read from a compound value: a fix cannot set them alone. */
+  derivedConcepts?: Concept[];
+  /** Values a fix may write per concept, where the consumer takes only some. */
+  writableValues?: { [C in Concept]?: (string | number | boolean)[] };
+  /** The document is a script's argument set: its schedule is the script's, with defaults where a key is absent. */
+  scheduleFromCode?: boolean;
+  /** Keys the consumer tests by truth value, with the concept value each state stands for. */
+  booleanKeys?: Record<string, { whenTrue: string | boolean; whenFalse: string | boolean }>;
 }
 
 /** What kind of file this document describes, from the concepts it sets. */

@@ -8,7 +8,7 @@
 import type { RawScalar, ScalarInterpreter } from '../../parse/scalars';
 import type { ScalarValue } from '../../parse/types';
 
-export type DialectId = 'generic' | 'pyyaml' | 'omegaconf' | 'python-json';
+export type DialectId = 'generic' | 'pyyaml' | 'omegaconf' | 'python-json' | 'tomllib';
 
 /** The raw scalar every reader of parse/ hands to its interpreter (parse/scalars.ts). */
 export type { RawScalar };

@@ -1,0 +1,10 @@
+import { readFileSync } from 'node:fs';
+import { analyzeText } from '../server/src/engine/api';
+const path = process.argv[2]!;
+const r = analyzeText(readFileSync(path, 'utf8'), { path });
+const d = r.documents[0]!;
+console.log(JSON.stringify(d.setup.consumer?.decision, null, 1));
+for (const [k, f] of Object.entries(d.setup.fields)) console.log(k, JSON.stringify(f!.value).slice(0, 60), f!.assumed ? 'assumed' : f!.source?.path, f!.note ?? '');
+for (const p of d.setup.problems) console.log('PROBLEM', p.message);
+for (const f of r.findings) console.log(f.rule, f.severity, f.message, JSON.stringify(f.fixes.map((x) => [x.title, x.edits])));
+console.log('sampling', JSON.stringify(d.analysis.sampling?.timesteps?.slice(0, 12)));
