@@ -2,12 +2,14 @@
  * Property: a correct file stays free of errors and warnings under reformatting. Every clean
  * scheduler config (and, below, every clean config-object file) of the corpus is rewritten with its keys shuffled (seeded), compact or
  * indented JSON, and as YAML in block and in flow style with plain or quoted strings; none of the
- * rewrites may give an error or a warning, and the consumer decision must not change.
+ * rewrites may give an error or a warning, and the consumer decision must not change. The clean
+ * argument sets (training-args, pixel-args) get the same rewrites plus TOML: flat, and for the
+ * sd-scripts arguments spread over tables, which its loader merges into one namespace.
  */
 import { describe, expect, it } from 'vitest';
 import { analyzeText } from '../../server/src/engine/api';
 import { parse as parseYaml } from 'yaml';
-import { corpusFiles } from './corpus';
+import { corpusFiles, loadSection } from './corpus';
 
 function rng(seed: number): () => number {
   let s = seed >>> 0;
@@ -161,6 +163,70 @@ describe('reformatting a clean config-object file keeps it clean', () => {
         // The same values reach the setup, whatever the layout.
         expect(fields(result), variant.name).toEqual(fields(base));
         expect(result.findings.map((x) => x.rule).sort(), variant.name).toEqual(base.findings.map((x) => x.rule).sort());
+      }
+    }
+  });
+});
+
+function tomlValue(v: unknown): string {
+  if (typeof v === 'string') return JSON.stringify(v);
+  if (typeof v === 'number') return Number.isInteger(v) ? String(v) : String(v).includes('e') ? String(v) : String(v);
+  if (typeof v === 'boolean') return String(v);
+  if (Array.isArray(v)) return `[${v.map(tomlValue).join(', ')}]`;
+  return JSON.stringify(v);
+}
+
+function argsRewrites(values: Record<string, unknown>, seed: number, sections: boolean): { name: string; text: string; path: string }[] {
+  const r = rng(seed);
+  const keys = Object.keys(values);
+  const shuffled = [...keys].sort(() => r() - 0.5);
+  // TOML has no null: an argument left at None is simply absent.
+  const present = shuffled.filter((k) => values[k] !== null);
+  const out = [
+    {
+      name: 'JSON, shuffled',
+      text: `{\n${shuffled.map((k) => `  ${JSON.stringify(k)}: ${JSON.stringify(values[k])}`).join(',\n')}\n}\n`,
+      path: 'args.json',
+    },
+    { name: 'JSON, compact', text: JSON.stringify(values), path: 'args.json' },
+    { name: 'YAML block, plain strings', text: shuffled.map((k) => `${k}: ${yamlScalar(values[k], false)}`).join('\n') + '\n', path: 'args.yaml' },
+    { name: 'YAML block, quoted strings', text: keys.map((k) => `${k}: ${yamlScalar(values[k], true)}`).join('\n') + '\n', path: 'args.yaml' },
+    { name: 'YAML flow', text: `{${shuffled.map((k) => `${k}: ${yamlScalar(values[k], true)}`).join(', ')}}\n`, path: 'args.yaml' },
+    { name: 'TOML, flat', text: present.map((k) => `${k} = ${tomlValue(values[k])}`).join('\n') + '\n', path: 'args.toml' },
+  ];
+  if (sections) {
+    const tables = ['model_arguments', 'training_arguments', 'sample_prompt_arguments'];
+    const body = tables
+      .map(
+        (t, i) =>
+          `[${t}]\n${present
+            .filter((_k, j) => j % tables.length === i)
+            .map((k) => `${k} = ${tomlValue(values[k])}`)
+            .join('\n')}\n`,
+      )
+      .join('\n');
+    out.push({ name: 'TOML, spread over tables', text: `# Lanternfish Pictures: reformatted\n${body}`, path: 'args.toml' });
+  }
+  return out;
+}
+
+const cleanArgs = corpusFiles().filter((f) => f.kind === 'clean' && (f.family === 'training-args' || f.family === 'pixel-args'));
+
+describe('reformatting a clean argument set keeps it clean', () => {
+  it('has clean argument sets of both families', () => {
+    expect(new Set(cleanArgs.map((f) => f.family))).toEqual(new Set(['training-args', 'pixel-args']));
+  });
+  it.each(cleanArgs.map((f) => [`${f.family}/${f.name}`, f] as const))('%s', (_name, file) => {
+    const base = analyzeText(file.text, { path: file.path }).documents[0]!.setup.consumer!.decision;
+    const { values } = loadSection(file.text, file.path);
+    for (let seed = 1; seed <= 3; seed++) {
+      for (const variant of argsRewrites(values, seed, file.family === 'training-args')) {
+        const result = analyzeText(variant.text, { path: `/studio/${variant.path}` });
+        const loud = result.findings.filter((x) => x.severity === 'error' || x.severity === 'warning');
+        expect(loud.map((x) => `${variant.name}: ${x.rule}: ${x.message}`)).toEqual([]);
+        const decision = result.documents[0]!.setup.consumer?.decision;
+        expect([decision?.family, decision?.className], variant.name).toEqual([base.family, base.className]);
+        expect(result.isDiffusionConfig, variant.name).toBe(true);
       }
     }
   });

@@ -71,17 +71,17 @@ export function argsHits(reading: ConsumerReading | undefined, trainSteps: numbe
           const hit = ok(
             base,
             truthy ? flag.whenTrue : flag.whenFalse,
-            `the string ${describe(node!)} is ${truthy ? 'true' : 'false'} to ${cls.name}`,
+            `the string ${describe(node)} is ${truthy ? 'true' : 'false'} to ${cls.name}`,
           );
           hit.problem = {
             kind: 'wrong-type',
             message:
-              `${entry.key}: ${describe(node!)} is a string: ${cls.name} tests this flag by its truth value, so any non-empty ` +
+              `${entry.key}: ${describe(node)} is a string: ${cls.name} tests this flag by its truth value, so any non-empty ` +
               `string turns it on (here: ${truthy ? 'on' : 'off'}); write true or false without quotes`,
           };
           out.push(hit);
         } else {
-          out.push(bad(base, { kind: 'wrong-type', message: `${entry.key}: expected true or false, found ${describe(node!)}` }));
+          out.push(bad(base, { kind: 'wrong-type', message: `${entry.key}: expected true or false, found ${describe(node)}` }));
         }
         continue;
       }

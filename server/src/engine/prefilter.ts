@@ -12,7 +12,7 @@
  *
  * A flat argument set recognised by its consumer profile (consumers/, family signatures) is a
  * config even when it names no schedule key, so the signature keys of two or more segments count
- * too. The concepts that count must cover every recognition path; test/unit/prefilter.test.ts proves
+ * too (those of ten or more letters). The concepts that count must cover every recognition path; test/unit/prefilter.test.ts proves
  * that no fixture or example with findings is passed over.
  */
 import type { Concept } from '../fields/concepts';
@@ -55,13 +55,13 @@ function needlesFor(extra?: Partial<Record<Concept, readonly string[]>>): Needle
       out.push(segs);
     }
   }
-  // A recognised argument set is a config whatever it sets: its distinctive keys of two or more
-  // segments let it through (single words such as `v2` would let nearly every text through).
+  // A recognised argument set is a config whatever it sets: its distinctive keys of ten or more
+  // letters let it through (short words such as `v2` or `sdpa` would let nearly every text through).
   for (const family of FAMILIES) {
     for (const key of family.signature ?? []) {
       const segs = keySegments(key);
       const id = segs.join('.');
-      if (segs.length < 2 || seen.has(id)) continue;
+      if (id.length < 10 || seen.has(id)) continue;
       seen.add(id);
       out.push(segs);
     }

@@ -5,7 +5,8 @@
  * quoting a number is a common habit and the reading programs usually convert. `.nan`, `.inf`,
  * "NaN", "Infinity" and overflowing literals (1e309) are 'not-finite'; booleans, lists and maps
  * where a number is expected are 'wrong-type'; other strings are 'not-a-number'. Step counts and
- * resolution must be integers ('not-an-integer'; 1000.0 is accepted).
+ * resolution must be integers ('not-an-integer'; 1000.0 is accepted). A resolution may also be a
+ * list or a "width,height" string (training scripts split it on the comma): the larger side counts.
  * Booleans: true/false, the YAML 1.1 words yes/no/on/off (any case, also quoted) and 0/1.
  * Null (`key:`, `key: ~`, `null`) means "not set": no value and no problem.
  */

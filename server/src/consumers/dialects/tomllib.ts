@@ -24,7 +24,8 @@ export function typeTomlPlain(text: string): TypedValue {
   const s = text.trim();
   if (s === 'true') return { value: true, kind: 'bool' };
   if (s === 'false') return { value: false, kind: 'bool' };
-  if (DEC_INT.test(s)) return { value: Number(s.replace(/_/g, '')), kind: 'int' };
+  // Python ints have no negative zero.
+  if (DEC_INT.test(s)) return { value: Number(s.replace(/_/g, '')) + 0, kind: 'int' };
   if (HEX_INT.test(s)) return { value: parseInt(s.slice(2).replace(/_/g, ''), 16), kind: 'int' };
   if (OCT_INT.test(s)) return { value: parseInt(s.slice(2).replace(/_/g, ''), 8), kind: 'int' };
   if (BIN_INT.test(s)) return { value: parseInt(s.slice(2).replace(/_/g, ''), 2), kind: 'int' };
