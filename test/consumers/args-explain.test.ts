@@ -65,7 +65,7 @@ describe('explain and hover name the argument-set reading', () => {
     const file = readFile(TOML, { path: join(dir, 'nightboard.toml') });
     const at = TOML.indexOf('zero_terminal_snr') + 2;
     const hover = hoverAt(file, at, 'plaintext');
-    expect(hover?.contents ?? JSON.stringify(hover)).toContain('Read as sd-scripts (training-script arguments');
-    expect(JSON.stringify(hover)).toContain("loader: TOML read by Python's tomllib (TOML 1.0.0)");
+    expect(hover?.text).toContain('Read as sd-scripts (training-script arguments');
+    expect(hover?.text).toContain("loader: TOML read by Python's tomllib (TOML 1.0.0)");
   });
 });
