@@ -63,7 +63,8 @@ describe('check examples (the Lanternfish Pictures demo workspace)', () => {
           rule: string;
           severity: string;
           message: string;
-          range: { start: { line: number; character: number }; end: { line: number; character: number } };
+          /** [startLine, startCharacter, endLine, endCharacter] (the compact form). */
+          range: [number, number, number, number];
         }[];
       }[];
     };
@@ -71,7 +72,7 @@ describe('check examples (the Lanternfish Pictures demo workspace)', () => {
     const found = out.files[0]!.findings.map((f) => ({
       rule: f.rule,
       severity: f.severity,
-      text: lineText(f.range.start.line).slice(f.range.start.character, f.range.end.character),
+      text: lineText(f.range[0]).slice(f.range[1], f.range[3]),
     }));
     expect(found).toEqual([
       { rule: 'terminal-snr-leak', severity: 'warning', text: 'noise_scheduler.beta_schedule = "scaled_linear"' },

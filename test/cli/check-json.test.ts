@@ -1,8 +1,10 @@
+import { join } from 'node:path';
 import { afterEach, describe, expect, it } from 'vitest';
 import { LineIndex } from '../../server/src/parse/lineIndex';
 import { removeTree } from '../workspace/helpers';
 import { VERSION } from '../../server/src/base/version';
 import { CLEAN, LEAKY_V, ZERO_SNR_EPSILON, runCli, tempTree } from './check-helpers';
+import { writeCorpus } from '../load/corpus';
 
 const roots: string[] = [];
 function tree(files: Record<string, string | Uint8Array>): string {
@@ -23,10 +25,45 @@ interface JsonRange {
   end: Pos;
 }
 
-/** The text a 0-based JSON range covers. */
-function textAt(text: string, range: JsonRange): string {
+/** The compact form of a range: [startLine, startCharacter, endLine, endCharacter]. */
+type CompactRange = [number, number, number, number];
+
+const rangeObject = (r: CompactRange): JsonRange => ({ start: { line: r[0], character: r[1] }, end: { line: r[2], character: r[3] } });
+
+/** The text a 0-based JSON range (either form) covers. */
+function textAt(text: string, range: JsonRange | CompactRange): string {
   const index = new LineIndex(text);
-  return text.slice(index.offsetAt(range.start), index.offsetAt(range.end));
+  const r = Array.isArray(range) ? rangeObject(range) : range;
+  return text.slice(index.offsetAt(r.start), index.offsetAt(r.end));
+}
+
+interface CompactFinding {
+  rule: string;
+  severity: string;
+  message: string;
+  range: CompactRange;
+  document?: number;
+  fixes?: { title: string; effect?: string; touchesComment?: boolean; preferred?: boolean; edits?: unknown[] }[];
+  related?: { path: string; range: CompactRange; message: string }[];
+}
+
+/** The compact form read back into the full one, by the defaults docs/project-file.md states. */
+function expandCompact(f: CompactFinding): unknown {
+  return {
+    rule: f.rule,
+    severity: f.severity,
+    message: f.message,
+    range: rangeObject(f.range),
+    document: f.document ?? 0,
+    fixes: (f.fixes ?? []).map((x) => ({
+      title: x.title,
+      effect: x.effect ?? 'sampling-only',
+      touchesComment: x.touchesComment ?? false,
+      preferred: x.preferred ?? true,
+      ...(x.edits ? { edits: x.edits } : {}),
+    })),
+    related: (f.related ?? []).map((r) => ({ path: r.path, range: rangeObject(r.range), message: r.message })),
+  };
 }
 
 /** Applies JSON edits (0-based ranges) back to front. */
@@ -65,15 +102,19 @@ describe('check --format json', () => {
         expect(typeof f.rule).toBe('string');
         expect(SEVERITIES).toContain(f.severity);
         expect(typeof f.message).toBe('string');
-        for (const p of [f.range.start, f.range.end]) {
-          expect(Number.isInteger(p.line) && p.line >= 0).toBe(true);
-          expect(Number.isInteger(p.character) && p.character >= 0).toBe(true);
-        }
-        expect(Array.isArray(f.fixes)).toBe(true);
-        for (const fix of f.fixes) {
+        // Compact by default: [startLine, startCharacter, endLine, endCharacter].
+        expect(f.range).toHaveLength(4);
+        for (const n of f.range) expect(Number.isInteger(n) && n >= 0).toBe(true);
+        // Fields at their default are left out: document 0, no fixes, no related locations.
+        expect(f.document).toBeUndefined();
+        expect(f.fixes === undefined || f.fixes.length > 0).toBe(true);
+        expect(f.related === undefined || f.related.length > 0).toBe(true);
+        for (const fix of f.fixes ?? []) {
           expect(typeof fix.title).toBe('string');
-          expect(['sampling-only', 'needs-retraining']).toContain(fix.effect);
-          expect(typeof fix.touchesComment).toBe('boolean');
+          // Written only when it is not the default: needs-retraining (effect), true (touchesComment), false (preferred).
+          expect([undefined, 'needs-retraining']).toContain(fix.effect);
+          expect(fix.touchesComment === undefined || fix.touchesComment === true).toBe(true);
+          expect(fix.preferred === undefined || fix.preferred === false).toBe(true);
           expect(fix.edits.length).toBeGreaterThan(0);
           // Compact by default: [startLine, startCharacter, endLine, endCharacter, newText].
           for (const e of fix.edits) {
@@ -90,14 +131,14 @@ describe('check --format json', () => {
       }
     }
     expect(out.summary).toMatchObject({ errors, warnings, infos, files: 3 });
-    expect(out.formatVersion).toBe(3);
+    expect(out.formatVersion).toBe(4);
     expect(Object.keys(out)).toEqual(['formatVersion', 'tool', 'files', 'unchecked', 'skipped', 'summary']);
     expect(errors).toBeGreaterThan(0);
   });
 
   it('a range points at the field that causes the finding, and the fix edits apply to the file', async () => {
     const root = tree({ 'eps.yaml': ZERO_SNR_EPSILON });
-    const out = JSON.parse((await runCli(['check', '--format=json', '--fix-edits', 'full'], root)).stdout);
+    const out = JSON.parse((await runCli(['check', '--format=json', '--json-form', 'full', '--fix-edits', 'full'], root)).stdout);
     const finding = out.files[0].findings.find((f: { rule: string }) => f.rule === 'epsilon-at-zero-snr');
     expect(finding.severity).toBe('error');
     // The target field (line 6, 0-based) is what the finding marks.
@@ -138,6 +179,36 @@ describe('check --format json', () => {
     });
     expect(edits).toBeGreaterThan(0);
     expect(compact.summary).toEqual(full.summary);
+  });
+
+  it('the compact form (the default) says what the full form says, in fewer bytes', async () => {
+    // One folder of the bench corpus (paired training and sampling files: related locations,
+    // findings with and without fixes) and a file of two documents.
+    const sampling = `num_inference_steps: 4\ntimestep_spacing: leading\n---\nnum_inference_steps: 8\ntimestep_spacing: linspace\n`;
+    const root = tree({ 'two-docs/sample.yaml': sampling, 'eps.yaml': ZERO_SNR_EPSILON });
+    writeCorpus(join(root, 'corpus'), 20);
+    const fullText = (await runCli(['check', '--format', 'json', '--json-form', 'full'], root)).stdout;
+    const compactText = (await runCli(['check', '--format', 'json'], root)).stdout;
+    const full = JSON.parse(fullText);
+    const compact = JSON.parse(compactText);
+    const findings = compact.files.flatMap((f: { findings: CompactFinding[] }) => f.findings) as CompactFinding[];
+    // The tree exercises every field that can be left out or written.
+    expect(findings.some((f) => f.related)).toBe(true);
+    expect(findings.some((f) => (f.document ?? 0) > 0)).toBe(true);
+    expect(findings.some((f) => !f.fixes)).toBe(true);
+    expect(findings.some((f) => f.fixes?.some((x) => x.effect === undefined))).toBe(true);
+    expect(findings.some((f) => f.fixes?.some((x) => x.effect === 'needs-retraining'))).toBe(true);
+    expect(
+      compact.files.map((f: { path: string; findings: CompactFinding[] }) => ({ path: f.path, findings: f.findings.map(expandCompact) })),
+    ).toEqual(full.files);
+    expect({ ...compact, files: [] }).toEqual({ ...full, files: [] });
+    expect(compactText.length).toBeLessThan(fullText.length);
+  });
+
+  it('refuses an unknown --json-form', async () => {
+    const r = await runCli(['check', '--format', 'json', '--json-form', 'tiny'], tree({ 'leaky.yaml': LEAKY_V }));
+    expect(r.code).toBe(2);
+    expect(r.stderr).toMatch(/--json-form must be compact or full, not "tiny"/);
   });
 
   it('refuses an unknown --fix-edits form', async () => {

@@ -252,8 +252,8 @@ describe('UTF-16 with a byte-order mark', () => {
       const leak = file.findings.find((f: { rule: string }) => f.rule === 'terminal-snr-leak');
       // Lin et al. 2023, Table 1 (recalled from memory): sqrt(abar_T) = 0.068 for scaled linear 0.00085 -> 0.012.
       expect(leak.message, file.path).toMatch(/0\.068\b/);
-      // Line 2 (0-based) holds beta_schedule; the BOM does not shift lines.
-      expect(leak.range.start.line).toBe(2);
+      // Line 2 (0-based; a compact range starts with the line) holds beta_schedule; the BOM does not shift lines.
+      expect(leak.range[0]).toBe(2);
     }
     expect(out.unchecked).toEqual([]);
   });

@@ -110,7 +110,7 @@ describe('explain --format json', () => {
   it('keeps the documented top-level shape for several files', async () => {
     const json = await explainJson(linear, cosine);
     expect(Object.keys(json)).toEqual(['formatVersion', 'files']);
-    expect(json.formatVersion).toBe(3);
+    expect(json.formatVersion).toBe(4);
     expect(json.files.map((f: { path: string }) => f.path)).toEqual([linear, cosine]);
     for (const f of json.files) {
       expect(Object.keys(f.documents[0]).sort()).toEqual(

@@ -17,7 +17,7 @@ import { UsageError, type CliIO } from '../io';
 import { COLOR_OPTION, useColor, type ColorChoice } from '../color';
 import { helpText, parseCommandArgs, type CommandSpec } from '../options';
 import { formatAnnotations } from '../output/annotations';
-import { EDIT_FORMS, JsonReportWriter, type EditForm } from '../output/json';
+import { EDIT_FORMS, JSON_FORMS, JsonReportWriter, type EditForm, type JsonForm } from '../output/json';
 import { atOrAbove, displayPath, summarize, type BudgetResult, type CheckReport, type Summary } from '../output/report';
 import { SEVERITIES, type Severity } from '../../base/findings';
 import { addSummary, emptySummary, FileChecker, type FileCheckSink } from './checkFiles';
@@ -78,6 +78,13 @@ export const CHECK_SPEC: CommandSpec = {
       description: 'How the JSON report writes fix edits (default compact).',
     },
     {
+      name: 'json-form',
+      type: 'string',
+      value: 'compact|full',
+      choices: JSON_FORMS,
+      description: 'JSON findings with array ranges and default fields left out (compact, the default), or every field (full).',
+    },
+    {
       name: 'workers',
       type: 'string',
       value: 'N',
@@ -117,6 +124,8 @@ export interface CheckOptions {
   budgets: Budget[];
   /** How the JSON report writes fix edits (default compact). */
   fixEdits?: EditForm;
+  /** How the JSON report writes findings (default compact). */
+  jsonForm?: JsonForm;
   color?: ColorChoice;
   /** With `-` among the inputs: the path the text on standard input stands for. */
   stdinPath?: string;
@@ -180,6 +189,7 @@ export function parseCheckArgs(args: string[]): CheckOptions {
     show,
     budgets,
     fixEdits,
+    jsonForm: (typeof v['json-form'] === 'string' ? v['json-form'] : 'compact') as JsonForm,
     color: v.color as ColorChoice | undefined,
     stdinPath,
     emptyOk: v['empty-ok'] === true,
@@ -255,7 +265,8 @@ export async function check(options: CheckOptions, io: CliIO, diskFs: WorkspaceF
 
   const session = new WorkspaceSession({ fs, stableTree: true, showPath: shown, projects });
   // JSON is written file by file as the run goes; text and SARIF are written from the whole report.
-  const stream = options.format === 'json' ? new JsonReportWriter(io.stdout, io.cwd, options.fixEdits ?? 'compact') : null;
+  const stream =
+    options.format === 'json' ? new JsonReportWriter(io.stdout, io.cwd, options.fixEdits ?? 'compact', options.jsonForm ?? 'compact') : null;
   const counted = emptySummary();
   const countedListed = emptySummary();
   const checkedConfig = new Set<string>();
@@ -281,7 +292,8 @@ export async function check(options: CheckOptions, io: CliIO, diskFs: WorkspaceF
   };
   const show = options.show;
   const fixEdits = options.fixEdits ?? 'compact';
-  const checker = new FileChecker(session, (file) => projects.get(file)!, { cwd: io.cwd, stream: !!stream, fixEdits, show, isNamed });
+  const jsonForm = options.jsonForm ?? 'compact';
+  const checker = new FileChecker(session, (file) => projects.get(file)!, { cwd: io.cwd, stream: !!stream, fixEdits, jsonForm, show, isNamed });
 
   if (stdin) checker.check(stdin.path, decodeText(stdin.bytes), sink);
   // Progress goes to stderr when stderr is a terminal, whatever stdout is (a file, a pipe).
@@ -292,7 +304,7 @@ export async function check(options: CheckOptions, io: CliIO, diskFs: WorkspaceF
   if (threads > 1) {
     const seen = new Set<string>();
     let done = 0;
-    const init = { cwd: io.cwd, stream: !!stream, fixEdits, show };
+    const init = { cwd: io.cwd, stream: !!stream, fixEdits, jsonForm, show };
     try {
       await checkInWorkers({
         script: io.workerScript!,

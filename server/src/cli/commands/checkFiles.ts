@@ -8,7 +8,7 @@ import { SEVERITIES, type Severity } from '../../base/findings';
 import type { TextReadResult } from '../../workspace/fs';
 import type { ResolvedProject } from '../../workspace/project';
 import type { Pairing, WorkspaceSession } from '../../workspace/session';
-import { fileEntryText, type EditForm } from '../output/json';
+import { fileEntryText, type EditForm, type JsonForm } from '../output/json';
 import { displayPath, type CheckedFile, type Summary } from '../output/report';
 
 /** What the check of a file produced, in the order it happened. */
@@ -34,6 +34,8 @@ export interface FileCheckOptions {
   /** The JSON report is streamed (entries are serialised as files are checked). */
   stream: boolean;
   fixEdits: EditForm;
+  /** How findings are written in the JSON report. */
+  jsonForm: JsonForm;
   /** The faintest severity listed. */
   show: Severity;
   /** A file named on the command line (or standard input): a read failure is an error of the run. */
@@ -117,6 +119,6 @@ export class FileChecker {
     if (this.options.show !== 'hint') checked.findings = checked.findings.filter((x) => this.listed(x.severity));
     const listed = emptySummary();
     addCounts(listed, checked.findings);
-    sink.entry(fileEntryText(checked, pairing.texts, this.options.cwd, this.options.fixEdits), counted, listed);
+    sink.entry(fileEntryText(checked, pairing.texts, this.options.cwd, this.options.fixEdits, this.options.jsonForm), counted, listed);
   }
 }

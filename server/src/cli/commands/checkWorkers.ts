@@ -9,7 +9,7 @@
 import { dirname } from 'node:path';
 import { Worker } from 'node:worker_threads';
 import type { Severity } from '../../base/findings';
-import type { EditForm } from '../output/json';
+import type { EditForm, JsonForm } from '../output/json';
 import { displayPath, type CheckedFile, type Summary } from '../output/report';
 import type { ResolvedProject } from '../../workspace/project';
 import type { WorkspaceSession } from '../../workspace/session';
@@ -40,6 +40,7 @@ export interface WorkerInit {
   cwd: string;
   stream: boolean;
   fixEdits: EditForm;
+  jsonForm: JsonForm;
   show: Severity;
 }
 

@@ -82,13 +82,28 @@ export const EDIT_FORMS: readonly EditForm[] = ['compact', 'full', 'none'];
 
 export type CompactEdit = [number, number, number, number, string];
 
+/**
+ * How findings are written: `compact` (default) with ranges as `[startLine, startCharacter,
+ * endLine, endCharacter]` arrays and every field at its default left out (`document` 0, empty
+ * `fixes` and `related`, `effect` sampling-only, `touchesComment` false, `preferred` true); `full`
+ * with every field and
+ * ranges as `{ start, end }` objects (the form of format version 3).
+ */
+export type JsonForm = 'compact' | 'full';
+export const JSON_FORMS: readonly JsonForm[] = ['compact', 'full'];
+
+export type CompactRange = [number, number, number, number];
+
+const rangeArray = (r: Range): CompactRange => [r.start.line, r.start.character, r.end.line, r.end.character];
+
 export interface JsonFileEntry {
   path: string;
   findings: JsonFinding[];
 }
 
 /** One checked file as the contract writes it. */
-export function fileEntry(file: CheckedFile, locate: Locator, cwd: string, edits: EditForm = 'full'): JsonFileEntry {
+export function fileEntry(file: CheckedFile, locate: Locator, cwd: string, edits: EditForm = 'full', form: JsonForm = 'full'): JsonFileEntry {
+  if (form === 'compact') return compactEntry(file, locate, cwd, edits) as unknown as JsonFileEntry;
   return {
     path: displayPath(cwd, file.path),
     findings: file.findings.map((f): JsonFinding => ({
@@ -116,13 +131,48 @@ export function fileEntry(file: CheckedFile, locate: Locator, cwd: string, edits
   };
 }
 
+/** The compact form of one file's entry (JsonForm). */
+function compactEntry(file: CheckedFile, locate: Locator, cwd: string, edits: EditForm): { path: string; findings: Record<string, unknown>[] } {
+  return {
+    path: displayPath(cwd, file.path),
+    findings: file.findings.map((f) => {
+      const out: Record<string, unknown> = {
+        rule: f.rule,
+        severity: f.severity,
+        message: f.message,
+        range: rangeArray(locate.range(file.path, f.span)),
+      };
+      if (f.documentIndex !== 0) out.document = f.documentIndex;
+      if (f.fixes.length) {
+        out.fixes = f.fixes.map((fix) => {
+          // Only the effect that matters to a checkpoint is written: a fix without one changes sampling only.
+          const o: Record<string, unknown> = { title: fix.title };
+          if (fix.effect !== 'sampling-only') o.effect = fix.effect;
+          if (fix.touchesComment) o.touchesComment = true;
+          if (!fix.preferred) o.preferred = false;
+          if (edits === 'full') o.edits = fix.edits.map((e) => ({ range: locate.range(file.path, e.span), newText: e.newText }));
+          else if (edits === 'compact') o.edits = fix.edits.map((e): CompactEdit => [...rangeArray(locate.range(file.path, e.span)), e.newText]);
+          return o;
+        });
+      }
+      if (f.related.length) {
+        out.related = f.related.map((r) => {
+          const path = locate.resolvePath(file.path, r.path);
+          return { path: displayPath(cwd, path), range: rangeArray(locate.range(path, r.span)), message: r.message };
+        });
+      }
+      return out;
+    }),
+  };
+}
+
 /** The whole report at once (small runs, tests); `check` streams it with JsonReportWriter. */
-export function toJson(report: CheckReport, edits: EditForm = 'full'): JsonOutput {
+export function toJson(report: CheckReport, edits: EditForm = 'full', form: JsonForm = 'full'): JsonOutput {
   const locate = new Locator(report);
   return {
     formatVersion: JSON_FORMAT_VERSION,
     tool: { name: 'noiselint', version: VERSION },
-    files: report.files.map((file) => fileEntry(file, locate, report.cwd, edits)),
+    files: report.files.map((file) => fileEntry(file, locate, report.cwd, edits, form)),
     unchecked: uncheckedOf(report),
     skipped: report.skipped.map((s) => ({ path: displayPath(report.cwd, s.path), reason: s.reason })),
     summary: summaryOf(report),
@@ -147,14 +197,14 @@ function summaryOf(report: CheckReport, listedFiles = report.files.length): Json
   };
 }
 
-export function formatJson(report: CheckReport, edits: EditForm = 'compact'): string {
-  return `${JSON.stringify(toJson(report, edits))}\n`;
+export function formatJson(report: CheckReport, edits: EditForm = 'compact', form: JsonForm = 'compact'): string {
+  return `${JSON.stringify(toJson(report, edits, form))}\n`;
 }
 
 /** One file's entry of the streamed report, serialised; `otherTexts` are the texts its related locations point into. */
-export function fileEntryText(file: CheckedFile, otherTexts: ReadonlyMap<string, string>, cwd: string, edits: EditForm): string {
+export function fileEntryText(file: CheckedFile, otherTexts: ReadonlyMap<string, string>, cwd: string, edits: EditForm, form: JsonForm): string {
   const locate = new Locator({ cwd, files: [file], skipped: [], otherTexts: otherTexts as Map<string, string>, notices: [] });
-  return JSON.stringify(fileEntry(file, locate, cwd, edits));
+  return JSON.stringify(fileEntry(file, locate, cwd, edits, form));
 }
 
 /** Text is handed to the output in pieces of about this size. */
@@ -173,13 +223,14 @@ export class JsonReportWriter {
     private readonly write: (text: string) => void,
     private readonly cwd: string,
     private readonly edits: EditForm = 'compact',
+    private readonly form: JsonForm = 'compact',
   ) {
     this.buffer = `{"formatVersion":${JSON_FORMAT_VERSION},"tool":${JSON.stringify({ name: 'noiselint', version: VERSION })},"files":[`;
   }
 
   /** Writes one checked file; `otherTexts` are the texts its related locations point into. */
   file(file: CheckedFile, otherTexts: ReadonlyMap<string, string>): void {
-    this.entry(fileEntryText(file, otherTexts, this.cwd, this.edits));
+    this.entry(fileEntryText(file, otherTexts, this.cwd, this.edits, this.form));
   }
 
   /** Writes one file entry serialised by `fileEntryText` (a worker thread's). */
