@@ -112,7 +112,7 @@ describe('check in worker threads', () => {
       const report = JSON.parse(one.stdout) as {
         summary: { files: number; errors: number; passedOver: number };
         skipped: unknown[];
-        files: { path: string; findings: { related: { path: string }[] }[] }[];
+        files: { path: string; findings: { related?: { path: string }[] }[] }[];
       };
       expect(report.summary.errors).toBeGreaterThan(0);
       if (tree === 'corpus') {
@@ -120,7 +120,7 @@ describe('check in worker threads', () => {
         expect(report.skipped).toHaveLength(2);
         // The explicit pair across folders (and chunks) was paired: the sampling file's findings point at its training file.
         const sampling = report.files.find((f) => f.path === pairedSampling)!;
-        expect(sampling.findings.flatMap((f) => f.related.map((r) => r.path))).toContain(pairedTraining);
+        expect(sampling.findings.flatMap((f) => (f.related ?? []).map((r) => r.path))).toContain(pairedTraining);
         expect(one.stderr).toContain('leaves the project folder');
       } else expect(report.summary.passedOver).toBeGreaterThan(1000);
     }
