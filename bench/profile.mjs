@@ -2,9 +2,9 @@
 // Profiles one benchmark measurement with the V8 sampling profiler and prints the functions that
 // dominate (self time and inclusive time). Needs the harness bundle and the corpus that
 // `node bench/run.mjs --only a` leaves behind.
-//   node bench/profile.mjs core|command|command-workers|parse|ajv|lsp-analyze [--lines 5000] [--dir bench/monorepo]
+//   node bench/profile.mjs core|command|command-workers|parse|ajv|lsp-analyze|lsp-server [--lines 5000] [--dir bench/monorepo]
 import { spawnSync } from 'node:child_process';
-import { mkdtempSync, readdirSync, readFileSync } from 'node:fs';
+import { mkdirSync, mkdtempSync, readdirSync, readFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { dirname, join } from 'node:path';
 import { fileURLToPath, pathToFileURL } from 'node:url';
@@ -38,12 +38,31 @@ if (values.child) {
 }
 
 const dir = mkdtempSync(join(tmpdir(), 'noiselint-prof-'));
-const r = spawnSync(
-  process.execPath,
-  ['--cpu-prof', `--cpu-prof-dir=${dir}`, fileURLToPath(import.meta.url), what, '--child', '--lines', values.lines, '--dir', values.dir],
-  { stdio: 'inherit' },
-);
-if (r.status !== 0) process.exit(r.status ?? 1);
+if (what === 'lsp-server') {
+  // The language server itself under the profiler: 200 full-text changes of a --lines file, one
+  // at a time (as bench (b) sends them), with a debounce of 0.
+  process.env.NOISELINT_REPO = root;
+  const H = await import(pathToFileURL(harness).href);
+  const lspDir = join(root, 'build/bench/lsp');
+  mkdirSync(lspDir, { recursive: true });
+  const client = await H.LspTestClient.start({ cwd: lspDir, settings: { debounceMs: 0 }, nodeArgs: ['--cpu-prof', `--cpu-prof-dir=${dir}`] });
+  const uri = `file://${join(lspDir, 'profiled.yaml')}`;
+  const lines = Number(values.lines);
+  client.open(uri, H.configText(0, 0, lines));
+  await client.settled(uri, 1);
+  for (let k = 1; k <= 200; k++) {
+    client.change(uri, k + 1, H.configText(k, k, lines));
+    await client.waitFor(uri, (x) => x.version === k + 1);
+  }
+  await client.stop();
+} else {
+  const r = spawnSync(
+    process.execPath,
+    ['--cpu-prof', `--cpu-prof-dir=${dir}`, fileURLToPath(import.meta.url), what, '--child', '--lines', values.lines, '--dir', values.dir],
+    { stdio: 'inherit' },
+  );
+  if (r.status !== 0) process.exit(r.status ?? 1);
+}
 const file = join(
   dir,
   readdirSync(dir).find((f) => f.endsWith('.cpuprofile')),

@@ -103,6 +103,24 @@ export function normalizeSettings(raw: unknown): EditorSettings {
 
 /** The project file's settings with the editor's rule severities, options and limits on top. */
 export function mergeSettingsIntoProject(project: ResolvedProject, settings: EditorSettings): ResolvedProject {
+  // Both are kept unchanged while they are current (settings per document, projects per folder):
+  // every change of a document reuses one merged project, and what is cached by project with it.
+  let bySettings = merged.get(project);
+  if (!bySettings) {
+    bySettings = new WeakMap();
+    merged.set(project, bySettings);
+  }
+  let out = bySettings.get(settings);
+  if (!out) {
+    out = mergeUncached(project, settings);
+    bySettings.set(settings, out);
+  }
+  return out;
+}
+
+const merged = new WeakMap<ResolvedProject, WeakMap<EditorSettings, ResolvedProject>>();
+
+function mergeUncached(project: ResolvedProject, settings: EditorSettings): ResolvedProject {
   const rules: Record<string, RuleSetting> = {};
   for (const [id, setting] of Object.entries(project.rules))
     rules[id] = { ...setting, options: setting.options ? { ...setting.options } : undefined };

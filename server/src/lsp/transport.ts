@@ -239,6 +239,7 @@ class BoundedWriter extends AbstractMessageWriter implements MessageWriter {
   /** Newest diagnostics publication per document while congested. */
   private diagnostics = new Map<string, Message>();
   private dropped = 0;
+  private corked = false;
   onCongestion: (congested: boolean) => void = () => {};
 
   constructor(
@@ -286,9 +287,22 @@ class BoundedWriter extends AbstractMessageWriter implements MessageWriter {
   }
 
   private send(msg: Message | Buffer): void {
-    const body = Buffer.isBuffer(msg) ? msg : serialise(msg);
-    this.output.write(`Content-Length: ${body.length}\r\n\r\n`, 'ascii');
-    this.output.write(body);
+    // One write per message, and the messages of one turn (a document's diagnostics and its plot
+    // notification) leave in one system call: the output is corked until the next tick.
+    if (!this.corked) {
+      this.corked = true;
+      this.output.cork();
+      process.nextTick(() => {
+        this.corked = false;
+        this.output.uncork();
+      });
+    }
+    if (Buffer.isBuffer(msg)) {
+      this.output.write(Buffer.concat([Buffer.from(`Content-Length: ${msg.length}\r\n\r\n`, 'ascii'), msg]));
+      return;
+    }
+    const json = JSON.stringify(msg);
+    this.output.write(`Content-Length: ${Buffer.byteLength(json, 'utf8')}\r\n\r\n${json}`, 'utf8');
   }
 
   private congest(): void {
