@@ -105,16 +105,27 @@ function detectComponents(root: LocatedMap): Detected | null {
   return found ? { family, ...found } : null;
 }
 
-/** Flat argument files: a training script's arguments, or an older pixel model's argument set. */
+/**
+ * Flat argument files: a training script's arguments, or an older pixel model's argument set.
+ * Within a family, each class is tried with its own signature (the family's otherwise); the class
+ * with the most signature keys present wins, the first listed on a tie.
+ */
 function detectArgs(root: LocatedMap, path: string): Detected | null {
   for (const family of [familyById('pixel-args'), familyById('training-args')]) {
-    if (family.id === 'generic' || !family.signature) continue;
-    const cls = family.classes[0] ?? null;
-    const maps = cls?.args?.flattensSections ? flatMaps(root) : [root];
-    const keys = new Set(maps.flatMap((m) => m.entries.map((e) => e.key)));
-    const hits = family.signature.filter((k) => keys.has(k));
-    if (hits.length < (family.signatureMin ?? 2)) continue;
-    const evidence = [`keys of ${cls?.name ?? family.id}: ${hits.slice(0, 4).join(', ')}${hits.length > 4 ? `, ... (${hits.length})` : ''}`];
+    if (family.id === 'generic') continue;
+    let best: { cls: ConsumerClass; hits: string[]; maps: LocatedMap[] } | null = null;
+    for (const cls of family.classes) {
+      const signature = cls.signature ?? family.signature;
+      if (!signature) continue;
+      const maps = cls.args?.flattensSections ? flatMaps(root) : [root];
+      const keys = new Set(maps.flatMap((m) => m.entries.map((e) => e.key)));
+      const hits = signature.filter((k) => keys.has(k));
+      if (hits.length < (cls.signatureMin ?? family.signatureMin ?? 2)) continue;
+      if (!best || hits.length > best.hits.length) best = { cls, hits, maps };
+    }
+    if (!best) continue;
+    const { cls, hits, maps } = best;
+    const evidence = [`keys of ${cls.name}: ${hits.slice(0, 4).join(', ')}${hits.length > 4 ? `, ... (${hits.length})` : ''}`];
     if (maps.length > 1)
       evidence.push(
         `tables ${maps
@@ -123,7 +134,7 @@ function detectArgs(root: LocatedMap, path: string): Detected | null {
           .join(', ')} are merged into one namespace`,
       );
     const name = baseName(path);
-    if (/\.toml$/i.test(name)) evidence.push(`file name ${name} (a --config_file TOML)`);
+    if (/\.toml$/i.test(name) && cls.args?.flattensSections) evidence.push(`file name ${name} (a --config_file TOML)`);
     return { family, cls, section: root, evidence };
   }
   return null;

@@ -113,6 +113,8 @@ function short(source: string): string {
 
 /** The basis of a class default: `DDIMScheduler's default for an absent timestep_spacing (diffusers 0.30, ...)`. */
 export function classDefaultNote(cls: ConsumerClass, concept: Concept, _value: unknown): string {
+  const own = cls.defaultNotes?.[concept];
+  if (own) return own;
   const key = cls.conceptKeys[concept];
   if (!key) {
     const hint = cls.cannotExpress?.[concept];
@@ -164,7 +166,7 @@ export function argsSummary(reading: ConsumerReading): {
 } {
   const args = reading.cls?.args;
   if (!args) return {};
-  const out: ReturnType<typeof argsSummary> = { scheduleFromCode: true };
+  const out: ReturnType<typeof argsSummary> = args.scheduleFromBaseModel ? {} : { scheduleFromCode: true };
   if (args.derivedConcepts) out.derivedConcepts = [...args.derivedConcepts];
   if (args.writableValues) out.writableValues = { ...args.writableValues };
   const booleans: Record<string, { whenTrue: string | boolean; whenFalse: string | boolean }> = {};

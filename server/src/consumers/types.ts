@@ -62,11 +62,23 @@ export interface ConsumerClass {
   separateKeys?: string[][];
   /**
    * What to tell the user when a fix would need a concept this class cannot take, per concept
-   * (e.g. "pass guidance_rescale to the pipeline call").
+   * (e.g. "pass guidance_rescale to the pipeline call"). `{steps}` stands for the document's
+   * sampling step count (250 when it has none).
    */
   cannotExpress?: Partial<Record<Concept, string>>;
   /** Flat argument sets (see ArgsReading): how the script reads keys the alias table does not know. */
   args?: ArgsReading;
+  /**
+   * The basis of a default, where "the class's default for an absent key" would mislead (the
+   * value comes from somewhere else, such as the base model's own scheduler config).
+   */
+  defaultNotes?: Partial<Record<Concept, string>>;
+  /**
+   * Keys that mark a flat document as read by this class, when a family has several (the
+   * family's `signature` otherwise), and how many must be there.
+   */
+  signature?: string[];
+  signatureMin?: number;
 }
 
 /**
@@ -92,6 +104,11 @@ export interface ArgsReading {
   linearRangePerStep?: { start: number; end: number; referenceSteps: number; basis: string };
   /** The loader merges the first level of tables into one namespace (the TOML sections of a config file). */
   flattensSections?: boolean;
+  /**
+   * The script takes its training schedule from the base model's own scheduler config, not from
+   * its code: the schedule is unknown here, so findings about the schedule alone are not raised.
+   */
+  scheduleFromBaseModel?: boolean;
 }
 
 /**

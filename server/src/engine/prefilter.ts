@@ -58,7 +58,7 @@ function needlesFor(extra?: Partial<Record<Concept, readonly string[]>>): Needle
   // A recognised argument set is a config whatever it sets: its distinctive keys of ten or more
   // letters let it through (short words such as `v2` or `sdpa` would let nearly every text through).
   for (const family of FAMILIES) {
-    for (const key of family.signature ?? []) {
+    for (const key of [...(family.signature ?? []), ...family.classes.flatMap((c) => c.signature ?? [])]) {
       const segs = keySegments(key);
       const id = segs.join('.');
       if (id.length < 10 || seen.has(id)) continue;

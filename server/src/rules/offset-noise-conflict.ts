@@ -1,6 +1,6 @@
 import { fmt } from './format';
 import { defineRule, type ConceptFix, type RuleMeta } from './types';
-import { RETRAIN_NOTE, discreteSchedule, zeroSnrFix } from './util';
+import { RETRAIN_NOTE, assumedNote, discreteSchedule, scheduleConcepts, zeroSnrFix } from './util';
 
 const docs = `
 ## What triggers it
@@ -85,7 +85,7 @@ export const offsetNoiseConflict = defineRule({
     if (zeroSnr) {
       return [
         {
-          message: `offset noise ${fmt(offset.value)} on a schedule that already reaches zero terminal SNR: the offset no longer fixes anything and makes the training noise differ from the Gaussian noise sampling starts from`,
+          message: `offset noise ${fmt(offset.value)} on a schedule that already reaches zero terminal SNR: the offset no longer fixes anything and makes the training noise differ from the Gaussian noise sampling starts from${assumedNote(setup, [...scheduleConcepts(setup), 'zeroTerminalSnr'])}`,
           at: 'offsetNoise',
           severity: 'warning',
           fixes: [remove],
@@ -96,7 +96,7 @@ export const offsetNoiseConflict = defineRule({
     const leak = schedule ? ` (signal amplitude at the last step is ${fmt(schedule.terminalSignal)})` : '';
     return [
       {
-        message: `offset noise ${fmt(offset.value)} works around a schedule that never reaches pure noise${leak}; rescaling the schedule to zero terminal SNR removes the cause without changing the noise distribution`,
+        message: `offset noise ${fmt(offset.value)} works around a schedule that never reaches pure noise${leak}; rescaling the schedule to zero terminal SNR removes the cause without changing the noise distribution${schedule ? assumedNote(setup, [...scheduleConcepts(setup), 'zeroTerminalSnr']) : ''}`,
         at: 'offsetNoise',
         severity: 'info',
         fixes: principled ? [{ ...principled, preferred: true }, remove] : [remove],

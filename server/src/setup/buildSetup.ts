@@ -206,7 +206,16 @@ function build(doc: ParsedDocument, opts: BuildSetupOptions, setup: Setup): Setu
     if (reading?.cls || reading?.components) assumeClassDefaults(setup, decided, reading);
     assumeDefaults(setup, decided, doc.root, opts);
   }
+  if (setup.consumer) fillCannotExpress(setup.consumer.cannotExpress, setup.fields.sampleSteps?.value);
   return setup;
+}
+
+/** The profile's "what to change instead" sentences, with the document's own step count in them. */
+function fillCannotExpress(texts: NonNullable<Setup['consumer']>['cannotExpress'], steps: unknown): void {
+  const n = typeof steps === 'number' && Number.isInteger(steps) && steps > 0 ? String(steps) : '250';
+  for (const [concept, text] of Object.entries(texts) as [Concept, string][]) {
+    if (text.includes('{steps}')) texts[concept] = text.replaceAll('{steps}', n);
+  }
 }
 
 /** A value the consuming class reads differently from the alias table (`linear` in the latent-diffusion code). */

@@ -126,7 +126,7 @@ export const GUIDED_DIFFUSION_CLASS: ConsumerClass = {
     betaStart: 'the linear schedule of this code has no start or end setting: its range is 1e-4 to 0.02 scaled by 1000 / diffusion_steps',
     betaEnd: 'the linear schedule of this code has no start or end setting: its range is 1e-4 to 0.02 scaled by 1000 / diffusion_steps',
     timestepSpacing:
-      'write timestep_respacing as a step count ("250" instead of "ddim250"): its steps then run evenly from T - 1 down to 0, ' +
+      'write timestep_respacing as a step count ("{steps}" instead of "ddim{steps}"): its steps then run evenly from T - 1 down to 0, ' +
       'and use_ddim keeps the DDIM update',
     sampleSteps: 'the step count is part of timestep_respacing: write it there as a string ("250", "ddim250")',
     guidanceRescale: 'the sampling scripts of this code have no classifier-free guidance rescale',

@@ -256,12 +256,210 @@ export const SD_SCRIPTS_CLASS: ConsumerClass = {
   },
 };
 
+/**
+ * The arguments of the open diffusion library's example training scripts
+ * (examples/text_to_image/train_text_to_image.py, train_text_to_image_lora.py,
+ * train_text_to_image_sdxl.py, examples/dreambooth/train_dreambooth*.py), dumped as YAML or JSON
+ * (for a launcher, or the tracker config the script logs with `vars(args)`).
+ *
+ * How the script reads them (checked against a stored copy of huggingface/diffusers
+ * examples/text_to_image/train_text_to_image.py; the other scripts' extra keys recalled from
+ * memory):
+ * - The training schedule is not an argument: `DDPMScheduler.from_pretrained(
+ *   pretrained_model_name_or_path, subfolder="scheduler")` loads the base model's own
+ *   scheduler/scheduler_config.json. Its T, betas and rescale flag are whatever that file says;
+ *   there is no zero-terminal-SNR argument.
+ * - `--prediction_type` (str, default None): None keeps the scheduler config's own target;
+ *   otherwise `register_to_config(prediction_type=...)`, and the loss then accepts exactly
+ *   "epsilon" or "v_prediction" (anything else raises ValueError at the first step).
+ * - `--snr_gamma` (float, default None: plain MSE): min(SNR, gamma) / SNR weights, with SNR + 1 in
+ *   place of SNR for v_prediction (Hang et al. 2023, section 3.4 and 4.2).
+ * - `--noise_offset` (float, default 0; `if args.noise_offset:`).
+ * - `--resolution` (int, default 512; 1024 in the SDXL script): the square crop of the training images.
+ * - Validation images come from the pipeline built on the same base model with 20 steps
+ *   (`num_inference_steps=20`) and that model's scheduler: no spacing, step or guidance argument.
+ * Everything else (optimizer, EMA, dataset, logging, hub) is taken and ignored by this tool.
+ */
+const DIFFUSERS_EXAMPLE_KEYS = [
+  // models
+  'pretrained_model_name_or_path',
+  'pretrained_vae_model_name_or_path',
+  'revision',
+  'variant',
+  'non_ema_revision',
+  'cache_dir',
+  // data
+  'dataset_name',
+  'dataset_config_name',
+  'train_data_dir',
+  'image_column',
+  'caption_column',
+  'max_train_samples',
+  'resolution',
+  'center_crop',
+  'random_flip',
+  'image_interpolation_mode',
+  'proportion_empty_prompts',
+  'dataloader_num_workers',
+  // DreamBooth
+  'instance_data_dir',
+  'instance_prompt',
+  'class_data_dir',
+  'class_prompt',
+  'with_prior_preservation',
+  'prior_loss_weight',
+  'num_class_images',
+  'sample_batch_size',
+  'train_text_encoder',
+  // validation
+  'validation_prompt',
+  'validation_prompts',
+  'num_validation_images',
+  'validation_epochs',
+  'validation_steps',
+  // training
+  'output_dir',
+  'seed',
+  'train_batch_size',
+  'num_train_epochs',
+  'max_train_steps',
+  'gradient_accumulation_steps',
+  'gradient_checkpointing',
+  'learning_rate',
+  'scale_lr',
+  'lr_scheduler',
+  'lr_warmup_steps',
+  'lr_num_cycles',
+  'lr_power',
+  'snr_gamma',
+  'dream_training',
+  'dream_detail_preservation',
+  'use_8bit_adam',
+  'allow_tf32',
+  'use_ema',
+  'offload_ema',
+  'foreach_ema',
+  'adam_beta1',
+  'adam_beta2',
+  'adam_weight_decay',
+  'adam_epsilon',
+  'max_grad_norm',
+  'prediction_type',
+  'noise_offset',
+  'input_perturbation',
+  'timestep_bias_strategy',
+  'timestep_bias_multiplier',
+  'timestep_bias_begin',
+  'timestep_bias_end',
+  'timestep_bias_portion',
+  'rank',
+  'mixed_precision',
+  'enable_xformers_memory_efficient_attention',
+  'checkpointing_steps',
+  'checkpoints_total_limit',
+  'resume_from_checkpoint',
+  // logging and hub
+  'logging_dir',
+  'report_to',
+  'tracker_project_name',
+  'local_rank',
+  'push_to_hub',
+  'hub_token',
+  'hub_model_id',
+];
+
+const BASE_MODEL_SCHEDULE =
+  "the script loads the training schedule from the base model: DDPMScheduler.from_pretrained(pretrained_model_name_or_path, subfolder='scheduler')";
+const FROM_BASE_MODEL =
+  "the base model's scheduler config decides (the script loads DDPMScheduler.from_pretrained(pretrained_model_name_or_path, subfolder='scheduler')); " +
+  'assumed here: the usual latent text-to-image schedule without rescale (common practice)';
+const CHANGE_IN_BASE_MODEL = `${BASE_MODEL_SCHEDULE}: change it in that model's scheduler/scheduler_config.json`;
+const VALIDATION =
+  "validation images use the base model's own scheduler and pipeline with 20 steps (num_inference_steps=20 in the script): set it in the sampling code that uses the trained model";
+
+export const DIFFUSERS_EXAMPLES_CLASS: ConsumerClass = {
+  name: 'diffusers-example-scripts',
+  source:
+    'huggingface/diffusers examples/text_to_image/train_text_to_image.py (parse_args, the training loop); checked against a stored copy of the source, ' +
+    'the LoRA, SDXL and DreamBooth scripts recalled from memory',
+  keys: DIFFUSERS_EXAMPLE_KEYS,
+  conceptKeys: {
+    predictionTarget: 'prediction_type',
+    offsetNoise: 'noise_offset',
+    minSnrGamma: 'snr_gamma',
+    resolution: 'resolution',
+  },
+  defaults: {
+    trainSteps: 1000,
+    betaSchedule: 'scaled_linear',
+    betaStart: 0.00085,
+    betaEnd: 0.012,
+    zeroTerminalSnr: false,
+    predictionTarget: 'epsilon',
+    latentSpace: true,
+  },
+  defaultNotes: {
+    trainSteps: FROM_BASE_MODEL,
+    betaSchedule: FROM_BASE_MODEL,
+    betaStart: FROM_BASE_MODEL,
+    betaEnd: FROM_BASE_MODEL,
+    zeroTerminalSnr: FROM_BASE_MODEL,
+    predictionTarget:
+      "an absent or null prediction_type keeps the base model's scheduler config target; assumed epsilon, the usual one (common practice)",
+    latentSpace: "the script trains a latent model: it encodes the images with the base model's autoencoder (vae.encode)",
+  },
+  timesteps: 'standard',
+  valueMeanings: { prediction_type: { epsilon: 'epsilon', v_prediction: 'v' } },
+  enums: { prediction_type: ['epsilon', 'v_prediction'] },
+  cannotExpress: {
+    trainSteps: CHANGE_IN_BASE_MODEL,
+    betaSchedule: CHANGE_IN_BASE_MODEL,
+    betaStart: CHANGE_IN_BASE_MODEL,
+    betaEnd: CHANGE_IN_BASE_MODEL,
+    betas: CHANGE_IN_BASE_MODEL,
+    zeroTerminalSnr: `${BASE_MODEL_SCHEDULE}: set rescale_betas_zero_snr: true (and timestep_spacing: trailing) in that model's scheduler/scheduler_config.json`,
+    latentSpace: 'it trains latent-diffusion models through their autoencoder',
+    timestepSpacing: VALIDATION,
+    sampleSteps: VALIDATION,
+    guidanceScale: VALIDATION,
+    guidanceRescale: VALIDATION,
+  },
+  args: { scheduleFromBaseModel: true, writableValues: { predictionTarget: ['epsilon', 'v'] } },
+  // Keys these scripts use and the sd-scripts arguments do not.
+  signature: [
+    'snr_gamma',
+    'prediction_type',
+    'validation_prompt',
+    'validation_prompts',
+    'num_validation_images',
+    'validation_epochs',
+    'center_crop',
+    'random_flip',
+    'use_ema',
+    'non_ema_revision',
+    'enable_xformers_memory_efficient_attention',
+    'tracker_project_name',
+    'image_column',
+    'caption_column',
+    'dataset_config_name',
+    'input_perturbation',
+    'checkpoints_total_limit',
+    'instance_prompt',
+    'instance_data_dir',
+    'with_prior_preservation',
+    'proportion_empty_prompts',
+    'timestep_bias_strategy',
+    'dream_training',
+  ],
+  signatureMin: 3,
+};
+
 export const TRAINING_ARGS_FAMILY: ConsumerFamily = {
   id: 'training-args',
   title: 'training-script arguments (a TOML config file, or a YAML or JSON dump of the parsed arguments)',
   dialect: { yaml: 'pyyaml', json: 'python-json', toml: 'tomllib' },
   sectionPath: '',
-  classes: [SD_SCRIPTS_CLASS],
+  classes: [SD_SCRIPTS_CLASS, DIFFUSERS_EXAMPLES_CLASS],
   // Keys of these scripts that other argument sets do not share (shared ones such as learning_rate count for nothing).
   signature: [
     'v_parameterization',
