@@ -25,7 +25,10 @@
  * Everything else (learning rate, optimizer, network, dataset, saving) is taken and ignored by
  * this tool: an argument it does not model is never an error.
  */
-import type { ConsumerClass, ConsumerFamily } from '../types';
+import type { ConceptDefaults, ConsumerClass, ConsumerFamily } from '../types';
+
+/** The schedule of the common latent text-to-image models: scaled_linear 0.00085 -> 0.012 over T = 1000. */
+const LATENT_SCHEDULE: ConceptDefaults = { trainSteps: 1000, betaSchedule: 'scaled_linear', betaStart: 0.00085, betaEnd: 0.012 };
 
 const SOURCE =
   'kohya-ss sd-scripts, library/train_util.py (add_sd_models_arguments, add_training_arguments, add_dataset_arguments, ' +
@@ -224,10 +227,7 @@ export const SD_SCRIPTS_CLASS: ConsumerClass = {
     resolution: 'resolution',
   },
   defaults: {
-    trainSteps: 1000,
-    betaSchedule: 'scaled_linear',
-    betaStart: 0.00085,
-    betaEnd: 0.012,
+    ...LATENT_SCHEDULE,
     predictionTarget: 'epsilon',
     zeroTerminalSnr: false,
     latentSpace: true,
@@ -390,10 +390,7 @@ export const DIFFUSERS_EXAMPLES_CLASS: ConsumerClass = {
     resolution: 'resolution',
   },
   defaults: {
-    trainSteps: 1000,
-    betaSchedule: 'scaled_linear',
-    betaStart: 0.00085,
-    betaEnd: 0.012,
+    ...LATENT_SCHEDULE,
     zeroTerminalSnr: false,
     predictionTarget: 'epsilon',
     latentSpace: true,
