@@ -14,7 +14,7 @@ import { readAs } from '../../server/src/consumers/readAs';
 import { metaKeysOf } from '../../server/src/consumers/decide';
 import type { ComponentReading } from '../../server/src/consumers/components';
 import { applyEdits } from '../../server/src/fix';
-import type { LocatedNode, ScalarValue } from '../../server/src/parse/types';
+import type { LocatedMap, LocatedNode, ScalarValue } from '../../server/src/parse/types';
 
 export const CORPUS_ROOT = join(__dirname, 'corpus');
 const INPUT = /\.(json|jsonc|yaml|yml|toml)$/;
@@ -92,6 +92,7 @@ export function loadSection(text: string, path: string, choice?: ConsumerChoice)
   const reading = decideConsumer(doc, read.parsed.format, path, choice);
   readAs(doc.root, read.parsed.format, reading.decision.dialect);
   if (reading.components) return componentSection(reading.components);
+  if (reading.outsideGeneric && reading.section && doc.root?.kind === 'map') return nestedClassSection(doc.root, reading.section, reading);
   const section = reading.section ?? (doc.root && doc.root.kind === 'map' ? doc.root : null);
   let values = (section ? plain(section) : {}) as Record<string, unknown>;
   if (reading.flatSections) {
@@ -102,6 +103,34 @@ export function loadSection(text: string, path: string, choice?: ConsumerChoice)
     }
   }
   const accepted = reading.cls ? new Set([...reading.cls.keys, ...metaKeysOf(reading.family)]) : null;
+  return { values, accepted };
+}
+
+/**
+ * A class nested in a larger config (a scheduler instantiated from `_target_`): its own map as the
+ * class receives it (keys as written), and every other leaf of the document by its dotted path,
+ * read the generic way; accepted are the class's keys and every key outside its map.
+ */
+function nestedClassSection(
+  root: LocatedMap,
+  section: LocatedMap,
+  reading: ReturnType<typeof decideConsumer>,
+): { values: Record<string, unknown>; accepted: Set<string> } {
+  const values: Record<string, unknown> = {};
+  const accepted = new Set<string>([...(reading.cls?.keys ?? []), ...metaKeysOf(reading.family)]);
+  for (const e of section.entries) values[e.key] = plain(e.value);
+  const walk = (map: LocatedMap, prefix: string) => {
+    for (const e of map.entries) {
+      if (e.value === section) continue;
+      const path = prefix ? `${prefix}.${e.key}` : e.key;
+      if (e.value?.kind === 'map') walk(e.value, path);
+      else {
+        values[path] = plain(e.value);
+        accepted.add(path);
+      }
+    }
+  };
+  walk(root, '');
   return { values, accepted };
 }
 

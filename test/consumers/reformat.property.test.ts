@@ -78,7 +78,7 @@ function rewrites(text: string, seed: number): { name: string; text: string; pat
   ];
 }
 
-const clean = corpusFiles().filter((f) => f.kind === 'clean' && f.family === 'scheduler-config');
+const clean = corpusFiles().filter((f) => f.kind === 'clean' && f.family === 'scheduler-config' && f.path.endsWith('.json'));
 
 describe('reformatting a clean scheduler config keeps it clean', () => {
   it('has clean files to reformat', () => expect(clean.length).toBeGreaterThan(5));
@@ -146,7 +146,11 @@ function nestedRewrites(text: string, seed: number): { name: string; text: strin
   ];
 }
 
-const nestedClean = corpusFiles().filter((f) => f.kind === 'clean' && (f.family === 'config-object' || f.family === 'latent-diffusion'));
+// YAML files read through OmegaConf: latent-diffusion configs, and schedulers instantiated from a
+// nested map by Hydra (scheduler-config in YAML).
+const omegaconfYaml = (f: { family: string; path: string }) =>
+  f.family === 'latent-diffusion' || (f.family === 'scheduler-config' && f.path.endsWith('.yaml'));
+const nestedClean = corpusFiles().filter((f) => f.kind === 'clean' && (f.family === 'config-object' || omegaconfYaml(f)));
 
 describe('reformatting a clean config-object or latent-diffusion file keeps it clean', () => {
   it('has clean files to reformat', () => {
@@ -158,8 +162,8 @@ describe('reformatting a clean config-object or latent-diffusion file keeps it c
     const decision = base.documents[0]!.setup.consumer!.decision;
     const fields = (r: typeof base) => Object.fromEntries(Object.entries(r.documents[0]!.setup.fields).map(([k, f]) => [k, JSON.stringify(f.value)]));
     for (let seed = 1; seed <= 3; seed++) {
-      // The latent-diffusion code loads its configs with OmegaConf, from YAML only: no JSON variant.
-      const variants = nestedRewrites(file.text, seed).filter((v) => file.family !== 'latent-diffusion' || !v.path.endsWith('.json'));
+      // OmegaConf loads YAML only: no JSON variant for those files.
+      const variants = nestedRewrites(file.text, seed).filter((v) => !omegaconfYaml(file) || !v.path.endsWith('.json'));
       for (const variant of variants) {
         const result = analyzeText(variant.text, { path: `/studio/${variant.path}` });
         const loud = result.findings.filter((x) => x.severity === 'error' || x.severity === 'warning');

@@ -31,6 +31,11 @@ export interface ConsumerReading {
   role?: 'training' | 'sampling' | 'both';
   /** When the loader merges the first-level tables into one namespace: the section, then each table. */
   flatSections?: LocatedMap[];
+  /**
+   * The class reads only its section, a map nested in a larger config (a scheduler instantiated
+   * from `_target_`); every key outside it is read the generic way.
+   */
+  outsideGeneric?: boolean;
 }
 
 interface Detected {
@@ -40,6 +45,9 @@ interface Detected {
   evidence: string[];
   components?: ComponentReading[];
   role?: 'training' | 'sampling' | 'both';
+  /** The loader, when the evidence names it (Hydra's instantiation keys: OmegaConf). */
+  dialect?: DialectId;
+  outsideGeneric?: boolean;
 }
 
 function scalarString(node: LocatedNode | null | undefined): string | null {
@@ -95,7 +103,73 @@ function detectTargetConfig(root: LocatedMap): Detected | null {
 function detect(doc: ParsedDocument, path: string): Detected | null {
   const root = doc.root;
   if (!root || root.kind !== 'map') return null;
-  return detectSchedulerConfig(root, path) ?? detectTargetConfig(root) ?? detectComponents(root) ?? detectArgs(root, path);
+  return (
+    detectSchedulerConfig(root, path) ??
+    detectTargetConfig(root) ??
+    detectComponents(root) ??
+    detectInstantiatedScheduler(root) ??
+    detectArgs(root, path)
+  );
+}
+
+/** Keys of Hydra's `instantiate`: `_target_` names the class, the others steer instantiate itself. */
+export const INSTANTIATE_META_KEYS = ['_target_', '_partial_', '_recursive_', '_convert_', '_args_'];
+
+const MAX_INSTANTIATE_DEPTH = 4;
+
+/** Every map down to a small depth whose `_target_` (or `target` beside `params`) names a profiled scheduler class. */
+function instantiatedSchedulers(
+  node: LocatedNode | null | undefined,
+  path: string,
+  depth: number,
+  classes: ConsumerClass[],
+  out: { cls: ConsumerClass; section: LocatedMap; path: string; key: string; target: string }[],
+): void {
+  if (!node || node.kind !== 'map' || depth > MAX_INSTANTIATE_DEPTH || out.length > 1) return;
+  for (const key of ['_target_', 'target']) {
+    const target = scalarString(entryOf(node, key)?.value);
+    if (!target) continue;
+    const short = target.slice(target.lastIndexOf('.') + 1);
+    const cls = classes.find((c) => c.name === short);
+    if (!cls) continue;
+    // `_target_`: the keyword arguments sit beside it; `target`: they sit under `params`.
+    const section = key === '_target_' ? node : mapAt(node, 'params');
+    if (section) out.push({ cls, section, path, key, target });
+    return;
+  }
+  for (const e of node.entries) {
+    if (e.value?.kind === 'map') instantiatedSchedulers(e.value, path ? `${path}.${e.key}` : e.key, depth + 1, classes, out);
+  }
+}
+
+/**
+ * A scheduler class of the open diffusion library instantiated from a map nested in a larger
+ * config: Hydra's `_target_: diffusers.EulerDiscreteScheduler` with its keyword arguments beside
+ * it (loaded by OmegaConf), or `target:` with `params:`. That class reads that map, with its own
+ * defaults; the rest of the document (the pipeline call's steps and guidance) is read the generic
+ * way. A document with two such maps keeps the generic reading: which one samples is not known.
+ */
+function detectInstantiatedScheduler(root: LocatedMap): Detected | null {
+  const family = familyById('scheduler-config');
+  if (family.id === 'generic') return null;
+  const found: { cls: ConsumerClass; section: LocatedMap; path: string; key: string; target: string }[] = [];
+  instantiatedSchedulers(root, '', 0, family.classes, found);
+  if (found.length !== 1) return null;
+  const hit = found[0]!;
+  const where = hit.path ? ` at ${hit.path}` : '';
+  const evidence = [
+    `${hit.key}: ${hit.target}${where}: the class is called with ${hit.key === '_target_' ? 'the keys beside it' : 'its params'} as keyword arguments`,
+    'keys outside that map are read the generic way',
+  ];
+  const detected: Detected = { family, cls: hit.cls, section: hit.section, evidence, outsideGeneric: true };
+  // Both instantiation styles load the file with OmegaConf (Hydra; instantiate_from_config).
+  detected.dialect = 'omegaconf';
+  evidence.push(
+    hit.key === '_target_'
+      ? "_target_ is Hydra's instantiation key: Hydra loads the file with OmegaConf"
+      : 'target with params: loaded with OmegaConf and instantiated from it',
+  );
+  return detected;
 }
 
 function detectComponents(root: LocatedMap): Detected | null {
@@ -151,8 +225,10 @@ function chooseDialect(
   format: SourceFormat,
   family: ConsumerFamily,
   choice: ConsumerChoice | undefined,
+  fromFile?: DialectId,
 ): { id: DialectId; basis: ConsumerDecision['dialectBasis'] } {
   if (choice?.dialect) return { id: choice.dialect, basis: 'project' };
+  if (fromFile && format === 'yaml') return { id: fromFile, basis: 'file' };
   // TOML types its values by its own grammar: one loader whatever the consumer.
   if (format === 'toml')
     return { id: family.dialect.toml ?? 'tomllib', basis: family.id !== 'generic' && family.dialect.toml ? 'family' : 'extension' };
@@ -182,12 +258,14 @@ export function decideConsumer(doc: ParsedDocument, format: SourceFormat, path: 
     detected = { family, cls, section: same ? same.section : root, evidence };
     if (same?.components) detected.components = same.components;
     if (same?.role) detected.role = same.role;
+    if (same?.outsideGeneric) detected.outsideGeneric = true;
+    if (same?.dialect) detected.dialect = same.dialect;
     basis = 'project';
   } else if (detected) {
     basis = 'file';
   }
   const family = detected?.family ?? GENERIC_FAMILY;
-  const dialect = chooseDialect(format, family, choice);
+  const dialect = chooseDialect(format, family, choice, detected?.dialect);
   const evidence = detected?.evidence ?? ['no class-name key, target class path or known key set: read the generic way'];
   const cls = detected?.cls ?? null;
   const section = detected?.section ?? null;
@@ -210,10 +288,11 @@ export function decideConsumer(doc: ParsedDocument, format: SourceFormat, path: 
     ...(detected?.components ? { components: detected.components } : {}),
     ...(detected?.role ? { role: detected.role } : {}),
     ...flat,
+    ...(detected?.outsideGeneric ? { outsideGeneric: true } : {}),
   };
 }
 
 /** Keys of the consumer's section that the consumer itself treats as metadata (never "ignored"). */
 export function metaKeysOf(family: ConsumerFamily): string[] {
-  return family.id === 'scheduler-config' ? SCHEDULER_META_KEYS : [];
+  return family.id === 'scheduler-config' ? [...SCHEDULER_META_KEYS, ...INSTANTIATE_META_KEYS] : [];
 }

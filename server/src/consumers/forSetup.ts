@@ -31,8 +31,9 @@ export function ignoredKeysOf(reading: ConsumerReading): IgnoredKeyInfo[] {
   const meta = new Set(metaKeysOf(family));
   const taken = new Set(cls.keys);
   const out: IgnoredKeyInfo[] = [];
-  // Config-object classes are called with their params as keyword arguments: an unknown one raises.
-  const effect = reading.components ? 'instantiating it raises a TypeError' : 'the key has no effect';
+  // Config-object classes, and a class instantiated from a nested map, are called with their keys
+  // as keyword arguments: an unknown one raises.
+  const effect = reading.components || reading.outsideGeneric ? 'instantiating it raises a TypeError' : 'the key has no effect';
   for (const map of consumerMaps(reading)) {
     const entries = reading.flatSections ? map.entries : effectiveEntries(map).map((x) => x.entry);
     for (const e of entries) {
@@ -94,7 +95,7 @@ function sectionName(root: LocatedMap, map: LocatedMap): string {
  */
 export function consumerTakes(reading: ConsumerReading | undefined, entry: LocatedEntry, parent: LocatedMap): boolean {
   if (!reading || !reading.cls || !reading.section) return true;
-  if (!consumerMaps(reading).includes(parent) && !entriesOfSection(reading.section).has(entry)) return false;
+  if (!consumerMaps(reading).includes(parent) && !entriesOfSection(reading.section).has(entry)) return reading.outsideGeneric === true;
   if (metaKeysOf(reading.family).includes(entry.key)) return true;
   const args = reading.cls.args;
   if (args) {
@@ -147,10 +148,18 @@ export function classDefaults(cls: ConsumerClass, trainSteps?: number): { concep
   return out;
 }
 
-/** Key a fix writes for each concept under this class (null: the class cannot take it). */
-export function insertKeysOf(cls: ConsumerClass): { [C in Concept]?: string | null } {
+/**
+ * Key a fix writes for each concept under this class (null: the class cannot take it). With
+ * `outsideGeneric` (the class reads one nested map of a larger config), a concept the class does
+ * not take is left out: it is written the generic way, outside that map.
+ */
+export function insertKeysOf(cls: ConsumerClass, outsideGeneric = false): { [C in Concept]?: string | null } {
   const out: { [C in Concept]?: string | null } = {};
-  for (const concept of CONCEPTS) out[concept] = cls.conceptKeys[concept] ?? null;
+  for (const concept of CONCEPTS) {
+    const key = cls.conceptKeys[concept];
+    if (key) out[concept] = key;
+    else if (!outsideGeneric) out[concept] = null;
+  }
   return out;
 }
 

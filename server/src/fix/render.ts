@@ -359,7 +359,8 @@ class Renderer implements RemovalContext, InsertContext {
     const keys = map.entries.map((e) => e.key);
     // A consuming class with a profile takes its own spellings only (consumer profile stage).
     const consumerKeys = this.setup.consumer?.insertKeys;
-    const key = consumerKeys ? (consumerKeys[concept] ?? null) : insertKeyFor(concept, this.setup.keyStyle, keys);
+    const generic = !consumerKeys || (this.setup.consumer?.section !== undefined && !(concept in consumerKeys));
+    const key = generic ? insertKeyFor(concept, this.setup.keyStyle, keys) : (consumerKeys[concept] ?? null);
     if (key === null) giveUp(`no key to write ${concept}`);
     const squash = (s: string) => s.toLowerCase().replace(/[_-]/g, '');
     if (keys.some((k) => squash(k) === squash(key))) giveUp(`the map already has a key like ${key}`);
@@ -379,12 +380,21 @@ class Renderer implements RemovalContext, InsertContext {
    * root), and the last such entry in it, which the new entry follows.
    */
   private insertionPlace(concept: Concept): { map: LocatedMap; anchor: LocatedEntry | null } {
+    // A class nested in a larger config takes its own concepts in its own map, and nothing else
+    // there (it is called with that map as keyword arguments).
+    const section = this.setup.consumer?.section;
+    const insertKeys = this.setup.consumer?.insertKeys;
+    if (section && insertKeys && concept in insertKeys) {
+      const live = section.entries.filter((e) => !this.removed.has(e));
+      return { map: section, anchor: live.length > 0 ? live[live.length - 1]! : null };
+    }
     const sources: FieldSource[] = [];
     const sameGroup: FieldSource[] = [];
     const group = CONCEPT_GROUP[concept];
     for (const [name, field] of Object.entries(this.setup.fields) as [Concept, { source: FieldSource | null } | undefined][]) {
       const source = field?.source;
       if (!source || this.removed.has(source.entry) || !source.parent.entries.includes(source.entry)) continue;
+      if (section && source.parent === section) continue;
       sources.push(source);
       if (CONCEPT_GROUP[name] === group) sameGroup.push(source);
     }

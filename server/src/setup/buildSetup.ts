@@ -301,7 +301,8 @@ function consumerSummary(reading: ConsumerReading, loaderReadings: LoaderReading
   if (cls?.enums) out.enumSpellings = enumSpellingsOf(cls);
   const spellings = readingSpellings(reading);
   if (spellings) out.enumSpellings = { ...out.enumSpellings, ...spellings };
-  if (cls) out.insertKeys = insertKeysOf(cls);
+  if (cls) out.insertKeys = insertKeysOf(cls, reading.outsideGeneric === true);
+  if (reading.outsideGeneric && reading.section) out.section = reading.section;
   return { ...out, ...argsSummary(reading) };
 }
 

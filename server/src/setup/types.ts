@@ -84,8 +84,17 @@ export interface SetupConsumer {
   clampsZeroSnrSigma: boolean;
   /** The consumer's own spacing when it takes no spacing key. */
   fixedSpacing?: TimestepSpacing;
-  /** Key a fix writes for each concept; null: the consumer cannot take that concept. */
+  /**
+   * Key a fix writes for each concept; null: the consumer cannot take that concept; absent (with
+   * `section`): the concept is written the generic way, outside the class's section.
+   */
   insertKeys?: { [C in Concept]?: string | null };
+  /**
+   * The map the class reads when it is nested in a larger config that is otherwise read the
+   * generic way (a scheduler instantiated from `_target_`): a fix writes the class's concepts
+   * there and every other concept outside it.
+   */
+  section?: LocatedMap;
   /** The consumer's own spelling of each enum member, per key (`parameterization` -> v -> "v"). */
   enumSpellings?: Record<string, Record<string, string>>;
   /** What to change instead, per concept the consumer cannot take. */

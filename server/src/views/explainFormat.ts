@@ -161,7 +161,14 @@ export function consumerLines(setup: Setup): string[] {
   const lines = [`  read as: ${d.className ? `${d.className}, ` : ''}${d.familyTitle} (${how})`];
   for (const e of d.evidence) lines.push(`    evidence: ${e}`);
   if (d.classSource) lines.push(`    source: ${d.classSource}`);
-  const dialectHow = d.dialectBasis === 'project' ? 'project file' : d.dialectBasis === 'family' ? `usual loader of ${d.family}` : 'file extension';
+  const dialectHow =
+    d.dialectBasis === 'project'
+      ? 'project file'
+      : d.dialectBasis === 'family'
+        ? `usual loader of ${d.family}`
+        : d.dialectBasis === 'file'
+          ? 'evidence in the file'
+          : 'file extension';
   lines.push(`  loader: ${d.dialectTitle} (${dialectHow})`);
   for (const k of c.ignoredKeys) lines.push(`    ignored: ${k.key}: ${k.reason}`);
   for (const r of c.loaderReadings) {
