@@ -113,7 +113,7 @@ function detect(doc: ParsedDocument, path: string): Detected | null {
 }
 
 /** Keys of Hydra's `instantiate`: `_target_` names the class, the others steer instantiate itself. */
-export const INSTANTIATE_META_KEYS = ['_target_', '_partial_', '_recursive_', '_convert_', '_args_'];
+const INSTANTIATE_META_KEYS = ['_target_', '_partial_', '_recursive_', '_convert_', '_args_'];
 
 const MAX_INSTANTIATE_DEPTH = 4;
 
@@ -157,19 +157,16 @@ function detectInstantiatedScheduler(root: LocatedMap): Detected | null {
   if (found.length !== 1) return null;
   const hit = found[0]!;
   const where = hit.path ? ` at ${hit.path}` : '';
-  const evidence = [
-    `${hit.key}: ${hit.target}${where}: the class is called with ${hit.key === '_target_' ? 'the keys beside it' : 'its params'} as keyword arguments`,
-    'keys outside that map are read the generic way',
-  ];
-  const detected: Detected = { family, cls: hit.cls, section: hit.section, evidence, outsideGeneric: true };
+  const hydra = hit.key === '_target_';
   // Both instantiation styles load the file with OmegaConf (Hydra; instantiate_from_config).
-  detected.dialect = 'omegaconf';
-  evidence.push(
-    hit.key === '_target_'
+  const evidence = [
+    `${hit.key}: ${hit.target}${where}: the class is called with ${hydra ? 'the keys beside it' : 'its params'} as keyword arguments`,
+    'keys outside that map are read the generic way',
+    hydra
       ? "_target_ is Hydra's instantiation key: Hydra loads the file with OmegaConf"
       : 'target with params: loaded with OmegaConf and instantiated from it',
-  );
-  return detected;
+  ];
+  return { family, cls: hit.cls, section: hit.section, evidence, outsideGeneric: true, dialect: 'omegaconf' };
 }
 
 function detectComponents(root: LocatedMap): Detected | null {

@@ -76,6 +76,8 @@ export const offsetNoiseConflict = defineRule({
     const offset = setup.fields.offsetNoise;
     if (!offset || offset.assumed || !(offset.value > 0)) return [];
     const schedule = discreteSchedule(analysis);
+    // The schedule the comparison uses, named where it is assumed.
+    const assumed = assumedNote(setup, [...scheduleConcepts(setup), 'zeroTerminalSnr']);
     const zeroSnr = setup.fields.zeroTerminalSnr?.value === true || !!schedule?.reachesZeroSnr || analysis.schedule?.family === 'flow';
     const remove: ConceptFix = {
       title: `Remove offset noise ${RETRAIN_NOTE}`,
@@ -85,7 +87,7 @@ export const offsetNoiseConflict = defineRule({
     if (zeroSnr) {
       return [
         {
-          message: `offset noise ${fmt(offset.value)} on a schedule that already reaches zero terminal SNR: the offset no longer fixes anything and makes the training noise differ from the Gaussian noise sampling starts from${assumedNote(setup, [...scheduleConcepts(setup), 'zeroTerminalSnr'])}`,
+          message: `offset noise ${fmt(offset.value)} on a schedule that already reaches zero terminal SNR: the offset no longer fixes anything and makes the training noise differ from the Gaussian noise sampling starts from${assumed}`,
           at: 'offsetNoise',
           severity: 'warning',
           fixes: [remove],
@@ -96,7 +98,7 @@ export const offsetNoiseConflict = defineRule({
     const leak = schedule ? ` (signal amplitude at the last step is ${fmt(schedule.terminalSignal)})` : '';
     return [
       {
-        message: `offset noise ${fmt(offset.value)} works around a schedule that never reaches pure noise${leak}; rescaling the schedule to zero terminal SNR removes the cause without changing the noise distribution${schedule ? assumedNote(setup, [...scheduleConcepts(setup), 'zeroTerminalSnr']) : ''}`,
+        message: `offset noise ${fmt(offset.value)} works around a schedule that never reaches pure noise${leak}; rescaling the schedule to zero terminal SNR removes the cause without changing the noise distribution${schedule ? assumed : ''}`,
         at: 'offsetNoise',
         severity: 'info',
         fixes: principled ? [{ ...principled, preferred: true }, remove] : [remove],
