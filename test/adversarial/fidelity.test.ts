@@ -6,6 +6,8 @@
  */
 import { writeFileSync } from 'node:fs';
 import { join } from 'node:path';
+import type * as jsdiff from 'diff';
+import { applyPatch } from 'diff';
 import { afterAll, afterEach, describe, expect, it, vi } from 'vitest';
 import { analyzeText } from '../../server/src/engine/api';
 import { fixText } from '../../server/src/fix/loop';
@@ -16,6 +18,26 @@ import { runCli } from '../cli/check-helpers';
 import { removeTempDirs, tempDir } from './helpers';
 
 afterAll(removeTempDirs);
+
+/** The longest text handed to the diff library (jsdiff) in one call, watched through a pass-through mock. */
+const diffWork = vi.hoisted(() => ({ longest: 0, calls: 0 }));
+vi.mock('diff', async (importOriginal) => {
+  const real = await importOriginal<typeof jsdiff>();
+  const watched =
+    <A extends unknown[], R>(f: (...args: A) => R) =>
+    (...args: A): R => {
+      diffWork.calls++;
+      for (const a of args) if (typeof a === 'string') diffWork.longest = Math.max(diffWork.longest, a.length);
+      return f(...args);
+    };
+  return {
+    ...real,
+    structuredPatch: watched(real.structuredPatch),
+    createTwoFilesPatch: watched(real.createTwoFilesPatch),
+    createPatch: watched(real.createPatch),
+    diffLines: watched(real.diffLines),
+  };
+});
 
 /** A leading-spacing sampler on a scaled-linear schedule (invented Lanternfish Pictures data). */
 const LINES = [
@@ -165,5 +187,26 @@ describe('many documents in one file: no whole-text scan per fix', () => {
     const many = wholeTextScans(200);
     expect(many).toBe(few);
     expect(many).toBeLessThan(20);
+  });
+
+  it('the dry-run diff compares only the lines around each fix, never the whole texts', async () => {
+    const doc = LINES.slice(1, 10).join('\n');
+    const documents = 400;
+    const text = Array.from({ length: documents }, () => doc).join('\n---\n') + '\n';
+    const dir = tempDir('many-docs');
+    writeFileSync(join(dir, 'many.yaml'), text);
+    diffWork.longest = 0;
+    diffWork.calls = 0;
+    const r = await runCli(['fix', '--dry-run', 'many.yaml'], dir);
+    expect(r.code).toBe(1);
+    expect(r.stderr).toContain(`would apply ${documents} fixes`);
+    // One leading -> trailing per document, and the patch turns the text into the fixed one.
+    const patch = r.stdout;
+    expect(patch.match(/^\+ {2}timestep_spacing: trailing$/gm)).toHaveLength(documents);
+    expect(applyPatch(text, patch)).toBe(text.replaceAll('timestep_spacing: leading', 'timestep_spacing: trailing'));
+    // Each call sees one change with its context (about a dozen lines), not the 94 KB text.
+    expect(text.length).toBeGreaterThan(90_000);
+    expect(diffWork.calls).toBeGreaterThanOrEqual(documents);
+    expect(diffWork.longest).toBeLessThan(1_000);
   });
 });

@@ -6,6 +6,7 @@
 import type { Finding, FixEffect } from '../base/findings';
 import type { ParseProblem } from '../parse/types';
 import { applyEdits } from './apply';
+import { composeChanges, type TextChange } from './changes';
 import { allowedFix, FULL_CONSENT, selectFixes } from './select';
 
 export interface FixLoopOptions {
@@ -27,6 +28,8 @@ export interface AppliedFix {
 export interface FixLoopResult {
   /** The fixed text (the input when nothing applied or when it did not parse). */
   text: string;
+  /** Where `text` differs from the input, sorted (empty when nothing applied). */
+  changes: TextChange[];
   applied: AppliedFix[];
   /** The input has parse errors: nothing was applied. */
   parseError: ParseProblem | null;
@@ -63,6 +66,7 @@ export function fixText(text: string, analyze: Analyze, options: FixLoopOptions)
   const parseError = firstParseError(result);
   const out: FixLoopResult = {
     text,
+    changes: [],
     applied: [],
     parseError,
     initialFindings: result.findings,
@@ -97,6 +101,7 @@ export function fixText(text: string, analyze: Analyze, options: FixLoopOptions)
       break;
     }
     seen.add(next);
+    out.changes = composeChanges(out.changes, chosen);
     current = next;
     result = nextResult;
     out.applied.push(...appliedNow);

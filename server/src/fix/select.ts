@@ -5,7 +5,7 @@
  * position order. A fix that collides waits for the next round (the fix loop analyses again).
  */
 import type { Finding, FixProposal, TextEdit } from '../base/findings';
-import { anyConflict, sortEdits } from './apply';
+import { anyConflict, editsConflict, sortEdits } from './apply';
 
 /** The consents given for a run: sampling-only fixes that keep every comment need none. */
 export interface FixConsent {
@@ -46,18 +46,65 @@ function wellFormed(edits: readonly TextEdit[], textLength: number): boolean {
   return !own.some((e, i) => i > 0 && anyConflict([e], own.slice(0, i)));
 }
 
+/**
+ * The edits taken so far, sorted by start then end. Edits that do not conflict, sorted so, also
+ * have non-decreasing ends; so the edits a new one could collide with are found by a binary
+ * search and a short scan, and selecting among n fixes costs n log n instead of n squared.
+ */
+class TakenEdits {
+  readonly sorted: TextEdit[] = [];
+
+  /** The first index whose edit ends at or after `offset`. */
+  private firstEndingFrom(offset: number): number {
+    let lo = 0;
+    let hi = this.sorted.length;
+    while (lo < hi) {
+      const mid = (lo + hi) >> 1;
+      if (this.sorted[mid]!.span.end < offset) lo = mid + 1;
+      else hi = mid;
+    }
+    return lo;
+  }
+
+  conflicts(edits: readonly TextEdit[]): boolean {
+    for (const edit of edits) {
+      for (let i = this.firstEndingFrom(edit.span.start); i < this.sorted.length; i++) {
+        const other = this.sorted[i]!;
+        if (other.span.start > edit.span.end) break;
+        if (editsConflict(edit, other)) return true;
+      }
+    }
+    return false;
+  }
+
+  add(edits: readonly TextEdit[]): void {
+    for (const edit of edits) {
+      // After every edit that sorts before it or the same (start, then end).
+      let lo = 0;
+      let hi = this.sorted.length;
+      while (lo < hi) {
+        const mid = (lo + hi) >> 1;
+        const m = this.sorted[mid]!.span;
+        if (m.start < edit.span.start || (m.start === edit.span.start && m.end <= edit.span.end)) lo = mid + 1;
+        else hi = mid;
+      }
+      this.sorted.splice(lo, 0, edit);
+    }
+  }
+}
+
 /** At most one fix per finding, by the policy above. */
 export function selectFixes(findings: readonly Finding[], textLength: number, allow: (fix: FixProposal) => boolean): FixSelection {
-  const taken: TextEdit[] = [];
+  const taken = new TakenEdits();
   const selected: SelectedFix[] = [];
   const ordered = [...findings].sort((a, b) => a.span.start - b.span.start);
   for (const finding of ordered) {
     for (const fix of fixCandidates(finding.fixes, allow)) {
-      if (!wellFormed(fix.edits, textLength) || anyConflict(fix.edits, taken)) continue;
-      taken.push(...fix.edits);
+      if (!wellFormed(fix.edits, textLength) || taken.conflicts(fix.edits)) continue;
+      taken.add(fix.edits);
       selected.push({ finding, fix });
       break;
     }
   }
-  return { edits: sortEdits(taken), selected };
+  return { edits: taken.sorted, selected };
 }

@@ -27,7 +27,6 @@ import {
   type BigIntStats,
 } from 'node:fs';
 import { basename, dirname, join, resolve, sep } from 'node:path';
-import { createTwoFilesPatch } from 'diff';
 import { analyzeText, type FileResult } from '../../engine/api';
 import { fixText, type FixLoopResult } from '../../fix/loop';
 import { LineIndex } from '../../parse/lineIndex';
@@ -37,6 +36,7 @@ import { describeFsError, encodeText, nodeFs, readTextFile, type TextEncoding } 
 import { loadProject, ProjectFileError, type ResolvedProject } from '../../workspace/project';
 import type { CliIO } from '../io';
 import { helpText, parseCommandArgs, type CommandSpec } from '../options';
+import { unifiedPatch } from '../output/patch';
 import { printable, printableLine } from '../output/printable';
 import { displayPath } from '../output/report';
 import { WorkspaceSession } from '../../workspace/session';
@@ -159,7 +159,7 @@ export async function runFix(args: string[], io: CliIO): Promise<number> {
       continue;
     }
     if (options.dryRun) {
-      io.stdout(createTwoFilesPatch(`a/${name}`, `b/${name}`, original, result.text));
+      io.stdout(unifiedPatch(`a/${name}`, `b/${name}`, original, result.text, result.changes));
       report(`${name}: would apply ${what}\n`);
       filesChanged++;
       fixesApplied += count;

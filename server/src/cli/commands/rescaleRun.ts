@@ -13,15 +13,16 @@
  * disk, consent missing); 2 bad usage or an unreadable file.
  */
 import { resolve } from 'node:path';
-import { createTwoFilesPatch } from 'diff';
 import { analyzeText, readFile } from '../../engine/api';
 import { applyEdits } from '../../fix/apply';
+import { composeChanges } from '../../fix/changes';
 import { planRunRescale, RUN_FIXED_RULES } from '../../fix/runRescale';
 import { formatRunNumbers } from '../../views/runRescale';
 import type { PartnerDocument } from '../../rules/types';
 import { readRun, type RunFileRead } from '../../workspace/run';
 import { WorkspaceSession } from '../../workspace/session';
 import { UsageError, type CliIO } from '../io';
+import { unifiedPatch } from '../output/patch';
 import { displayPath } from '../output/report';
 import { writeAtomically } from './fix';
 import { parseCommandArgs, type CommandSpec } from '../options';
@@ -129,7 +130,9 @@ export async function runRescaleRun(args: string[], io: CliIO): Promise<number> 
   } else {
     for (const f of files) {
       const after = texts.get(f.abs);
-      if (after !== undefined) out.push(createTwoFilesPatch(`a/${f.shown}`, `b/${f.shown}`, f.text, after).replace(/\n$/, ''));
+      const edits = plan.files.find((p) => p.path === f.shown)?.textEdits;
+      if (after !== undefined && edits)
+        out.push(unifiedPatch(`a/${f.shown}`, `b/${f.shown}`, f.text, after, composeChanges([], edits)).replace(/\n$/, ''));
     }
     out.push('');
     out.push(`Changes in the ${run}${options.samplingOnly ? ' (sampling-only)' : ''}:`);
