@@ -2,7 +2,9 @@
 // Profiles one benchmark measurement with the V8 sampling profiler and prints the functions that
 // dominate (self time and inclusive time). Needs the harness bundle and the corpus that
 // `node bench/run.mjs --only a` leaves behind.
-//   node bench/profile.mjs core|command|command-workers|parse|ajv|lsp-analyze|lsp-server [--lines 5000] [--dir bench/monorepo]
+//   node bench/profile.mjs core|command|command-workers|parse|ajv|lsp-analyze|lsp-server [--lines 5000] [--dir bench/monorepo] [--passes 3]
+// --passes N runs the corpus measurements N times in the profiled process, so that most samples
+// are of warmed-up code, as in the bench's medians (the first pass includes compiling).
 import { spawnSync } from 'node:child_process';
 import { mkdirSync, mkdtempSync, readdirSync, readFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
@@ -18,6 +20,7 @@ const { values, positionals } = parseArgs({
     lines: { type: 'string', default: '5000' },
     child: { type: 'boolean', default: false },
     top: { type: 'string', default: '25' },
+    passes: { type: 'string', default: '1' },
   },
 });
 const what = positionals[0] ?? 'core';
@@ -27,13 +30,15 @@ const corpus = join(root, values.dir);
 if (values.child) {
   process.env.NOISELINT_REPO = root;
   const H = await import(pathToFileURL(harness).href);
-  if (what === 'core') H.coreCheck(corpus);
-  else if (what === 'command') await H.checkCommand(corpus, ['--workers', '1']);
-  else if (what === 'command-workers') await H.checkCommand(corpus);
-  else if (what === 'parse') H.parseOnly(corpus);
-  else if (what === 'ajv') H.schemaValidator(JSON.parse(readFileSync(join(root, 'bench/schema.json'), 'utf8')))(corpus);
-  else if (what === 'lsp-analyze') H.analyzeTimes(H.configText(7, 7, Number(values.lines)), join(root, 'build/bench/lsp/doc.yaml'), 10);
-  else throw new Error(`unknown measurement ${what}`);
+  for (let pass = 0; pass < Math.max(1, Number(values.passes)); pass++) {
+    if (what === 'core') H.coreCheck(corpus);
+    else if (what === 'command') await H.checkCommand(corpus, ['--workers', '1']);
+    else if (what === 'command-workers') await H.checkCommand(corpus);
+    else if (what === 'parse') H.parseOnly(corpus);
+    else if (what === 'ajv') H.schemaValidator(JSON.parse(readFileSync(join(root, 'bench/schema.json'), 'utf8')))(corpus);
+    else if (what === 'lsp-analyze') H.analyzeTimes(H.configText(7, 7, Number(values.lines)), join(root, 'build/bench/lsp/doc.yaml'), 10);
+    else throw new Error(`unknown measurement ${what}`);
+  }
   process.exit(0);
 }
 
@@ -58,7 +63,19 @@ if (what === 'lsp-server') {
 } else {
   const r = spawnSync(
     process.execPath,
-    ['--cpu-prof', `--cpu-prof-dir=${dir}`, fileURLToPath(import.meta.url), what, '--child', '--lines', values.lines, '--dir', values.dir],
+    [
+      '--cpu-prof',
+      `--cpu-prof-dir=${dir}`,
+      fileURLToPath(import.meta.url),
+      what,
+      '--child',
+      '--lines',
+      values.lines,
+      '--dir',
+      values.dir,
+      '--passes',
+      values.passes,
+    ],
     { stdio: 'inherit' },
   );
   if (r.status !== 0) process.exit(r.status ?? 1);

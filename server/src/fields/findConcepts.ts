@@ -222,6 +222,12 @@ function ownEntriesSuffice(map: LocatedMap): boolean {
   return true;
 }
 
+/** The last dotted segment of a key as written (the key itself when it has no dot). */
+function lastSegmentOf(key: string): string {
+  const dot = key.lastIndexOf('.');
+  return dot < 0 ? key : key.slice(dot + 1);
+}
+
 function matchEntry(
   candidates: readonly Candidate[],
   segs: readonly string[],
@@ -244,21 +250,19 @@ function matchEntry(
       keySpan: entry.keySpan,
       valueSpan: entry.aliasSpan ?? entry.value?.span ?? { start: entry.span.end, end: entry.span.end },
     };
-    const lastKey = entry.key.split('.').pop() ?? entry.key;
-    const keyStyle: KeySpellingStyle = isCamelCase(lastKey) ? 'camel' : c.alias.style;
-    const base = { source, alias: c.alias, extra: c.extra, keyStyle };
+    const keyStyle: KeySpellingStyle = isCamelCase(lastSegmentOf(entry.key)) ? 'camel' : c.alias.style;
     if (result.status === 'ok') {
       for (const v of result.values) {
-        const hit: ConceptHit = { ...base, concept: v.concept, status: 'ok', value: v.value };
+        const hit: ConceptHit = { concept: v.concept, source, alias: c.alias, extra: c.extra, keyStyle, status: 'ok', value: v.value };
         if (v.note) hit.note = v.note;
         hits.push(hit);
       }
     } else if (result.status === 'problem') {
       const problem: ConceptHit['problem'] = { kind: result.kind, message: result.message };
       if (result.suggestion !== undefined) problem.suggestion = result.suggestion;
-      hits.push({ ...base, concept: c.concept, status: 'problem', problem });
+      hits.push({ concept: c.concept, source, alias: c.alias, extra: c.extra, keyStyle, status: 'problem', problem });
     } else {
-      hits.push({ ...base, concept: c.concept, status: 'unset' });
+      hits.push({ concept: c.concept, source, alias: c.alias, extra: c.extra, keyStyle, status: 'unset' });
     }
     return true;
   }
