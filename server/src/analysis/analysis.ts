@@ -35,6 +35,7 @@ import {
 import { consumerTimesteps, karrasTimesteps } from '../consumers/timesteps';
 import type { BetaScheduleKind, TimestepSpacing } from '../fields/concepts';
 import { valueOf, type Setup } from '../setup/types';
+import { withProps } from '../base/objects';
 
 export type ScheduleFamily = 'discrete' | 'flow' | 'karras';
 
@@ -188,7 +189,7 @@ function analyzeDiscrete(setup: Setup, out: Analysis): void {
     return;
   }
   const rescaleApplied = valueOf(setup, 'zeroTerminalSnr') === true;
-  const current = computeSchedule({ ...params, rescaleZeroSnr: rescaleApplied });
+  const current = computeSchedule(withProps(params, { rescaleZeroSnr: rescaleApplied }));
   if (!current.ok) {
     out.scheduleProblems.push(current.problem);
     // The timesteps need only T: the step count and spacing are still checked.
@@ -210,7 +211,7 @@ function analyzeDiscrete(setup: Setup, out: Analysis): void {
     logSnrMin: n.logSnrMin,
     reachesZeroSnr: n.terminalSnr === 0,
   };
-  const rescaled = rescaleApplied ? current : computeSchedule({ ...params, rescaleZeroSnr: true });
+  const rescaled = rescaleApplied ? current : computeSchedule(withProps(params, { rescaleZeroSnr: true }));
   if (rescaled.ok) {
     const r = rescaled.value;
     out.rescaled = {

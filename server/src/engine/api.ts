@@ -10,6 +10,7 @@ import { analyzeSetup } from '../analysis/analysis';
 import type { Finding } from '../base/findings';
 import { runRules } from './engine';
 import type { AnalyzeOptions, DocumentResult, FileReading, FileResult } from './types';
+import { withProps } from '../base/objects';
 
 export type { AnalyzeOptions, DocumentResult, FileReading, FileResult } from './types';
 
@@ -25,8 +26,9 @@ export function readFile(text: string, options: AnalyzeOptions): FileReading {
   // A loader chosen in the project file types the scalars while parsing; otherwise the consumer
   // stage decides it from the tree and re-types them (consumers/readAs.ts).
   const parseOptions =
-    choice?.dialect && !options.parse?.interpret ? { ...options.parse, interpret: DIALECTS[choice.dialect].interpret } : options.parse;
-  const parsed = parseText(text, format, { ...options.project?.limits, ...options.limits }, parseOptions);
+    choice?.dialect && !options.parse?.interpret ? withProps(options.parse ?? {}, { interpret: DIALECTS[choice.dialect].interpret }) : options.parse;
+  const limits = options.limits ? withProps(options.project?.limits ?? {}, options.limits) : options.project?.limits;
+  const parsed = parseText(text, format, limits, parseOptions);
   const inheritance = inheritanceOf(options);
   const readings = parsed.documents.map((doc) => readDocument(doc, parsed, options.path, choice));
   parsed.problems = problemsForLoader(parsed.problems, readings);
@@ -80,7 +82,7 @@ function withInheritance(file: FileReading, options: AnalyzeOptions): FileReadin
     if (wanted) setup = inheritSetup(setup, wanted);
     return setup === d.setup ? d : { index: d.index, setup, analysis: analyzeSetup(setup) };
   });
-  return { ...file, documents, inheritance: wanted };
+  return withProps(file, { documents, inheritance: wanted });
 }
 
 /**
@@ -92,7 +94,7 @@ function withInheritance(file: FileReading, options: AnalyzeOptions): FileReadin
 export function analyzeRead(file: FileReading, options: AnalyzeOptions): FileResult {
   const read = withInheritance(file, options);
   const findings = runRules(read, options);
-  return { ...read, findings };
+  return withProps(read, { findings });
 }
 
 /**
@@ -110,6 +112,6 @@ export function findingsAsData(findings: readonly Finding[]): Finding[] {
 
 /** The whole pipeline, rules included. */
 export function analyzeText(text: string, options: AnalyzeOptions): FileResult {
-  const once = { ...options, inherit: inheritanceOf(options) };
+  const once = withProps(options, { inherit: inheritanceOf(options) });
   return analyzeRead(readFile(text, once), once);
 }

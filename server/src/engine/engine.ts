@@ -285,8 +285,14 @@ function renderFixes(fixes: ConceptFix[], parsed: ParsedFile, setup: Setup, onFa
     0,
     rendered.findIndex((f) => f.wanted),
   );
-  return rendered.map(({ wanted: _wanted, ...f }, i) => {
-    const proposal = { ...f, preferred: i === preferredIndex };
+  return rendered.map((f, i) => {
+    const proposal: FixProposal = {
+      title: f.title,
+      effect: f.effect,
+      touchesComment: f.touchesComment,
+      preferred: i === preferredIndex,
+      edits: f.edits,
+    };
     // Where the fix is handed out (LSP code actions), its result is parsed in full from here.
     rememberOrigin(proposal, parsed);
     return proposal;

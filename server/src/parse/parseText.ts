@@ -10,6 +10,7 @@ import { readYaml } from './yaml';
 import { readYamlFast } from './fastYaml';
 import { readJsonFast } from './fastJson';
 import { coreScalar, type ScalarInterpreter } from './scalars';
+import { withProps } from '../base/objects';
 
 /** Format from a file name or URI: `.yaml`/`.yml`, `.json`, `.jsonc`, `.toml` (case-insensitive). */
 export function formatFromPath(path: string): SourceFormat | null {
@@ -54,7 +55,7 @@ export function parseText(text: string, format: SourceFormat, limits?: Partial<P
         span: { start: 0, end: 0 },
         message: `File is larger than ${lim.maxFileBytes} bytes; it is not read.`,
       });
-      return { ...base, documents: [], problems, suppressions: [], comments: [] };
+      return withProps(base, { documents: [], problems, suppressions: [], comments: [] });
     }
     const interpret = options.interpret ?? coreScalar;
     const read =
@@ -89,7 +90,7 @@ export function parseText(text: string, format: SourceFormat, limits?: Partial<P
     p.span = { start, end };
   }
   problems.sort((a, b) => a.span.start - b.span.start || a.span.end - b.span.end);
-  return { ...base, documents, problems, suppressions, comments: comments.map((c) => ({ start: c.start, end: c.end })) };
+  return withProps(base, { documents, problems, suppressions, comments: comments.map((c) => ({ start: c.start, end: c.end })) });
 }
 
 const isHighSurrogate = (c: number) => c >= 0xd800 && c <= 0xdbff;

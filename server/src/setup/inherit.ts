@@ -13,6 +13,7 @@
  */
 import type { Concept, ConceptValues } from '../fields/concepts';
 import type { ResolvedField, Setup, SetupFields } from './types';
+import { copyOf, withProps } from '../base/objects';
 
 /** What a sampling document may take from its training partner. */
 export const INHERITED_CONCEPTS: readonly Concept[] = [
@@ -105,7 +106,7 @@ export function inheritedNote(from: string, item: Pick<InheritedValue, 'key' | '
  */
 export function inheritSetup(setup: Setup, inheritance: ScheduleInheritance): Setup {
   if (!setup.isDiffusionConfig || setup.role === 'training') return setup;
-  const fields: SetupFields = { ...setup.fields };
+  const fields: SetupFields = copyOf(setup.fields);
   const removed = new Set<Concept>();
   const taken: Concept[] = [];
   const byConcept = new Map(inheritance.values.map((v) => [v.concept, v]));
@@ -157,10 +158,9 @@ export function inheritSetup(setup: Setup, inheritance: ScheduleInheritance): Se
   if (fields.latentSpace?.assumed) take('latentSpace');
 
   if (taken.length === 0) return setup;
-  return {
-    ...setup,
+  return withProps(setup, {
     fields,
     assumed: setup.assumed.filter((c) => !removed.has(c)),
     inherited: { from: inheritance.from, concepts: taken },
-  };
+  });
 }

@@ -21,6 +21,7 @@ import { findPartners, MAX_AUTO_CANDIDATES, PairingMemo, roleOfSetups, type File
 import { clearProjectCache, DEFAULT_PROJECT, loadProject } from './projectFile';
 import type { ResolvedProject } from './types';
 import { globMatcher, relativePosix } from './selection';
+import { withProps } from '../base/objects';
 
 /** A file read and analysed without rules (a role probe or a partner). */
 interface Reading {
@@ -267,7 +268,7 @@ export class WorkspaceSession {
         if (doc.setup.isDiffusionConfig) partners.push({ path: shown, setup: doc.setup, analysis: doc.analysis });
       }
     }
-    return partners.length ? { pairRole: match.role, partners, paths: match.partners, texts } : { ...none, paths: match.partners };
+    return partners.length ? { pairRole: match.role, partners, paths: match.partners, texts } : withProps(none, { paths: match.partners });
   }
 
   // ------------------------------------------------------------------ checking a file
@@ -296,7 +297,7 @@ export class WorkspaceSession {
    * twice.
    */
   analyze(path: string, text: string, options: Omit<AnalyzeOptions, 'path'> & { project: ResolvedProject }): FileResult {
-    const full: AnalyzeOptions = { ...options, path };
+    const full: AnalyzeOptions = withProps(options, { path });
     const read = this.readings.get(path);
     const reusable = read && read.text === text && read.project === options.project && !options.format && !options.limits;
     return reusable ? analyzeRead(read.file, full) : analyzeText(text, full);
