@@ -126,4 +126,37 @@ describe('adversarial sizes', () => {
       expect(result.parsed.problems.length, format).toBeGreaterThan(0);
     }
   });
+
+  describe('memory in proportion to the input: a 3.7 MB YAML of 200,000 entries', () => {
+    const lines = [
+      '# Lanternfish Pictures: sweep of night storyboard runs (invented demo data)',
+      'num_train_timesteps: 1000',
+      'beta_schedule: scaled_linear',
+      'timestep_spacing: leading',
+      'num_inference_steps: 30',
+      'runs:',
+    ];
+    for (let i = 0; i < 200_000; i++) lines.push(`  run_${i}: ${(i % 997) / 1000}`);
+    const text = flat(`${lines.join('\n')}\n`);
+
+    it('check and fix --dry-run finish in a 128 MB heap (about 35x the file)', () => {
+      const dir = tempDir('sweep');
+      writeFileSync(join(dir, 'sweep.yaml'), text);
+      expect(text.length).toBeGreaterThan(3.5 * MB);
+      const check = runCli(['check', 'sweep.yaml'], { cwd: dir, heapMb: 128, killAfterMs: 120_000 });
+      expect(describeCrash(check), check.stderr.slice(-400)).toBeNull();
+      expect(check.stdout).toContain('sampler-skips-last-step');
+      const fix = runCli(['fix', '--dry-run', 'sweep.yaml'], { cwd: dir, heapMb: 128, killAfterMs: 120_000 });
+      expect(describeCrash(fix), fix.stderr.slice(-400)).toBeNull();
+      expect(fix.stdout).toMatch(/^\+timestep_spacing: trailing$/m);
+      expect(fix.stderr).toContain('would apply 1 fix');
+    }, 240_000);
+
+    it("a file's findings do not keep its tree (a fix remembers its parse without the tree)", () => {
+      const { result: findings, growthBytes } = retainedHeapGrowth(() => analyzeText(text, { path: 'sweep.yaml' }).findings);
+      expect(findings.some((f) => f.fixes.length > 0)).toBe(true);
+      // The tree of 200,000 entries is about 60 MB; the findings and the text they point into, a few.
+      expect(growthBytes, `kept ${(growthBytes / MB).toFixed(1)} MB`).toBeLessThan(12 * MB);
+    });
+  });
 });

@@ -102,6 +102,19 @@ describe('fast YAML reader agrees with the exact reader', () => {
     for (const text of cases) expectSameReading(text);
   });
 
+  it('on a text past 512 KiB (a sweep of 40,000 entries), and leaves one that may hold a list past the limit', () => {
+    const runs = Array.from({ length: 40_000 }, (_, i) => `  run_${i}: {lr: ${(i % 97) / 1e5}, tag: "night-${i}"}`);
+    const text = `# Lanternfish Pictures sweep (invented demo data)\nnum_train_timesteps: 1000\nbeta_schedule: scaled_linear\nruns:\n${runs.join('\n')}\n`;
+    expect(text.length).toBeGreaterThan(512 * 1024);
+    expect(takesFastPath(text)).toBe(true);
+    expectSameReading(text);
+    // More commas and dashes than the list limit: the exact reader only, parsed once.
+    const betas = `num_train_timesteps: 1000\ntrained_betas: [${Array(resolveLimits().maxListLength + 10)
+      .fill('1e-4')
+      .join(',')}]\n`;
+    expect(takesFastPath(betas)).toBe(false);
+  });
+
   it('gives up on the rare features it leaves to the exact reader', () => {
     const rare = [
       'a: &x 1\nb: *x\n',
@@ -265,6 +278,14 @@ describe('fast JSON reader agrees with the exact reader', () => {
       expect(takesFastJson(text, format)).toBe(true);
       expectSameReading(text, `config.${format}`);
     }
+  });
+
+  it('on a text past 512 KiB (40,000 entries)', () => {
+    const runs = Array.from({ length: 40_000 }, (_, i) => `"run_${i}": {"lr": ${(i % 97) / 1e5}, "tag": "night-${i}"}`);
+    const text = `{"num_train_timesteps": 1000, "beta_schedule": "scaled_linear", "runs": {${runs.join(', ')}}}`;
+    expect(text.length).toBeGreaterThan(512 * 1024);
+    expect(takesFastJson(text, 'json')).toBe(true);
+    expectSameReading(text, 'config.json');
   });
 
   it('on hand-picked shapes, and gives up where the exact reader has something to say', () => {

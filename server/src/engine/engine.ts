@@ -6,6 +6,7 @@
 import { CONCEPT_GROUP, type Concept } from '../fields/concepts';
 import { gateFixes } from '../consumers/gate';
 import { editsTouchComment, rememberOrigin, renderConceptEdits } from '../fix';
+import { syntaxBaseOf } from '../fix/syntaxCheck';
 import { LineIndex } from '../parse/lineIndex';
 import type { LocatedMap, LocatedNode, ParsedFile, Span } from '../parse/types';
 import { ALL_RULE_METAS, PARSE_ERROR_ID, RULES, UNKNOWN_RULE_IN_COMMENT_ID } from '../rules';
@@ -294,7 +295,7 @@ function renderFixes(fixes: ConceptFix[], parsed: ParsedFile, setup: Setup, onFa
       edits: f.edits,
     };
     // Where the fix is handed out (LSP code actions), its result is parsed in full from here.
-    rememberOrigin(proposal, parsed);
+    rememberOrigin(proposal, syntaxBaseOf(parsed));
     return proposal;
   });
 }

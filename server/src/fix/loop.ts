@@ -59,28 +59,37 @@ function firstParseError(result: Pick<LoopReading, 'parsed'>): ParseProblem | nu
   return result.parsed.problems.find((p) => p.severity === 'error') ?? null;
 }
 
+/**
+ * What the loop keeps of an analysis: its first parse error and its findings. The analysis itself
+ * (with the text's tree) is not held by the loop, so it can go before the next text is analysed.
+ */
+function kept(result: LoopReading): { parseError: ParseProblem | null; findings: readonly Finding[] } {
+  return { parseError: firstParseError(result), findings: result.findings };
+}
+
 export function fixText(text: string, analyze: Analyze, options: FixLoopOptions): FixLoopResult {
   const maxPasses = Math.max(1, options.maxPasses ?? DEFAULT_MAX_PASSES);
   const allow = allowedFix(options);
-  let result = analyze(text);
-  const parseError = firstParseError(result);
+  const first = kept(analyze(text));
+  const parseError = first.parseError;
   const out: FixLoopResult = {
     text,
     changes: [],
     applied: [],
     parseError,
-    initialFindings: result.findings,
+    initialFindings: first.findings,
     brokeText: false,
     remaining: 0,
     heldForRetraining: 0,
     heldForComments: 0,
   };
   if (parseError) return out;
+  let findings = first.findings;
   const seen = new Set<string>([text]);
   let current = text;
   for (let pass = 0; pass < maxPasses; pass++) {
     // A fix whose edits collide with one already chosen waits for the next round.
-    const { edits: chosen, selected } = selectFixes(result.findings, current.length, allow);
+    const { edits: chosen, selected } = selectFixes(findings, current.length, allow);
     const appliedNow: AppliedFix[] = selected.map(({ finding, fix }) => ({
       rule: finding.rule,
       title: fix.title,
@@ -95,19 +104,19 @@ export function fixText(text: string, analyze: Analyze, options: FixLoopOptions)
       break;
     }
     if (seen.has(next)) break; // no progress, or fixes undoing each other
-    const nextResult = analyze(next);
-    if (firstParseError(nextResult)) {
+    const nextResult = kept(analyze(next));
+    if (nextResult.parseError) {
       out.brokeText = true;
       break;
     }
     seen.add(next);
     out.changes = composeChanges(out.changes, chosen);
     current = next;
-    result = nextResult;
+    findings = nextResult.findings;
     out.applied.push(...appliedNow);
   }
   out.text = current;
-  for (const finding of result.findings) {
+  for (const finding of findings) {
     if (finding.fixes.some(allow)) out.remaining++;
     else if (!finding.fixes.some(allowedFix(FULL_CONSENT))) continue;
     // Held back: name the consent that is missing (comment edits when they alone would let a fix through).

@@ -19,9 +19,10 @@ import {
 import type { Finding, FixProposal, TextEdit } from '../base/findings';
 import { editsAreApplicable, fixKeepsSyntax, originOf } from '../fix/applicable';
 import { applyEdits } from '../fix/apply';
+import type { SyntaxBase } from '../fix/syntaxCheck';
 import { allowedFix, NO_CONSENT, selectFixes } from '../fix/select';
 import { formatFromPath, parseText } from '../parse';
-import type { ParsedFile, SourceFormat } from '../parse/types';
+import type { SourceFormat } from '../parse/types';
 import { FIX_ALL_KIND } from '../base/protocol';
 import { DIAGNOSTIC_SOURCE, fixToData, isDiagnosticData, spanToRange, type FixData, type PositionMapper } from './convert';
 
@@ -35,10 +36,10 @@ export interface CurrentFindings {
   format?: SourceFormat;
 }
 
-const currentParses = new WeakMap<Finding[], ParsedFile>();
+const currentParses = new WeakMap<Finding[], SyntaxBase>();
 
 /** The parse of the current text: the one the fixes were rendered from, else a parse made now. */
-function currentParse(current: CurrentFindings): ParsedFile {
+function currentParse(current: CurrentFindings): SyntaxBase {
   let parsed = currentParses.get(current.findings);
   if (parsed?.text === current.text) return parsed;
   parsed = undefined;

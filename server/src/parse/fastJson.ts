@@ -3,14 +3,12 @@
  * tree. It reads well-formed JSON (and, for `.jsonc`, comments and trailing commas) and gives up,
  * returning null, on anything else: a syntax error, a comment or trailing comma in a `.json`
  * file, a BOM, a control character in a string, whitespace JSON does not allow, nesting or lists
- * past the limits, a text over 512 KiB. The exact reader (json.ts, jsonc-parser) then reads the
+ * past the limits. The exact reader (json.ts, jsonc-parser) then reads the
  * file and reports what is wrong; the differential test keeps the two identical.
  */
 import { dropDuplicateKeys, type SourceComment } from './shared';
 import type { JsonReadResult } from './json';
 import type { LocatedEntry, LocatedList, LocatedMap, LocatedNode, LocatedScalar, ParseLimits, ParseProblem, SourceFormat } from './types';
-
-const MAX_FAST_LENGTH = 512 * 1024;
 
 class GiveUp extends Error {}
 const giveUp = (): never => {
@@ -28,7 +26,7 @@ interface Frame {
 }
 
 export function readJsonFast(text: string, format: SourceFormat, limits: ParseLimits): JsonReadResult | null {
-  if (text.length === 0 || text.length > MAX_FAST_LENGTH || text.charCodeAt(0) === 0xfeff) return null;
+  if (text.length === 0 || text.charCodeAt(0) === 0xfeff) return null;
   try {
     return new Reader(text, format === 'jsonc', limits).read();
   } catch (e) {

@@ -7,7 +7,8 @@
  * quoted scalars) and gives up, returning null, on anything rarer: a parse error, anchors,
  * aliases, tags, merge keys, several documents or explicit document markers, directives, a BOM,
  * block scalars, tabs, lone CR line ends, empty list items or keys, collection keys, lists longer
- * than the limit or nesting deeper than it, texts over 512 KiB. The caller then reads the text with the exact reader
+ * than the limit or nesting deeper than it, texts over 512 KiB with more commas and dashes than
+ * the list limit. The caller then reads the text with the exact reader
  * (yaml.ts), so the result is always the one that reader would give; a differential test keeps the
  * two identical (test/parse/fastParse.test.ts).
  */
@@ -33,10 +34,11 @@ const FLOW = 2;
 const MAX_KEY_LENGTH = 1000;
 
 /**
- * Larger texts go straight to the exact reader: configs are far smaller, and a huge file that
- * turns out to need the exact reader (a list past the limit) would otherwise be parsed twice.
+ * Above this length a text goes to the fast reader only when it cannot hold a list past the limit:
+ * js-yaml would make an event for every item before the reader gives up on the list, and the
+ * exact reader would then parse the text again. Below it, that cost is small.
  */
-const MAX_FAST_LENGTH = 512 * 1024;
+const LIST_CHECK_LENGTH = 512 * 1024;
 
 /** Why the fast reader gave up (for tests and profiles); the caller only needs null. */
 class Unsupported extends Error {}
@@ -53,10 +55,11 @@ interface ListFrame {
 }
 
 export function readYamlFast(text: string, limits: ParseLimits, interpret: ScalarInterpreter): YamlReadResult | null {
-  if (!quickEligible(text)) return null;
+  if (!quickEligible(text, limits)) return null;
   let events: Event[];
   try {
     // One level of slack: js-yaml counts the document's root collection as depth 1, as we do.
+    // The events are this reader's alone: build() empties the list as it goes.
     events = parseEvents(text, { maxDepth: limits.maxNesting });
   } catch {
     return null;
@@ -69,9 +72,20 @@ export function readYamlFast(text: string, limits: ParseLimits, interpret: Scala
   }
 }
 
+/** More than the items of every list in the text: each item but a flow list's first follows a comma or starts with "-". */
+function listItemsAtMost(text: string): number {
+  let n = 1;
+  for (let i = text.indexOf(','); i !== -1; i = text.indexOf(',', i + 1)) n++;
+  for (let i = text.indexOf('-'); i !== -1; i = text.indexOf('-', i + 1)) n++;
+  // Each "[" may open a list whose first item follows no comma.
+  for (let i = text.indexOf('['); i !== -1; i = text.indexOf('[', i + 1)) n++;
+  return n;
+}
+
 /** Cheap text checks for features the fast reader leaves to the exact one. */
-function quickEligible(text: string): boolean {
-  if (text.length === 0 || text.length > MAX_FAST_LENGTH || text.charCodeAt(0) === 0xfeff) return false;
+function quickEligible(text: string, limits: ParseLimits): boolean {
+  if (text.length === 0 || text.charCodeAt(0) === 0xfeff) return false;
+  if (text.length > LIST_CHECK_LENGTH && listItemsAtMost(text) > limits.maxListLength) return false;
   if (text.indexOf('\t') !== -1) return false;
   for (let i = text.indexOf('\r'); i !== -1; i = text.indexOf('\r', i + 1)) {
     if (text.charCodeAt(i + 1) !== 10) return false;
@@ -122,8 +136,11 @@ function build(text: string, events: Event[], limits: ParseLimits, interpret: Sc
     top.node.entries.push(entry);
   };
 
-  for (let i = 0; i < events.length; i++) {
-    const e = events[i]!;
+  // Each event is let go once read, so the tree grows while the events shrink.
+  const pending = events as (Event | undefined)[];
+  for (let i = 0; i < pending.length; i++) {
+    const e = pending[i]!;
+    pending[i] = undefined;
     switch (e.type) {
       case DOCUMENT:
         if (++documents > 1 || e.explicitStart || e.explicitEnd || e.directives.length > 0) throw new Unsupported('document markers');

@@ -278,6 +278,10 @@ export class WorkspaceSession {
    * own analysis, so each file is read and parsed once per run.
    */
   readText(path: string, project: ResolvedProject): TextReadResult {
+    // A large file's reading would not be kept: its own check is then its only parse.
+    if (this.readings.get(path) === undefined && (this.fs.stat(path)?.size ?? 0) > KEPT_READING_MAX_CHARS) {
+      return readTextFile(this.fs, path, project.limits.maxFileBytes);
+    }
     const read = this.reading(path);
     if (read && read.project === project) return { ok: true, text: read.text };
     // Unreadable (the reason is read again) or governed by another project than the probe's.
