@@ -3,9 +3,10 @@
 // peak RSS of `check` and `fix --dry-run` per MB of input for one large YAML file, and time
 // against documents per file (1,000 vs 10,000 documents: about 10x is linear). Ratios only,
 // measured in this run; peak RSS comes from the child's own resource usage.
-//   NOISELINT_BENCH_SCALE=0.1 scales the inputs down.
+//   NOISELINT_BENCH_SCALE=0.1 scales the inputs down; --no-write leaves bench/RESULTS.md alone
+//   (by default its "## Robustness" section is replaced, or appended after what run.mjs wrote).
 import { spawnSync } from 'node:child_process';
-import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { existsSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
@@ -57,13 +58,33 @@ writeFileSync(
 const few = measure(['fix', '--dry-run', 'few.yaml']);
 const many = measure(['fix', '--dry-run', 'many.yaml']);
 
-console.log('## Robustness');
-console.log('');
-console.log(`| measure | value |`);
-console.log(`|---|---:|`);
-console.log(`| input: YAML with ${entries} entries | ${mb.toFixed(2)} MB |`);
-console.log(`| check: peak RSS above a bare start, per MB of input | ${perMb(check).toFixed(1)}x |`);
-console.log(`| fix --dry-run: peak RSS above a bare start, per MB of input | ${perMb(fix).toFixed(1)}x |`);
-console.log(`| fix --dry-run time, ${small * 10} vs ${small} documents in one file (10 = linear) | ${(many.ms / few.ms).toFixed(1)}x |`);
-console.log(`| fix --dry-run peak RSS, ${small * 10} vs ${small} documents | ${(many.rss / few.rss).toFixed(1)}x |`);
+const checkPerMb = perMb(check);
+const fixPerMb = perMb(fix);
+const scaling = many.ms / few.ms;
+const verdict = (ok) => (ok ? 'met' : '**missed**');
+const section = [
+  '## Robustness',
+  '',
+  'Written by `node bench/robustness.mjs` (the last step of `npm run bench`): one large YAML file and',
+  `one file of many documents (invented Lanternfish Pictures data), each CLI run in its own child process.`,
+  '',
+  '| measure | value | target | |',
+  '|---|---:|---|---|',
+  `| input: YAML with ${entries} entries | ${mb.toFixed(2)} MB | | |`,
+  `| check: peak RSS above a bare start, per MB of input | ${checkPerMb.toFixed(1)}x | about 40x | ${verdict(checkPerMb <= 44)} |`,
+  `| fix --dry-run: peak RSS above a bare start, per MB of input | ${fixPerMb.toFixed(1)}x | about 40x | ${verdict(fixPerMb <= 44)} |`,
+  `| fix --dry-run time, ${small * 10} vs ${small} documents in one file | ${scaling.toFixed(1)}x | about 10x (linear) or less | ${verdict(scaling <= 12)} |`,
+  `| fix --dry-run peak RSS, ${small * 10} vs ${small} documents | ${(many.rss / few.rss).toFixed(1)}x | | |`,
+  '',
+].join('\n');
+console.log(section);
 rmSync(dir, { recursive: true, force: true });
+if (!process.argv.includes('--no-write')) {
+  const results = join(root, 'bench/RESULTS.md');
+  const before = existsSync(results) ? readFileSync(results, 'utf8') : '# Benchmark results\n';
+  const at = before.indexOf('\n## Robustness\n');
+  const kept = (at === -1 ? before : before.slice(0, at + 1)).replace(/\n*$/, '\n');
+  // Whatever followed the old section (a later "## " heading) stays after the new one.
+  const rest = at === -1 ? '' : before.slice(at + 1).replace(/^## Robustness\n[\s\S]*?(?=\n## |$)/, '').replace(/^\n+/, '');
+  writeFileSync(results, `${kept}\n${section}${rest ? `\n${rest}` : ''}`);
+}
