@@ -85,6 +85,12 @@ if (!process.argv.includes('--no-write')) {
   const at = before.indexOf('\n## Robustness\n');
   const kept = (at === -1 ? before : before.slice(0, at + 1)).replace(/\n*$/, '\n');
   // Whatever followed the old section (a later "## " heading) stays after the new one.
-  const rest = at === -1 ? '' : before.slice(at + 1).replace(/^## Robustness\n[\s\S]*?(?=\n## |$)/, '').replace(/^\n+/, '');
+  const rest =
+    at === -1
+      ? ''
+      : before
+          .slice(at + 1)
+          .replace(/^## Robustness\n[\s\S]*?(?=\n## |$)/, '')
+          .replace(/^\n+/, '');
   writeFileSync(results, `${kept}\n${section}${rest ? `\n${rest}` : ''}`);
 }
