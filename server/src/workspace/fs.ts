@@ -138,7 +138,7 @@ export type TextReadResult =
    * 'io': the file could not be read (missing, permission); callers treat it as an error.
    * 'skipped': the file was read but is not text we analyse (binary, not UTF-8, too large).
    */
-  | { ok: false; kind: 'io' | 'skipped'; problem: string };
+  | { ok: false; kind: 'io' | 'skipped'; problem: string; tooLarge?: true };
 
 const UTF8 = new TextDecoder('utf-8', { fatal: true, ignoreBOM: true });
 
@@ -157,6 +157,7 @@ export function readTextFile(fs: WorkspaceFs, path: string, maxBytes: number = D
       ok: false,
       kind: 'skipped',
       problem: `skipped: ${formatBytes(st.size)} is above the ${formatBytes(maxBytes)} limit (limits.maxFileBytes)`,
+      tooLarge: true,
     };
   }
   let bytes: Uint8Array;
@@ -168,7 +169,7 @@ export function readTextFile(fs: WorkspaceFs, path: string, maxBytes: number = D
   }
   // The size can change between stat and read, and some files report 0: keep the bound.
   if (bytes.length > maxBytes) {
-    return { ok: false, kind: 'skipped', problem: `skipped: above the ${formatBytes(maxBytes)} limit (limits.maxFileBytes)` };
+    return { ok: false, kind: 'skipped', problem: `skipped: above the ${formatBytes(maxBytes)} limit (limits.maxFileBytes)`, tooLarge: true };
   }
   return decodeText(bytes);
 }

@@ -22,6 +22,7 @@ import { clearProjectCache, DEFAULT_PROJECT, loadProject } from './projectFile';
 import type { ResolvedProject } from './types';
 import { globMatcher, relativePosix } from './selection';
 import { withProps } from '../base/objects';
+import { DEFAULT_PARSE_LIMITS } from '../parse/types';
 
 /** A file read and analysed without rules (a role probe or a partner). */
 interface Reading {
@@ -159,9 +160,13 @@ export class WorkspaceSession {
     let entry: Reading | null = null;
     try {
       const { project } = this.projectFor(path);
-      // A role probe of a large sibling is not worth its parse: such a file is not auto-paired.
-      if (purpose === 'role' && (this.fs.stat(path)?.size ?? 0) > ROLE_PROBE_MAX_BYTES) return null;
-      const read = readTextFile(this.fs, path, project.limits.maxFileBytes);
+      // A role probe of a large sibling is not worth its parse: such a file is not auto-paired,
+      // and it is not remembered, so its own check reads it in full. (Bounded by the read itself:
+      // a stat of its own cost as much as the rest of the read.)
+      const max = project.limits.maxFileBytes ?? DEFAULT_PARSE_LIMITS.maxFileBytes;
+      const bound = purpose === 'role' ? Math.min(ROLE_PROBE_MAX_BYTES, max) : max;
+      const read = readTextFile(this.fs, path, bound);
+      if (!read.ok && read.tooLarge && bound < max) return null;
       if (read.ok) {
         if (cached && cached.text === read.text && cached.project === project) entry = cached;
         else {
