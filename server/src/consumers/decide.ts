@@ -182,15 +182,16 @@ function detectComponents(root: LocatedMap): Detected | null {
  * with the most signature keys present wins, the first listed on a tie.
  */
 function detectArgs(root: LocatedMap, path: string): Detected | null {
+  const rootOnly = [root];
+  let flattened: LocatedMap[] | undefined;
   for (const family of [familyById('pixel-args'), familyById('training-args')]) {
     if (family.id === 'generic') continue;
     let best: { cls: ConsumerClass; hits: string[]; maps: LocatedMap[] } | null = null;
     for (const cls of family.classes) {
       const signature = cls.signature ?? family.signature;
       if (!signature) continue;
-      const maps = cls.args?.flattensSections ? flatMaps(root) : [root];
-      const keys = new Set(maps.flatMap((m) => m.entries.map((e) => e.key)));
-      const hits = signature.filter((k) => keys.has(k));
+      const maps = cls.args?.flattensSections ? (flattened ??= flatMaps(root)) : rootOnly;
+      const hits = signatureHits(signature, maps);
       if (hits.length < (cls.signatureMin ?? family.signatureMin ?? 2)) continue;
       if (!best || hits.length > best.hits.length) best = { cls, hits, maps };
     }
@@ -209,6 +210,22 @@ function detectArgs(root: LocatedMap, path: string): Detected | null {
     return { family, cls, section: root, evidence };
   }
   return null;
+}
+
+const SIGNATURE_SETS = new WeakMap<readonly string[], ReadonlySet<string>>();
+
+/** The keys of `signature` that some map of `maps` has, in the signature's order (nothing is built for a file that has none). */
+function signatureHits(signature: readonly string[], maps: readonly LocatedMap[]): string[] {
+  let wanted = SIGNATURE_SETS.get(signature);
+  if (!wanted) {
+    wanted = new Set(signature);
+    SIGNATURE_SETS.set(signature, wanted);
+  }
+  let present: Set<string> | null = null;
+  for (const m of maps) for (const e of m.entries) if (wanted.has(e.key)) (present ??= new Set()).add(e.key);
+  if (!present) return [];
+  const found = present;
+  return signature.filter((k) => found.has(k));
 }
 
 /** The root and its first-level tables, for a loader that merges them into one namespace. */
