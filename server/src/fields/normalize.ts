@@ -34,6 +34,18 @@ export function keySegmentsOf(key: string): readonly string[] {
 const SEGMENTS_MEMO_ENTRIES = 20_000;
 const SEGMENTS_MEMO = new Map<string, readonly string[]>();
 
+/** normalizeKeySegment of a whole key (dots dropped too), memoised like keySegmentsOf. */
+export function normalizedSegmentOf(key: string): string {
+  let k = SEGMENT_MEMO.get(key);
+  if (k === undefined) {
+    if (SEGMENT_MEMO.size >= SEGMENTS_MEMO_ENTRIES) SEGMENT_MEMO.clear();
+    k = normalizeKeySegment(key);
+    SEGMENT_MEMO.set(key, k);
+  }
+  return k;
+}
+const SEGMENT_MEMO = new Map<string, string>();
+
 /** The whole key in comparable form (segments joined by dots), memoised like keySegmentsOf. */
 export function normalizedKeyOf(key: string): string {
   let k = NORMALIZED_MEMO.get(key);

@@ -36,7 +36,7 @@ import {
 import type { LoaderReading } from '../consumers/readAs';
 import type { Concept, ConceptValues } from '../fields/concepts';
 import { findConcepts, type ConceptHit } from '../fields/findConcepts';
-import { keySegments, normalizeKeySegment } from '../fields/normalize';
+import { keySegments, normalizedSegmentOf, normalizeKeySegment } from '../fields/normalize';
 import { BETA_SCHEDULE_SPELLINGS, PREDICTION_TARGET_SPELLINGS, TIMESTEP_SPACING_SPELLINGS } from '../fields/aliases';
 import { lookupSpelling, valueKindOf } from '../fields/values';
 import type { LocatedNode, ParsedDocument } from '../parse/types';
@@ -64,6 +64,7 @@ import {
   ZERO_SNR_NOTE,
 } from './defaults';
 import type { ConfigRole, FieldSource, ResolvedField, Setup, SetupFields, ValueProblem } from './types';
+import { withProps } from '../base/objects';
 
 export interface BuildSetupOptions {
   /** Extra key spellings per concept (project file); dotted path suffixes allowed. */
@@ -116,7 +117,8 @@ export function buildSetup(doc: ParsedDocument, opts: BuildSetupOptions = {}): S
 
 interface Decided {
   hit: ConceptHit;
-  signature: string;
+  /** signatureOf(hit), computed when a second hit for the concept needs it. */
+  signature?: string;
 }
 
 /** Keys that stand for one concept in the alias table but are separate settings (clip vs dynamic thresholding). */
@@ -139,10 +141,9 @@ function build(doc: ParsedDocument, opts: BuildSetupOptions, setup: Setup): Setu
       if (!nullKeys[hit.concept]) (nullKeys as Record<string, FieldSource>)[hit.concept] = toSource(hit);
       continue;
     }
-    const signature = signatureOf(hit);
     const first = decided.get(hit.concept);
     if (!first) {
-      decided.set(hit.concept, { hit, signature });
+      decided.set(hit.concept, { hit });
       if (hit.status === 'ok') {
         setField(fields, hit.concept, hit.value as ConceptValues[Concept], toSource(hit), hit.note);
         // A value the consumer reads one way although it is written unsafely (a flag as a string).
@@ -154,7 +155,9 @@ function build(doc: ParsedDocument, opts: BuildSetupOptions, setup: Setup): Setu
       }
       continue;
     }
-    if (first.hit.source.entry === hit.source.entry || first.signature === signature) continue;
+    if (first.hit.source.entry === hit.source.entry) continue;
+    const signature = signatureOf(hit);
+    if ((first.signature ??= signatureOf(first.hit)) === signature) continue;
     if (SEPARATE_SETTING_CONCEPTS.has(hit.concept) && normalizeKeySegment(hit.source.key) !== normalizeKeySegment(first.hit.source.key)) {
       // Two different settings (clip_sample, thresholding): on when either is on; never a duplicate.
       if (hit.status === 'ok' && hit.value === true && fields[hit.concept]?.value !== true) {
@@ -303,7 +306,7 @@ function consumerSummary(reading: ConsumerReading, loaderReadings: LoaderReading
   if (spellings) out.enumSpellings = { ...out.enumSpellings, ...spellings };
   if (cls) out.insertKeys = insertKeysOf(cls, reading.outsideGeneric === true);
   if (reading.outsideGeneric && reading.section) out.section = reading.section;
-  return { ...out, ...argsSummary(reading) };
+  return withProps(out, argsSummary(reading));
 }
 
 /**
@@ -386,13 +389,13 @@ function roleOf(root: LocatedNode | null, present: (c: Concept) => boolean): Con
   const sampling = SAMPLING_CONCEPTS.some(present);
   if (!training && root && root.kind === 'map') {
     outer: for (const e of root.entries) {
-      if (TRAINING_SECTIONS.has(normalizeKeySegment(e.key))) {
+      if (TRAINING_SECTIONS.has(normalizedSegmentOf(e.key))) {
         training = true;
         break;
       }
       if (e.value && e.value.kind === 'map') {
         for (const e2 of e.value.entries) {
-          if (TRAINING_SECTIONS.has(normalizeKeySegment(e2.key))) {
+          if (TRAINING_SECTIONS.has(normalizedSegmentOf(e2.key))) {
             training = true;
             break outer;
           }
@@ -511,7 +514,7 @@ function findLatentKey(root: LocatedNode | null): string | null {
     const { node, depth } = stack.pop()!;
     if (node.kind === 'map') {
       for (const e of node.entries) {
-        const seg = normalizeKeySegment(e.key);
+        const seg = normalizedSegmentOf(e.key);
         if (LATENT_KEY_HINTS.some((h) => seg.includes(h))) return e.key;
         if (e.value && e.value.kind !== 'scalar' && depth < 3) stack.push({ node: e.value, depth: depth + 1 });
       }
