@@ -41,9 +41,10 @@ export function runRules(file: FileReading, options: AnalyzeOptions, hooks: Engi
     }
   };
   const findings: Finding[] = [];
-  let lines: LineIndex | null = null;
+  // Built only when a finding has no field to point at, or the file has suppression comments.
+  let lineIndex: LineIndex | null = null;
+  const lines = (): LineIndex => (lineIndex ??= new LineIndex(file.parsed.text));
   try {
-    lines = new LineIndex(file.parsed.text);
     const project = options.project;
     const enabled = (id: string) => (!hooks.only || hooks.only.includes(id)) && project?.rules?.[id]?.severity !== 'off';
 
@@ -72,7 +73,7 @@ export function runRules(file: FileReading, options: AnalyzeOptions, hooks: Engi
         const ctx: RuleContext = {
           setup: doc.setup,
           analysis: doc.analysis,
-          options: ruleOptions(rule.meta, project),
+          options: optionsFor(rule.meta, project),
           partners: options.partners ?? [],
           pairRole: options.pairRole,
         };
@@ -100,11 +101,32 @@ export function runRules(file: FileReading, options: AnalyzeOptions, hooks: Engi
     report('engine', error);
   }
   try {
-    return finish(findings, file.parsed, lines ?? new LineIndex(file.parsed.text));
+    return finish(findings, file.parsed, lines);
   } catch (error) {
     report('engine', error);
     return findings;
   }
+}
+
+type RuleOptions = Readonly<Record<string, number | string | boolean>>;
+/** ruleOptions per project (a resolved project is never changed once made) and rule. */
+const OPTIONS_MEMO = new WeakMap<object, WeakMap<RuleMeta, RuleOptions>>();
+const NO_PROJECT = {};
+
+/** ruleOptions, memoised and frozen: every document of a run shares one object per rule. */
+function optionsFor(meta: RuleMeta, project: ResolvedProject | undefined): RuleOptions {
+  const key = project ?? NO_PROJECT;
+  let byRule = OPTIONS_MEMO.get(key);
+  if (!byRule) {
+    byRule = new WeakMap();
+    OPTIONS_MEMO.set(key, byRule);
+  }
+  let options = byRule.get(meta);
+  if (!options) {
+    options = Object.freeze(ruleOptions(meta, project));
+    byRule.set(meta, options);
+  }
+  return options;
 }
 
 /** Rule options: the rule's defaults, overridden by project settings of the same type. */
@@ -134,7 +156,7 @@ function toFinding(
   setup: Setup,
   parsed: ParsedFile,
   project: ResolvedProject | undefined,
-  lines: LineIndex,
+  lines: () => LineIndex,
   onFixFailure: (error: unknown) => void,
 ): Finding {
   const severity = configuredSeverity(meta.id, project) ?? validSeverity(result.severity) ?? meta.defaultSeverity;
@@ -169,7 +191,7 @@ export function fieldSpan(source: FieldSource): Span {
   return { ...source.keySpan };
 }
 
-function locate(result: RuleFinding, setup: Setup, parsed: ParsedFile, lines: LineIndex): Span {
+function locate(result: RuleFinding, setup: Setup, parsed: ParsedFile, lines: () => LineIndex): Span {
   if (result.source) return fieldSpan(result.source);
   if (result.at) {
     const field = setup.fields[result.at];
@@ -182,7 +204,7 @@ function locate(result: RuleFinding, setup: Setup, parsed: ParsedFile, lines: Li
     const section = enclosingKey(setup, result.at);
     if (section) return section;
   }
-  return firstLine(setup.documentSpan, parsed.text, lines);
+  return firstLine(setup.documentSpan, parsed.text, lines());
 }
 
 /**
@@ -364,11 +386,11 @@ function unknownIdFindings(file: FileReading, project: ResolvedProject | undefin
 
 const SEVERITY_RANK: Record<Severity, number> = { error: 0, warning: 1, info: 2, hint: 3 };
 
-function finish(findings: Finding[], parsed: ParsedFile, lines: LineIndex): Finding[] {
+function finish(findings: Finding[], parsed: ParsedFile, lines: () => LineIndex): Finding[] {
   const suppressions = parsed.suppressions ?? [];
   const suppressed = (f: Finding) => {
     if (suppressions.length === 0) return false;
-    const line = lines.lineAt(f.span.start);
+    const line = lines().lineAt(f.span.start);
     return suppressions.some((s) => (s.rules.includes('*') || s.rules.includes(f.rule)) && (s.scope === 'file' || s.targetLine === line));
   };
   const seen = new Set<string>();
