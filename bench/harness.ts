@@ -160,6 +160,19 @@ export function analyzeCpuMs(text: string, path: string, runs: number): number {
   return (d.user + d.system) / 1000 / runs;
 }
 
+/**
+ * CPU milliseconds per text of `analyzeText` over `measured`, after one unmeasured pass over
+ * `warm`: the same texts, in the same order, that the language server is sent in bench (b), so
+ * both sides see the same JIT warm-up and the same schedule caches.
+ */
+export function analyzeSequenceCpuMs(warm: readonly string[], measured: readonly string[], path: string): number {
+  for (const text of warm) analyzeText(text, { path });
+  const t0 = process.cpuUsage();
+  for (const text of measured) analyzeText(text, { path });
+  const d = process.cpuUsage(t0);
+  return (d.user + d.system) / 1000 / measured.length;
+}
+
 /** analyzeText time of one text, repeated (the in-process part of a diagnostics round trip). */
 export function analyzeTimes(text: string, path: string, runs: number): number[] {
   const out: number[] = [];
