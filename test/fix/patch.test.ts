@@ -59,6 +59,20 @@ function editsOf(n: number, cuts: number[], texts: string[]): TextEdit[] {
   return edits;
 }
 
+type Round = [number[], string[]];
+
+/** The text after every round of edits, and the changes composed round by round. */
+function applyRounds(start: string, rs: readonly Round[]): { current: string; changes: TextChange[] } {
+  let current = start;
+  let changes: TextChange[] = [];
+  for (const [cuts, texts] of rs) {
+    const edits = editsOf(current.length, cuts, texts);
+    current = applyEdits(current, edits);
+    changes = composeChanges(changes, edits);
+  }
+  return { current, changes };
+}
+
 const rounds = fc.array(fc.tuple(fc.array(fc.nat(), { maxLength: 8 }), fc.array(insert, { minLength: 1, maxLength: 4 })), {
   minLength: 1,
   maxLength: 4,
@@ -90,13 +104,7 @@ describe('composeChanges', () => {
   it('over any rounds of edits, the changes are sorted, apart, and rebuild the new text', () => {
     fc.assert(
       fc.property(text, rounds, (start, rs) => {
-        let current = start;
-        let changes: TextChange[] = [];
-        for (const [cuts, texts] of rs) {
-          const edits = editsOf(current.length, cuts, texts);
-          current = applyEdits(current, edits);
-          changes = composeChanges(changes, edits);
-        }
+        const { current, changes } = applyRounds(start, rs);
         for (let k = 1; k < changes.length; k++) {
           // Changes that touch are merged: an unchanged gap of at least one character separates them.
           expect(changes[k]!.oldStart).toBeGreaterThan(changes[k - 1]!.oldEnd);
@@ -113,13 +121,7 @@ describe('unifiedPatch', () => {
   it('jsdiff applies it (the old text becomes the new one) and every hunk sits at its line numbers, over any rounds of edits', () => {
     fc.assert(
       fc.property(text, rounds, (start, rs) => {
-        let current = start;
-        let changes: TextChange[] = [];
-        for (const [cuts, texts] of rs) {
-          const edits = editsOf(current.length, cuts, texts);
-          current = applyEdits(current, edits);
-          changes = composeChanges(changes, edits);
-        }
+        const { current, changes } = applyRounds(start, rs);
         if (current === start) return;
         // Also with an edit-length bound of 1, where every stretch is shown removed and added whole.
         for (const bound of [undefined, 1]) {
