@@ -12,8 +12,8 @@
  */
 import { dirname, join, relative, resolve, sep } from 'node:path';
 import { compileGlob, GlobError, globBase, hasGlobSyntax, parseIgnore, type IgnoreRules } from './glob';
-import { describeFsError, nodeFs, type WorkspaceFs } from './fs';
-import { PROJECT_FILE_NAMES, loadProject } from './projectFile';
+import { describeFsError, nodeFs, type DirEntry, type WorkspaceFs } from './fs';
+import { PROJECT_FILE_NAMES, loadProjectOfListedFolder } from './projectFile';
 import type { ResolvedProject } from './types';
 
 export const CONFIG_EXTENSIONS = ['.yaml', '.yml', '.json', '.jsonc', '.toml'] as const;
@@ -170,7 +170,7 @@ function walk(root: string, state: WalkState, select: ((file: string) => boolean
     entries.sort((a, b) => (a.name < b.name ? -1 : a.name > b.name ? 1 : 0));
     const own = entries.some((e) => e.name === '.gitignore' && e.kind === 'file') ? loadIgnoreLayer(dir, state.fs, state.warnings) : null;
     const layers = own ? [...inherited, own] : inherited;
-    const project = state.project ?? safeProject(dir, state.fs);
+    const project = state.project ?? safeProject(dir, entries, state.fs);
     const subdirs: string[] = [];
     for (const entry of entries) {
       if (++state.entries > state.maxEntries) {
@@ -204,9 +204,9 @@ function walk(root: string, state: WalkState, select: ((file: string) => boolean
 }
 
 /** Discovery must not fail on a bad project file: check reports it when it loads the project. */
-function safeProject(dir: string, fs: WorkspaceFs): ResolvedProject | undefined {
+function safeProject(dir: string, entries: readonly DirEntry[], fs: WorkspaceFs): ResolvedProject | undefined {
   try {
-    return loadProject(join(dir, '.'), fs);
+    return loadProjectOfListedFolder(dir, entries, fs);
   } catch {
     return undefined;
   }

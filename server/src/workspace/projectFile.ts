@@ -14,7 +14,7 @@ import { HARD_NESTING_CAP } from '../parse/shared';
 import type { ParseLimits } from '../parse/types';
 import { ALL_RULE_METAS } from '../rules';
 import type { RuleMeta } from '../rules/types';
-import { nodeFs, readTextFile, type WorkspaceFs } from './fs';
+import { nodeFs, readTextFile, type DirEntry, type WorkspaceFs } from './fs';
 import { checkGlob } from './glob';
 
 const shortGlob = (g: string) => (g.length > 60 ? `${g.slice(0, 59)}…` : g);
@@ -349,7 +349,7 @@ export function clearProjectCache(fs?: WorkspaceFs): void {
  * parent's answer, so a walk stops at the first folder already looked at (one walk to the top
  * per tree, not one per folder).
  */
-function governingProjectFile(folder: string, fs: WorkspaceFs): string | null | ProjectFileError {
+function governingProjectFile(folder: string, fs: WorkspaceFs, listed?: readonly DirEntry[]): string | null | ProjectFileError {
   const known = mapFor(governing, fs);
   const walked: string[] = [];
   let dir = folder;
@@ -359,7 +359,11 @@ function governingProjectFile(folder: string, fs: WorkspaceFs): string | null | 
     answer = known.get(dir);
     if (answer !== undefined) break;
     walked.push(dir);
-    const found = PROJECT_FILE_NAMES.map((name) => join(dir, name)).filter((p) => fs.stat(p)?.kind === 'file');
+    // The folder's own listing, when the caller has it, answers what a stat of each name would.
+    const found =
+      listed && dir === folder
+        ? PROJECT_FILE_NAMES.filter((name) => listed.some((e) => e.name === name && e.kind === 'file')).map((name) => join(dir, name))
+        : PROJECT_FILE_NAMES.map((name) => join(dir, name)).filter((p) => fs.stat(p)?.kind === 'file');
     if (found.length > 1) {
       const names = found.map((p) => p.slice(dir.length + 1)).join(' and ');
       answer = new ProjectFileError(found[0]!, '', `${names} are both in ${dir}; keep one`);
@@ -412,19 +416,27 @@ export function loadProjectOfFile(file: string, fs: WorkspaceFs = nodeFs): Resol
   return projectOfFolder(dirname(resolve(file)), fs);
 }
 
-function projectOfFolder(folder: string, fs: WorkspaceFs): ResolvedProject {
+/**
+ * loadProject for a folder whose entries the caller has just listed (discovery): no stat of the
+ * folder itself, and its own project file names are looked up in the listing.
+ */
+export function loadProjectOfListedFolder(folder: string, entries: readonly DirEntry[], fs: WorkspaceFs = nodeFs): ResolvedProject {
+  return projectOfFolder(resolve(folder), fs, entries);
+}
+
+function projectOfFolder(folder: string, fs: WorkspaceFs, listed?: readonly DirEntry[]): ResolvedProject {
   const cache = cacheFor(fs);
   let entry = cache.get(folder);
   if (!entry) {
-    entry = loadUncached(folder, fs);
+    entry = loadUncached(folder, fs, listed);
     cache.set(folder, entry);
   }
   if (entry instanceof ProjectFileError) throw entry;
   return entry;
 }
 
-function loadUncached(folder: string, fs: WorkspaceFs): CacheEntry {
-  const found = governingProjectFile(folder, fs);
+function loadUncached(folder: string, fs: WorkspaceFs, listed?: readonly DirEntry[]): CacheEntry {
+  const found = governingProjectFile(folder, fs, listed);
   if (found instanceof ProjectFileError) return found;
   // Every folder a project file (or the defaults of a file-system root) governs shares one project.
   const key = found ?? `defaults of ${parsePath(folder).root}`;
