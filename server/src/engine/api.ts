@@ -104,10 +104,11 @@ export function analyzeRead(file: FileReading, options: AnalyzeOptions): FileRes
  * findings' own numbers, spans and edits.
  */
 export function findingsAsData(findings: readonly Finding[]): Finding[] {
-  return findings.map((f) => ({
-    ...f,
-    fixes: f.fixes.map((x) => ({ title: x.title, effect: x.effect, touchesComment: x.touchesComment, preferred: x.preferred, edits: x.edits })),
-  }));
+  return findings.map((f) =>
+    withProps(f, {
+      fixes: f.fixes.map((x) => ({ title: x.title, effect: x.effect, touchesComment: x.touchesComment, preferred: x.preferred, edits: x.edits })),
+    }),
+  );
 }
 
 /** The whole pipeline, rules included. */

@@ -84,9 +84,37 @@ export function atOrAbove(s: Summary, severity: Severity): number {
 
 /** Path relative to the run's folder, with forward slashes (absolute when it is on another drive). */
 export function displayPath(cwd: string, path: string): string {
+  // The usual case, a discovered file below the run's folder, without path.relative's two resolves.
+  if (sep === '/' && plainlyBelow(cwd, path)) return path.slice(cwd.length + 1);
   const rel = relative(cwd, path);
   const shown = rel === '' ? '.' : isAbsolute(rel) ? path : rel;
   return sep === '/' ? shown : shown.split(sep).join('/');
+}
+
+/** Segments from `from` on are all real names: none empty, `.` or `..` (the path is already normal). */
+function normalFrom(path: string, from: number): boolean {
+  let start = from;
+  for (let i = from; i <= path.length; i++) {
+    if (i < path.length && path.charCodeAt(i) !== 47 /* / */) continue;
+    const n = i - start;
+    if (n === 0 || (n === 1 && path.charCodeAt(start) === 46) || (n === 2 && path.charCodeAt(start) === 46 && path.charCodeAt(start + 1) === 46))
+      return false;
+    start = i + 1;
+  }
+  return true;
+}
+
+let lastCwd = '';
+let lastCwdNormal = false;
+
+/** `path` is `cwd/rest` with both normal and `cwd` absolute (not the root): relative(cwd, path) is `rest`. */
+function plainlyBelow(cwd: string, path: string): boolean {
+  if (path.length <= cwd.length + 1 || path.charCodeAt(cwd.length) !== 47 || !path.startsWith(cwd)) return false;
+  if (cwd !== lastCwd) {
+    lastCwd = cwd;
+    lastCwdNormal = cwd.length > 1 && cwd.charCodeAt(0) === 47 && normalFrom(cwd, 1);
+  }
+  return lastCwdNormal && normalFrom(path, cwd.length + 1);
 }
 
 export interface Range {
