@@ -26,17 +26,29 @@ export type ScalarInterpreter = (raw: RawScalar) => ScalarValue;
 export const coreScalar: ScalarInterpreter = (raw) =>
   raw.style === 'plain' ? resolveCorePlain(raw.decoded ?? raw.source) : (raw.decoded ?? raw.source);
 
+// The core schema's patterns, made once: a regular expression literal inside the function would
+// be a new object for every scalar of every file.
+const CORE_NULL = /^(null|Null|NULL)$/;
+const CORE_TRUE = /^(true|True|TRUE)$/;
+const CORE_FALSE = /^(false|False|FALSE)$/;
+const CORE_INT = /^[-+]?[0-9]+$/;
+const CORE_OCTAL = /^0o[0-7]+$/;
+const CORE_HEX = /^0x[0-9a-fA-F]+$/;
+const CORE_FLOAT = /^[-+]?(\.[0-9]+|[0-9]+(\.[0-9]*)?)([eE][-+]?[0-9]+)?$/;
+const CORE_INF = /^[-+]?\.(inf|Inf|INF)$/;
+const CORE_NAN = /^\.(nan|NaN|NAN)$/;
+
 /** YAML 1.2 core schema resolution of a plain scalar's text. */
 export function resolveCorePlain(source: string): ScalarValue {
   const s = source.trim();
-  if (s === '' || s === '~' || /^(null|Null|NULL)$/.test(s)) return null;
-  if (/^(true|True|TRUE)$/.test(s)) return true;
-  if (/^(false|False|FALSE)$/.test(s)) return false;
-  if (/^[-+]?[0-9]+$/.test(s)) return Number(s);
-  if (/^0o[0-7]+$/.test(s)) return parseInt(s.slice(2), 8);
-  if (/^0x[0-9a-fA-F]+$/.test(s)) return parseInt(s.slice(2), 16);
-  if (/^[-+]?(\.[0-9]+|[0-9]+(\.[0-9]*)?)([eE][-+]?[0-9]+)?$/.test(s)) return Number(s);
-  if (/^[-+]?\.(inf|Inf|INF)$/.test(s)) return s.startsWith('-') ? -Infinity : Infinity;
-  if (/^\.(nan|NaN|NAN)$/.test(s)) return NaN;
+  if (s === '' || s === '~' || CORE_NULL.test(s)) return null;
+  if (CORE_TRUE.test(s)) return true;
+  if (CORE_FALSE.test(s)) return false;
+  if (CORE_INT.test(s)) return Number(s);
+  if (CORE_OCTAL.test(s)) return parseInt(s.slice(2), 8);
+  if (CORE_HEX.test(s)) return parseInt(s.slice(2), 16);
+  if (CORE_FLOAT.test(s)) return Number(s);
+  if (CORE_INF.test(s)) return s.startsWith('-') ? -Infinity : Infinity;
+  if (CORE_NAN.test(s)) return NaN;
   return s;
 }
