@@ -55,7 +55,11 @@ const ROLE_CONCEPTS: Partial<Record<ComponentRole, Concept[]>> = {
 };
 
 function entryOf(map: LocatedMap, key: string): LocatedEntry | undefined {
-  return map.entries.find((e) => e.key === key) ?? effectiveEntries(map).find((e) => e.entry.key === key)?.entry;
+  const own = map.entries.find((e) => e.key === key);
+  if (own) return own;
+  // Only a `<<` merge can bring in a key the map does not have itself.
+  if (!map.entries.some((e) => e.key === '<<')) return undefined;
+  return effectiveEntries(map).find((e) => e.entry.key === key)?.entry;
 }
 
 /** An entry of a component's params as OmegaConf sees it (own keys win over `<<` merges), with the map that holds it. */

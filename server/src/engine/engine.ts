@@ -65,6 +65,7 @@ export function runRules(file: FileReading, options: AnalyzeOptions, hooks: Engi
     }
 
     const rules = hooks.rules ?? RULES;
+    const partners = options.partners ?? [];
     for (const doc of file.documents) {
       if (!doc.setup.isDiffusionConfig) continue;
       for (const rule of rules) {
@@ -74,7 +75,7 @@ export function runRules(file: FileReading, options: AnalyzeOptions, hooks: Engi
           setup: doc.setup,
           analysis: doc.analysis,
           options: optionsFor(rule.meta, project),
-          partners: options.partners ?? [],
+          partners,
           pairRole: options.pairRole,
         };
         let results: RuleFinding[];

@@ -515,7 +515,7 @@ function findLatentKey(root: LocatedNode | null): string | null {
     if (node.kind === 'map') {
       for (const e of node.entries) {
         const seg = normalizedSegmentOf(e.key);
-        if (LATENT_KEY_HINTS.some((h) => seg.includes(h))) return e.key;
+        for (const hint of LATENT_KEY_HINTS) if (seg.includes(hint)) return e.key;
         if (e.value && e.value.kind !== 'scalar' && depth < 3) stack.push({ node: e.value, depth: depth + 1 });
       }
     } else if (node.kind === 'list' && depth < 3) {
