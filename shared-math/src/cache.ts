@@ -104,6 +104,11 @@ export class LruCache<K, V> {
     return this.map.size;
   }
 
+  /** The keys, least recently used first (a copy: the cache may be changed while it is read). */
+  keys(): K[] {
+    return [...this.map.keys()];
+  }
+
   clear(): void {
     this.map.clear();
     this.totalWeight = 0;

@@ -106,6 +106,8 @@ export class WorkspaceSession {
   private readonly readings: LruCache<string, Reading | null>;
   private readonly roles = new Map<string, FileRole>();
   private pairingMemo: PairingMemo | undefined;
+  /** The folder a folder-by-folder check is in (enterFolder). */
+  private folder: string | null = null;
   private readonly warned = new Set<string>();
   private readonly pairsChecked = new Set<ResolvedProject>();
   /** Pairing and project warnings, each once, in the order they were met. */
@@ -188,6 +190,18 @@ export class WorkspaceSession {
     if (entry === null || entry.text.length <= KEPT_READING_MAX_CHARS) this.readings.set(path, entry);
     else this.readings.delete(path);
     return entry;
+  }
+
+  /**
+   * A check that goes folder by folder says where it is: readings of other folders are let go
+   * (automatic partners are in the same folder, and roles are remembered apart from readings; a
+   * partner elsewhere is read again when needed), so the trees of a finished folder do not
+   * outlive it and garbage collection does not keep copying them.
+   */
+  enterFolder(folder: string): void {
+    if (folder === this.folder) return;
+    this.folder = folder;
+    for (const path of this.readings.keys()) if (dirname(path) !== folder) this.readings.delete(path);
   }
 
   /** The role of a config file: what the caller knows, else from its content (memoised). */

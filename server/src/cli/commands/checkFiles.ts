@@ -3,6 +3,7 @@
  * what happens to a file (unreadable, passed over, checked) goes to a sink, so a worker can record
  * it and the main thread replay it in file order, and the report is the same either way.
  */
+import { dirname } from 'node:path';
 import { findingsAsData, type FileResult } from '../../engine/api';
 import { SEVERITIES, type Severity } from '../../base/findings';
 import type { TextReadResult } from '../../workspace/fs';
@@ -77,6 +78,8 @@ export class FileChecker {
   }
 
   check(file: string, read: TextReadResult, sink: FileCheckSink): void {
+    // Files come folder by folder: what the session read for the folder before is let go.
+    this.session.enterFolder(dirname(file));
     const shown = displayPath(this.options.cwd, file);
     const project = this.projectOf(file);
     if (!read.ok) {
