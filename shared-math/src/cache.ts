@@ -63,6 +63,8 @@ export interface ScheduleNumbers {
 export class LruCache<K, V> {
   private readonly map = new Map<K, { value: V; weight: number }>();
   private totalWeight = 0;
+  /** The most recently used key: asked for again, it needs no reordering (hits repeat in runs). */
+  private newest: K | undefined;
 
   constructor(
     private readonly maxEntries: number,
@@ -72,8 +74,11 @@ export class LruCache<K, V> {
   get(key: K): V | undefined {
     const entry = this.map.get(key);
     if (entry === undefined) return undefined;
-    this.map.delete(key);
-    this.map.set(key, entry);
+    if (key !== this.newest || this.newest === undefined) {
+      this.map.delete(key);
+      this.map.set(key, entry);
+      this.newest = key;
+    }
     return entry.value;
   }
 
@@ -82,10 +87,12 @@ export class LruCache<K, V> {
     if (old !== undefined) {
       this.totalWeight -= old.weight;
       this.map.delete(key);
+      if (key === this.newest) this.newest = undefined;
     }
     if (weight > this.maxWeight) return;
     this.map.set(key, { value, weight });
     this.totalWeight += weight;
+    this.newest = key;
     for (const [oldestKey, oldest] of this.map) {
       if (this.map.size <= this.maxEntries && this.totalWeight <= this.maxWeight) break;
       this.map.delete(oldestKey);
@@ -98,6 +105,7 @@ export class LruCache<K, V> {
     if (old === undefined) return;
     this.totalWeight -= old.weight;
     this.map.delete(key);
+    if (key === this.newest) this.newest = undefined;
   }
 
   get size(): number {
@@ -112,6 +120,7 @@ export class LruCache<K, V> {
   clear(): void {
     this.map.clear();
     this.totalWeight = 0;
+    this.newest = undefined;
   }
 }
 
