@@ -7,7 +7,7 @@ import { readdirSync, readFileSync, statSync } from 'node:fs';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { analyzeText } from '../../server/src/engine/api';
-import { mayBeDiffusionConfig } from '../../server/src/engine/prefilter';
+import { builtinPrefilterNeedles, mayBeDiffusionConfig, normalizedText } from '../../server/src/engine/prefilter';
 import { formatFromPath } from '../../server/src/parse';
 import { loadProject } from '../../server/src/workspace/projectFile';
 import { writeMonorepo } from '../load/corpus';
@@ -79,5 +79,50 @@ describe('pre-filter before any parse', () => {
     // The project's own aliases count too.
     expect(mayBeDiffusionConfig('lanternfish_noise_curve: cosine\n')).toBe(false);
     expect(mayBeDiffusionConfig('lanternfish_noise_curve: cosine\n', { betaSchedule: ['lanternfish_noise_curve'] })).toBe(true);
+  });
+});
+
+describe('pre-filter search', () => {
+  // The plain search the trigram screen stands in front of: every segment of some needle appears
+  // in the normalised text. The screen may only save work, never change the answer.
+  const needles = builtinPrefilterNeedles();
+  const plain = (text: string) => text.includes('\\') || needles.some((segs) => segs.every((seg) => normalizedText(text).includes(seg)));
+
+  it('gives the plain search answer on texts built from pieces of the needles', () => {
+    const pieces = needles.flat();
+    let seed = 12345;
+    const next = () => (seed = (seed * 1103515245 + 12345) % 2 ** 31) / 2 ** 31;
+    let found = 0;
+    for (let k = 0; k < 3000; k++) {
+      const parts: string[] = [];
+      for (let j = 0; j < 1 + Math.floor(next() * 4); j++) {
+        const piece = pieces[Math.floor(next() * pieces.length)]!;
+        // A needle whole, cut short, or with one letter changed: near misses share most trigrams.
+        const cut = next();
+        const at = Math.floor(next() * piece.length);
+        const word = cut < 0.3 ? piece : cut < 0.6 ? piece.slice(0, at) : piece.slice(0, at) + 'q' + piece.slice(at + 1);
+        parts.push(`${word}_${Math.floor(next() * 100)}: x`);
+      }
+      const text = parts.join('\n');
+      const expected = plain(text);
+      if (expected) found++;
+      expect(mayBeDiffusionConfig(text)).toBe(expected);
+    }
+    // Both answers occur, so the comparison means something.
+    expect(found).toBeGreaterThan(100);
+    expect(found).toBeLessThan(2900);
+  });
+
+  it('gives the plain search answer on every file of a monorepo tree', () => {
+    const dir = makeTree({});
+    try {
+      const { files } = writeMonorepo(dir, 300);
+      for (const f of files) {
+        const text = readFileSync(f.path, 'utf8');
+        expect(mayBeDiffusionConfig(text)).toBe(plain(text));
+      }
+    } finally {
+      removeTree(dir);
+    }
   });
 });

@@ -71,6 +71,11 @@ function needlesFor(extra?: Partial<Record<Concept, readonly string[]>>): Needle
 }
 
 const builtinNeedles = needlesFor(undefined);
+
+/** The built-in needles: each a list of normalised key segments that must all appear (for tests). */
+export function builtinPrefilterNeedles(): Needles {
+  return builtinNeedles;
+}
 const extraCache = new WeakMap<object, Needles>();
 
 /** Lower case with every character but a-z and 0-9 dropped: the key normalisation, over a text. */
@@ -90,10 +95,15 @@ export function mayBeDiffusionConfig(text: string, extraAliases?: Partial<Record
     extraCache.set(extraAliases, needles);
   }
   const flat = normalizedText(text);
-  for (const segs of needles) {
+  // A config usually shows one of the first (shortest, commonest) needles: those are searched
+  // directly; the trigram set pays off for the long tail a text without any needle goes through.
+  let present: Uint32Array | null = null;
+  for (let n = 0; n < needles.length; n++) {
+    const segs = needles[n]!;
+    if (n === DIRECT_NEEDLES) present = trigramsOf(flat);
     let all = true;
     for (const seg of segs) {
-      if (flat.indexOf(seg) === -1) {
+      if ((present !== null && !mayContain(present, seg)) || flat.indexOf(seg) === -1) {
         all = false;
         break;
       }
@@ -101,6 +111,37 @@ export function mayBeDiffusionConfig(text: string, extraAliases?: Partial<Record
     if (all) return true;
   }
   return false;
+}
+
+/**
+ * Every three-character run of a normalised text, hashed into a bit set: a needle with a run the
+ * set lacks cannot be in the text, so most needles are ruled out without a search of the text
+ * (a hash collision only sends a needle on to the search; no needle that is there is ever missed).
+ */
+const TRIGRAM_BITS = 1 << 14;
+/** Needles searched before the trigram set is built. */
+const DIRECT_NEEDLES = 12;
+const trigramSet = new Uint32Array(TRIGRAM_BITS / 32);
+
+function trigramHash(s: string, i: number): number {
+  return ((s.charCodeAt(i) * 1031 + s.charCodeAt(i + 1)) * 1031 + s.charCodeAt(i + 2)) & (TRIGRAM_BITS - 1);
+}
+
+function trigramsOf(flat: string): Uint32Array {
+  trigramSet.fill(0);
+  for (let i = 0; i + 2 < flat.length; i++) {
+    const h = trigramHash(flat, i);
+    trigramSet[h >>> 5]! |= 1 << (h & 31);
+  }
+  return trigramSet;
+}
+
+function mayContain(present: Uint32Array, seg: string): boolean {
+  for (let i = 0; i + 2 < seg.length; i++) {
+    const h = trigramHash(seg, i);
+    if ((present[h >>> 5]! & (1 << (h & 31))) === 0) return false;
+  }
+  return true;
 }
 
 /**
