@@ -257,7 +257,7 @@ function analyzeDiscreteSampling(setup: Setup, out: Analysis, schedule: Schedule
   const ts = karras
     ? karrasTimesteps(schedule!.curve.alphaBar, steps, valueOf(setup, 'rho') ?? 7)
     : consumer
-      ? consumerTimesteps(consumer.timesteps, spacing, T, steps, stepsOffset, consumer.respacing)
+      ? consumerTimesteps(consumer.timesteps, spacing, T, steps, stepsOffset, consumer.respacing, consumer.originalSteps)
       : samplingTimesteps(spacing, T, steps, stepsOffset);
   if (!ts.ok) {
     out.samplingProblems.push(ts.problem);

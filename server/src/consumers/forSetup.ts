@@ -104,7 +104,7 @@ export function consumerTakes(reading: ConsumerReading | undefined, entry: Locat
     if (args.booleanConcepts?.[entry.key] || entry.key === args.respacingKey) return false;
     return Object.values(reading.cls.conceptKeys).includes(entry.key);
   }
-  return reading.cls.keys.includes(entry.key);
+  return reading.cls.keys.includes(entry.key) && !reading.cls.inertKeys?.includes(entry.key);
 }
 
 function short(source: string): string {
@@ -132,7 +132,9 @@ export function classDefaults(cls: ConsumerClass, trainSteps?: number): { concep
     if (value === undefined) continue;
     const note =
       concept === 'timestepSpacing' && !cls.conceptKeys.timestepSpacing && cls.fixedSpacing
-        ? `${cls.name} takes no timestep_spacing: its own step selection is ${cls.fixedSpacing}-like and starts at T - 1 (${short(cls.source)})`
+        ? cls.timesteps === 'lcm'
+          ? `${cls.name} does not read timestep_spacing: it takes every floor(T / original_inference_steps)-th step from the top, ${cls.fixedSpacing}-like (${short(cls.source)})`
+          : `${cls.name} takes no timestep_spacing: its own step selection is ${cls.fixedSpacing}-like and starts at T - 1 (${short(cls.source)})`
         : classDefaultNote(cls, concept, value);
     out.push({ concept, value, note });
   }
@@ -198,4 +200,21 @@ function respacingEntry(reading: ConsumerReading): LocatedEntry | null {
     if (e) return e;
   }
   return null;
+}
+
+/**
+ * The grid a latent consistency scheduler selects its sampling steps from (timesteps rule 'lcm'):
+ * original_inference_steps as the file writes it (a positive whole number), else the class default.
+ */
+export function originalStepsOf(reading: ConsumerReading): number | undefined {
+  const cls = reading.cls;
+  if (cls?.timesteps !== 'lcm') return undefined;
+  const fallback = cls.keyDefaults?.original_inference_steps;
+  for (const map of consumerMaps(reading)) {
+    const e = map.entries.find((x) => x.key === 'original_inference_steps');
+    if (!e) continue;
+    const v = e.value?.kind === 'scalar' ? e.value.value : null;
+    if (typeof v === 'number' && Number.isSafeInteger(v) && v > 0) return v;
+  }
+  return typeof fallback === 'number' ? fallback : undefined;
 }

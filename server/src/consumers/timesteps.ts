@@ -24,6 +24,12 @@ export type TimestepsResult = { ok: true; value: number[] } | { ok: false; probl
  *   The spacing is ignored: the class takes none.
  * - 'respaced' (improved-diffusion / guided-diffusion respace.py space_timesteps): the steps kept
  *   by the respacing string, noisiest first (shared-math respacedTimesteps).
+ * - 'lcm' (the latent consistency scheduler, diffusers scheduling_lcm.py LCMScheduler.set_timesteps,
+ *   read in a stored copy of the library): with O = original_inference_steps and k = floor(T / O),
+ *   the grid is (1..O) * k - 1, noisiest first, and the N steps are the grid's entries at indices
+ *   floor(j * (O / N)) for j = 0..N-1 (numpy's linspace(0, O, N, endpoint=False), floored). So the
+ *   first step is O * k - 1, which is T - 1 only when O divides T. The spacing and the offset are
+ *   not used. O > T and N > O raise ValueError in that code.
  * - otherwise the standard spacings.
  */
 export function consumerTimesteps(
@@ -33,7 +39,9 @@ export function consumerTimesteps(
   N: number,
   offset: number,
   respacing?: string,
+  originalSteps?: number,
 ): TimestepsResult {
+  if (rule === 'lcm') return lcmTimesteps(T, N, originalSteps ?? LCM_ORIGINAL_STEPS);
   if (rule === 'respaced' && respacing !== undefined) {
     const kept = respacedTimesteps(T, respacing);
     return kept.ok ? { ok: true, value: kept.value } : kept;
@@ -70,6 +78,21 @@ export function consumerTimesteps(
     return { ok: true, value: out };
   }
   return { ok: true, value: Array.from(standard.value) };
+}
+
+/** LCMScheduler's default original_inference_steps. */
+const LCM_ORIGINAL_STEPS = 50;
+
+function lcmTimesteps(T: number, N: number, O: number): TimestepsResult {
+  if (!Number.isSafeInteger(O) || O < 1) return { ok: false, problem: `original_inference_steps ${O} must be a positive whole number` };
+  if (O > T) return { ok: false, problem: `original_inference_steps ${O} is larger than the ${T} training steps: the scheduler raises an error` };
+  if (!Number.isSafeInteger(N) || N < 1) return { ok: false, problem: `${N} sampling steps: the scheduler needs a positive whole number` };
+  if (N > O) return { ok: false, problem: `${N} sampling steps are more than original_inference_steps ${O}: the scheduler raises an error` };
+  const k = Math.floor(T / O);
+  const step = O / N;
+  const out: number[] = [];
+  for (let j = 0; j < N; j++) out.push((O - Math.floor(j * step)) * k - 1);
+  return { ok: true, value: out };
 }
 
 /**

@@ -23,8 +23,10 @@ export type ConceptDefaults = { [C in Concept]?: ConceptValues[C] };
  *   steps from T - 1 down (see timesteps.ts).
  * - 'respaced': the pixel-model code's timestep respacing string (`"ddim50"`, `"250"`,
  *   `"10,15,20"`), see timesteps.ts.
+ * - 'lcm': the latent consistency scheduler's own selection from its original_inference_steps
+ *   grid, whatever the spacing says (see timesteps.ts).
  */
-export type TimestepRule = 'standard' | 'n-plus-one' | 'ldm-ddim' | 'flow' | 'even-from-last' | 'respaced';
+export type TimestepRule = 'standard' | 'n-plus-one' | 'ldm-ddim' | 'flow' | 'even-from-last' | 'respaced' | 'lcm';
 
 /** One consuming class or script (a scheduler class, a model class, an argument parser). */
 export interface ConsumerClass {
@@ -43,6 +45,11 @@ export interface ConsumerClass {
   timesteps: TimestepRule;
   /** Spacing used when the class reads no spacing key (fixed by its code). */
   fixedSpacing?: TimestepSpacing;
+  /**
+   * Keys the class accepts (so they are no error) but whose value its step selection never reads:
+   * they stand for no concept (LCMScheduler keeps timestep_spacing in its config and ignores it).
+   */
+  inertKeys?: string[];
   /** What a value means to this class when that differs from the alias table (key -> written -> tool's member). */
   valueMeanings?: Record<string, Record<string, string>>;
   /** Accepted values per key (as written), when the class checks them. */

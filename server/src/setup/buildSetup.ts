@@ -28,6 +28,7 @@ import {
   entriesOfSection,
   ignoredKeysOf,
   insertKeysOf,
+  originalStepsOf,
   readingDefaults,
   readingHits,
   readingProblems,
@@ -306,6 +307,8 @@ function consumerSummary(reading: ConsumerReading, loaderReadings: LoaderReading
   if (spellings) out.enumSpellings = { ...out.enumSpellings, ...spellings };
   if (cls) out.insertKeys = insertKeysOf(cls, reading.outsideGeneric === true);
   if (reading.outsideGeneric && reading.section) out.section = reading.section;
+  const originalSteps = originalStepsOf(reading);
+  if (originalSteps !== undefined) out.originalSteps = originalSteps;
   return withProps(out, argsSummary(reading));
 }
 

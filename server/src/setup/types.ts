@@ -101,6 +101,8 @@ export interface SetupConsumer {
   cannotExpress: { [C in Concept]?: string };
   /** The respacing string whose kept steps are the sampling timesteps (timesteps rule 'respaced'). */
   respacing?: string;
+  /** The grid of steps the consumer selects from (timesteps rule 'lcm': original_inference_steps). */
+  originalSteps?: number;
   /** Concepts read from a compound value: a fix cannot set them alone. */
   derivedConcepts?: Concept[];
   /** Values a fix may write per concept, where the consumer takes only some. */
