@@ -84,3 +84,14 @@ describe('LCMScheduler', () => {
     expect(skip.fixes).toEqual([]);
   });
 });
+
+describe('TCDScheduler', () => {
+  it('shares the grid: its saved config with timestep_spacing "leading" gets no sampler finding', () => {
+    // scheduling_tcd.py: the same constructor and the same set_timesteps grid as LCMScheduler.
+    const text = LCM_CONFIG.replace('"LCMScheduler"', '"TCDScheduler"').replace('0.22.0.dev0', '0.27.0');
+    const result = analyzeText(text, { path: '/studio/lanternfish-tcd/scheduler/scheduler_config.json' });
+    expect(result.documents[0]!.setup.consumer?.decision.className).toBe('TCDScheduler');
+    expect(result.documents[0]!.setup.consumer?.timesteps).toBe('lcm');
+    expect(result.findings.map((f) => f.rule)).not.toContain('sampler-skips-last-step');
+  });
+});

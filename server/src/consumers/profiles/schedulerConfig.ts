@@ -63,6 +63,45 @@ const enums = (extra: Record<string, string[]> = {}) => ({
   ...extra,
 });
 
+/**
+ * The consistency-distilled schedulers (LCMScheduler, Luo et al. 2023; TCDScheduler, Zheng et al.
+ * 2024, authors recalled from memory) share one constructor and one step selection: the original_inference_steps grid, which
+ * reads neither timestep_spacing nor steps_offset (both files read in stored copies of the library).
+ */
+function consistencyScheduler(name: string, file: string): ConsumerClass {
+  return cls({
+    name,
+    source: `${SOURCE}/${file} (${name}.__init__, set_timesteps)`,
+    keys: [
+      ...BETA_KEYS,
+      'original_inference_steps',
+      'clip_sample',
+      'clip_sample_range',
+      'set_alpha_to_one',
+      'steps_offset',
+      'prediction_type',
+      'thresholding',
+      'dynamic_thresholding_ratio',
+      'sample_max_value',
+      'timestep_spacing',
+      'timestep_scaling',
+      'rescale_betas_zero_snr',
+    ],
+    conceptKeys: { ...BETA_CONCEPTS, zeroTerminalSnr: 'rescale_betas_zero_snr', thresholding: 'clip_sample' },
+    defaults: { ...LINEAR_DEFAULTS, betaSchedule: 'scaled_linear', betaStart: 0.00085, betaEnd: 0.012, zeroTerminalSnr: false },
+    keyDefaults: { clip_sample: false, thresholding: false, original_inference_steps: 50 },
+    separateKeys: [['clip_sample', 'thresholding']],
+    // Kept in the config, but set_timesteps reads neither: see timesteps.ts, 'lcm'.
+    inertKeys: ['timestep_spacing', 'steps_offset'],
+    fixedSpacing: 'trailing',
+    timesteps: 'lcm',
+    enums: enums(),
+    cannotExpress: {
+      timestepSpacing: `${name} does not read timestep_spacing: its steps come from the original_inference_steps grid, which starts at T - 1 when original_inference_steps divides T (50 for T = 1000)`,
+    },
+  });
+}
+
 export const SCHEDULER_CLASSES: ConsumerClass[] = [
   cls({
     name: 'DDIMScheduler',
@@ -336,38 +375,8 @@ export const SCHEDULER_CLASSES: ConsumerClass[] = [
     karrasStartsAtMax: true,
     enums: enums(),
   }),
-  cls({
-    name: 'LCMScheduler',
-    source: `${SOURCE}/scheduling_lcm.py (LCMScheduler.__init__, set_timesteps)`,
-    keys: [
-      ...BETA_KEYS,
-      'original_inference_steps',
-      'clip_sample',
-      'clip_sample_range',
-      'set_alpha_to_one',
-      'steps_offset',
-      'prediction_type',
-      'thresholding',
-      'dynamic_thresholding_ratio',
-      'sample_max_value',
-      'timestep_spacing',
-      'timestep_scaling',
-      'rescale_betas_zero_snr',
-    ],
-    conceptKeys: { ...BETA_CONCEPTS, zeroTerminalSnr: 'rescale_betas_zero_snr', thresholding: 'clip_sample' },
-    defaults: { ...LINEAR_DEFAULTS, betaSchedule: 'scaled_linear', betaStart: 0.00085, betaEnd: 0.012, zeroTerminalSnr: false },
-    keyDefaults: { clip_sample: false, thresholding: false, original_inference_steps: 50 },
-    separateKeys: [['clip_sample', 'thresholding']],
-    // Kept in the config, but set_timesteps reads neither: see timesteps.ts, 'lcm'.
-    inertKeys: ['timestep_spacing', 'steps_offset'],
-    fixedSpacing: 'trailing',
-    timesteps: 'lcm',
-    enums: enums(),
-    cannotExpress: {
-      timestepSpacing:
-        'LCMScheduler does not read timestep_spacing: its steps come from the original_inference_steps grid, which starts at T - 1 when original_inference_steps divides T (50 for T = 1000)',
-    },
-  }),
+  consistencyScheduler('LCMScheduler', 'scheduling_lcm.py'),
+  consistencyScheduler('TCDScheduler', 'scheduling_tcd.py'),
   cls({
     name: 'FlowMatchEulerDiscreteScheduler',
     source: `${SOURCE}/scheduling_flow_match_euler_discrete.py (FlowMatchEulerDiscreteScheduler.__init__, set_timesteps)`,
