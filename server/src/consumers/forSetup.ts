@@ -104,7 +104,8 @@ export function consumerTakes(reading: ConsumerReading | undefined, entry: Locat
     if (args.booleanConcepts?.[entry.key] || entry.key === args.respacingKey) return false;
     return Object.values(reading.cls.conceptKeys).includes(entry.key);
   }
-  return reading.cls.keys.includes(entry.key) && !reading.cls.inertKeys?.includes(entry.key);
+  const inert = reading.cls.inertKeys;
+  return reading.cls.keys.includes(entry.key) && !(inert && Object.values(inert).includes(entry.key));
 }
 
 function short(source: string): string {
@@ -153,14 +154,15 @@ export function classDefaults(cls: ConsumerClass, trainSteps?: number): { concep
 /**
  * Key a fix writes for each concept under this class (null: the class cannot take it). With
  * `outsideGeneric` (the class reads one nested map of a larger config), a concept the class does
- * not take is left out: it is written the generic way, outside that map.
+ * not take is left out: it is written the generic way, outside that map. A concept whose key the
+ * class keeps but never reads (inertKeys) has no key anywhere: writing it would change nothing.
  */
 export function insertKeysOf(cls: ConsumerClass, outsideGeneric = false): { [C in Concept]?: string | null } {
   const out: { [C in Concept]?: string | null } = {};
   for (const concept of CONCEPTS) {
     const key = cls.conceptKeys[concept];
     if (key) out[concept] = key;
-    else if (!outsideGeneric) out[concept] = null;
+    else if (!outsideGeneric || cls.inertKeys?.[concept]) out[concept] = null;
   }
   return out;
 }

@@ -41,7 +41,10 @@ export function consumerTimesteps(
   respacing?: string,
   originalSteps?: number,
 ): TimestepsResult {
-  if (rule === 'lcm') return lcmTimesteps(T, N, originalSteps ?? LCM_ORIGINAL_STEPS);
+  if (rule === 'lcm') {
+    // The consumer summary always carries the grid for this rule (the file's, else the class default).
+    return originalSteps === undefined ? { ok: false, problem: 'the original_inference_steps grid is unknown' } : lcmTimesteps(T, N, originalSteps);
+  }
   if (rule === 'respaced' && respacing !== undefined) {
     const kept = respacedTimesteps(T, respacing);
     return kept.ok ? { ok: true, value: kept.value } : kept;
@@ -79,9 +82,6 @@ export function consumerTimesteps(
   }
   return { ok: true, value: Array.from(standard.value) };
 }
-
-/** LCMScheduler's default original_inference_steps. */
-const LCM_ORIGINAL_STEPS = 50;
 
 function lcmTimesteps(T: number, N: number, O: number): TimestepsResult {
   if (!Number.isSafeInteger(O) || O < 1) return { ok: false, problem: `original_inference_steps ${O} must be a positive whole number` };

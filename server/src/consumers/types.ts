@@ -46,10 +46,11 @@ export interface ConsumerClass {
   /** Spacing used when the class reads no spacing key (fixed by its code). */
   fixedSpacing?: TimestepSpacing;
   /**
-   * Keys the class accepts (so they are no error) but whose value its step selection never reads:
-   * they stand for no concept (LCMScheduler keeps timestep_spacing in its config and ignores it).
+   * Concepts the class keeps a key for (so the key is no error) but never reads: the key stands
+   * for nothing, and a fix cannot write the concept anywhere (LCMScheduler keeps timestep_spacing
+   * in its config and its step selection ignores it).
    */
-  inertKeys?: string[];
+  inertKeys?: Partial<Record<Concept, string>>;
   /** What a value means to this class when that differs from the alias table (key -> written -> tool's member). */
   valueMeanings?: Record<string, Record<string, string>>;
   /** Accepted values per key (as written), when the class checks them. */

@@ -309,6 +309,8 @@ function renderFixes(fixes: ConceptFix[], parsed: ParsedFile, setup: Setup, onFa
     0,
     rendered.findIndex((f) => f.wanted),
   );
+  // One tree-free record of the parse for all of them.
+  const origin = rendered.length > 0 ? syntaxBaseOf(parsed) : null;
   return rendered.map((f, i) => {
     const proposal: FixProposal = {
       title: f.title,
@@ -318,7 +320,7 @@ function renderFixes(fixes: ConceptFix[], parsed: ParsedFile, setup: Setup, onFa
       edits: f.edits,
     };
     // Where the fix is handed out (LSP code actions), its result is parsed in full from here.
-    rememberOrigin(proposal, syntaxBaseOf(parsed));
+    rememberOrigin(proposal, origin!);
     return proposal;
   });
 }

@@ -92,18 +92,20 @@ export const samplerSkipsLastStep = defineRule({
     const consequence = zeroSnr
       ? `the schedule reaches zero SNR only at ${T - 1}, so the sampler never takes the one step trained on pure noise`
       : `sampling starts from pure noise at a step that still held signal in training`;
-    // The latent consistency scheduler selects from its own grid: no spacing changes that.
-    const lcm = setup.consumer?.timesteps === 'lcm';
-    const how = lcm
-      ? `the original_inference_steps grid (${setup.consumer?.originalSteps ?? '?'} steps, stride ${Math.floor(T / (setup.consumer?.originalSteps ?? T))}) with ${sampling.steps} steps visits`
-      : `${sampling.spacing} spacing with ${sampling.steps} steps visits`;
-    const fix = lcm ? null : trailingFix(setup, T, sampling);
+    // The latent consistency schedulers select from their own grid, whatever the spacing says (the
+    // class does not read it, so no spacing fix renders either).
+    const grid = setup.consumer?.timesteps === 'lcm' ? setup.consumer.originalSteps : undefined;
+    const how =
+      grid !== undefined
+        ? `the original_inference_steps grid (${grid} steps, stride ${Math.floor(T / grid)}) with ${sampling.steps} steps visits`
+        : `${sampling.spacing} spacing with ${sampling.steps} steps visits`;
+    const fix = trailingFix(setup, T, sampling);
     return [
       {
         message:
           `first sampling step is ${first} of 0..${T - 1}${snrThere}, not the last training step ${T - 1}: ` +
           `${how} ${fmtList(sampling.timesteps)}; ${consequence}` +
-          (lcm ? `; an original_inference_steps that divides ${T} starts the grid at ${T - 1}` : '') +
+          (grid !== undefined ? `; an original_inference_steps that divides ${T} starts the grid at ${T - 1}` : '') +
           assumedNote(
             setup,
             ['timestepSpacing', 'stepsOffset', ...(schedule ? [...scheduleConcepts(setup), 'zeroTerminalSnr' as const] : [])],

@@ -15,7 +15,7 @@
 import { resolve } from 'node:path';
 import { analyzeText, readFile } from '../../engine/api';
 import { applyEdits } from '../../fix/apply';
-import { composeChanges } from '../../fix/changes';
+import { composeChanges, type TextChange } from '../../fix/changes';
 import { planRunRescale, RUN_FIXED_RULES } from '../../fix/runRescale';
 import { formatRunNumbers } from '../../views/runRescale';
 import type { PartnerDocument } from '../../rules/types';
@@ -111,10 +111,13 @@ export async function runRescaleRun(args: string[], io: CliIO): Promise<number> 
     return 1;
   }
   const texts = new Map<string, string>();
+  // Where each new text differs from its file, for the diff.
+  const changes = new Map<string, TextChange[]>();
   for (const f of files) {
     const fp = plan.files.find((p) => p.path === f.shown);
     if (!fp || !fp.textEdits || fp.textEdits.length === 0) continue;
     texts.set(f.abs, applyEdits(f.text, fp.textEdits));
+    changes.set(f.abs, composeChanges([], fp.textEdits));
   }
 
   const out: string[] = [];
@@ -130,9 +133,8 @@ export async function runRescaleRun(args: string[], io: CliIO): Promise<number> 
   } else {
     for (const f of files) {
       const after = texts.get(f.abs);
-      const edits = plan.files.find((p) => p.path === f.shown)?.textEdits;
-      if (after !== undefined && edits)
-        out.push(unifiedPatch(`a/${f.shown}`, `b/${f.shown}`, f.text, after, composeChanges([], edits)).replace(/\n$/, ''));
+      const changed = changes.get(f.abs);
+      if (after !== undefined && changed) out.push(unifiedPatch(`a/${f.shown}`, `b/${f.shown}`, f.text, after, changed).replace(/\n$/, ''));
     }
     out.push('');
     out.push(`Changes in the ${run}${options.samplingOnly ? ' (sampling-only)' : ''}:`);

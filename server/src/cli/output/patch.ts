@@ -11,7 +11,10 @@ import type { TextChange } from '../../fix/changes';
 /** Unchanged lines shown around a change; jsdiff's own default, so hunks match a whole-text diff. */
 const CONTEXT = 4;
 
-/** The offsets at which each line of `text` starts, as jsdiff splits lines (after each "\n"). */
+/**
+ * The offsets at which each line of `text` starts, as jsdiff splits lines: after each "\n" only
+ * (parse/lineIndex.ts also breaks at a lone CR, so its line numbers would not match the hunks').
+ */
 function lineStarts(text: string): number[] {
   const starts = [0];
   for (let at = text.indexOf('\n'); at !== -1; at = text.indexOf('\n', at + 1)) starts.push(at + 1);

@@ -92,7 +92,7 @@ function consistencyScheduler(name: string, file: string): ConsumerClass {
     keyDefaults: { clip_sample: false, thresholding: false, original_inference_steps: 50 },
     separateKeys: [['clip_sample', 'thresholding']],
     // Kept in the config, but set_timesteps reads neither: see timesteps.ts, 'lcm'.
-    inertKeys: ['timestep_spacing', 'steps_offset'],
+    inertKeys: { timestepSpacing: 'timestep_spacing', stepsOffset: 'steps_offset' },
     fixedSpacing: 'trailing',
     timesteps: 'lcm',
     enums: enums(),
