@@ -63,4 +63,17 @@ describe('schedulers instantiated from a nested map', () => {
     const ignored = setup.consumer!.ignoredKeys.map((k) => `${k.key}: ${k.reason}`);
     expect(ignored).toEqual(['karras_rho: DDIMScheduler does not take karras_rho: instantiating it raises a TypeError']);
   });
+
+  it('writes no schedule concept the class cannot take outside its map, where nothing would read it', () => {
+    // PNDMScheduler has no rescale_betas_zero_snr (scheduling_pndm.py, PNDMScheduler.__init__).
+    const text = `${HEAD}sampler:\n  scheduler:\n    _target_: diffusers.PNDMScheduler\n    num_train_timesteps: 1000\n    beta_schedule: scaled_linear\n    beta_start: 0.00085\n    beta_end: 0.012\n  num_inference_steps: 30\n`;
+    const { result, decision } = decisionOf(text);
+    expect(decision?.className).toBe('PNDMScheduler');
+    const leak = result.findings.find((f) => f.rule === 'terminal-snr-leak')!;
+    expect(leak.fixes).toEqual([]);
+    expect(leak.message).toContain('PNDMScheduler has no zero-SNR rescale');
+    // The class does take timestep_spacing: that fix still goes inside its map.
+    const skip = result.findings.find((f) => f.rule === 'sampler-skips-last-step')!;
+    expect(applyEdits(text, skip.fixes[0]!.edits)).toContain('    beta_end: 0.012\n    timestep_spacing: trailing\n  num_inference_steps: 30\n');
+  });
 });

@@ -3,7 +3,7 @@
  * which it ignores, the defaults it applies (with the sentence that says so), and the plain-data
  * summary the setup carries on.
  */
-import { CONCEPTS, type Concept, type ConceptValues } from '../fields/concepts';
+import { CONCEPT_GROUP, CONCEPTS, type Concept, type ConceptValues } from '../fields/concepts';
 import { effectiveEntries } from '../fields/findConcepts';
 import type { LocatedEntry, LocatedMap } from '../parse/types';
 import type { LoaderReading } from './readAs';
@@ -154,15 +154,16 @@ export function classDefaults(cls: ConsumerClass, trainSteps?: number): { concep
 /**
  * Key a fix writes for each concept under this class (null: the class cannot take it). With
  * `outsideGeneric` (the class reads one nested map of a larger config), a concept the class does
- * not take is left out: it is written the generic way, outside that map. A concept whose key the
- * class keeps but never reads (inertKeys) has no key anywhere: writing it would change nothing.
+ * not take is left out: it is written the generic way, outside that map (guidance beside the
+ * step count, for the pipeline call). A schedule concept it does not take has no key anywhere:
+ * only the scheduler reads those, so writing one outside its map would change nothing.
  */
 export function insertKeysOf(cls: ConsumerClass, outsideGeneric = false): { [C in Concept]?: string | null } {
   const out: { [C in Concept]?: string | null } = {};
   for (const concept of CONCEPTS) {
     const key = cls.conceptKeys[concept];
     if (key) out[concept] = key;
-    else if (!outsideGeneric || cls.inertKeys?.[concept]) out[concept] = null;
+    else if (!outsideGeneric || CONCEPT_GROUP[concept] === 'schedule') out[concept] = null;
   }
   return out;
 }

@@ -47,8 +47,8 @@ export interface ConsumerClass {
   fixedSpacing?: TimestepSpacing;
   /**
    * Concepts the class keeps a key for (so the key is no error) but never reads: the key stands
-   * for nothing, and a fix cannot write the concept anywhere (LCMScheduler keeps timestep_spacing
-   * in its config and its step selection ignores it).
+   * for nothing, and, like any concept the class does not take, a fix cannot write it
+   * (LCMScheduler keeps timestep_spacing in its config and its step selection ignores it).
    */
   inertKeys?: Partial<Record<Concept, string>>;
   /** What a value means to this class when that differs from the alias table (key -> written -> tool's member). */
